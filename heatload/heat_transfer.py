@@ -1,0 +1,631 @@
+"""Heat leaving the reservoir and the circuit: natural and forced convection to
+air, and thermal radiation.
+
+One correlation per function, vectorized over numpy arrays, SI inside
+(K, m, W, Pa).  Air properties come from CoolProp (imported lazily, calls
+cached on a 0.05 K grid and interpolated linearly so the result stays
+continuous in temperature for the root finders of :mod:`heatload.thermal`).
+
+The public entry point for the thermal model is :func:`reservoir_conductance`,
+the overall conductance UA [W/K] of a :class:`heatload.model.Reservoir` and its
+further surfaces at a given oil temperature.
+"""
+
+from __future__ import annotations
+
+from collections import namedtuple
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+
+from heatload.errors import HeatloadError
+
+#: Stefan-Boltzmann constant [W/(m^2 K^4)] (CODATA 2018, exact in SI).
+STEFAN_BOLTZMANN = 5.670374419e-8
+#: Standard gravity [m/s^2] (CGPM 1901, exact).
+GRAVITY = 9.80665
+#: Laminar to turbulent transition on a flat plate in forced flow [-] (Incropera, Sec. 7.2).
+RE_TRANSITION = 5.0e5
+#: Natural convection orientations accepted by :func:`natural_convection_coefficient`.
+ORIENTATIONS = ("vertical", "horizontal-up", "horizontal-down", "cylinder")
+#: Default effectiveness of the reservoir surfaces not wetted by oil (the wall band
+#: above the oil level and the lid).  An assumption, not a published value: these
+#: surfaces are heated only through the steel from the oil line and by the warm air
+#: space above the oil, so they run between the oil and the ambient temperature;
+#: half of a wetted surface's dissipation is taken (from memory, a round estimate).
+DRY_SURFACE_FACTOR = 0.5
+
+#: Temperature grid of the cached air property calls [K].
+_GRID = 0.05
+
+AirProperties = namedtuple(
+    "AirProperties",
+    ["density", "specific_heat", "dynamic_viscosity", "thermal_conductivity",
+     "prandtl", "expansion", "kinematic_viscosity"],
+)
+AirProperties.__doc__ = """Dry air properties, each an array [SI]:
+density [kg/m^3], specific_heat [J/(kg K)], dynamic_viscosity [Pa s],
+thermal_conductivity [W/(m K)], prandtl [-], expansion (1/T, ideal gas) [1/K],
+kinematic_viscosity [m^2/s]."""
+
+
+@lru_cache(maxsize=20000)
+def _air_point(grid_index: int, pressure: float) -> tuple:
+    from CoolProp.CoolProp import PropsSI
+
+    t = grid_index * _GRID
+    return (PropsSI("D", "T", t, "P", pressure, "Air"),
+            PropsSI("C", "T", t, "P", pressure, "Air"),
+            PropsSI("V", "T", t, "P", pressure, "Air"),
+            PropsSI("L", "T", t, "P", pressure, "Air"))
+
+
+def air_properties(temperature, pressure=101325.0) -> AirProperties:
+    """Properties of dry air from CoolProp's 'Air' (Lemmon et al. pseudo-pure fluid).
+
+    ``expansion`` = 1/T (ideal gas), ``prandtl`` = c_p mu / k,
+    ``kinematic_viscosity`` = mu / rho.
+
+    Parameters
+    ----------
+    temperature : array_like
+        Air temperature [K], 150 K .. 1000 K.
+    pressure : array_like, optional
+        Absolute pressure [Pa] (default 101325 Pa, sea level).
+
+    Returns
+    -------
+    AirProperties
+        Arrays broadcast from *temperature* and *pressure* (see the type's fields).
+
+    Notes
+    -----
+    CoolProp is slow per call, so values are computed on a 0.05 K grid (cached)
+    and interpolated linearly; the interpolation error is far below the
+    uncertainty of any convection correlation.
+
+    References
+    ----------
+    Lemmon, Jacobsen, Penoncello, Friend, J. Phys. Chem. Ref. Data 29 (2000) 331;
+    Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498 (CoolProp).
+    """
+    t, p = np.broadcast_arrays(np.asarray(temperature, dtype=float),
+                               np.asarray(pressure, dtype=float))
+    if not np.all(np.isfinite(t)) or np.any(t < 150.0) or np.any(t > 1000.0):
+        raise HeatloadError("air temperature must be within 150 K .. 1000 K", field="temperature")
+    if not np.all(np.isfinite(p)) or np.any(p <= 0.0):
+        raise HeatloadError("air pressure must be a positive absolute pressure [Pa]", field="pressure")
+    x = t / _GRID
+    lo = np.floor(x)
+    w = x - lo
+    pr = np.round(p, 0)
+    pairs = np.stack([lo.ravel(), pr.ravel()], axis=1)
+    uniq, inverse = np.unique(pairs, axis=0, return_inverse=True)
+    inverse = inverse.reshape(-1)
+    lower = np.array([_air_point(int(i), float(pp)) for i, pp in uniq])
+    upper = np.array([_air_point(int(i) + 1, float(pp)) for i, pp in uniq])
+    ww = w.reshape(-1, 1)
+    flat = lower[inverse] + ww * (upper[inverse] - lower[inverse])
+    out = flat.T.reshape((4,) + t.shape)
+    rho, cp, mu, k = out
+    return AirProperties(density=rho, specific_heat=cp, dynamic_viscosity=mu,
+                         thermal_conductivity=k, prandtl=cp * mu / k,
+                         expansion=1.0 / t, kinematic_viscosity=mu / rho)
+
+
+def grashof(expansion, temperature_difference, length, kinematic_viscosity, gravity=GRAVITY):
+    """Grashof number Gr = g beta |dT| L^3 / nu^2.
+
+    Parameters
+    ----------
+    expansion : array_like
+        Volumetric expansion coefficient beta of the fluid [1/K].
+    temperature_difference : array_like
+        Surface minus fluid temperature [K] (its magnitude is used).
+    length : array_like
+        Characteristic length [m].
+    kinematic_viscosity : array_like
+        [m^2/s].
+    gravity : float, optional
+        [m/s^2].
+
+    Returns
+    -------
+    ndarray
+        Gr [-].
+
+    References
+    ----------
+    Incropera, DeWitt, Bergman, Lavine, Fundamentals of Heat and Mass Transfer,
+    6th ed., Wiley 2007, eq. 9.12.
+    """
+    return (gravity * np.asarray(expansion, float) * np.abs(temperature_difference)
+            * np.asarray(length, float) ** 3 / np.asarray(kinematic_viscosity, float) ** 2)
+
+
+def rayleigh(grashof_number, prandtl):
+    """Rayleigh number Ra = Gr Pr.
+
+    Parameters
+    ----------
+    grashof_number : array_like
+        Gr [-].
+    prandtl : array_like
+        Pr [-].
+
+    Returns
+    -------
+    ndarray
+        Ra [-].
+
+    References
+    ----------
+    Incropera et al., 6th ed., eq. 9.25.
+    """
+    return np.asarray(grashof_number, float) * np.asarray(prandtl, float)
+
+
+def nusselt_vertical_plate_churchill_chu(rayleigh, prandtl):
+    """Mean Nusselt number of an isothermal vertical plate, laminar and turbulent.
+
+    Nu_L = {0.825 + 0.387 Ra_L^(1/6) / [1 + (0.492/Pr)^(9/16)]^(8/27)}^2
+
+    Parameters
+    ----------
+    rayleigh : array_like
+        Ra_L based on the plate height [-].
+    prandtl : array_like
+        Pr [-].
+
+    Returns
+    -------
+    ndarray
+        Nu_L [-].
+
+    Notes
+    -----
+    Valid over the whole Ra range (10^-1 .. 10^12); vertical cylinders too when
+    D / L >= 35 / Gr_L^(1/4).
+
+    References
+    ----------
+    Churchill, S.W., Chu, H.H.S., Int. J. Heat Mass Transfer 18 (1975) 1323-1329;
+    Incropera et al., 6th ed., eq. 9.26.
+    """
+    ra = np.asarray(rayleigh, float)
+    pr = np.asarray(prandtl, float)
+    psi = (1.0 + (0.492 / pr) ** (9.0 / 16.0)) ** (8.0 / 27.0)
+    return (0.825 + 0.387 * ra ** (1.0 / 6.0) / psi) ** 2
+
+
+def nusselt_horizontal_plate_hot_up(rayleigh):
+    """Mean Nusselt number of the upper face of a hot horizontal plate
+    (or the lower face of a cold one).
+
+    Nu_L = 0.54 Ra_L^(1/4) for Ra_L <= 10^7, 0.15 Ra_L^(1/3) above,
+    with L = area / perimeter.
+
+    Parameters
+    ----------
+    rayleigh : array_like
+        Ra_L based on L = A / P [-].
+
+    Returns
+    -------
+    ndarray
+        Nu_L [-].
+
+    Notes
+    -----
+    Published range 10^4 .. 10^11, Pr >= 0.7; the laminar branch is used
+    below 10^4 too (small plates, small dT), a mild extrapolation.
+
+    References
+    ----------
+    Incropera et al., 6th ed., eqs. 9.30-9.31 (after Lloyd and Moran 1974).
+    """
+    ra = np.asarray(rayleigh, float)
+    return np.where(ra <= 1e7, 0.54 * ra ** 0.25, 0.15 * ra ** (1.0 / 3.0))
+
+
+def nusselt_horizontal_plate_hot_down(rayleigh):
+    """Mean Nusselt number of the lower face of a hot horizontal plate
+    (or the upper face of a cold one).
+
+    Nu_L = 0.52 Ra_L^(1/5), L = area / perimeter.
+
+    Parameters
+    ----------
+    rayleigh : array_like
+        Ra_L based on L = A / P [-].
+
+    Returns
+    -------
+    ndarray
+        Nu_L [-].
+
+    Notes
+    -----
+    Published range 10^4 .. 10^9, Pr >= 0.7.
+
+    References
+    ----------
+    Incropera et al., 7th ed., eq. 9.32 (after Radziemska and Lewandowski 2001).
+    """
+    ra = np.asarray(rayleigh, float)
+    return 0.52 * ra ** 0.2
+
+
+def nusselt_horizontal_cylinder_churchill_chu(rayleigh, prandtl):
+    """Mean Nusselt number of a long isothermal horizontal cylinder (a pipe).
+
+    Nu_D = {0.60 + 0.387 Ra_D^(1/6) / [1 + (0.559/Pr)^(9/16)]^(8/27)}^2
+
+    Parameters
+    ----------
+    rayleigh : array_like
+        Ra_D based on the outside diameter [-].
+    prandtl : array_like
+        Pr [-].
+
+    Returns
+    -------
+    ndarray
+        Nu_D [-].
+
+    Notes
+    -----
+    Valid for Ra_D <= 10^12.
+
+    References
+    ----------
+    Churchill, S.W., Chu, H.H.S., Int. J. Heat Mass Transfer 18 (1975) 1049-1053;
+    Incropera et al., 6th ed., eq. 9.34.
+    """
+    ra = np.asarray(rayleigh, float)
+    pr = np.asarray(prandtl, float)
+    psi = (1.0 + (0.559 / pr) ** (9.0 / 16.0)) ** (8.0 / 27.0)
+    return (0.60 + 0.387 * ra ** (1.0 / 6.0) / psi) ** 2
+
+
+def nusselt_flat_plate_forced(reynolds, prandtl):
+    """Mean Nusselt number of an isothermal flat plate in parallel forced flow.
+
+    Laminar (Re_L <= 5 10^5): Nu_L = 0.664 Re_L^(1/2) Pr^(1/3);
+    mixed laminar/turbulent (Re_L > 5 10^5): Nu_L = (0.037 Re_L^(4/5) - 871) Pr^(1/3).
+
+    Parameters
+    ----------
+    reynolds : array_like
+        Re_L = u L / nu, L the length along the flow [-].
+    prandtl : array_like
+        Pr [-].
+
+    Returns
+    -------
+    ndarray
+        Nu_L [-].
+
+    Notes
+    -----
+    Laminar form for Pr >= 0.6; mixed form for 0.6 <= Pr <= 60,
+    5 10^5 < Re_L <= 10^8, transition at Re = 5 10^5.  Both branches
+    meet at the transition (continuous).
+
+    References
+    ----------
+    Incropera et al., 6th ed., eqs. 7.30 and 7.38.
+    """
+    re = np.asarray(reynolds, float)
+    pr = np.asarray(prandtl, float)
+    lam = 0.664 * np.sqrt(re) * pr ** (1.0 / 3.0)
+    mixed = (0.037 * re ** 0.8 - 871.0) * pr ** (1.0 / 3.0)
+    return np.where(re <= RE_TRANSITION, lam, mixed)
+
+
+def radiation_coefficient(surface_temperature, ambient_temperature, emissivity):
+    """Linearized radiation coefficient of a small grey surface in large surroundings.
+
+    h_r = eps sigma (T_s^2 + T_a^2)(T_s + T_a), so that q = h_r (T_s - T_a)
+    equals eps sigma (T_s^4 - T_a^4) exactly.
+
+    Parameters
+    ----------
+    surface_temperature : array_like
+        [K].
+    ambient_temperature : array_like
+        Surroundings (walls of the room, taken at air temperature) [K].
+    emissivity : array_like
+        Hemispherical emissivity, 0..1 [-] (painted steel ~0.9, common practice).
+
+    Returns
+    -------
+    ndarray
+        h_r [W/(m^2 K)].
+
+    References
+    ----------
+    Incropera et al., 6th ed., eq. 1.9.
+    """
+    ts = np.asarray(surface_temperature, float)
+    ta = np.asarray(ambient_temperature, float)
+    eps = np.asarray(emissivity, float)
+    if np.any(eps < 0.0) or np.any(eps > 1.0):
+        raise HeatloadError("emissivity must be within 0 .. 1", field="emissivity")
+    if np.any(ts <= 0.0) or np.any(ta <= 0.0):
+        raise HeatloadError("temperatures must be absolute [K] and positive", field="temperature")
+    return eps * STEFAN_BOLTZMANN * (ts ** 2 + ta ** 2) * (ts + ta)
+
+
+def natural_convection_coefficient(surface_temperature, air_temperature, characteristic_length,
+                                   orientation="vertical", pressure=101325.0):
+    """Natural convection coefficient from an isothermal surface to still air.
+
+    h = Nu k / L, Nu from the orientation's correlation, air properties at the
+    film temperature T_f = (T_s + T_a)/2, beta = 1/T_f.
+
+    Parameters
+    ----------
+    surface_temperature : array_like
+        [K].
+    air_temperature : array_like
+        Air far from the surface [K].
+    characteristic_length : array_like
+        Height of a vertical wall, area/perimeter of a horizontal plate, outside
+        diameter of a cylinder [m].
+    orientation : str
+        'vertical' (Churchill-Chu plate), 'horizontal-up' (face looking up),
+        'horizontal-down' (face looking down), 'cylinder' (horizontal pipe).
+    pressure : array_like, optional
+        Absolute air pressure [Pa].
+
+    Returns
+    -------
+    ndarray
+        h [W/(m^2 K)].
+
+    Notes
+    -----
+    A face looking up that is colder than the air behaves like a hot face
+    looking down (and vice versa): the stable layer case takes the
+    hot-down correlation.
+
+    References
+    ----------
+    Incropera et al., 6th/7th ed., Sec. 9.6; Churchill and Chu (1975).
+    """
+    if orientation not in ORIENTATIONS:
+        raise HeatloadError(f"unknown orientation {orientation!r}; expected one of "
+                            f"{', '.join(ORIENTATIONS)}", field="orientation")
+    ts = np.asarray(surface_temperature, float)
+    ta = np.asarray(air_temperature, float)
+    length = np.asarray(characteristic_length, float)
+    if np.any(length <= 0.0):
+        raise HeatloadError("characteristic length must be positive [m]",
+                            field="characteristic_length")
+    film = 0.5 * (ts + ta)
+    air = air_properties(film, pressure)
+    gr = grashof(air.expansion, ts - ta, length, air.kinematic_viscosity)
+    ra = rayleigh(gr, air.prandtl)
+    if orientation == "vertical":
+        nu = nusselt_vertical_plate_churchill_chu(ra, air.prandtl)
+    elif orientation == "cylinder":
+        nu = nusselt_horizontal_cylinder_churchill_chu(ra, air.prandtl)
+    else:
+        unstable = (ts >= ta) if orientation == "horizontal-up" else (ts < ta)
+        nu = np.where(unstable, nusselt_horizontal_plate_hot_up(ra),
+                      nusselt_horizontal_plate_hot_down(ra))
+    return nu * air.thermal_conductivity / length
+
+
+def forced_convection_coefficient(surface_temperature, air_temperature, length, velocity,
+                                  pressure=101325.0):
+    """Forced convection coefficient of a flat wall in parallel air flow.
+
+    h = Nu k / L with Nu from :func:`nusselt_flat_plate_forced`,
+    Re = u L / nu, air properties at the film temperature.
+
+    Parameters
+    ----------
+    surface_temperature, air_temperature : array_like
+        [K].
+    length : array_like
+        Length of the wall along the flow [m].
+    velocity : array_like
+        Free-stream air velocity [m/s], >= 0.
+    pressure : array_like, optional
+        [Pa].
+
+    Returns
+    -------
+    ndarray
+        h [W/(m^2 K)].
+
+    References
+    ----------
+    Incropera et al., 6th ed., eqs. 7.30, 7.38.
+    """
+    u = np.asarray(velocity, float)
+    if np.any(u < 0.0):
+        raise HeatloadError("air velocity must be >= 0 [m/s]", field="air_velocity")
+    length = np.asarray(length, float)
+    air = air_properties(0.5 * (np.asarray(surface_temperature, float)
+                                + np.asarray(air_temperature, float)), pressure)
+    re = u * length / air.kinematic_viscosity
+    return nusselt_flat_plate_forced(re, air.prandtl) * air.thermal_conductivity / length
+
+
+def _mixed(h_forced, h_natural):
+    # Mixed convection, transverse/assisting flow: Nu^3 = Nu_F^3 + Nu_N^3
+    # (Incropera et al., 6th ed., eq. 9.64, n = 3).
+    return np.cbrt(h_forced ** 3 + h_natural ** 3)
+
+
+@dataclass(frozen=True)
+class ReservoirHeatTransfer:
+    """Breakdown of the reservoir's conductance; arrays over oil temperature.
+
+    Every conductance is [W/K]; areas [m^2]; coefficients [W/(m^2 K)].
+    """
+
+    conductance: np.ndarray            #: total UA, reservoir + further surfaces [W/K]
+    walls_wetted: np.ndarray           #: UA of the oil-wetted wall band [W/K]
+    walls_dry: np.ndarray              #: UA of the wall band above the oil, factor applied [W/K]
+    top: np.ndarray                    #: UA of the lid, factor applied when not wetted [W/K]
+    bottom: np.ndarray                 #: UA of the bottom (0 unless exposed) [W/K]
+    surfaces: np.ndarray               #: UA of the further surfaces [W/K]
+    wetted_wall_area: float            #: [m^2]
+    wall_coefficient: np.ndarray       #: combined convection + radiation of the wetted walls [W/(m^2 K)]
+    effective_area: float              #: reservoir area counted, factors applied [m^2]
+
+
+def _surface_coefficient(ts, ta, length, orientation, emissivity, pressure, velocity=0.0,
+                         flow_length=None):
+    h = natural_convection_coefficient(ts, ta, length, orientation, pressure)
+    if np.any(np.asarray(velocity) > 0.0):
+        hf = forced_convection_coefficient(ts, ta, flow_length, velocity, pressure)
+        h = _mixed(hf, h)
+    return h + radiation_coefficient(ts, ta, emissivity)
+
+
+def reservoir_heat_transfer(reservoir, oil_temperature, air_temperature, pressure=101325.0,
+                            dry_surface_factor=DRY_SURFACE_FACTOR) -> ReservoirHeatTransfer:
+    """Conductance of a reservoir and the circuit's further surfaces, part by part.
+
+    UA = h_w A_w + f (h_w A_d + h_t A_t) + h_b A_b + sum(h_i A_i), with
+    h = h_convection + h_radiation (see :func:`natural_convection_coefficient`,
+    :func:`radiation_coefficient`) or the user's coefficient.
+
+    Parameters
+    ----------
+    reservoir : heatload.model.Reservoir
+        Tank geometry, oil level, emissivity, user coefficient, air velocity,
+        bottom exposure and further surfaces.
+    oil_temperature : array_like
+        Bulk oil temperature [K].
+    air_temperature : float or array_like
+        Ambient air (and surroundings for radiation) [K].
+    pressure : float, optional
+        Absolute air pressure [Pa] (lower at altitude).
+    dry_surface_factor : float, optional
+        Effectiveness f (0..1) of the wall band above the oil and of the lid
+        when the tank is not full (default :data:`DRY_SURFACE_FACTOR`).
+        1 counts them as if wetted, 0 counts the oil-wetted area only.
+
+    Returns
+    -------
+    ReservoirHeatTransfer
+
+    Notes
+    -----
+    * Wall temperature = oil temperature: the steel is thin and the oil-side
+      coefficient is much larger than the air side, so the air side governs
+      (common practice).  Further surfaces (pipes, blocks, motors) are taken at
+      oil temperature too.
+    * Walls: four sides, wetted height = oil_level * height as the vertical
+      length; lid: hot face up, bottom (only when ``bottom_exposed``): hot face
+      down, both with L = area / perimeter.
+    * Forced air (``air_velocity`` > 0) over walls, lid and bottom: flat plate
+      along the tank length, combined with natural convection by
+      Nu^3 = Nu_F^3 + Nu_N^3.  Further surfaces stay in still air.
+    * A user ``heat_transfer_coefficient`` replaces convection + radiation on
+      the same effective area.
+
+    References
+    ----------
+    Incropera et al., Fundamentals of Heat and Mass Transfer, Ch. 7 and 9;
+    Churchill and Chu (1975).
+    """
+    r = reservoir
+    for name in ("length", "width", "height"):
+        if not getattr(r, name) > 0.0:
+            raise HeatloadError(f"reservoir {name} must be positive [m]", field=f"reservoir.{name}")
+    if not 0.0 < r.oil_level <= 1.0:
+        raise HeatloadError("oil level must be a wetted fraction within (0, 1]",
+                            field="reservoir.oil_level")
+    if not 0.0 <= dry_surface_factor <= 1.0:
+        raise HeatloadError("dry surface factor must be within 0 .. 1", field="dry_surface_factor")
+    if r.heat_transfer_coefficient is not None and not r.heat_transfer_coefficient > 0.0:
+        raise HeatloadError("heat transfer coefficient must be positive [W/(m^2 K)]",
+                            field="reservoir.heat_transfer_coefficient")
+    ts = np.asarray(oil_temperature, float)
+    ta = np.broadcast_to(np.asarray(air_temperature, float), ts.shape)
+    perimeter = 2.0 * (r.length + r.width)
+    wet_height = r.oil_level * r.height
+    a_wet = perimeter * wet_height
+    a_dry = perimeter * (r.height - wet_height)
+    a_plate = r.length * r.width
+    plate_l = a_plate / (2.0 * (r.length + r.width))
+    top_factor = 1.0 if r.oil_level >= 1.0 else dry_surface_factor
+    a_bottom = a_plate if r.bottom_exposed else 0.0
+
+    if r.heat_transfer_coefficient is not None:
+        h = np.full(ts.shape, float(r.heat_transfer_coefficient))
+        h_wall = h_top = h_bottom = h
+    else:
+        kw = dict(emissivity=r.emissivity, pressure=pressure, velocity=r.air_velocity,
+                  flow_length=r.length)
+        h_wall = _surface_coefficient(ts, ta, wet_height, "vertical", **kw)
+        h_top = _surface_coefficient(ts, ta, plate_l, "horizontal-up", **kw)
+        h_bottom = (_surface_coefficient(ts, ta, plate_l, "horizontal-down", **kw)
+                    if r.bottom_exposed else np.zeros(ts.shape))
+    ua_wet = h_wall * a_wet
+    ua_dry = dry_surface_factor * h_wall * a_dry
+    ua_top = top_factor * h_top * a_plate
+    ua_bottom = h_bottom * a_bottom
+    ua_surf = np.zeros(ts.shape)
+    for i, s in enumerate(r.surfaces):
+        if not s.area >= 0.0:
+            raise HeatloadError("surface area must be >= 0 [m^2]", field=f"reservoir.surfaces[{i}].area")
+        if s.heat_transfer_coefficient is not None:
+            ua_surf = ua_surf + s.heat_transfer_coefficient * s.area
+        else:
+            try:
+                hs = _surface_coefficient(ts, ta, s.characteristic_length, s.orientation,
+                                          s.emissivity, pressure)
+            except HeatloadError as exc:
+                raise exc.located(field_prefix=f"reservoir.surfaces[{i}]") from None
+            ua_surf = ua_surf + hs * s.area
+    total = ua_wet + ua_dry + ua_top + ua_bottom + ua_surf
+    return ReservoirHeatTransfer(
+        conductance=total, walls_wetted=ua_wet, walls_dry=ua_dry, top=ua_top,
+        bottom=ua_bottom, surfaces=ua_surf, wetted_wall_area=a_wet, wall_coefficient=h_wall,
+        effective_area=a_wet + dry_surface_factor * a_dry + top_factor * a_plate + a_bottom)
+
+
+def reservoir_conductance(reservoir, oil_temperature, air_temperature, pressure=101325.0,
+                          dry_surface_factor=DRY_SURFACE_FACTOR):
+    """Overall conductance UA [W/K] from the oil to the ambient air.
+
+    UA(T) = sum over surfaces of (h_conv + h_rad) A; see
+    :func:`reservoir_heat_transfer` for the parts and the assumptions.
+
+    Parameters
+    ----------
+    reservoir : heatload.model.Reservoir
+    oil_temperature : array_like
+        [K].
+    air_temperature : array_like
+        [K].
+    pressure : float, optional
+        Absolute air pressure [Pa].
+    dry_surface_factor : float, optional
+        Effectiveness of the non-wetted wall band and lid (0..1).
+
+    Returns
+    -------
+    ndarray
+        UA [W/K], shaped like *oil_temperature*.
+
+    Notes
+    -----
+    Heat dissipated = UA (T_oil - T_air).  UA rises with T_oil (natural
+    convection and radiation both grow with the temperature difference).
+
+    References
+    ----------
+    Incropera et al., Fundamentals of Heat and Mass Transfer, Ch. 9.
+    """
+    return reservoir_heat_transfer(reservoir, oil_temperature, air_temperature, pressure,
+                                   dry_surface_factor).conductance
