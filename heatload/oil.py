@@ -332,7 +332,7 @@ def temperature_d341(nu, A, B, low_viscosity=False):
 
 # ASTM D2270 Table 1: Y = kinematic viscosity at 100 degC [mm^2/s], L and H =
 # kinematic viscosities at 40 degC [mm^2/s] of the VI 0 and VI 100 reference
-# oils with that Y.  Rows "Y L H".  Checked for transcription errors by: the
+# oils with that Y.  Rows "Y L H".  Checked for typing errors by: the
 # standard's worked example (H(5.05) = 28.97 by interpolation), continuity at
 # 70 mm^2/s with the standard's quadratic formulas for Y > 70, agreement with
 # the standard's Appendix X2 quadratic fits, and smooth second differences
