@@ -96,9 +96,10 @@ def discharge_coefficient(reynolds, cd_turbulent=CD_TURBULENT, delta=CD_LAMINAR_
 
     Notes
     -----
-    The blend follows the laminar law to within 1 % below Re ~ 0.3
-    (Cd_t/delta)^2 ~ 3 and reaches 99 % of the turbulent value near
-    Re ~ 50 (Cd_t/delta)^2 ~ 470.  Its squared-reciprocal form makes the
+    The two laws cross at Re* = (Cd_t/delta)^2 = 9.3, where the blend gives
+    0.71 Cd_t.  It follows the laminar law to within 1 % below
+    Re = 0.02 Re* = 0.19 and reaches 99 % of the turbulent value at
+    Re = 49 Re* = 460.  Its squared-reciprocal form makes the
     orifice equation solvable in closed form (:func:`orifice_flow`).
 
     References
