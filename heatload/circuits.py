@@ -1,0 +1,566 @@
+"""Control strategies: each phase of a duty cycle solved to its operating point.
+
+One solver per strategy, all sharing one structure.  Every phase is a
+steady operating point of one actuator (a differential cylinder or a
+hydraulic motor) fed by the power unit:
+
+    pump (+ relief, bleed or bypass at the pump outlet)
+      -> check valve -> pressure line -> directional valve P->A
+      -> [meter-in flow control]  -> actuator inlet  (p1, Q1)
+      actuator outlet (p2, Q2) -> [meter-out flow control] [counterbalance]
+      -> directional valve B->T -> return line -> tank (0 bar gauge)
+
+The actuator's steady force balance is ``p1 A1 - p2 A2 = F_eff`` with
+``F_eff`` the load plus friction (cylinders) or ``2 pi T / eta_hm`` (motors).
+A solver finds the inlet flow ``Q1`` that the strategy can deliver (the set
+flow, or less when the pump, the relief or the flow control's minimum drop
+limits it; zero when the load stalls the actuator), then books every watt:
+
+    P_shaft = P_pump_loss + p_pump Q_pump
+    p_pump Q_pump = relief + bleed + (Q1 x every drop on the way in) + p1 Q1
+    p1 Q1 - p2 Q2 = F v + actuator losses      (F v < 0 while a load overruns)
+    p2 Q2 = Q2 x every drop on the way out
+    P_electric = P_shaft + motor losses (+ converter losses)
+
+so ``P_electric = useful + sum(losses)`` closes to rounding.  Motor and
+converter losses heat the room, every other loss heats the oil.
+
+Strategies (names as in :data:`heatload.model.STRATEGIES`):
+
+- ``meter-in``: fixed pump, relief sets the pump pressure, a 2-way
+  compensated flow control in the inlet line.  Surplus flow crosses the relief.
+- ``meter-out``: as meter-in with the flow control in the outlet line: the
+  outlet pressure is ``(p1 A1 - F)/A2`` and may exceed supply by the area ratio.
+- ``bleed-off``: fixed pump at the working pressure; the surplus is bled to
+  tank at that pressure by a restrictor set for the phase's speed.
+- ``bypass-compensated``: 3-way compensated flow control: surplus leaves at
+  working pressure + the compensator spring.
+- ``pressure-compensated``: variable pump held at its compensator setting,
+  delivering only the flow used; a meter-in flow control sets the speed.
+- ``load-sensing``: variable pump at the highest load pressure + margin; the
+  proportional valve meters with the margin; standby pressure when idle.
+- ``variable-speed``: fixed pump on a speed-controlled motor delivering the flow
+  used at the working pressure; surplus below its minimum speed is bled at the
+  working pressure.
+
+All functions are vectorized: every input broadcasts (e.g. shape
+``(variants, phases)``), so a design sweep is one call.
+
+References
+----------
+H. E. Merritt, *Hydraulic Control Systems*, Wiley, 1967, ch. 3-5 (valve and
+actuator steady-state relations).  The efficiency bookkeeping is the first
+law for a steady open system (P = p Q for each loss).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from heatload import lines, motors, pumps, valves
+from heatload.model import STRATEGIES
+
+TWO_PI = 2.0 * np.pi
+
+#: Chamber pressure below which cavitation is flagged [Pa gauge]
+#: (about 0.7 bar absolute; common practice to keep chambers above it).
+CAVITATION_THRESHOLD = -0.3e5
+
+#: Loss components in the order tables show them.  ``drive_motor`` and
+#: ``converter`` heat the room; the rest heat the oil.
+OIL_LOSSES = ("pump", "relief", "flow_control", "bleed", "directional_valve",
+              "check_valve", "lines", "counterbalance", "actuator", "compression")
+ROOM_LOSSES = ("drive_motor", "converter")
+LOSS_COMPONENTS = OIL_LOSSES + ROOM_LOSSES
+
+#: Unloading codes used in the arrays (see :data:`heatload.model.UNLOADING`).
+UNLOAD_RELIEF, UNLOAD_CENTRE, UNLOAD_HELD = 0, 1, 2
+
+#: Counterbalance setting assumed where a circuit cannot hold an overrunning
+#: load: 1.3 x the load-induced pressure (common practice for the setting).
+COUNTERBALANCE_FACTOR = 1.3
+
+_INFEASIBLE = -1e12  # "pressure" of a flow the pump cannot deliver [Pa]
+
+_BISECTION_STEPS = 52  # halves the bracket to ~2e-16 of the set flow
+
+
+@dataclass
+class CircuitResult:
+    """Operating point and power balance of every phase for one strategy.
+
+    Every array has the broadcast shape of the inputs (``(..., phases)``).
+    Pressures are gauge [Pa], flows [m^3/s], powers [W], speeds [m/s] or
+    [rev/s] for motors, durations [s].
+    """
+
+    strategy: str
+    pump_pressure: np.ndarray
+    inlet_pressure: np.ndarray        #: actuator inlet p1 [Pa]
+    outlet_pressure: np.ndarray       #: actuator outlet p2 [Pa]
+    pump_flow: np.ndarray             #: delivered by the pump [m^3/s]
+    actuator_flow: np.ndarray         #: into the actuator inlet Q1 [m^3/s]
+    outlet_flow: np.ndarray           #: out of the actuator outlet Q2 [m^3/s]
+    relief_flow: np.ndarray
+    bleed_flow: np.ndarray            #: bled / bypassed at working pressure [m^3/s]
+    speed: np.ndarray                 #: actual actuator speed reached
+    speed_target: np.ndarray
+    pump_shaft_speed: np.ndarray      #: [rev/s]
+    displacement_fraction: np.ndarray  #: pump stroke [-]
+    throttle_drop: np.ndarray         #: drop across the speed-setting element [Pa]
+    duration: np.ndarray              #: actual phase duration [s]
+    shaft_power: np.ndarray
+    electric_power: np.ndarray
+    useful_power: np.ndarray          #: F v, negative while a load overruns
+    losses: dict = field(default_factory=dict)  #: component -> power [W]
+    stalled: np.ndarray = None
+    flow_limited: np.ndarray = None
+    runaway: np.ndarray = None        #: overrunning load this circuit cannot hold
+    counterbalance_active: np.ndarray = None
+    counterbalance_setting: np.ndarray = None  #: [Pa], where active
+    #: |p_pump Q1 - Q1 (drops) - p1 Q1| left by the root solve [W]; ~rounding
+    bookkeeping_residual: np.ndarray = None
+
+    @property
+    def heat_to_oil(self) -> np.ndarray:
+        """Sum of the losses that end up in the oil [W]."""
+        return sum(self.losses[k] for k in OIL_LOSSES)
+
+    @property
+    def room_losses(self) -> np.ndarray:
+        """Motor and converter losses, which heat the room [W]."""
+        return sum(self.losses[k] for k in ROOM_LOSSES)
+
+    @property
+    def balance_residual(self) -> np.ndarray:
+        """``P_electric - useful - sum(losses)`` [W]; zero to rounding."""
+        return self.electric_power - self.useful_power - sum(self.losses.values())
+
+
+# ---------------------------------------------------------------------------
+# drops along the paths
+# ---------------------------------------------------------------------------
+
+def _supply_drop(q, c):
+    """Drop from the pump outlet to the actuator inlet at flow *q* (no throttle)."""
+    return (valves.check_valve_pressure_drop(q, c["check_cracking"], c["check_rated_flow"],
+                                             c["check_rated_drop"])
+            + lines.line_pressure_drop(q, c["pline_d"], c["pline_l"], c["density"],
+                                       c["viscosity"], c["pline_rough"], c["pline_k"])
+            + valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"]))
+
+
+def _supply_drop_parts(q, c):
+    check = valves.check_valve_pressure_drop(q, c["check_cracking"], c["check_rated_flow"],
+                                             c["check_rated_drop"])
+    line = lines.line_pressure_drop(q, c["pline_d"], c["pline_l"], c["density"],
+                                    c["viscosity"], c["pline_rough"], c["pline_k"])
+    dv = valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"])
+    return check, line, dv
+
+
+def _return_drop_parts(q, c):
+    dv = valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"])
+    line = lines.line_pressure_drop(q, c["rline_d"], c["rline_l"], c["density"],
+                                    c["viscosity"], c["rline_rough"], c["rline_k"])
+    return dv, line
+
+
+def _return_drop(q, c):
+    dv, line = _return_drop_parts(q, c)
+    return dv + line
+
+
+def _inlet_pressure(q1, c, outlet_extra):
+    """Actuator inlet pressure p1 [Pa] from the force balance at inlet flow *q1*.
+
+    ``p1 A1 = F_eff + A2 p2`` with ``p2 = return drops + outlet_extra + dp_cb``,
+    where a fitted counterbalance valve (direct acting, pilot ratio r) adds
+    ``dp_cb = max(setting - r p1, 0)``.  The balance is monotone in p1, so
+    ``p1 = max(p1_open, p1_active)`` with
+    ``p1_active = (F + A2 (p_back + setting)) / (A1 + r A2)``.
+    Returns ``(p1, p2, dp_cb)``.
+    """
+    q2 = q1 * c["q_ratio"]
+    p_back = _return_drop(q2, c) + outlet_extra
+    a1, a2, f = c["a_in"], c["a_out"], c["force"]
+    p1_open = (f + a2 * p_back) / a1
+    setting = np.where(c["cb_active"], c["cb_setting"], 0.0)
+    p1_active = (f + a2 * (p_back + setting)) / (a1 + c["cb_ratio"] * a2)
+    p1 = np.where(c["cb_active"], np.maximum(p1_open, p1_active), p1_open)
+    dp_cb = np.where(c["cb_active"], np.maximum(setting - c["cb_ratio"] * p1, 0.0), 0.0)
+    return p1, p_back + dp_cb, dp_cb
+
+
+# ---------------------------------------------------------------------------
+# supply characteristics: pump outlet pressure available at circuit flow q
+# ---------------------------------------------------------------------------
+
+def _leak_conductance(c):
+    """Pump leakage per pressure L = Cs D / (2 pi mu) [m^3/(s Pa)] (Wilson slip term)."""
+    return c["pump_slip"] * c["pump_displacement"] / (TWO_PI * c["mu"])
+
+
+def _relief_supply(q, c, theoretical_flow):
+    """Fixed pump with relief: pressure at the pump outlet when the circuit takes *q*.
+
+    Relief branch (relief passing ``Q_p - q``): ``p = p_c + k (Q_p(p) - q)``
+    with ``Q_p = Q_th - L p`` gives ``p = (p_c + k (Q_th - q)) / (1 + k L)``.
+    Pump branch (relief shut, the pump delivers all it can):
+    ``p = (Q_th - q) / L``.
+    """
+    leak = _leak_conductance(c)
+    k = c["relief_override"] / c["relief_rated_flow"]
+    q_crack = theoretical_flow - leak * c["relief_cracking"]
+    relief_branch = (c["relief_cracking"] + k * (theoretical_flow - q)) / (1.0 + k * leak)
+    pump_branch = c["relief_cracking"] - (q - q_crack) / np.maximum(leak, 1e-30)
+    # more than the theoretical flow is out of the pump's reach (p < 0: suction)
+    pump_branch = np.where(q > theoretical_flow, _INFEASIBLE, pump_branch)
+    return np.where(q <= q_crack, relief_branch, pump_branch)
+
+
+def _compensator_supply(q, c, setting, theoretical_flow):
+    """Variable pump at its compensator *setting* until full stroke, then its curve."""
+    leak = _leak_conductance(c)
+    q_full = theoretical_flow - leak * setting
+    pump_branch = setting - (q - q_full) / np.maximum(leak, 1e-30)
+    pump_branch = np.where(q > theoretical_flow, _INFEASIBLE, pump_branch)
+    return np.where(q <= q_full, setting, pump_branch)
+
+
+# ---------------------------------------------------------------------------
+# the solve
+# ---------------------------------------------------------------------------
+
+def _bisect_flow(residual, c, q_hi, idx):
+    """Largest q in [0, q_hi] with residual(q) >= 0 (residual decreasing in q),
+    for the elements *idx* only; vectorized bisection."""
+    sub = {k: (v[idx] if isinstance(v, np.ndarray) and v.shape == q_hi.shape else v)
+           for k, v in c.items()}
+    lo = np.zeros(idx.sum())
+    hi = q_hi[idx].copy()
+    for _ in range(_BISECTION_STEPS):
+        mid = 0.5 * (lo + hi)
+        ok = residual(mid, sub) >= 0.0
+        lo = np.where(ok, mid, lo)
+        hi = np.where(ok, hi, mid)
+    return lo
+
+
+def _solve_flow(residual, c, q_target):
+    """Inlet flow reached: the set flow where the residual allows it, else the
+    root of the residual (flow-limited), zero where even q = 0 fails (stall)."""
+    q = q_target.copy()
+    short = residual(q_target, c) < 0.0
+    moving = c["moving"]
+    short &= moving
+    stalled = moving & (residual(np.zeros_like(q_target), c) < 0.0)
+    need = short & ~stalled
+    if need.any():
+        q[need] = _bisect_flow(residual, c, q_target, need)
+    q[stalled] = 0.0
+    q[~moving] = 0.0
+    return q, short & ~stalled, stalled
+
+
+def _strategy_residual(strategy):
+    """Residual ``available - required`` pump pressure as a function of Q1."""
+
+    def meter_in(q, c):
+        p1, _, _ = _inlet_pressure(q, c, 0.0)
+        dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
+        return _relief_supply(q, c, c["q_theoretical"]) - (_supply_drop(q, c) + p1 + dp_fc)
+
+    def meter_out(q, c):
+        dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
+        p1, _, _ = _inlet_pressure(q, c, dp_fc)
+        return _relief_supply(q, c, c["q_theoretical"]) - (_supply_drop(q, c) + p1)
+
+    def bypass(q, c):
+        p1, _, _ = _inlet_pressure(q, c, 0.0)
+        dp_fc = c["bypass_spring"] * (q / c["q_target_safe"]) ** 2
+        return _relief_supply(q, c, c["q_theoretical"]) - (_supply_drop(q, c) + p1 + dp_fc)
+
+    def bleed_off(q, c):
+        p1, _, _ = _inlet_pressure(q, c, 0.0)
+        return _relief_supply(q, c, c["q_theoretical"]) - (_supply_drop(q, c) + p1)
+
+    def pressure_compensated(q, c):
+        p1, _, _ = _inlet_pressure(q, c, 0.0)
+        dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
+        avail = _compensator_supply(q, c, c["compensator"], c["q_theoretical"])
+        return avail - (_supply_drop(q, c) + p1 + dp_fc)
+
+    def load_sensing(q, c):
+        p1, _, _ = _inlet_pressure(q, c, 0.0)
+        avail = np.minimum(_compensator_supply(q, c, c["compensator"], c["q_theoretical"]),
+                           p1 + c["ls_margin"])
+        return avail - (_supply_drop(q, c) + p1)
+
+    def variable_speed(q, c):
+        p1, _, _ = _inlet_pressure(q, c, 0.0)
+        return _relief_supply(q, c, c["q_theoretical_max"]) - (_supply_drop(q, c) + p1)
+
+    return {"meter-in": meter_in, "meter-out": meter_out, "bleed-off": bleed_off,
+            "bypass-compensated": bypass, "pressure-compensated": pressure_compensated,
+            "load-sensing": load_sensing, "variable-speed": variable_speed}[strategy]
+
+
+def solve_strategy(strategy: str, c: dict) -> CircuitResult:
+    """Solve every phase for one *strategy*.
+
+    Parameters
+    ----------
+    strategy : str
+        One of :data:`heatload.model.STRATEGIES`.
+    c : dict
+        Circuit arrays from :func:`heatload.cycle.circuit_inputs` (all SI,
+        broadcast to one shape).
+
+    Returns
+    -------
+    CircuitResult
+    """
+    if strategy not in STRATEGIES:
+        from heatload.errors import HeatloadError
+        raise HeatloadError(f"unknown strategy {strategy!r}; expected one of "
+                            f"{', '.join(STRATEGIES)}", field="strategies")
+    c = dict(c)
+    shape = c["shape"]
+    z = np.zeros(shape)
+    moving = c["moving"]
+    variable_pump = strategy in ("pressure-compensated", "load-sensing")
+    holds_overrun = strategy == "meter-out"
+    overrun = moving & (c["load"] < 0.0)
+    # A counterbalance valve acts only on an overrunning load; meter-out needs
+    # none.  Where none is fitted the load would run away: the phase is flagged
+    # and its figures assume one set at 1.3 x the load-induced pressure.
+    runaway = overrun & ~c["cb_fitted"] & (not holds_overrun)
+    c["cb_active"] = overrun & (c["cb_fitted"] | runaway) & (not holds_overrun)
+    c["cb_setting"] = np.where(runaway, COUNTERBALANCE_FACTOR * np.abs(c["force"]) / c["a_out"],
+                               c["cb_setting"])
+
+    n_nom = c["pump_speed"]
+    c["q_theoretical"] = c["pump_displacement"] * n_nom
+    c["q_theoretical_max"] = c["pump_displacement"] * n_nom * c["vs_max_fraction"]
+    q_cap = c["q_theoretical_max"] if strategy == "variable-speed" else c["q_theoretical"]
+    q_target = np.where(np.isfinite(c["q_target"]), c["q_target"], q_cap)
+    q_target = np.where(moving, np.maximum(q_target, 0.0), 0.0)
+    c["q_target_safe"] = np.where(q_target > 0, q_target, 1.0)
+
+    residual = _strategy_residual(strategy)
+    q1, flow_limited, stalled = _solve_flow(residual, c, q_target)
+    full_flow = moving & ~np.isfinite(c["q_target"])
+    flow_limited = flow_limited & ~full_flow
+    q_target = np.where(full_flow, q1, q_target)
+
+    # ---- operating point at the solved flow --------------------------------
+    leak = _leak_conductance(c)
+    dp_fc_in = z.copy()
+    dp_fc_out = z.copy()
+    spring_drop = z.copy()
+    if strategy == "bypass-compensated":
+        spring_drop = np.where(moving & ~stalled,
+                               c["bypass_spring"] * np.minimum(q1 / c["q_target_safe"], 1.0) ** 2,
+                               0.0)
+
+    check_dp, pline_dp, dv_in_dp = _supply_drop_parts(q1, c)
+    supply = check_dp + pline_dp + dv_in_dp
+    if strategy == "meter-out":
+        # throttle drop = what the relief pressure leaves beyond the force balance
+        p_pump = _relief_supply(q1, c, c["q_theoretical"])
+        p1_open = p_pump - supply
+        # p1 A1 - (p_back + dp_fc) A2 = F  ->  dp_fc = (p1 A1 - F)/A2 - p_back
+        q2 = q1 * c["q_ratio"]
+        p_back = _return_drop(q2, c)
+        dp_fc_out = np.where(moving & ~stalled,
+                             np.maximum((p1_open * c["a_in"] - c["force"]) / c["a_out"]
+                                        - p_back, 0.0), 0.0)
+        p1, p2, dp_cb = _inlet_pressure(q1, c, dp_fc_out)
+    else:
+        p1, p2, dp_cb = _inlet_pressure(q1, c, 0.0)
+
+    required = supply + p1
+    if strategy == "meter-in":
+        p_pump = _relief_supply(q1, c, c["q_theoretical"])
+        dp_fc_in = np.maximum(p_pump - required, 0.0)
+    elif strategy == "pressure-compensated":
+        p_pump = _compensator_supply(q1, c, c["compensator"], c["q_theoretical"])
+        dp_fc_in = np.maximum(p_pump - required, 0.0)
+    elif strategy == "load-sensing":
+        p_pump = np.minimum(_compensator_supply(q1, c, c["compensator"], c["q_theoretical"]),
+                            p1 + c["ls_margin"])
+        dp_fc_in = np.maximum(p_pump - required, 0.0)
+    elif strategy == "bypass-compensated":
+        p_pump = np.minimum(required + spring_drop, _relief_supply(q1, c, c["q_theoretical"]))
+        dp_fc_in = np.maximum(p_pump - required, 0.0)
+    elif strategy in ("bleed-off", "variable-speed"):
+        qmax = c["q_theoretical_max"] if strategy == "variable-speed" else c["q_theoretical"]
+        p_pump = np.minimum(required, _relief_supply(q1, c, qmax))
+    # stalled actuators: the pump sits at what its supply gives at zero flow
+    stall_p = {"pressure-compensated": c["compensator"], "load-sensing": c["compensator"]}
+    p_stall = stall_p.get(strategy, _relief_supply(z, c, c["q_theoretical"]))
+    p_pump = np.where(moving & stalled, p_stall, p_pump)
+    dp_fc_in = np.where(stalled, 0.0, dp_fc_in)
+
+    # ---- phases with nothing moving (hold / idle) ----------------------------
+    p_hold = np.where(moving, 0.0, c["hold_pressure"])
+    holding = ~moving & (p_hold > 0.0)
+    unload = c["unloading"]
+    centre_ok = c["centre_unloads"]
+    use_centre = ~moving & (unload == UNLOAD_CENTRE) & centre_ok
+    # centre drop at the full theoretical flow (leakage at a few bar is negligible)
+    centre_dp = valves.power_law_pressure_drop(c["q_theoretical"], c["dv_rated_flow"],
+                                               c["dv_centre_drop"], 2.0)
+    relief_full = _relief_supply(z, c, c["q_theoretical"])
+    if strategy in ("meter-in", "meter-out"):
+        p_rest = np.where(use_centre, centre_dp, relief_full)
+    elif strategy == "bleed-off":
+        # the bleed restrictor opens fully: pump at about the centre drop
+        p_rest = np.where(holding & ~use_centre, relief_full, centre_dp)
+    elif strategy == "bypass-compensated":
+        # with the load port vented the 3-way compensator unloads at its spring
+        p_rest = np.where(use_centre, centre_dp,
+                          np.minimum(np.where(holding, p_hold, 0.0) + c["bypass_spring"],
+                                     relief_full))
+    elif strategy == "pressure-compensated":
+        p_rest = np.broadcast_to(c["compensator"], shape).astype(float)
+    elif strategy == "load-sensing":
+        p_rest = np.where(holding, np.minimum(p_hold + c["ls_margin"], c["compensator"]),
+                          c["standby"])
+    else:  # variable-speed
+        q_min = c["pump_displacement"] * n_nom * c["vs_min_fraction"]
+        centre_dp_min = valves.power_law_pressure_drop(q_min, c["dv_rated_flow"],
+                                                       c["dv_centre_drop"], 2.0)
+        p_rest = np.where(holding, np.minimum(p_hold, relief_full),
+                          np.where(centre_ok, centre_dp_min,
+                                   _relief_supply(z, c, q_min)))
+    p_pump = np.where(moving, p_pump, p_rest)
+    p1 = np.where(moving, p1, p_hold)
+    p2 = np.where(moving, p2, 0.0)
+
+    # ---- pump flow, stroke and speed --------------------------------------
+    leakage = leak * np.maximum(p_pump, 0.0)
+    if variable_pump:
+        frac = np.clip((q1 + leakage) / c["q_theoretical"], 0.0, 1.0)
+        n_pump = np.broadcast_to(n_nom, shape).astype(float)
+        q_pump = q1 * 1.0
+    elif strategy == "variable-speed":
+        n_need = (q1 + leakage) / c["pump_displacement"]
+        n_min = n_nom * c["vs_min_fraction"]
+        n_max = n_nom * c["vs_max_fraction"]
+        n_pump = np.clip(n_need, n_min, n_max)
+        n_pump = np.where(moving & stalled, np.maximum(leakage / c["pump_displacement"], n_min),
+                          n_pump)
+        frac = np.ones(shape)
+        q_pump = np.maximum(c["pump_displacement"] * n_pump - leakage, 0.0)
+    else:
+        frac = np.ones(shape)
+        n_pump = np.broadcast_to(n_nom, shape).astype(float)
+        q_pump = np.maximum(c["q_theoretical"] - leakage, 0.0)
+
+    surplus = np.maximum(q_pump - q1, 0.0)
+    at_relief = p_pump >= c["relief_cracking"] * (1.0 - 1e-12)
+    if strategy in ("meter-in", "meter-out"):
+        to_centre = ~moving & use_centre
+        to_relief = ~to_centre
+    elif strategy == "bleed-off":
+        to_centre = np.zeros(shape, dtype=bool)
+        to_relief = np.where(moving, at_relief, holding & ~use_centre)
+    elif strategy == "bypass-compensated":
+        to_centre = ~moving & use_centre
+        to_relief = ~to_centre & at_relief
+    elif strategy == "variable-speed":
+        to_centre = ~moving & ~holding & centre_ok
+        to_relief = ~to_centre & (at_relief | (~moving & ~holding))
+    else:  # variable pumps deliver only what is used
+        to_centre = np.zeros(shape, dtype=bool)
+        to_relief = np.zeros(shape, dtype=bool)
+        surplus = z.copy()
+    centre_q = np.where(to_centre, surplus, 0.0)
+    relief_q = np.where(to_relief & ~to_centre, surplus, 0.0)
+    bleed_q = surplus - centre_q - relief_q
+
+    # ---- powers -------------------------------------------------------------
+    mu = c["mu"]
+    torque = pumps.pump_torque(c["pump_displacement"], n_pump, np.maximum(p_pump, 0.0), mu,
+                               c["pump_viscous"], c["pump_friction"], frac)
+    p_shaft_hyd = pumps.pump_shaft_power(torque, n_pump)
+    q2 = q1 * c["q_ratio"]
+    rdv_dp, rline_dp = _return_drop_parts(q2, c)
+    speed = np.where(moving, q1 * c["speed_per_flow"], 0.0)
+    useful = c["load"] * speed * c["work_per_load_speed"]
+    # what the actuator does not turn into load work: friction, motor efficiencies
+    actuator_loss = p1 * q1 - p2 * q2 - useful
+
+    losses = {
+        "relief": relief_q * np.maximum(p_pump, 0.0),
+        "bleed": bleed_q * np.maximum(p_pump, 0.0),
+        "flow_control": q1 * (dp_fc_in) + q2 * dp_fc_out,
+        "directional_valve": q1 * dv_in_dp + q2 * rdv_dp + centre_q * np.maximum(p_pump, 0.0),
+        "check_valve": q1 * check_dp,
+        "lines": q1 * pline_dp + q2 * rline_dp,
+        "counterbalance": q2 * dp_cb,
+        "actuator": actuator_loss,
+    }
+    # pump: shaft power less what it delivers to the circuit
+    p_out = np.maximum(p_pump, 0.0) * (q1 + relief_q + bleed_q + centre_q)
+    # the solved root leaves rounding between q_pump and the flows booked: the
+    # pump term takes it so the balance closes exactly
+    losses["pump"] = p_shaft_hyd - p_out
+    # pressure recovered in the pump line beyond p_pump (negative throttle) cannot
+    # occur: dp's are clipped at zero; but p1*q1 books against p_pump*q1 exactly:
+    mismatch = np.maximum(p_pump, 0.0) * q1 - q1 * (dp_fc_in + check_dp + pline_dp + dv_in_dp) - p1 * q1
+    losses["flow_control"] = losses["flow_control"] + mismatch
+    bookkeeping = np.abs(mismatch)
+
+    # compression of the oil in the pressurised chamber, released as heat
+    t_actual = _actual_duration(c, speed, stalled)
+    prev = c["previous_phase"]
+    p_prev = np.where(prev >= 0, np.take_along_axis(p1, np.maximum(prev, 0), axis=-1), 0.0)
+    e_comp = c["compression_volume"] * (np.maximum(p1, 0.0) ** 2 - np.maximum(p_prev, 0.0) ** 2)
+    e_comp = np.where(c["compress"], np.maximum(e_comp, 0.0) / (2.0 * c["bulk_modulus"]), 0.0)
+    losses["compression"] = e_comp / t_actual
+    p_shaft = p_shaft_hyd + losses["compression"]
+
+    # drive motor (and converter for variable speed)
+    speed_fraction = n_pump / n_nom
+    p_motor_in = motors.motor_input_power(p_shaft, c["motor_rated_power"],
+                                          c["motor_rated_efficiency"],
+                                          speed_fraction if strategy == "variable-speed" else 1.0)
+    losses["drive_motor"] = p_motor_in - p_shaft
+    if strategy == "variable-speed":
+        p_el = p_motor_in / c["drive_efficiency"]
+        losses["converter"] = p_el - p_motor_in
+    else:
+        p_el = p_motor_in
+        losses["converter"] = z.copy()
+
+    return CircuitResult(
+        strategy=strategy, pump_pressure=p_pump, inlet_pressure=p1, outlet_pressure=p2,
+        pump_flow=q1 + relief_q + bleed_q + centre_q, actuator_flow=q1, outlet_flow=q2,
+        relief_flow=relief_q, bleed_flow=bleed_q, speed=speed,
+        speed_target=np.where(moving, q_target * c["speed_per_flow"], 0.0),
+        pump_shaft_speed=n_pump, displacement_fraction=frac,
+        throttle_drop=dp_fc_out if strategy == "meter-out" else dp_fc_in,
+        duration=t_actual, shaft_power=p_shaft, electric_power=p_el, useful_power=useful,
+        losses=losses, stalled=stalled, flow_limited=flow_limited, runaway=runaway,
+        counterbalance_active=c["cb_active"],
+        counterbalance_setting=np.where(c["cb_active"], c["cb_setting"], 0.0),
+        bookkeeping_residual=bookkeeping)
+
+
+def _actual_duration(c, speed, stalled):
+    """Phase duration [s]: the stroke at the speed reached where the phase is
+    given by its stroke, else the given duration.  A stalled stroke keeps its
+    nominal duration (the result carries the stall warning)."""
+    by_stroke = c["by_stroke"] & (speed > 0)
+    t = np.where(by_stroke, c["stroke"] / np.where(speed > 0, speed, 1.0), c["duration"])
+    return np.maximum(t, 1e-9)
+
+
+def solve_all(c: dict, strategies=STRATEGIES) -> dict:
+    """Solve every phase for each strategy name; returns name -> CircuitResult."""
+    return {s: solve_strategy(s, c) for s in strategies}
