@@ -168,7 +168,8 @@ def wilson_coefficients(volumetric_efficiency, hydromechanical_efficiency, rated
     ----------
     Wilson, W. E., Positive-Displacement Pumps and Fluid Motors, Pitman,
     1950 (loss model, from memory); McCandlish, D.; Dorey, R. E., Proc. Inst.
-    Mech. Eng. B 198 (1984) 165-174 (review of steady-state loss models).
+    Mech. Eng. B 198 (1984) 165-174 (review of steady-state loss models;
+    citation from memory).
 
     Examples
     --------
@@ -278,7 +279,7 @@ def pump_torque(displacement, shaft_speed, pressure, dynamic_viscosity, viscous,
     References
     ----------
     Wilson, W. E., Positive-Displacement Pumps and Fluid Motors, 1950 (from
-    memory); McCandlish and Dorey, Proc. IMechE B 198 (1984).
+    memory); McCandlish and Dorey, Proc. IMechE B 198 (1984), from memory.
     """
     d = _positive(displacement, "displacement")
     n = _non_negative(shaft_speed, "shaft_speed")
