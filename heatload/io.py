@@ -703,7 +703,10 @@ def _fluid(data, source: str) -> m.Fluid:
         if grade is not None:
             from heatload import oil
 
-            vals["nu40"] = float(oil.iso_grade_viscosity(grade))
+            try:
+                vals["nu40"] = float(oil.iso_grade_viscosity(grade)[0])  # (mid, low, high)
+            except HeatloadError as e:
+                raise _err(e.message, "fluid.iso_grade", source) from None
         elif "nu100" in vals:
             raise _err("nu100 given without nu40 or iso_grade", "fluid.nu40", source)
     nu40 = vals.get("nu40", base.nu40)
@@ -716,7 +719,10 @@ def _fluid(data, source: str) -> m.Fluid:
         from heatload import oil
 
         vi = vals.get("viscosity_index", 100.0)   # common practice for HM oils
-        vals["nu100"] = float(oil.nu100_from_vi(nu40, vi))
+        try:
+            vals["nu100"] = float(oil.nu100_from_vi(nu40, vi))
+        except HeatloadError as e:
+            raise _err(e.message, e.field or "fluid.viscosity_index", source) from None
     nu100 = vals.get("nu100", base.nu100)
     if not nu100 < nu40:
         raise _err(f"nu100 ({nu100 * 1e6:.4g} mm^2/s) must be below nu40 "
