@@ -217,7 +217,8 @@ name = "dwell"
 actuator = "main"
 motion = "hold"
 duration = "3 s"
-hold_pressure = "160 bar"              # or hold_force = "50 kN" (not both)
+hold_pressure = "160 bar"              # pressure held on the cap side, or instead:
+# hold_force = "50 kN"                 # a force held (not both)
 unloading = "held"                     # relief | centre | held (how the pump is unloaded)
 
 [[phases]]
@@ -596,13 +597,13 @@ def _check(value: float, raw, spec: _F, kind: str, field: str, source: str) -> f
         raise _err(f"a fraction must lie in [0, 1], got {shown}", field, source)
     if c == "frac_pos" and not 0.0 < value <= 1.0:
         raise _err(f"must lie in (0, 1], got {shown}", field, source)
+    unit = f" {KINDS[kind].si}" if KINDS[kind].si else ""
+    hint = "; check the unit" if unit else ""
     if spec.low is not None and value < spec.low:
-        raise _err(f"{shown} is implausibly low (below {spec.low:g} "
-                   f"{KINDS[kind].si or ''}); check the unit".replace(" )", ")"),
+        raise _err(f"{shown} is implausibly low (below {spec.low:g}{unit}){hint}",
                    field, source)
     if spec.high is not None and value > spec.high:
-        raise _err(f"{shown} is implausibly high (above {spec.high:g} "
-                   f"{KINDS[kind].si or ''}); check the unit".replace(" )", ")"),
+        raise _err(f"{shown} is implausibly high (above {spec.high:g}{unit}){hint}",
                    field, source)
     limit = _LIMITS.get(kind)
     if limit is not None and abs(value) > limit[0]:
@@ -902,7 +903,9 @@ def _phase(item, i, by_name, source):
             raise _err(f"{_show(item['stroke'])} is longer than the stroke of "
                        f"{act.name!r}", f"{p}.stroke", source)
     if motion in ("extend", "retract") and "stroke" not in vals and "duration" not in vals:
-        raise _err(f"a {motion} phase needs a stroke or a duration", f"{p}.stroke", source)
+        article = "an" if motion == "extend" else "a"
+        raise _err(f"{article} {motion} phase needs a stroke or a duration", f"{p}.stroke",
+                   source)
     if motion in ("hold", "idle", "run") and "duration" not in vals:
         raise _err(f"a {motion} phase needs a duration", f"{p}.duration", source)
     for key in ("hold_pressure", "hold_force"):

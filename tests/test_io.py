@@ -1,0 +1,503 @@
+"""Tests of the duty-cycle file format: loading, validation messages, lossless
+writing and the bundled examples.
+
+These are format tests, not physics tests: the check values are the inputs
+themselves (a value written and read back must be the very same float) and
+the unit conversions of the SI definitions (1 bar = 1e5 Pa exactly, 1 L =
+1e-3 m^3, degC = K - 273.15; BIPM SI Brochure, 9th ed.).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import re
+
+import pytest
+from hypothesis import given, settings, strategies as st
+
+from heatload import io, model
+from heatload.errors import HeatloadError
+
+MINIMAL = '''\
+[scenario]
+name = "test rig"
+
+[[actuators]]
+name = "cyl"
+kind = "cylinder"
+bore = "63 mm"
+rod = "36 mm"
+stroke = "400 mm"
+
+[[actuators]]
+name = "mot"
+kind = "motor"
+displacement = "80 cm^3/rev"
+volumetric_efficiency = 0.95
+
+[[phases]]
+name = "out"
+actuator = "cyl"
+motion = "extend"
+load = "10 kN"
+speed = "0.1 m/s"
+stroke = "300 mm"
+compress = true
+
+[[phases]]
+name = "back"
+actuator = "cyl"
+motion = "retract"
+speed = "full"
+stroke = "300 mm"
+
+[[phases]]
+name = "squeeze"
+actuator = "cyl"
+motion = "hold"
+duration = "2 s"
+hold_pressure = "100 bar"
+unloading = "held"
+
+[[phases]]
+name = "spin"
+actuator = "mot"
+motion = "run"
+load = "100 N*m"
+speed = "200 rpm"
+duration = "5 s"
+'''
+
+
+def _edit(old: str, new: str, text: str = MINIMAL) -> str:
+    assert text.count(old) == 1, old
+    return text.replace(old, new)
+
+
+def _load_error(tmp_path, text: str, name: str = "bad.toml") -> HeatloadError:
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(HeatloadError) as info:
+        io.load_scenario(path)
+    err = info.value
+    message = str(err)
+    assert message.startswith(str(path)), message
+    assert "\n" not in message
+    return err
+
+
+# ---------------------------------------------------------------------------
+# Loading what is valid
+# ---------------------------------------------------------------------------
+
+def test_minimal_file_loads_to_si():
+    s = io.loads_scenario(MINIMAL)
+    cyl = s.actuator("cyl")
+    assert cyl.bore == pytest.approx(0.063, rel=1e-15)         # 63 mm (SI prefix)
+    assert s.phases[0].load == pytest.approx(10e3, rel=1e-15)  # 10 kN
+    assert s.phases[1].speed is None                            # "full" = full pump flow
+    assert s.phases[2].hold_pressure == pytest.approx(100e5, rel=1e-15)  # 1 bar = 1e5 Pa
+    assert s.phases[3].speed == pytest.approx(200 / 60, rel=1e-12)       # rpm -> rev/s
+    assert isinstance(s.actuator("mot"), model.HydraulicMotor)
+    # no [[strategies]]: all seven with default parameters, in the model's order
+    assert tuple(x.kind for x in s.strategies) == model.STRATEGIES
+    assert all(x.parameters == model.StrategyParameters() for x in s.strategies)
+    # the sections left out keep the model's defaults
+    assert s.power_unit == model.PowerUnit()
+    assert s.fluid == model.Fluid()
+
+
+def test_partial_section_keeps_the_other_defaults_of_that_part():
+    text = MINIMAL + '\n[power_unit.return_line]\nlength = "5 m"\n'
+    s = io.loads_scenario(text)
+    assert s.power_unit.return_line.length == 5.0
+    # the return line's own default diameter (20 mm), not the generic line's 16 mm
+    assert s.power_unit.return_line.inner_diameter == model.PowerUnit().return_line.inner_diameter
+
+
+def test_strategy_defaults_apply_to_every_strategy_and_items_override():
+    text = MINIMAL + '''
+[strategy_defaults]
+counterbalance_setting = "80 bar"
+
+[[strategies]]
+kind = "meter-in"
+
+[[strategies]]
+kind = "meter-out"
+counterbalance_setting = "90 bar"
+label = "meter-out CB"
+'''
+    s = io.loads_scenario(text)
+    assert s.strategies[0].parameters.counterbalance_setting == pytest.approx(80e5)
+    assert s.strategies[1].parameters.counterbalance_setting == pytest.approx(90e5)
+    assert s.strategy("meter-out CB").kind == "meter-out"
+
+
+def test_temperatures_in_celsius_and_fahrenheit():
+    text = MINIMAL + '\n[ambient]\ntemperature = "25 degC"\ntemperature_max = "104 degF"\n'
+    s = io.loads_scenario(text)
+    assert s.ambient.temperature == pytest.approx(298.15, abs=1e-9)      # K = degC + 273.15
+    assert s.ambient.temperature_max == pytest.approx(313.15, abs=1e-9)  # 104 degF = 40 degC
+
+
+def test_relative_percent_bounds():
+    text = MINIMAL + '''
+[[uncertainty]]
+path = "phases[*].load"
+low = "-10 %"
+high = "+25 %"
+'''
+    u = io.loads_scenario(text).uncertainty[0]
+    assert (u.low, u.high, u.relative) == (0.9, 1.25, True)
+
+
+def test_grade_with_viscosity_index_uses_oil_module():
+    oil = pytest.importorskip("heatload.oil")
+    text = MINIMAL + '\n[fluid]\niso_grade = 46\nviscosity_index = 100\n'
+    s = io.loads_scenario(text)
+    assert s.fluid.iso_grade == 46
+    assert s.fluid.nu40 == pytest.approx(46e-6)        # ISO 3448: VG = mid-point at 40 degC
+    # An HM 46 oil of VI ~100 has about 6.8 mm^2/s at 100 degC (common practice,
+    # from memory of typical datasheets).
+    assert s.fluid.nu100 == pytest.approx(6.8e-6, rel=0.03)
+    assert s.fluid.nu100 == pytest.approx(float(oil.nu100_from_vi(46e-6, 100.0)), rel=1e-12)
+    # the writer stores nu40/nu100 explicitly: equal on reload
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
+
+
+def test_fluid_by_viscosity_alone_is_no_iso_grade():
+    text = MINIMAL + '\n[fluid]\nnu40 = "40 mm^2/s"\nnu100 = "6.2 mm^2/s"\n'
+    s = io.loads_scenario(text)
+    assert s.fluid.iso_grade is None
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
+
+
+# ---------------------------------------------------------------------------
+# Bundled examples
+# ---------------------------------------------------------------------------
+
+def test_example_paths_are_the_three_machines():
+    names = [p.name for p in io.example_paths()]
+    assert names == sorted(names)
+    assert {"forming_press.toml", "platform_lift.toml", "conveyor_winch.toml"} <= set(names)
+    assert io.default_scenario_path().name == "forming_press.toml"
+    assert io.default_scenario_path().is_file()
+
+
+def test_default_press_has_twelve_phases():
+    s = io.load_scenario(io.default_scenario_path())
+    assert len(s.phases) == 12
+
+
+@pytest.mark.parametrize("path", io.example_paths(), ids=lambda p: p.name)
+def test_example_loads_and_round_trips(path):
+    s = io.load_scenario(path)
+    assert s.phases and s.actuators and s.strategies
+    text = io.dumps_scenario(s)
+    again = io.loads_scenario(text, source="dumped")
+    assert again == s
+    assert io.dumps_scenario(again) == text          # the written text is a fixed point
+
+
+@pytest.mark.parametrize("path", io.example_paths(), ids=lambda p: p.name)
+def test_example_pump_reaches_its_target_speeds(path):
+    """Sanity of the invented numbers: the pump's effective flow covers every
+    set speed (Q = D n eta_v; v = Q / A; n_m = Q eta_v,m / D_m, common practice)."""
+    s = io.load_scenario(path)
+    pump = s.power_unit.pump
+    q = pump.displacement * pump.shaft_speed * pump.volumetric_efficiency
+    for ph in s.phases:
+        if ph.speed is None or ph.actuator is None:
+            continue
+        a = s.actuator(ph.actuator)
+        if a.kind == "motor":
+            need = ph.speed * a.displacement / a.volumetric_efficiency
+        else:
+            area = math.pi / 4 * a.bore ** 2
+            if ph.motion == "retract":
+                area -= math.pi / 4 * a.rod ** 2
+            need = ph.speed * area
+        assert need <= q, ph.name
+
+
+def test_schema_example_round_trips_and_documents_every_key():
+    s = io.loads_scenario(io.SCHEMA_EXAMPLE, source="SCHEMA_EXAMPLE")
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
+    assert s.reservoir.surfaces and s.uncertainty and len(s.actuators) == 2
+    specs = [io._SCENARIO, io._ECONOMICS, io._FLUID, io._AMBIENT, io._RESERVOIR,
+             io._SURFACE, io._PUMP, io._MOTOR, io._RELIEF, io._DIRECTIONAL, io._CHECK,
+             io._LINE, io._CYLINDER, io._HYDRAULIC_MOTOR, io._PHASE, io._STRATEGY,
+             io._COOLER, io._UNCERTAINTY]
+    for spec in specs:
+        for key in spec:
+            if key == "surfaces":
+                continue
+            assert re.search(rf"^\s*#?\s*{key}\s*=", io.SCHEMA_EXAMPLE, re.M), key
+
+
+# ---------------------------------------------------------------------------
+# Lossless writing of awkward floats
+# ---------------------------------------------------------------------------
+
+def test_awkward_floats_round_trip_exactly():
+    s = io.loads_scenario(MINIMAL)
+    cyl = dataclasses.replace(s.actuators[0], bore=0.1 + 0.2 - 0.2, rod=0.036000000000000004,
+                              stroke=1 / 3)
+    pu = dataclasses.replace(
+        s.power_unit,
+        pump=dataclasses.replace(s.power_unit.pump, shaft_speed=1450 / 60 + 1e-13,
+                                 displacement=28.123456789e-6),
+        relief=dataclasses.replace(s.power_unit.relief, cracking_pressure=17_999_999.999999996))
+    amb = dataclasses.replace(s.ambient, temperature=300.123456789123, temperature_max=313.15)
+    odd = dataclasses.replace(s, actuators=(cyl, s.actuators[1]), power_unit=pu, ambient=amb,
+                              shift_duration=math.pi * 1000)
+    back = io.loads_scenario(io.dumps_scenario(odd))
+    assert back == odd                               # equality, not closeness
+    assert back.actuators[0].stroke == 1 / 3
+
+
+@settings(max_examples=40, deadline=None)
+@given(p=st.floats(min_value=1e3, max_value=1.9e8, allow_nan=False),
+       t=st.floats(min_value=200.0, max_value=500.0, allow_nan=False),
+       q=st.floats(min_value=1e-6, max_value=0.09, allow_nan=False),
+       f=st.floats(min_value=-1e8, max_value=1e8, allow_nan=False))
+def test_any_value_round_trips_exactly(p, t, q, f):
+    s = io.loads_scenario(MINIMAL)
+    s = dataclasses.replace(
+        s,
+        power_unit=dataclasses.replace(
+            s.power_unit, relief=dataclasses.replace(s.power_unit.relief,
+                                                     cracking_pressure=p, rated_flow=q)),
+        fluid=dataclasses.replace(s.fluid, temperature_max=max(t, 260.0)),
+        phases=(dataclasses.replace(s.phases[0], load=f),) + s.phases[1:])
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
+
+
+# ---------------------------------------------------------------------------
+# Rejections: each names the file, the field path and, where found, the line
+# ---------------------------------------------------------------------------
+
+BAD = [
+    # (id, old, new, field, fragment)
+    ("wrong unit", 'speed = "0.1 m/s"', 'speed = "12 kg"', "phases[0].speed",
+     "expected a velocity such as '0.1 m/s', got '12 kg'"),
+    ("number without unit", 'bore = "63 mm"', "bore = 63", "actuators[0].bore",
+     "a number with its unit"),
+    ("negative size", 'bore = "63 mm"', 'bore = "-63 mm"', "actuators[0].bore", "positive"),
+    ("zero stroke", 'stroke = "400 mm"', 'stroke = "0 mm"', "actuators[0].stroke", "positive"),
+    ("rod not below bore", 'rod = "36 mm"', 'rod = "63 mm"', "actuators[0].rod",
+     "smaller than the bore"),
+    ("efficiency above one", "volumetric_efficiency = 0.95", "volumetric_efficiency = 1.2",
+     "actuators[1].volumetric_efficiency", "(0, 1]"),
+    ("efficiency zero", "volumetric_efficiency = 0.95", "volumetric_efficiency = 0",
+     "actuators[1].volumetric_efficiency", "(0, 1]"),
+    ("unknown motion", 'motion = "extend"', 'motion = "extnd"', "phases[0].motion",
+     "did you mean 'extend'?"),
+    ("unknown unloading", 'unloading = "held"', 'unloading = "dump"', "phases[2].unloading",
+     "relief, centre, held"),
+    ("unknown actuator", 'actuator = "mot"', 'actuator = "motr"', "phases[3].actuator",
+     "no actuator called 'motr'"),
+    ("duplicate actuator", 'name = "mot"', 'name = "cyl"', "actuators[1].name",
+     "duplicate actuator name"),
+    ("duplicate phase", 'name = "back"', 'name = "out"', "phases[1].name",
+     "duplicate phase name"),
+    ("absurd speed", 'speed = "0.1 m/s"', 'speed = "12 m/s"', "phases[0].speed", "10 m/s"),
+    ("absurd pressure", 'hold_pressure = "100 bar"', 'hold_pressure = "3000 bar"',
+     "phases[2].hold_pressure", "2000 bar"),
+    ("no stroke nor duration", 'stroke = "300 mm"\ncompress = true', "compress = true",
+     "phases[0].stroke", "an extend phase needs a stroke or a duration"),
+    ("hold with pressure and force", 'hold_pressure = "100 bar"',
+     'hold_pressure = "100 bar"\nhold_force = "20 kN"', "phases[2].hold_force", "not both"),
+    ("motor cannot extend", 'motion = "run"', 'motion = "extend"', "phases[3].motion",
+     "a motor cannot extend"),
+    ("phase stroke beyond cylinder", 'stroke = "300 mm"\ncompress', 'stroke = "450 mm"\ncompress',
+     "phases[0].stroke", "longer than the stroke"),
+    ("missing required key", 'displacement = "80 cm^3/rev"\n', "", "actuators[1].displacement",
+     "missing required key"),
+    ("wrong type", "compress = true", 'compress = "yes"', "phases[0].compress",
+     "expected true or false"),
+    ("hold has no speed", 'hold_pressure = "100 bar"', 'hold_pressure = "100 bar"\nspeed = "1 m/s"',
+     "phases[2].speed", "no speed"),
+    ("unknown actuator kind", 'kind = "motor"', 'kind = "pump"', "actuators[1].kind",
+     "cylinder, motor"),
+]
+
+
+@pytest.mark.parametrize("old,new,field,fragment", [b[1:] for b in BAD],
+                         ids=[b[0] for b in BAD])
+def test_bad_phase_or_actuator_input(tmp_path, old, new, field, fragment):
+    text = _edit(old, new)
+    err = _load_error(tmp_path, text)
+    assert err.field == field
+    assert f" {field}: " in str(err)
+    assert fragment in str(err)
+    # the line named is the line of the offending key, or of its table
+    key = field.rsplit(".", 1)[1]
+    lines = text.splitlines()
+    assert err.line is not None
+    named = lines[err.line - 1]
+    assert named.startswith(key) or named.startswith("[[")
+
+
+def test_unknown_key_suggests_the_nearest(tmp_path):
+    text = _edit('speed = "full"', 'sped = "full"')
+    err = _load_error(tmp_path, text)
+    assert str(err).endswith("phases[1].sped: unknown key; did you mean 'speed'?")
+    assert text.splitlines()[err.line - 1].startswith("sped")
+
+
+APPENDED = [
+    ("unknown section", '[fluids]\nnu40 = "46 mm^2/s"\n', "fluids", "did you mean 'fluid'?"),
+    ("temperature below 0 K", '[ambient]\ntemperature = "-300 degC"\n', "ambient.temperature",
+     "absolute zero"),
+    ("absurd relief", '[power_unit.relief]\ncracking_pressure = "3000 bar"\n',
+     "power_unit.relief.cracking_pressure", "2000 bar"),
+    ("unknown strategy", '[[strategies]]\nkind = "meter-on"\n', "strategies[0].kind",
+     "meter-in, meter-out, bleed-off"),
+    ("duplicate strategy", '[[strategies]]\nkind = "meter-in"\n[[strategies]]\nkind = "meter-in"\n',
+     "strategies[1].label", "two strategies are called 'meter-in'"),
+    ("present strategy not compared", '[economics]\npresent_strategy = "bleed-off"\n'
+     '[[strategies]]\nkind = "meter-in"\n', "economics.present_strategy", "not among"),
+    ("hours above a year", "[economics]\nhours_per_year = 9000\n", "economics.hours_per_year",
+     "implausibly high"),
+    ("nu100 above nu40", '[fluid]\nnu40 = "46 mm^2/s"\nnu100 = "50 mm^2/s"\n', "fluid.nu100",
+     "must be below nu40"),
+    ("nu40 outside its grade", '[fluid]\niso_grade = 46\nnu40 = "52 mm^2/s"\nnu100 = "7 mm^2/s"\n',
+     "fluid.nu40", "ISO 3448"),
+    ("not an ISO grade", '[fluid]\niso_grade = 47\nnu40 = "47 mm^2/s"\nnu100 = "7 mm^2/s"\n',
+     "fluid.iso_grade", "not one of"),
+    ("oil level above one", "[reservoir]\noil_level = 1.5\n", "reservoir.oil_level", "(0, 1]"),
+    ("uncertain index out of range", '[[uncertainty]]\npath = "phases[9].load"\n',
+     "uncertainty[0].path", "out of range"),
+    ("uncertain key misspelt", '[[uncertainty]]\npath = "ambient.temprature"\n',
+     "uncertainty[0].path", "did you mean 'temperature'?"),
+    ("uncertain field without value", '[[uncertainty]]\npath = "reservoir.heat_transfer_coefficient"\n',
+     "uncertainty[0].relative", "no value to scale"),
+    ("uncertain low above high", '[[uncertainty]]\npath = "phases[*].load"\nlow = 1.2\nhigh = 0.8\n',
+     "uncertainty[0].high", "low must be below high"),
+    ("absolute bound of wrong kind", '[[uncertainty]]\npath = "ambient.temperature"\n'
+     'relative = false\nlow = "20 bar"\nhigh = "30 degC"\n', "uncertainty[0].low",
+     "expected a temperature"),
+    ("surface without area", '[[reservoir.surfaces]]\nname = "pipe"\n',
+     "reservoir.surfaces[0].area", "missing required key"),
+    ("empty strategy list", "strategies = []\n", "strategies", "at least one"),
+]
+
+
+@pytest.mark.parametrize("extra,field,fragment", [b[1:] for b in APPENDED],
+                         ids=[b[0] for b in APPENDED])
+def test_bad_section_input(tmp_path, extra, field, fragment):
+    # top-level keys must come before the first table, section tables anywhere
+    text = extra + "\n" + MINIMAL if not extra.startswith("[") else MINIMAL + "\n" + extra
+    err = _load_error(tmp_path, text)
+    assert err.field == field
+    assert f" {field}: " in str(err)
+    assert fragment in str(err)
+    assert err.line is not None
+
+
+def test_missing_scenario_section(tmp_path):
+    text = MINIMAL.replace('[scenario]\nname = "test rig"\n', "")
+    err = _load_error(tmp_path, text)
+    assert err.field == "scenario" and "missing required section [scenario]" in str(err)
+
+
+def test_missing_scenario_name(tmp_path):
+    text = MINIMAL.replace('name = "test rig"\n', 'description = "x"\n')
+    err = _load_error(tmp_path, text)
+    assert err.field == "scenario.name"
+    assert err.line == 1                               # the [scenario] header
+
+
+def test_empty_phase_list(tmp_path):
+    head = MINIMAL.split("[[phases]]")[0]
+    text = "phases = []\n" + head
+    err = _load_error(tmp_path, text)
+    assert err.field == "phases" and "at least one phase" in str(err)
+    assert err.line == 1
+
+
+def test_idle_phase_takes_no_actuator(tmp_path):
+    text = MINIMAL + '\n[[phases]]\nname = "wait"\nmotion = "idle"\nactuator = "cyl"\nduration = "3 s"\n'
+    err = _load_error(tmp_path, text)
+    assert err.field == "phases[4].actuator"
+
+
+def test_toml_syntax_error_names_file_and_line(tmp_path):
+    lines = MINIMAL.splitlines()
+    lines[10] = "stroke = = 3"
+    err = _load_error(tmp_path, "\n".join(lines) + "\n")
+    assert err.line == 11
+    assert str(err).startswith(f"{tmp_path / 'bad.toml'}:11: TOML syntax error")
+
+
+def test_non_utf8_bytes_name_file_and_line(tmp_path):
+    path = tmp_path / "latin1.toml"
+    path.write_bytes(b'[scenario]\nname = "test"\ndescription = "Pr\xe4sse"\n')
+    with pytest.raises(HeatloadError) as info:
+        io.load_scenario(path)
+    assert info.value.line == 3
+    assert str(info.value).startswith(f"{path}:3: ")
+    assert "UTF-8" in str(info.value)
+
+
+def test_missing_file(tmp_path):
+    with pytest.raises(HeatloadError) as info:
+        io.load_scenario(tmp_path / "none.toml")
+    assert str(info.value).startswith(str(tmp_path / "none.toml"))
+
+
+def test_loads_names_the_source():
+    with pytest.raises(HeatloadError) as info:
+        io.loads_scenario(_edit('bore = "63 mm"', 'bore = "63 kg"'), source="memo")
+    assert str(info.value).startswith("memo:7: actuators[0].bore: ")
+
+
+def test_scenario_from_dict_without_text():
+    import tomllib
+
+    data = tomllib.loads(_edit('rod = "36 mm"', 'rod = "80 mm"'))
+    with pytest.raises(HeatloadError) as info:
+        io.scenario_from_dict(data, source="api")
+    assert info.value.field == "actuators[0].rod"
+    assert str(info.value).startswith("api: actuators[0].rod: ")
+
+
+# ---------------------------------------------------------------------------
+# Saving
+# ---------------------------------------------------------------------------
+
+def test_save_is_atomic_and_refuses_to_overwrite(tmp_path):
+    s = io.load_scenario(io.default_scenario_path())
+    target = tmp_path / "press.toml"
+    assert io.save_scenario(s, target) == target
+    assert io.load_scenario(target) == s
+    before = target.read_bytes()
+    other = dataclasses.replace(s, name="another press")
+    with pytest.raises(HeatloadError) as info:
+        io.save_scenario(other, target)
+    assert str(info.value).startswith(str(target))
+    assert target.read_bytes() == before               # untouched
+    io.save_scenario(other, target, force=True)
+    assert io.load_scenario(target).name == "another press"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["press.toml"]  # no temp files left
+
+
+def test_save_refuses_an_invalid_scenario(tmp_path):
+    s = io.loads_scenario(MINIMAL)
+    broken = dataclasses.replace(
+        s, actuators=(dataclasses.replace(s.actuators[0], rod=0.08),) + s.actuators[1:])
+    target = tmp_path / "broken.toml"
+    with pytest.raises(HeatloadError) as info:
+        io.save_scenario(broken, target)
+    assert info.value.field == "actuators[0].rod"
+    assert not target.exists()
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_text_with_quotes_and_newlines_round_trips():
+    s = io.loads_scenario(MINIMAL)
+    s = dataclasses.replace(s, name='Press "A"\\B', description="line one\nline two\ttab é")
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
