@@ -142,7 +142,9 @@ def power_unit_arrays(scenario: Scenario, oil_temperature) -> dict:
     pu = scenario.power_unit
     pump = pu.pump
     state = oil_state(scenario, oil_temperature)
-    rho_rated = state["density"]
+    # the datasheet point: rated kinematic viscosity at the oil's density there
+    t_rated = reference_oil_temperature(scenario)
+    rho_rated = float(oil.fluid_density(scenario.fluid, t_rated))
     slip, viscous, friction = pumps.wilson_coefficients(
         pump.volumetric_efficiency, pump.hydromechanical_efficiency, pump.rated_pressure,
         pump.shaft_speed, pump.rated_viscosity * rho_rated)
@@ -150,8 +152,13 @@ def power_unit_arrays(scenario: Scenario, oil_temperature) -> dict:
     eta_motor = (motor.efficiency if motor.efficiency is not None
                  else motors.ie_class_efficiency(motor.rated_power, motor.efficiency_class,
                                                  motor.poles))
+    # The pump's loss model is calibrated inside its datasheet viscosity window;
+    # outside it the leakage and drag are held at the window's edge rather than
+    # extrapolated (a warning says when the oil leaves the window).
+    nu_pump = np.clip(state["viscosity"], pump.viscosity_min, pump.viscosity_max)
     return {
         **state,
+        "mu": state["density"] * nu_pump,
         "pump_displacement": pump.displacement, "pump_speed": pump.shaft_speed,
         "pump_slip": slip, "pump_viscous": viscous, "pump_friction": friction,
         "relief_cracking": pu.relief.cracking_pressure, "relief_override": pu.relief.override,

@@ -1,0 +1,362 @@
+"""The ``heatload`` command line.
+
+Commands (each prints a one-line error naming the field and exits non-zero on
+bad input, never a traceback):
+
+- ``heatload compare [FILE]``   ranked strategies (``--json``, ``--units si|us``)
+- ``heatload check FILE``       validate and summarise a duty-cycle file
+- ``heatload phases FILE --strategy NAME``   per-phase breakdown
+- ``heatload thermal [FILE]``   oil temperatures, warm-up time
+- ``heatload cooler [FILE] --coolant air|water``   cooler sizing and spec sheet
+- ``heatload report [FILE] -o report.html``   a customer report
+- ``heatload sweep [FILE] --vary PATH=LOW..HIGH:N``   design sweeps
+- ``heatload dashboard [FILE]``  the browser dashboard
+
+Heavy packages (pandas, CoolProp, plotly, dash) are imported only by the
+commands that need them, so ``heatload --help`` and ``heatload check`` start fast.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import sys
+
+from heatload.errors import HeatloadError
+
+K0 = 273.15
+
+
+# ---------------------------------------------------------------------------
+# helpers
+# ---------------------------------------------------------------------------
+
+def _load(path):
+    from heatload import io
+    p = path or io.default_scenario_path()
+    return io.load_scenario(p), p
+
+
+def _fmt(value, kind, system, digits=3):
+    from heatload.units import format_quantity
+    return format_quantity(value, kind, system, digits)
+
+
+def _unit(kind, system):
+    from heatload.units import display_unit, pretty_unit
+    return pretty_unit(display_unit(kind, system))
+
+
+def _num(value, kind, system, digits=3):
+    from heatload.units import display_unit, format_number, from_si
+    return format_number(float(from_si(value, kind, display_unit(kind, system))), digits)
+
+
+def _table(headers, rows):
+    widths = [max(len(str(h)), *(len(str(r[i])) for r in rows)) if rows else len(str(h))
+              for i, h in enumerate(headers)]
+    line = "  ".join(str(h).ljust(w) for h, w in zip(headers, widths))
+    out = [line, "  ".join("-" * w for w in widths)]
+    def numeric(c):
+        t = str(c).replace(",", "").replace("..", "").lstrip("-")
+        return bool(t) and (t[0].isdigit() or t in ("none", "never"))
+    for r in rows:
+        out.append("  ".join(str(c).rjust(w) if numeric(c) else str(c).ljust(w)
+                             for c, w in zip(r, widths)).rstrip())
+    return "\n".join(out)
+
+
+CAUTION = ("Estimates for early design. Component makers' data, machine-safety standards "
+           "for hydraulic systems (e.g. ISO 4413), local codes and licensed practice govern.")
+
+
+def _temperature(t_kelvin, system):
+    return _fmt(t_kelvin, "temperature", system, 3)
+
+
+# ---------------------------------------------------------------------------
+# commands
+# ---------------------------------------------------------------------------
+
+def cmd_compare(args):
+    from heatload import chain, tables
+    sc, path = _load(args.file)
+    cmp = chain.compare(sc, args.strategy or None)
+    if args.json:
+        print(json.dumps(tables.comparison_dict(cmp, path, with_phases=not args.no_phases),
+                         indent=2, ensure_ascii=False))
+        return 0
+    s = args.units
+    print(f"{sc.name} — {len(sc.phases)} phases, {sc.economics.hours_per_year:.0f} h/year, "
+          f"ambient {_temperature(sc.ambient.temperature, s)} "
+          f"(design {_temperature(sc.ambient.temperature_max, s)})")
+    cur = sc.economics.currency
+    headers = ["#", "strategy", f"energy/yr [kWh]", f"cost/yr [{cur}]", "CO2/yr [t]",
+               f"heat to oil [{_unit('power', s)}]", f"oil, no cooler [{_unit('temperature', s)}]",
+               f"cooler [{_unit('power', s)}]", f"peak [{_unit('pressure', s)}]", "eff. [%]",
+               "warnings"]
+    rows = []
+    for i, o in enumerate(cmp.ranked(), 1):
+        e, th = o.energy, o.thermal
+        codes = sorted({w.code for w in o.warnings})
+        rows.append([i, o.name, f"{float(e.electric_energy_per_year) / 3.6e6:,.0f}",
+                     f"{float(e.cost_per_year):,.0f}", f"{float(e.co2_per_year) / 1000:.1f}",
+                     _num(e.average_heat_to_oil, "power", s), _num(th.steady_coupled,
+                                                                   "temperature", s),
+                     _num(th.cooler_duty, "power", s) if th.cooler_needed else "none",
+                     _num(e.peak_pressure, "pressure", s), f"{100 * float(e.overall_efficiency):.0f}",
+                     ", ".join(codes) if codes else "-"])
+    print(_table(headers, rows))
+    print()
+    for o in cmp.ranked():
+        for w in o.warnings:
+            print(f"  ! {o.name} / {w.phase or 'whole cycle'}: {w.message}")
+    print(f"\nCooler duty at the design point: oil at "
+          f"{_temperature(cmp.outcomes[0].thermal.design_oil_temperature, s)}, ambient "
+          f"{_temperature(sc.ambient.temperature_max, s)}, margin {100 * sc.cooler.margin:.0f} %.")
+    print(CAUTION)
+    return 0
+
+
+def cmd_check(args):
+    from heatload import io
+    sc = io.load_scenario(args.file)
+    s = args.units
+    pu = sc.power_unit
+    q = pu.pump.displacement * pu.pump.shaft_speed
+    print(f"OK: {args.file} — {sc.name}")
+    print(f"  fluid: {sc.fluid.name} (nu40 {sc.fluid.nu40 * 1e6:.1f} mm²/s, "
+          f"nu100 {sc.fluid.nu100 * 1e6:.2f} mm²/s), limits "
+          f"{_temperature(sc.fluid.temperature_min, s)} .. {_temperature(sc.fluid.temperature_max, s)}")
+    print(f"  pump: {pu.pump.kind} {pu.pump.type}, {pu.pump.displacement * 1e6:.1f} cm³/rev at "
+          f"{pu.pump.shaft_speed * 60:.0f} rpm = {_fmt(q, 'flow', s)}; relief "
+          f"{_fmt(pu.relief.cracking_pressure, 'pressure', s)}; motor "
+          f"{_fmt(pu.motor.rated_power, 'power', s)} {pu.motor.efficiency_class}")
+    print(f"  reservoir: {_fmt(sc.reservoir.oil_volume, 'volume', s)} oil, "
+          f"{sc.reservoir.length:.2f} x {sc.reservoir.width:.2f} x {sc.reservoir.height:.2f} m")
+    for a in sc.actuators:
+        if a.kind == "motor":
+            print(f"  actuator {a.name}: motor {a.displacement * 1e6:.0f} cm³/rev")
+        else:
+            print(f"  actuator {a.name}: cylinder {_fmt(a.bore, 'length', s)} / "
+                  f"{_fmt(a.rod, 'length', s)} x {_fmt(a.stroke, 'distance', s)}")
+    print(f"  {len(sc.phases)} phases: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
+    print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
+    return 0
+
+
+def cmd_phases(args):
+    from heatload import chain, tables
+    sc, path = _load(args.file)
+    try:
+        strat = sc.strategy(args.strategy)
+    except KeyError:
+        raise HeatloadError(f"unknown strategy {args.strategy!r}; this scenario has "
+                            f"{', '.join(s.name for s in sc.strategies)}",
+                            field="--strategy") from None
+    o = chain.evaluate_strategy(sc, strat)
+    recs = tables.phase_records(o, sc, chain.cycle.phase_arrays(sc))
+    if args.json:
+        print(json.dumps(recs, indent=2, ensure_ascii=False))
+        return 0
+    s = args.units
+    print(f"{sc.name} — {o.name}, oil at {_temperature(o.thermal.operating_temperature, s)}")
+    headers = ["phase", "motion", "t [s]", f"p pump [{_unit('pressure', s)}]",
+               f"p cap [{_unit('pressure', s)}]", f"p rod [{_unit('pressure', s)}]",
+               f"Q pump [{_unit('flow', s)}]", f"Q relief [{_unit('flow', s)}]",
+               "speed/target [%]", f"electric [{_unit('power', s)}]",
+               f"heat [{_unit('power', s)}]", "largest loss"]
+    rows = []
+    for r in recs:
+        losses = {k: v for k, v in r["losses_W"].items() if k not in ("drive_motor", "converter")}
+        top = max(losses, key=lambda k: losses[k] or 0.0)
+        pct = (100 * r["speed"] / r["speed_target"]) if r["speed_target"] else None
+        rows.append([r["phase"], r["motion"], f"{r['duration_s']:.2f}",
+                     _num(r["pump_pressure_Pa"], "pressure", s),
+                     _num(r["cap_pressure_Pa"], "pressure", s),
+                     _num(r["rod_pressure_Pa"], "pressure", s),
+                     _num(r["pump_flow_m3_s"], "flow", s), _num(r["relief_flow_m3_s"], "flow", s),
+                     f"{pct:.0f}" if pct is not None else "-",
+                     _num(r["electric_power_W"], "power", s), _num(r["heat_to_oil_W"], "power", s),
+                     f"{top} {_fmt(losses[top], 'power', s)}" if (losses[top] or 0) > 0 else "-"])
+    print(_table(headers, rows))
+    for w in o.warnings:
+        print(f"  ! {w.phase or 'whole cycle'}: {w.message}")
+    return 0
+
+
+def cmd_thermal(args):
+    from heatload import chain
+    sc, path = _load(args.file)
+    cmp = chain.compare(sc, args.strategy or None)
+    s = args.units
+    if args.json:
+        from heatload import tables
+        recs = [{k: v for k, v in tables.strategy_record(o, sc, cmp.phase_arrays, False).items()
+                 if k.startswith(("oil_", "heat_", "cooler_", "time_", "strategy", "label"))}
+                for o in cmp.outcomes]
+        print(json.dumps({"scenario": sc.name, "strategies": recs}, indent=2, ensure_ascii=False))
+        return 0
+    print(f"{sc.name} — oil {sc.fluid.name}, {_fmt(sc.reservoir.oil_volume, 'volume', s)}; "
+          f"ambient {_temperature(sc.ambient.temperature, s)}, hot day "
+          f"{_temperature(sc.ambient.temperature_max, s)}, cold start "
+          f"{_temperature(sc.ambient.cold_start_temperature, s)}")
+    t = _unit("temperature", s)
+    headers = ["strategy", f"heat [{_unit('power', s)}]", f"steady uncoupled [{t}]",
+               f"steady coupled [{t}]", f"cycle min..max [{t}]", f"hot day [{t}]",
+               "UA [W/K]", "to oil limit", "cooler"]
+    rows = []
+    for o in cmp.outcomes:
+        th = o.thermal
+        ttl = "never" if th.time_to_limit is None else f"{th.time_to_limit / 3600:.1f} h"
+        rows.append([o.name, _num(th.heat_coupled, "power", s),
+                     _num(th.steady_uncoupled, "temperature", s),
+                     _num(th.steady_coupled, "temperature", s),
+                     f"{_num(th.cycle_minimum, 'temperature', s)}..{_num(th.cycle_maximum, 'temperature', s)}",
+                     _num(th.steady_hot, "temperature", s), f"{th.conductance:.1f}", ttl,
+                     _fmt(th.cooler_duty, "power", s) if th.cooler_needed else "not needed"])
+    print(_table(headers, rows))
+    for o in cmp.outcomes:
+        for w in o.warnings:
+            if w.code in ("oil-temperature", "viscosity-window"):
+                print(f"  ! {o.name}: {w.message}")
+    print("Steady temperatures are without a cooler; 'coupled' lets the oil's viscosity "
+          "change pump leakage and line losses at that temperature.")
+    print(CAUTION)
+    return 0
+
+
+def cmd_cooler(args):
+    from heatload import sizing
+    return sizing.run_cli(args)
+
+
+def cmd_report(args):
+    from heatload import report
+    return report.run_cli(args)
+
+
+def cmd_sweep(args):
+    from heatload import sweep
+    return sweep.run_cli(args)
+
+
+def cmd_dashboard(args):
+    try:
+        from dashboard import app as dash_app
+    except ImportError as exc:  # the dashboard package needs dash installed
+        raise HeatloadError(f"the dashboard needs the 'dash' package ({exc})",
+                            field="dashboard") from None
+    return dash_app.run_cli(args)
+
+
+# ---------------------------------------------------------------------------
+# parser
+# ---------------------------------------------------------------------------
+
+def build_parser() -> argparse.ArgumentParser:
+    from heatload import __version__
+    p = argparse.ArgumentParser(
+        prog="heatload",
+        description="Heat load, oil temperature and cooler size of a hydraulic machine's duty "
+                    "cycle, for every way of controlling its actuators.")
+    p.add_argument("--version", action="version", version=f"heatload {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+
+    def add(name, func, help_, file_required=False):
+        sp = sub.add_parser(name, help=help_, description=help_)
+        if file_required:
+            sp.add_argument("file", metavar="FILE", help="duty-cycle file (TOML)")
+        else:
+            sp.add_argument("file", metavar="FILE", nargs="?",
+                            help="duty-cycle file (TOML); the bundled forming press if omitted")
+        sp.add_argument("--units", choices=("si", "us"), default="si",
+                        help="units of the printed tables (default: si)")
+        sp.set_defaults(func=func)
+        return sp
+
+    sp = add("compare", cmd_compare, "rank the control strategies of a duty cycle")
+    sp.add_argument("--json", action="store_true", help="print the results as JSON (SI units)")
+    sp.add_argument("--no-phases", action="store_true", help="leave per-phase data out of --json")
+    sp.add_argument("--strategy", action="append", metavar="NAME",
+                    help="only this strategy (repeatable)")
+
+    add("check", cmd_check, "validate a duty-cycle file and summarise it", file_required=True)
+
+    sp = add("phases", cmd_phases, "per-phase breakdown of one strategy")
+    sp.add_argument("--strategy", required=True, metavar="NAME", help="strategy name or label")
+    sp.add_argument("--json", action="store_true", help="print the phases as JSON (SI units)")
+
+    sp = add("thermal", cmd_thermal, "oil temperatures without a cooler and warm-up time")
+    sp.add_argument("--strategy", action="append", metavar="NAME", help="only this strategy")
+    sp.add_argument("--json", action="store_true", help="print as JSON (SI units)")
+
+    sp = add("cooler", cmd_cooler, "size an air-oil or water-oil cooler, with its uncertainty")
+    sp.add_argument("--coolant", choices=("air", "water"), default=None,
+                    help="coolant (default: the scenario's [cooler] coolant)")
+    sp.add_argument("--strategy", metavar="NAME", default=None,
+                    help="strategy to size for (default: the present circuit)")
+    sp.add_argument("--samples", type=int, default=10000, help="Monte Carlo samples (default 10000)")
+    sp.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
+    sp.add_argument("--rated-duty", default=None, metavar="POWER",
+                    help="rating mode: a cooler's rated duty, e.g. '10 kW'")
+    sp.add_argument("--rated-etd", default=None, metavar="DT",
+                    help="rating mode: ETD of that rating, e.g. '40 K'")
+    sp.add_argument("--json", action="store_true", help="print as JSON (SI units)")
+
+    sp = add("report", cmd_report, "write a self-contained HTML report for a customer")
+    sp.add_argument("-o", "--output", default="report.html", metavar="HTML",
+                    help="report file (default report.html)")
+    sp.add_argument("--xlsx", default=None, metavar="FILE", help="also write the tables to a spreadsheet")
+    sp.add_argument("--csv", default=None, metavar="DIR", help="also write the tables as CSV files")
+    sp.add_argument("--present", default=None, metavar="NAME", help="the machine's present circuit")
+    sp.add_argument("--price", action="append", default=[], metavar="NAME=AMOUNT",
+                    help="extra price of a strategy's circuit, e.g. load-sensing=4200 (repeatable)")
+    sp.add_argument("--force", action="store_true", help="overwrite existing files")
+
+    sp = add("sweep", cmd_sweep, "evaluate a grid or sample of design variants at array speed")
+    sp.add_argument("--vary", action="append", default=[], metavar="PATH=LOW..HIGH:N",
+                    help="e.g. power_unit.pump.displacement=16..40cm^3:13 (repeatable)")
+    sp.add_argument("--strategy", action="append", metavar="NAME", help="strategy (repeatable)")
+    sp.add_argument("--samples", type=int, default=None, help="random sample instead of the grid")
+    sp.add_argument("--seed", type=int, default=1)
+    sp.add_argument("-o", "--output", default=None, metavar="FILE", help="CSV or Parquet file")
+    sp.add_argument("--force", action="store_true", help="overwrite an existing output")
+    sp.add_argument("--top", type=int, default=10, help="best variants to print")
+
+    sp = add("dashboard", cmd_dashboard, "open the browser dashboard")
+    sp.add_argument("--port", type=int, default=8050)
+    sp.add_argument("--host", default="127.0.0.1",
+                    help="interface to bind (default 127.0.0.1; anything else is reachable "
+                         "from the network)")
+    sp.add_argument("--debug", action="store_true", help="Dash debug mode (never on a shared machine)")
+    return p
+
+
+def main(argv=None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "command", None):
+        parser.print_help()
+        return 0
+    try:
+        return int(args.func(args) or 0)
+    except HeatloadError as exc:
+        print(f"heatload: error: {exc.one_line()}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("heatload: interrupted", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return 0
+    except Exception as exc:  # a bug of ours: one line, the trace only on request
+        if os.environ.get("HEATLOAD_DEBUG"):
+            raise
+        print(f"heatload: internal error: {type(exc).__name__}: {exc} "
+              f"(set HEATLOAD_DEBUG=1 for the traceback)", file=sys.stderr)
+        return 3
+
+
+if __name__ == "__main__":
+    sys.exit(main())
