@@ -1,0 +1,103 @@
+"""The command line: start-up weight, JSON shape, one-line errors, the README's promises."""
+
+import json
+import re
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from heatload import io
+from heatload.cli import main
+from heatload.model import STRATEGIES
+
+ROOT = Path(__file__).resolve().parents[1]
+HEAVY = ("dash", "plotly", "CoolProp")
+
+
+def _modules_after(code: str) -> set:
+    out = subprocess.run([sys.executable, "-c", code + "\nimport sys\nprint(' '.join(sys.modules))"],
+                         capture_output=True, text=True, check=True, cwd=ROOT)
+    return set(out.stdout.split())
+
+
+def test_import_is_light():
+    mods = _modules_after("import heatload")
+    assert not [m for m in HEAVY if m in mods]
+
+
+@pytest.mark.parametrize("argv", [["--help"], ["check", "duty_cycles/forming_press.toml"]])
+def test_help_and_check_import_no_ui_or_coolprop(argv):
+    code = ("import contextlib, io as _io\nfrom heatload.cli import main\n"
+            "with contextlib.redirect_stdout(_io.StringIO()):\n"
+            f"    try:\n        main({argv!r})\n    except SystemExit:\n        pass")
+    mods = _modules_after(code)
+    assert not [m for m in HEAVY if m in mods]
+
+
+def test_compare_json_lists_all_strategies(capsys):
+    assert main(["compare", "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert [s["strategy"] for s in data["strategies"]] == list(STRATEGIES)
+    for s in data["strategies"]:
+        for key in ("heat_to_oil_W", "electric_energy_per_cycle_J", "electric_energy_per_year_kWh",
+                    "peak_pressure_Pa", "oil_temperature_steady_C", "cooler_duty_W",
+                    "warnings", "phases"):
+            assert key in s
+        assert len(s["phases"]) == len(io.load_scenario(io.default_scenario_path()).phases)
+    assert sorted(data["ranking"]) == sorted(s["label"] for s in data["strategies"])
+
+
+def test_compare_table_runs_in_us_units(capsys):
+    assert main(["compare", "--units", "us", "--strategy", "meter-in"]) == 0
+    out = capsys.readouterr().out
+    assert "psi" in out and "°F" in out and "meter-in" in out
+
+
+@pytest.mark.parametrize("path", io.example_paths(), ids=lambda p: p.name)
+def test_check_each_example(path, capsys):
+    assert main(["check", str(path)]) == 0
+    assert capsys.readouterr().out.startswith("OK:")
+
+
+def test_phases_command(capsys):
+    assert main(["phases", "--strategy", "load-sensing"]) == 0
+    assert "load-sensing" in capsys.readouterr().out
+    assert main(["phases", "--strategy", "nonsense"]) == 2
+
+
+def test_malformed_file_one_line_no_traceback(tmp_path):
+    bad = tmp_path / "bad.toml"
+    text = io.default_scenario_path().read_text()
+    text = re.sub(r'(speed\s*=\s*)"[^"]*m/s"', r'\1"12 kg"', text, count=1)
+    bad.write_text(text)
+    r = subprocess.run([sys.executable, "-m", "heatload.cli", "compare", str(bad)],
+                       capture_output=True, text=True, cwd=ROOT)
+    assert r.returncode == 2
+    lines = r.stderr.strip().splitlines()
+    assert len(lines) == 1 and "Traceback" not in r.stderr
+    assert "bad.toml" in lines[0] and ".speed" in lines[0] and "velocity" in lines[0]
+
+
+def test_missing_file_is_one_line(tmp_path):
+    r = subprocess.run([sys.executable, "-m", "heatload.cli", "check", str(tmp_path / "no.toml")],
+                       capture_output=True, text=True, cwd=ROOT)
+    assert r.returncode == 2 and len(r.stderr.strip().splitlines()) == 1
+
+
+def test_readme_example_loads_and_compares():
+    readme = (ROOT / "README.md").read_text()
+    block = re.search(r"```toml\n(.*?)```", readme, re.S).group(1)
+    sc = io.loads_scenario(block, source="README.md")
+    assert sc.name == "Small clamp" and len(sc.phases) == 4
+    from heatload import chain
+    cmp = chain.compare(sc)
+    assert len(cmp.outcomes) == len(STRATEGIES)
+
+
+def test_readme_quick_start_matches_ci():
+    readme = (ROOT / "README.md").read_text()
+    quick = readme.split("## Quick start", 1)[1].split("##", 1)[0]
+    assert "make run" in quick and "make test" in quick
+    assert "make test" in (ROOT / ".ci" / "run").read_text()

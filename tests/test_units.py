@@ -1,0 +1,96 @@
+"""Units at the edges: parsing, errors, formatting.
+
+Check values: NIST SP 811 (2008), Appendix B conversion factors:
+1 psi = 6894.757 Pa; 1 US gal = 3.785412e-3 m^3; 1 in = 0.0254 m (exact);
+1 hp (550 ft lbf/s) = 745.6999 W; 1 lbf = 4.448222 N; degF = degC * 9/5 + 32.
+"""
+
+import math
+
+import numpy as np
+import pytest
+
+from heatload.errors import HeatloadError
+from heatload.units import KINDS, display_unit, format_quantity, from_si, to_si
+
+
+@pytest.mark.parametrize("text, kind, expected", [
+    ("160 bar", "pressure", 160e5),                       # 1 bar = 1e5 Pa (definition)
+    ("1 psi", "pressure", 6894.757),                       # NIST SP 811
+    ("12 gal/min", "flow", 12 * 3.785412e-3 / 60),        # NIST SP 811 (US gallon)
+    ("40 L/min", "flow", 40e-3 / 60),
+    ("63 mm", "length", 0.063),
+    ("2.5 in", "length", 2.5 * 0.0254),                   # NIST SP 811 (exact)
+    ("35 degC", "temperature", 308.15),
+    ("95 degF", "temperature", 308.15),                   # (95 - 32) 5/9 + 273.15
+    ("1450 rpm", "shaft_speed", 1450 / 60),               # revolutions per second
+    ("7.5 kW", "power", 7500.0),
+    ("1 hp", "power", 745.6999),                          # NIST SP 811
+    ("1 lbf", "force", 4.448222),                         # NIST SP 811
+    ("28 cm^3/rev", "displacement", 28e-6),
+    ("28 cc", "displacement", 28e-6),
+    ("46 mm^2/s", "kinematic_viscosity", 46e-6),
+    ("0.35 kg/kWh", "emission_factor", 0.35 / 3.6e6),
+    ("0.20 /kWh", "specific_energy_price", 0.20 / 3.6e6),
+    ("10 K", "temperature_difference", 10.0),
+    ("250 N*m", "torque", 250.0),
+    ("0.9", "dimensionless", 0.9),
+])
+def test_parse(text, kind, expected):
+    assert to_si(text, kind) == pytest.approx(expected, rel=1e-6)
+
+
+def test_wrong_dimension_names_field_and_kind():
+    with pytest.raises(HeatloadError) as e:
+        to_si("12 kg", "velocity", field="phases[2].speed")
+    assert str(e.value) == "phases[2].speed: expected a velocity such as '0.1 m/s', got '12 kg'"
+
+
+@pytest.mark.parametrize("bad", ["fast", "12 blorps", "", "12 bar bar m", "1e999 bar", True, None, [1]])
+def test_unparsable_is_project_error(bad):
+    with pytest.raises(HeatloadError) as e:
+        to_si(bad, "pressure", field="power_unit.relief.cracking_pressure", file="m.toml")
+    assert "power_unit.relief.cracking_pressure" in str(e.value)
+    assert "m.toml" in str(e.value)
+    assert "\n" not in str(e.value)
+
+
+def test_bare_number_needs_unit():
+    with pytest.raises(HeatloadError, match="with its unit"):
+        to_si(160, "pressure", field="x")
+
+
+def test_format_si_and_us():
+    assert format_quantity(160e5, "pressure", "si") == "160 bar"
+    # 160 bar = 2320.6 psi (NIST factor above)
+    assert format_quantity(160e5, "pressure", "us") == "2321 psi"
+    assert format_quantity(308.15, "temperature", "us") == "95.0 °F"
+    assert format_quantity(1e-3, "flow", "si") == "60.0 L/min"
+    # 60 L/min = 15.85 US gpm
+    assert format_quantity(1e-3, "flow", "us") == "15.9 gpm"
+    assert format_quantity(7500, "power", "us") == "10.1 hp"   # 7500 / 745.6999
+
+
+def test_hydraulic_power_rule_of_thumb():
+    # P[kW] = p[bar] Q[L/min] / 600 (common practice, exact with these units)
+    p, q = to_si("150 bar", "pressure"), to_si("40 L/min", "flow")
+    assert from_si(p * q, "power", "kW") == pytest.approx(150 * 40 / 600, rel=1e-12)
+    # HP = psi gpm / 1714 (common practice; exact constant 1714.2)
+    p, q = to_si("2000 psi", "pressure"), to_si("10 gal/min", "flow")
+    assert from_si(p * q, "power", "hp") == pytest.approx(2000 * 10 / 1714, rel=5e-4)
+
+
+def test_round_trip_every_kind():
+    for kind in KINDS:
+        for system in ("si", "us"):
+            unit = display_unit(kind, system)
+            if not unit:
+                continue
+            v = from_si(np.array([1.0, 2.5]), kind, unit)
+            assert np.all(np.isfinite(v))
+    assert math.isclose(from_si(0.063, "length", "in"), 0.063 / 0.0254)
+
+
+def test_unknown_system():
+    with pytest.raises(HeatloadError):
+        display_unit("pressure", "imperial")
