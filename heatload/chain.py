@@ -113,7 +113,7 @@ def heat_capacity(scenario: Scenario, oil_temperature: float) -> float:
 
 #: Oil temperatures at which every strategy is solved in one vectorized pass;
 #: the coupled temperature is bracketed on it and refined by exact solves [K].
-TEMPERATURE_GRID = np.linspace(263.15, 523.15, 105)
+TEMPERATURE_GRID = np.linspace(263.15, 523.15, 27)
 
 
 @lru_cache(maxsize=64)
