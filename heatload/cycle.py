@@ -183,7 +183,12 @@ def power_unit_arrays(scenario: Scenario, oil_temperature) -> dict:
 def strategy_arrays(scenario: Scenario, strategy: Strategy | str) -> dict:
     """Strategy settings as solver entries (defaults filled in)."""
     if isinstance(strategy, str):
-        strategy = Strategy(strategy)
+        # a name means the scenario's strategy of that name (its parameters), and
+        # the defaults only when the scenario does not list it
+        try:
+            strategy = scenario.strategy(strategy)
+        except KeyError:
+            strategy = Strategy(strategy)
     p: StrategyParameters = strategy.parameters
     relief = scenario.power_unit.relief.cracking_pressure
     compensator = p.compensator_setting if p.compensator_setting is not None else relief - 10e5
