@@ -16,7 +16,8 @@ outlet "area" ``a_out`` and effective force ``force``:
   retracting: the areas swap.  Speed [m/s] = Q1 / a_in.
 - hydraulic motor: ``a_in = a_out = D`` [m^3/rev]; ``force = 2 pi T / eta_hm`` for a
   driving torque T >= 0 and ``2 pi T eta_hm`` for an overrunning one; speed
-  [rev/s] = Q1 eta_v / D (so ``p1 a_in - p2 a_out = force`` holds with Q in m^3/s).
+  [rev/s] = Q1 eta_v / D driving, Q1 / (eta_v D) overrun (the motor then pumps), so
+  ``p1 a_in - p2 a_out = force`` holds with Q in m^3/s and the motor's loss stays >= 0.
 """
 
 from __future__ import annotations
@@ -82,9 +83,12 @@ def phase_arrays(scenario: Scenario) -> dict:
             d = act.displacement
             out["a_in"][i] = out["a_out"][i] = d
             out["q_ratio"][i] = 1.0
-            out["speed_per_flow"][i] = act.volumetric_efficiency / d
             t = ph.load
             eta = act.hydromechanical_efficiency
+            # driven by the oil the motor leaks (n = Q eta_v / D); overrun by its load it
+            # pumps, and the load turns it faster than the flow (n = Q / (eta_v D))
+            ev = act.volumetric_efficiency
+            out["speed_per_flow"][i] = ev / d if t >= 0 else 1.0 / (ev * d)
             out["force"][i] = TWO_PI * t / eta if t >= 0 else TWO_PI * t * eta
             out["work_per_load_speed"][i] = TWO_PI
             out["compression_volume"][i] = d + act.dead_volume if hasattr(act, "dead_volume") else d
