@@ -1225,6 +1225,11 @@ def _line_of(field: str | None, lines: dict) -> int | None:
     return None
 
 
+#: Longest duty-cycle text accepted (a real file is a few kB; this stops a
+#: huge upload or a wrong file from tying up the parser).
+MAX_FILE_CHARS = 1_000_000
+
+
 def loads_scenario(text: str, source: str = "<string>") -> m.Scenario:
     """Parse and validate a duty-cycle file's text.
 
@@ -1248,8 +1253,14 @@ def loads_scenario(text: str, source: str = "<string>") -> m.Scenario:
     """
     import tomllib
 
+    if len(text) > MAX_FILE_CHARS:
+        raise HeatloadError(f"the file is {len(text):,} characters long; a duty-cycle file "
+                            f"is at most {MAX_FILE_CHARS:,}", file=source)
     try:
         data = tomllib.loads(text)
+    except RecursionError:
+        raise HeatloadError("TOML nested too deeply to be a duty-cycle file",
+                            file=source) from None
     except tomllib.TOMLDecodeError as e:
         msg = str(e)
         mt = re.search(r"at line (\d+)", msg)
@@ -1283,6 +1294,10 @@ def load_scenario(path) -> m.Scenario:
     """
     source = str(path)
     try:
+        size = Path(path).stat().st_size
+        if size > MAX_FILE_CHARS * 4:
+            raise HeatloadError(f"the file is {size:,} bytes; a duty-cycle file is at most "
+                                f"{MAX_FILE_CHARS:,} characters", file=source)
         raw = Path(path).read_bytes()
     except OSError as e:
         raise HeatloadError(f"cannot read the file: {e.strerror or e}", file=source) \
