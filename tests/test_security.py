@@ -1,0 +1,55 @@
+"""No way in: a static scan of the product's code, and safe defaults."""
+
+import ast
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+PRODUCT = [p for p in (ROOT / "heatload", ROOT / "dashboard") if p.is_dir()]
+
+
+def test_bandit_finds_no_medium_or_high_issue():
+    r = subprocess.run([sys.executable, "-m", "bandit", "-q", "-r", *map(str, PRODUCT),
+                        "--severity-level", "medium", "-f", "json"],
+                       capture_output=True, text=True, cwd=ROOT)
+    report = json.loads(r.stdout)
+    found = [(i["filename"], i["line_number"], i["test_id"], i["issue_text"])
+             for i in report["results"]]
+    assert found == [], found
+
+
+def _calls(tree):
+    for node in ast.walk(tree):
+        if isinstance(node, ast.Call):
+            f = node.func
+            if isinstance(f, ast.Name):            # eval(...), exec(...)
+                yield f.id
+            elif isinstance(f, ast.Attribute) and isinstance(f.value, ast.Name) \
+                    and f.value.id == "builtins":     # builtins.eval(...)
+                yield f.attr
+
+
+def test_no_eval_exec_pickle_or_unsafe_yaml():
+    bad = []
+    for folder in PRODUCT:
+        for path in folder.rglob("*.py"):
+            tree = ast.parse(path.read_text(encoding="utf-8"))
+            names = set(_calls(tree))
+            for forbidden in ("eval", "exec", "compile", "__import__"):
+                if forbidden in names:
+                    bad.append((path.name, forbidden))
+            for node in ast.walk(tree):
+                if isinstance(node, (ast.Import, ast.ImportFrom)):
+                    mods = [a.name for a in node.names] + [getattr(node, "module", "") or ""]
+                    if any(m.split(".")[0] in ("pickle", "marshal", "shelve", "yaml", "dill")
+                           for m in mods):
+                        bad.append((path.name, mods))
+    assert bad == []
+
+
+def test_dashboard_binds_loopback_and_no_debug_by_default():
+    from heatload.cli import build_parser
+    args = build_parser().parse_args(["dashboard"])
+    assert args.host == "127.0.0.1" and args.debug is False
