@@ -250,7 +250,8 @@ def _root_flow(residual, c, q_hi, idx):
     r_hi = residual(hi, sub)
     side = np.zeros(lo.shape)
     for _ in range(_ROOT_STEPS):
-        q = (lo * r_hi - hi * r_lo) / (r_hi - r_lo)
+        with np.errstate(divide="ignore", invalid="ignore"):  # flat ends: bisect below
+            q = (lo * r_hi - hi * r_lo) / (r_hi - r_lo)
         q = np.where(np.isfinite(q) & (q > lo) & (q < hi), q, 0.5 * (lo + hi))
         r = residual(q, sub)
         pos = r >= 0.0
