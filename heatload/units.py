@@ -20,7 +20,6 @@ Conventions (SI inside)
 from __future__ import annotations
 
 import math
-import warnings
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -101,15 +100,21 @@ def registry():
     """
     import pint
 
+    import logging
+
     ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True,
                              on_redefinition="warn")
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
+    log = logging.getLogger("pint.util")
+    level = log.level
+    log.setLevel(logging.ERROR)  # our redefinitions of rpm/rps/cc are deliberate
+    try:
         ureg.define("rev = 1 = revs = revolution_count")
         ureg.define("revolutions_per_minute = rev / minute = rpm")
         ureg.define("revolutions_per_second = rev / second = rps")
         ureg.define("cc = centimeter ** 3")
         ureg.define("gpm = gallon / minute")
+    finally:
+        log.setLevel(level)
     return ureg
 
 
@@ -172,13 +177,10 @@ def to_si(value, kind: str, field: str | None = None, file: str | None = None) -
     if not isinstance(value, str):
         raise HeatloadError(f"{expect}, got {value!r}", field=field, file=file)
     ureg = registry()
-    import pint
-
     try:
         q = ureg.Quantity(_clean(value))
-    except (pint.errors.PintError, ValueError, TypeError, AttributeError,
-            SyntaxError, KeyError, ZeroDivisionError, IndexError,
-            OverflowError, RecursionError):
+    except Exception:  # pint's parser can fail in many ways on arbitrary text
+        # (even AssertionError); any of them means the text is not a quantity
         raise HeatloadError(f"{expect}, got {value!r} (not a number with a known unit)",
                             field=field, file=file) from None
     if not isinstance(q, ureg.Quantity):
@@ -189,8 +191,7 @@ def to_si(value, kind: str, field: str | None = None, file: str | None = None) -
         target = "m^3"
     try:
         v = float(q.to(target).magnitude) if target else float(q.to("").magnitude)
-    except (pint.errors.DimensionalityError, pint.errors.PintError,
-            ValueError, TypeError, OverflowError):
+    except Exception:  # wrong dimension, complex or otherwise unconvertible
         raise HeatloadError(f"{expect}, got {value!r}", field=field, file=file) from None
     if not math.isfinite(v):
         raise HeatloadError(f"{expect}, got {value!r} (not a finite number)",
