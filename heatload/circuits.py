@@ -419,7 +419,13 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         p_pump = np.minimum(required, _relief_supply(q1, c, qmax))
     # stalled actuators: the pump sits at what its supply gives at zero flow
     stall_p = {"pressure-compensated": c["compensator"], "load-sensing": c["compensator"]}
-    p_stall = stall_p.get(strategy, _relief_supply(z, c, c["q_theoretical"]))
+    if strategy == "variable-speed":
+        # a stalled variable-speed pump turns at its minimum speed (below): the relief
+        # passes that flow only, and its override follows that flow
+        q_stall = c["pump_displacement"] * n_nom * c["vs_min_fraction"]
+        p_stall = _relief_supply(z, c, q_stall)
+    else:
+        p_stall = stall_p.get(strategy, _relief_supply(z, c, c["q_theoretical"]))
     p_pump = np.where(moving & stalled, p_stall, p_pump)
     dp_fc_in = np.where(stalled, 0.0, dp_fc_in)
 
