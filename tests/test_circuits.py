@@ -257,6 +257,21 @@ def test_stall_beyond_relief(strategy):
         assert _close(r.pump_pressure[0], P_RELIEF)
 
 
+def test_stall_relief_override_follows_the_flow_it_passes():
+    # relief law p = p_crack + override Q / Q_rated (heatload.valves.relief_pressure,
+    # common practice): at stall a fixed pump passes all its flow, a variable-speed pump
+    # at its minimum speed (10 %, model default) only that
+    sc = _scenario([m.Phase("press", "c", "extend", load=200e5 * A1, speed=V_EXT,
+                            stroke=0.1)])
+    q_rated = 60 / 60000
+    r_fix = _solve(sc, "meter-in", relief_override=10e5)
+    assert _close(r_fix.pump_pressure[0], P_RELIEF + 10e5 * Q_TH / q_rated)
+    r_vs = _solve(sc, "variable-speed", relief_override=10e5)
+    assert _close(r_vs.relief_flow[0], 0.1 * Q_TH, abs_=1e-12)
+    assert _close(r_vs.pump_pressure[0], P_RELIEF + 10e5 * 0.1 * Q_TH / q_rated)
+    assert _close(r_vs.losses["relief"][0], r_vs.relief_flow[0] * r_vs.pump_pressure[0])
+
+
 def test_overrunning_meter_in_runs_away_meter_out_holds():
     f = -20e3
     sc = _scenario([m.Phase("lower", "c", "extend", load=f, speed=V_EXT, stroke=0.3)])
