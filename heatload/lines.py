@@ -25,19 +25,30 @@ def _out(value):
     return float(value) if value.ndim == 0 else value
 
 
+def _compact(a):
+    """*a* without its broadcast (stride-0) axes: a view of length 1 along
+    them.  Arrays from :func:`numpy.broadcast_to` (the solvers' inputs) are
+    then checked and computed once per distinct value, not once per element;
+    the results broadcast back to the same values."""
+    if a.ndim == 0 or 0 not in a.strides:
+        return a
+    return a[tuple(slice(0, 1) if st == 0 and n > 1 else slice(None)
+                   for st, n in zip(a.strides, a.shape))]
+
+
 def _arr(value, name):
     try:
-        a = np.asarray(value, dtype=float)
+        a = _compact(np.asarray(value, dtype=float))
     except (TypeError, ValueError):
         raise HeatloadError(f"expected a number, got {value!r}", field=name) from None
-    if not np.all(np.isfinite(a)):
+    if not np.isfinite(a).all():
         raise HeatloadError("expected a finite number (not NaN or infinite)", field=name)
     return a
 
 
 def _check(a, name, low, strict):
     bad = a <= low if strict else a < low
-    if np.any(bad):
+    if bad.any():
         worst = float(np.min(a))
         op = ">" if strict else ">="
         raise HeatloadError(f"must be {op} {low:g}, got {worst:g}", field=name)
@@ -95,15 +106,37 @@ def _colebrook(re, ed):
 
 
 def _friction_times_re(re, ed):
-    """f*Re, bounded (64) as Re -> 0, so that drops stay finite at zero flow."""
-    re_t = np.maximum(re, RE_TURBULENT)
-    f_turb = _colebrook(re_t, ed)
-    f_4000 = _colebrook(np.full_like(re_t, RE_TURBULENT), ed)
+    """f*Re, bounded (64) as Re -> 0, so that drops stay finite at zero flow.
+
+    Colebrook's Newton steps run only on the elements that need them (Re >=
+    4000, and the 4000 end of the transition once per distinct roughness):
+    the laminar elements of a sweep cost one comparison each.
+    """
+    re = np.asarray(re, float)
+    ed = np.asarray(ed, float)
+    shape = np.broadcast_shapes(re.shape, ed.shape)
+    out = np.full(shape, 64.0)
     f_2000 = 64.0 / RE_LAMINAR
-    w = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
-    f_trans = f_2000 + (f_4000 - f_2000) * w
-    return np.where(re < RE_LAMINAR, 64.0,
-                    np.where(re < RE_TURBULENT, f_trans * re, f_turb * re))
+    trans = re >= RE_LAMINAR
+    if not trans.any():
+        return out
+    re_b = np.broadcast_to(re, shape)
+    ed_b = np.broadcast_to(ed, shape)
+    turb = re_b >= RE_TURBULENT
+    mid = trans & ~turb
+    if turb.any():
+        r = re_b[turb]
+        out[turb] = _colebrook(r, ed_b[turb]) * r
+    if mid.any():
+        r = re_b[mid]
+        ed_c = _compact(ed_b)
+        if ed_c.size == 1:
+            f_4000 = _colebrook(np.full(1, RE_TURBULENT), ed_c.reshape(1))[0]
+        else:
+            f_4000 = _colebrook(np.full(int(mid.sum()), RE_TURBULENT), ed_b[mid])
+        w = (r - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
+        out[mid] = (f_2000 + (f_4000 - f_2000) * w) * r
+    return out
 
 
 def friction_factor(reynolds, relative_roughness=0.0):
@@ -206,10 +239,13 @@ def line_pressure_drop(flow, inner_diameter, length, density, kinematic_viscosit
     nu = _check(_arr(kinematic_viscosity, "kinematic_viscosity"), "kinematic_viscosity", 0.0, True)
     eps = _check(_arr(roughness, "roughness"), "roughness", 0.0, False)
     k = _check(_arr(fittings_k, "fittings_k"), "fittings_k", 0.0, False)
+    shape = np.broadcast_shapes(np.shape(flow), np.shape(inner_diameter), np.shape(length),
+                                np.shape(density), np.shape(kinematic_viscosity),
+                                np.shape(roughness), np.shape(fittings_k))
     v = 4.0 * q / (math.pi * d * d)
     re = np.abs(v) * d / nu
-    re, ed = np.broadcast_arrays(re, eps / d)
-    f_re = _friction_times_re(re, ed)
+    f_re = _friction_times_re(re, eps / d)
     friction = f_re * nu * rho * ell * v / (2.0 * d * d)
     minor = k * rho * v * np.abs(v) / 2.0
-    return _out(friction + minor)
+    dp = friction + minor
+    return _out(dp if dp.shape == shape else np.broadcast_to(dp, shape))
