@@ -350,7 +350,8 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     moving = c["moving"]
     variable_pump = strategy in ("pressure-compensated", "load-sensing")
     holds_overrun = strategy == "meter-out"
-    overrun = moving & (c["load"] < 0.0)
+    # the load overruns where it beats the seal friction: the effective force pulls
+    overrun = moving & (c["load"] < 0.0) & (c["force"] < 0.0)
     # A counterbalance valve acts only on an overrunning load; meter-out needs
     # none.  Where none is fitted the load would run away: the phase is flagged
     # and its figures assume one set at 1.3 x the load-induced pressure.
