@@ -292,6 +292,17 @@ def test_overrunning_meter_in_runs_away_meter_out_holds():
     assert not _solve(sc_cb, "meter-in").runaway[0]
 
 
+def test_pulling_load_below_friction_is_not_a_runaway():
+    # 500 N pulling against 2000 N of seal friction: the piston still needs pressure to
+    # move (force balance p1 A1 - p2 A2 = F + F_friction > 0), nothing can run away
+    acts = (m.Cylinder("c", bore=BORE, rod=ROD, stroke=0.5, friction_force=2000.0),)
+    sc = _scenario([m.Phase("e", "c", "extend", load=-500.0, speed=V_EXT, stroke=0.3)],
+                   actuators=acts)
+    r = _solve(sc, "meter-in")
+    assert not r.runaway[0] and not r.counterbalance_active[0]
+    assert _close(r.inlet_pressure[0], 1500.0 / A1)
+
+
 def test_counterbalance_pressures_by_hand():
     # direct-acting counterbalance, pilot ratio r: p2 = setting - r p1 while open,
     # force balance p1 A1 - p2 A2 = F -> p1 = (F + A2 setting)/(A1 + r A2) (common practice)
