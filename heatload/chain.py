@@ -150,46 +150,71 @@ def _mean_heat(result):
     return (result.heat_to_oil * t).sum(axis=-1) / t.sum(axis=-1)
 
 
-def coupled_temperature(scenario, strategy, ambient, heat_on_grid, pa):
-    """Self-consistent steady oil temperature [K] at air temperature *ambient*.
+def _row(result, i):
+    """Row *i* of a result solved over a leading axis of oil temperatures."""
+    import dataclasses
+    out = {}
+    for f in dataclasses.fields(result):
+        v = getattr(result, f.name)
+        if isinstance(v, np.ndarray) and v.ndim >= 2:
+            v = v[i]
+        elif isinstance(v, dict):
+            v = {k: (a[i] if isinstance(a, np.ndarray) and a.ndim >= 2 else a)
+                 for k, a in v.items()}
+        out[f.name] = v
+    return type(result)(**out)
+
+
+def coupled_temperatures(scenario, strategy, ambients, heat_on_grid, pa):
+    """Self-consistent steady oil temperatures [K] at each air temperature in *ambients*.
 
     Solves Q(T) = UA(T) (T - T_a), with Q(T) the strategy's mean heat at oil
-    temperature T: bracketed on :data:`TEMPERATURE_GRID`, interpolated, then
-    refined by fixed-point steps with exact solves to 0.01 K.
-    Returns ``(T, iterations)``.
+    temperature T: bracketed on :data:`TEMPERATURE_GRID`, then refined by an
+    Illinois regula falsi with exact solves (all ambients in one batched solve
+    per step) until |Q - UA (T - T_a)| < 0.01 K x UA.
+    Returns ``(T, iterations, result)`` with *result* solved at those T (one
+    row per ambient).
     """
-    ua = conductance_fn(scenario, ambient)
     grid = TEMPERATURE_GRID
-    g = heat_on_grid - ua(grid) * (grid - ambient)
-    down = np.nonzero((g[:-1] >= 0.0) & (g[1:] < 0.0))[0]
-    if not down.size:
-        # no crossing on the grid: beyond its ends the heat is taken as at the end
-        q_end = heat_on_grid[-1] if g[-1] >= 0 else heat_on_grid[0]
-        return float(thermal.steady_state_temperature(q_end, ua, ambient)), 0
-    i = down[0]
-    a, b, ga, gb = grid[i], grid[i + 1], g[i], g[i + 1]
-    t = a + (b - a) * ga / (ga - gb)
-    side = 0
+    n = len(ambients)
+    ambients = np.asarray(ambients, float)
+    uas = [conductance_fn(scenario, ta) for ta in ambients]
+    a = np.empty(n); b = np.empty(n); ga = np.empty(n); gb = np.empty(n)
+    t = np.empty(n)
+    done = np.zeros(n, dtype=bool)
+    for k, (ta, ua) in enumerate(zip(ambients, uas)):
+        g = heat_on_grid - ua(grid) * (grid - ta)
+        down = np.nonzero((g[:-1] >= 0.0) & (g[1:] < 0.0))[0]
+        if not down.size:
+            # no crossing on the grid: beyond its ends the heat is taken as at the end
+            q_end = heat_on_grid[-1] if g[-1] >= 0 else heat_on_grid[0]
+            t[k] = float(thermal.steady_state_temperature(q_end, ua, ta))
+            done[k] = True
+            continue
+        i = down[0]
+        a[k], b[k], ga[k], gb[k] = grid[i], grid[i + 1], g[i], g[i + 1]
+        t[k] = a[k] + (b[k] - a[k]) * ga[k] / (ga[k] - gb[k])
+    side = np.zeros(n)
     it = 0
-    # Illinois regula falsi on g(T) = Q(T) - UA(T)(T - T_a) with exact solves
-    for it in range(1, COUPLING_MAX_ITER + 1):
-        q = float(_mean_heat(solve_at(scenario, strategy, t, pa)))
-        ua_t = float(ua(t))
-        gt = q - ua_t * (t - ambient)
-        if abs(gt) < COUPLING_TOLERANCE * max(ua_t, 1e-9) or (b - a) < COUPLING_TOLERANCE:
-            break
-        if gt > 0:
-            a, ga = t, gt
-            if side == 1:
-                gb *= 0.5
-            side = 1
-        else:
-            b, gb = t, gt
-            if side == -1:
-                ga *= 0.5
-            side = -1
-        t = a + (b - a) * ga / (ga - gb)
-    return t, it
+    while True:
+        it += 1
+        res = solve_at(scenario, strategy, t, pa)
+        if done.all() or it > COUPLING_MAX_ITER:
+            return t, it, res
+        q = _mean_heat(res)
+        ua_t = np.array([float(ua(tk)) for ua, tk in zip(uas, t)])
+        gt = q - ua_t * (t - ambients)
+        done |= (np.abs(gt) < COUPLING_TOLERANCE * np.maximum(ua_t, 1e-9)) | \
+            ((b - a) < COUPLING_TOLERANCE)
+        if done.all():
+            return t, it, res
+        pos = gt > 0
+        gb = np.where(pos & (side == 1), 0.5 * gb, gb)
+        ga = np.where(~pos & (side == -1), 0.5 * ga, ga)
+        a, ga = np.where(pos, t, a), np.where(pos, gt, ga)
+        b, gb = np.where(pos, b, t), np.where(pos, gb, gt)
+        side = np.where(pos, 1.0, -1.0)
+        t = np.where(done, t, a + (b - a) * ga / (ga - gb))
 
 
 def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> StrategyOutcome:
@@ -197,18 +222,22 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
     pa = pa if pa is not None else cycle.phase_arrays(scenario)
     amb = scenario.ambient
     t_ref = cycle.reference_oil_temperature(scenario)
+    t_d = design_oil_temperature(scenario)
     ua_typ = conductance_fn(scenario, amb.temperature)
     ua_hot = conductance_fn(scenario, amb.temperature_max)
 
-    res_u = solve_at(scenario, strategy, t_ref, pa)
+    # one batched solve: the datasheet temperature, the design point, the grid
+    first = solve_at(scenario, strategy, np.concatenate(([t_ref, t_d], TEMPERATURE_GRID)), pa)
+    res_u, res_d = _row(first, 0), _row(first, 1)
+    heat_grid = _mean_heat(first)[2:]
     q_u = float(_mean_heat(res_u))
     t_u = float(thermal.steady_state_temperature(q_u, ua_typ, amb.temperature))
 
-    heat_grid = _mean_heat(solve_at(scenario, strategy, TEMPERATURE_GRID, pa))
-    t_c, it = coupled_temperature(scenario, strategy, amb.temperature, heat_grid, pa)
-    t_h, _ = coupled_temperature(scenario, strategy, amb.temperature_max, heat_grid, pa)
-
-    res_c = solve_at(scenario, strategy, t_c, pa)
+    temps, it, res_th = coupled_temperatures(scenario, strategy,
+                                             [amb.temperature, amb.temperature_max],
+                                             heat_grid, pa)
+    t_c, t_h = float(temps[0]), float(temps[1])
+    res_c = _row(res_th, 0)
     q_c = float(_mean_heat(res_c))
     ua_c = float(ua_typ(t_c))
     cap = heat_capacity(scenario, t_c)
@@ -217,8 +246,6 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
                                              amb.temperature)
 
     # cooler design point: oil held at the design temperature on the hottest day
-    t_d = design_oil_temperature(scenario)
-    res_d = solve_at(scenario, strategy, t_d, pa)
     q_d = float(_mean_heat(res_d))
     ua_d = float(ua_hot(t_d))
     duty0 = float(cooler.required_cooler_duty(q_d, ua_d, t_d, amb.temperature_max, 0.0))
@@ -231,7 +258,7 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
     # the machine runs at the coupled temperature, unless the sized cooler holds
     # it at the design temperature
     t_op = min(t_c, t_d) if duty0 > 0.0 else t_c
-    res_op = res_c if t_op == t_c else solve_at(scenario, strategy, t_op, pa)
+    res_op = res_c if t_op == t_c else res_d
 
     th = ThermalOutcome(
         reference_temperature=t_ref, heat_uncoupled=q_u, steady_uncoupled=t_u,
