@@ -1,0 +1,84 @@
+"""The Dash application and the ``heatload dashboard`` command.
+
+``make_app(scenario_path=None)`` builds an app whose page opens the given
+duty-cycle file (or the bundled default); the page also offers the bundled
+examples and an upload.  The server keeps no state between requests: each
+browser session holds its scenario and results in ``dcc.Store`` (memory).
+"""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+
+from dash import Dash
+
+from dashboard import callbacks, layout
+from heatload import io
+from heatload.errors import HeatloadError
+
+LOOPBACK = ("127.0.0.1", "localhost", "::1")
+
+
+def scenario_choices(scenario_path=None):
+    """``(options, value, examples)``: the picker's options, the value opened
+    first and the map from values to files (the only paths the server reads)."""
+    examples = {}
+    options = []
+    if scenario_path is not None:
+        p = Path(scenario_path)
+        examples["file"] = p
+        options.append({"label": f"{p.name} (opened file)", "value": "file"})
+    for p in io.example_paths():
+        key = f"example:{p.stem}"
+        examples[key] = p
+        options.append({"label": f"{p.stem.replace('_', ' ')} (example)", "value": key})
+    if scenario_path is not None:
+        value = "file"
+    else:
+        default = Path(io.default_scenario_path()).resolve()
+        value = next((k for k, p in examples.items() if p.resolve() == default),
+                     options[0]["value"] if options else None)
+    return options, value, examples
+
+
+def make_app(scenario_path=None) -> Dash:
+    """Build the dashboard for *scenario_path* (default: the bundled default).
+
+    Raises :class:`HeatloadError` when the file cannot be read or is invalid,
+    before any server starts.
+    """
+    options, value, examples = scenario_choices(scenario_path)
+    path = examples[value] if value else Path(io.default_scenario_path())
+    scenario = io.load_scenario(path)
+    data = io.scenario_to_dict(scenario)
+    missing = [m for m in ("sizing", "uncertainty", "report")
+               if callbacks.optional_module(m) is None]
+    note = (f"Not installed yet: heatload.{', heatload.'.join(missing)}; the views that "
+            "need them say so." if missing else "")
+    initial = {"data": data, "source": path.name, "options": options, "value": value,
+               "system": "si", "note": note}
+    app = Dash(__name__, title="heatload dashboard", update_title=None,
+               suppress_callback_exceptions=False, serve_locally=True)
+    app.index_string = layout.INDEX
+    # a function: every page load starts a fresh session from the opened file
+    app.layout = lambda: layout.make_layout(initial)
+    callbacks.register(app, examples)
+    return app
+
+
+def run_cli(args) -> int:
+    """``heatload dashboard [FILE] [--port N] [--host H] [--debug]``."""
+    file = getattr(args, "file", None) or getattr(args, "scenario", None)
+    host = getattr(args, "host", None) or "127.0.0.1"
+    port = int(getattr(args, "port", None) or 8050)
+    debug = bool(getattr(args, "debug", False))
+    if not 0 < port < 65536:
+        raise HeatloadError(f"expected a port 1..65535, got {port}", field="--port")
+    app = make_app(file)
+    if host not in LOOPBACK:
+        print(f"warning: serving on {host}: the dashboard is reachable from other machines "
+              "on that network; it has no login.", file=sys.stderr)
+    print(f"heatload dashboard on http://{host}:{port}/  (Ctrl+C stops it)", file=sys.stderr)
+    app.run(host=host, port=port, debug=debug)
+    return 0

@@ -1,0 +1,546 @@
+"""Dash wiring.  Each callback is a thin wrapper around a plain function of
+this module, so the behaviour is testable without a browser.
+
+Data flow (all state lives in the page):
+
+- ``update_scenario``: the one callback that reads the form, the scenario
+  picker, the upload and the units toggle; it validates, recomputes when the
+  scenario changed and writes ``scenario-store`` (last good scenario) and
+  ``results-store`` (serialisable results).  A bad entry is flagged at its
+  field and both stores stay as they were, so the last good results stay shown.
+- the views read ``results-store`` (comparison, energy flow, cycle, payback)
+  or rebuild the one strategy they show from ``scenario-store`` (shift
+  temperature, cooler sizing).
+"""
+
+from __future__ import annotations
+
+import base64
+import binascii
+import importlib
+import inspect
+import re
+
+import numpy as np
+from dash import ALL, Input, Output, State, ctx, html, no_update
+from dash.exceptions import PreventUpdate
+
+from dashboard import compute, figures, state
+from dashboard.layout import MAX_UPLOAD_BYTES
+from heatload import chain, io, tables
+from heatload.errors import HeatloadError
+
+ERROR_STYLE = {"backgroundColor": "#fde4d3", "border": "2px solid #D55E00"}
+
+
+def optional_module(name: str):
+    """``heatload.<name>`` if it is installed, else ``None`` (views then say so)."""
+    try:
+        return importlib.import_module(f"heatload.{name}")
+    except ImportError:
+        return None
+
+
+# ---------------------------------------------------------------------------
+# the scenario: load, upload, edit, units
+# ---------------------------------------------------------------------------
+
+def read_upload(contents: str | None, filename: str | None):
+    """Decode a ``dcc.Upload`` payload and parse it as a duty-cycle file.
+
+    The file name is used only in messages; nothing is written to disk.
+    Returns ``(scenario, canonical dict)``; raises :class:`HeatloadError`.
+    """
+    name = str(filename or "upload.toml")
+    name = re.sub(r"[^\w.\- ]", "_", name)[:120]
+    if not contents or "," not in contents:
+        raise HeatloadError("no file content received", file=name)
+    b64 = contents.split(",", 1)[1]
+    if len(b64) * 3 // 4 > MAX_UPLOAD_BYTES:
+        raise HeatloadError(f"file larger than {MAX_UPLOAD_BYTES // 1000} kB", file=name)
+    try:
+        raw = base64.b64decode(b64, validate=True)
+    except (binascii.Error, ValueError):
+        raise HeatloadError("the upload is not valid base64 data", file=name) from None
+    if len(raw) > MAX_UPLOAD_BYTES:
+        raise HeatloadError(f"file larger than {MAX_UPLOAD_BYTES // 1000} kB", file=name)
+    try:
+        text = raw.decode("utf-8").removeprefix("\ufeff")
+    except UnicodeDecodeError:
+        raise HeatloadError("not UTF-8 text; save the file as UTF-8", file=name) from None
+    return state.scenario_data(text, name)
+
+
+def _field_label(field: str | None, rows: list, section: str) -> str:
+    where, row, col = state.locate(field)
+    if where in ("phases", "actuators") and rows and row is not None and row < len(rows):
+        name = rows[row].get("name") or ""
+        what = "phase" if where == "phases" else "actuator"
+        return f"{what} {row + 1} '{name}'" + (f", {col}" if col else "")
+    if where == "key":
+        return state.KEY_FIELDS[row].label
+    return field or "scenario"
+
+
+def error_outputs(errors: list, phase_rows: list, actuator_rows: list) -> dict:
+    """Styles, tooltips and messages that flag each error at its field."""
+    n_keys = len(state.KEY_FIELDS)
+    key_errors = [""] * n_keys
+    styles = {"phases": [], "actuators": []}
+    tips = {"phases": [{} for _ in phase_rows or []],
+            "actuators": [{} for _ in actuator_rows or []]}
+    items = []
+    for field, message in errors:
+        where, row, col = state.locate(field)
+        if where in ("phases", "actuators"):
+            rows = phase_rows if where == "phases" else actuator_rows
+            col = col or "name"
+            styles[where].append({"if": {"row_index": row, "column_id": col}, **ERROR_STYLE})
+            if row < len(tips[where]):
+                tips[where][row][col] = {"value": message, "type": "text"}
+            items.append(html.Li(f"{_field_label(field, rows, where)}: {message}",
+                                 **{"data-field": field or ""}))
+        elif where == "key":
+            key_errors[row] = message
+            items.append(html.Li(f"{state.KEY_FIELDS[row].label}: {message}",
+                                 **{"data-field": field or ""}))
+        else:
+            items.append(html.Li(f"{field or 'scenario'}: {message}",
+                                 **{"data-field": field or ""}))
+    if items:
+        items.append(html.Li("The results shown are those of the last valid entry.",
+                             className="caution"))
+    return {"phase_styles": styles["phases"], "phase_tooltips": tips["phases"],
+            "actuator_styles": styles["actuators"], "actuator_tooltips": tips["actuators"],
+            "key_errors": key_errors, "form_errors": items}
+
+
+OUTPUT_KEYS = ("store", "results", "phase_rows", "phase_columns", "actuator_rows",
+               "actuator_columns", "phase_styles", "phase_tooltips", "actuator_styles",
+               "actuator_tooltips", "key_values", "key_units", "key_errors", "form_errors",
+               "upload_message", "source_label", "upload_contents")
+
+
+def _blank() -> dict:
+    return {k: no_update for k in OUTPUT_KEYS}
+
+
+def _loaded(out: dict, scenario, data: dict, source: str, system: str) -> dict:
+    form = state.render_form(data, system)
+    out.update(store={"data": data, "source": source},
+               results=compute.compute_results(scenario, source=source),
+               phase_rows=form["phase_rows"], phase_columns=form["phase_columns"],
+               actuator_rows=form["actuator_rows"], actuator_columns=form["actuator_columns"],
+               key_values=form["key_values"], key_units=form["key_units"],
+               source_label=f"showing: {source}")
+    out.update(error_outputs([], form["phase_rows"], form["actuator_rows"]))
+    return out
+
+
+def update_scenario(trigger, choice, upload_contents, upload_filename, system, phase_rows,
+                    actuator_rows, key_vals, store, results, examples: dict) -> dict:
+    """The one state callback (see the module notes).
+
+    Parameters
+    ----------
+    trigger : str or None
+        Id of the input that fired: 'scenario-select', 'upload', 'units',
+        'phase-table', 'actuator-table', a key field, or None (page load).
+    examples : dict
+        Choice value -> file path of the scenarios the server offers.
+
+    Returns
+    -------
+    dict
+        One entry per :data:`OUTPUT_KEYS` (``dash.no_update`` where unchanged).
+    """
+    out = _blank()
+    system = system if system in ("si", "us") else "si"
+    if trigger == "scenario-select":
+        path = examples.get(choice)
+        if path is None:
+            out["upload_message"] = html.Span(f"unknown scenario {choice!r}", className="err")
+            return out
+        scenario = io.load_scenario(path)
+        data = io.scenario_to_dict(scenario)
+        out["upload_message"] = ""
+        return _loaded(out, scenario, data, path.name, system)
+    if trigger == "upload":
+        if not upload_contents:
+            raise PreventUpdate
+        out["upload_contents"] = None      # the same file may be chosen again
+        try:
+            scenario, data = read_upload(upload_contents, upload_filename)
+        except HeatloadError as e:
+            out["upload_message"] = html.Span(
+                f"Upload refused: {e.one_line()}. The previous scenario stays.",
+                className="err", id="upload-error")
+            return out
+        out["upload_message"] = html.Span(f"Opened {upload_filename}.", className="ok")
+        return _loaded(out, scenario, data, str(upload_filename), system)
+    data = (store or {}).get("data")
+    source = (store or {}).get("source", "dashboard")
+    if data is None:
+        raise PreventUpdate
+    if trigger == "units":
+        form = state.render_form(data, system)
+        out.update(phase_rows=form["phase_rows"], phase_columns=form["phase_columns"],
+                   actuator_rows=form["actuator_rows"],
+                   actuator_columns=form["actuator_columns"],
+                   key_values=form["key_values"], key_units=form["key_units"])
+        out.update(error_outputs([], form["phase_rows"], form["actuator_rows"]))
+        return out
+    scenario, _, errors = state.apply_form(data, phase_rows, actuator_rows, key_vals, system,
+                                           source=source)
+    out.update(error_outputs(errors, phase_rows, actuator_rows))
+    if scenario is None:
+        return out
+    canonical = io.scenario_to_dict(scenario)
+    if canonical == data and results:
+        return out                          # nothing that matters changed
+    out["store"] = {"data": canonical, "source": source}
+    out["results"] = compute.compute_results(scenario, source=source)
+    return out
+
+
+# ---------------------------------------------------------------------------
+# views
+# ---------------------------------------------------------------------------
+
+def strategy_choices(results, current):
+    """Options of the strategy selector and the value to keep or pick."""
+    if not results:
+        raise PreventUpdate
+    comp = results["comparison"]
+    names = [r["label"] for r in comp["strategies"]]
+    opts = [{"label": n, "value": n} for n in names]
+    if current in names:
+        return opts, current
+    present = comp["scenario"].get("present_strategy")
+    ranking = comp.get("ranking") or names
+    return opts, present if present in names else ranking[0]
+
+
+def payback_choices(results, base, candidate):
+    """Options of the two payback selectors and their values."""
+    if not results:
+        raise PreventUpdate
+    comp = results["comparison"]
+    names = [r["label"] for r in comp["strategies"]]
+    opts = [{"label": n, "value": n} for n in names]
+    present = comp["scenario"].get("present_strategy")
+    if base not in names:
+        base = present if present in names else names[0]
+    if candidate not in names:
+        ranking = [n for n in (comp.get("ranking") or names) if n != base]
+        candidate = ranking[0] if ranking else base
+    return opts, base, opts, candidate
+
+
+def default_extra_price(results, base, candidate):
+    """Price difference of the two circuits from the scenario's strategy prices."""
+    b = figures.strategy_record(results, base)
+    c = figures.strategy_record(results, candidate)
+    if b is None or c is None:
+        return None
+    return float((c.get("price") or 0.0) - (b.get("price") or 0.0))
+
+
+def payback_view(results, base, candidate, extra_price, system):
+    """Summary text and figure of the payback of *candidate* over *base*."""
+    if not results or base is None or candidate is None:
+        raise PreventUpdate
+    sav = results["savings"].get(base, {}).get(candidate)
+    rec = figures.strategy_record(results, candidate)
+    if sav is None or rec is None:
+        raise PreventUpdate
+    currency = rec.get("currency") or ""
+    extra = float(extra_price) if extra_price is not None else (
+        default_extra_price(results, base, candidate) or 0.0)
+    yearly = float(sav["cost_saving"])
+    years = float(tables.payback_years(extra, yearly))
+    kwh = f"{sav['energy_saving_kWh']:,.0f} kWh"
+    if yearly > 0:
+        pay = (f"pays back in {years:.1f} years" if np.isfinite(years) else "never pays back")
+        text = (f"{candidate} instead of {base} saves {kwh} of electricity and "
+                f"{yearly:,.0f} {currency} a year; an extra price of {extra:,.0f} {currency} "
+                f"{pay}.")
+    else:
+        text = (f"{candidate} does not save energy cost against {base} "
+                f"({-yearly:,.0f} {currency} a year more): no payback.")
+    return (html.Span(text, id="pay-text"),
+            figures.payback_figure(extra, yearly, years, currency, candidate, base))
+
+
+def shift_view(data: dict, strategy: str, system: str):
+    """Figure and note of the oil temperature over a shift, without and with
+    the sized cooler (:func:`heatload.chain.shift_profile`)."""
+    scenario, outcome = compute.strategy_outcome(data, strategy)
+    off = chain.shift_profile(scenario, outcome, cooler_on=False)
+    prof = {"without": compute.downsample(off.times, off.temperatures),
+            "limit": scenario.fluid.temperature_max,
+            "design": outcome.thermal.design_oil_temperature, "with": None}
+    note = "No cooler is needed: the tank's surfaces shed the heat at the design point."
+    if outcome.thermal.cooler_duty > 0.0:
+        on = chain.shift_profile(scenario, outcome, cooler_on=True)
+        prof["with"] = compute.downsample(on.times, on.temperatures)
+        frac = getattr(on, "on_fraction", None)
+        note = (f"Cooler of {figures.fmt(outcome.thermal.cooler_duty, 'power', system)} "
+                "switched by the thermostat" +
+                (f", on {100 * float(frac):.0f} % of the shift." if frac is not None else "."))
+    hours = scenario.shift_duration / 3600.0
+    title = (f"{outcome.name}: oil temperature over a {hours:.3g} h shift from "
+             f"{figures.fmt(scenario.ambient.cold_start_temperature, 'temperature', system)}, "
+             f"ambient {figures.fmt(scenario.ambient.temperature, 'temperature', system)}")
+    return figures.shift_figure(prof, system, title), note
+
+
+def cooler_view(data: dict, strategy: str, system: str):
+    """Spec sheet rows and notes of the cooler of *strategy* (heatload.sizing)."""
+    sizing = optional_module("sizing")
+    if sizing is None:
+        return (html.Div("Cooler sizing needs heatload.sizing, which this installation "
+                         "does not have yet.", className="note"), "")
+    scenario, outcome = compute.strategy_outcome(data, strategy)
+    sz = sizing.size_cooler(scenario, outcome, thermostat=False)
+    notes = [html.Div(n, className="note") for n in sz.notes]
+    rows = sizing.spec_rows(sz, system)
+    spec = (figures.spec_table(rows) if rows else
+            html.Div("No cooler needed at the design point.", className="note", id="spec-table"))
+    head = html.Div([html.Div(
+        f"{outcome.name}: design point {figures.fmt(sz.design_oil_temperature, 'temperature', system)} "
+        f"oil at {figures.fmt(sz.design_ambient, 'temperature', system)} ambient; the surfaces "
+        f"shed {figures.fmt(sz.surfaces_heat, 'power', system)} of "
+        f"{figures.fmt(sz.design_heat, 'power', system)}.", className="msg"), *notes,
+        html.Div(sz.caution, className="caution")])
+    return head, spec
+
+
+def _sample_array(mc):
+    for name in ("cooler_duty_W", "cooler_duty", "duty_W", "duty"):
+        v = getattr(mc, name, None)
+        if v is None and isinstance(mc, dict):
+            v = mc.get(name)
+        if v is not None and np.ndim(v) == 1 and np.size(v) > 1:
+            return np.asarray(v, float)
+    samples = getattr(mc, "samples", None)
+    if isinstance(samples, dict):
+        for name in ("cooler_duty_W", "cooler_duty"):
+            if name in samples:
+                return np.asarray(samples[name], float)
+    return None
+
+
+def _call(fn, *args, **kwargs):
+    """Call *fn* with only the keyword arguments it accepts."""
+    params = inspect.signature(fn).parameters
+    if not any(p.kind == p.VAR_KEYWORD for p in params.values()):
+        kwargs = {k: v for k, v in kwargs.items() if k in params}
+    return fn(*args, **kwargs)
+
+
+def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
+    """Monte Carlo histogram of the cooler duty and the sensitivity ranking
+    (:mod:`heatload.uncertainty`); a note when it is missing."""
+    unc = optional_module("uncertainty")
+    if unc is None or not hasattr(unc, "monte_carlo"):
+        return html.Div("The uncertainty analysis needs heatload.uncertainty, which this "
+                        "installation does not have yet.", className="note", id="mc-note")
+    scenario = compute.scenario_of(data)
+    if not scenario.uncertainty:
+        return html.Div("The scenario lists no uncertain inputs ([[uncertainty]] in the "
+                        "file).", className="note", id="mc-note")
+    st = scenario.strategy(strategy)
+    n = int(min(max(int(samples or 2000), 100), 20000))
+    try:
+        mc = _call(unc.monte_carlo, scenario, st, samples=n, seed=1, progress=False)
+        sens = list(_call(unc.sensitivity, scenario, st)) if hasattr(unc, "sensitivity") else []
+    except HeatloadError as e:
+        return html.Div(f"Uncertainty analysis failed: {e.one_line()}", className="note",
+                        id="mc-note")
+    pct = {}
+    raw = getattr(mc, "percentiles", None) or {}
+    for k, v in dict(raw.get("cooler_duty_W", {})).items():
+        pct[str(k)] = float(v)
+    rows = [compute.plain(dict(s)) if not isinstance(s, dict) else compute.plain(s)
+            for s in sens][:8]
+    figs = [figures.histogram_figure(_sample_array(mc), pct, system,
+                                     f"{strategy}: cooler duty over {n} samples")]
+    if rows:
+        figs.append(figures.sensitivity_figure(rows, system, "what moves the duty most"))
+    from dash import dcc
+    return html.Div([dcc.Graph(figure=f, id=f"mc-graph-{i}") for i, f in enumerate(figs)],
+                    id="mc-result")
+
+
+def download_scenario(data: dict, name: str | None = None) -> dict:
+    """The edited scenario as TOML for ``dcc.Download`` (loads back equal)."""
+    scenario = compute.scenario_of(data)
+    text = io.dumps_scenario(scenario)
+    slug = re.sub(r"[^a-z0-9]+", "_", (name or scenario.name).lower()).strip("_") or "scenario"
+    return {"content": text, "filename": f"{slug}.toml", "type": "application/toml"}
+
+
+#: Monte Carlo samples of the report's uncertainty section (kept small for a click).
+REPORT_SAMPLES = 1000
+
+
+def download_report(data: dict, source: str | None = None):
+    """The HTML report (heatload.report.build_report), or ``None`` with a note."""
+    report = optional_module("report")
+    if report is None or not hasattr(report, "build_report"):
+        return None, "The HTML report needs heatload.report, which this installation " \
+                     "does not have yet."
+    scenario = compute.scenario_of(data)
+    cmp = chain.compare(scenario)
+    try:
+        html_text = _call(report.build_report, scenario, cmp, source=source,
+                          samples=REPORT_SAMPLES)
+    except TypeError:
+        # an older signature taking only the comparison
+        html_text = report.build_report(cmp)
+    if not isinstance(html_text, str):
+        html_text = str(html_text)
+    slug = re.sub(r"[^a-z0-9]+", "_", scenario.name.lower()).strip("_") or "scenario"
+    return {"content": html_text, "filename": f"{slug}_report.html",
+            "type": "text/html"}, ""
+
+
+# ---------------------------------------------------------------------------
+# registration
+# ---------------------------------------------------------------------------
+
+def register(app, examples: dict) -> None:
+    """Attach every callback to *app*; *examples* maps choices to files."""
+    outputs = [Output("scenario-store", "data"), Output("results-store", "data"),
+               Output("phase-table", "data"), Output("phase-table", "columns"),
+               Output("actuator-table", "data"), Output("actuator-table", "columns"),
+               Output("phase-table", "style_data_conditional"),
+               Output("phase-table", "tooltip_data"),
+               Output("actuator-table", "style_data_conditional"),
+               Output("actuator-table", "tooltip_data"),
+               Output({"type": "key", "index": ALL}, "value"),
+               Output({"type": "key-unit", "index": ALL}, "children"),
+               Output({"type": "key-error", "index": ALL}, "children"),
+               Output("form-errors", "children"),
+               Output("upload-message", "children"), Output("source-label", "children"),
+               Output("upload", "contents")]
+
+    @app.callback(outputs,
+                  Input("scenario-select", "value"), Input("upload", "contents"),
+                  State("upload", "filename"), Input("units", "value"),
+                  Input("phase-table", "data"), Input("actuator-table", "data"),
+                  Input({"type": "key", "index": ALL}, "value"),
+                  State("scenario-store", "data"), State("results-store", "data"))
+    def _update(choice, contents, filename, system, phase_rows, actuator_rows, key_vals,
+                store, results):
+        trig = ctx.triggered_id
+        if isinstance(trig, dict):
+            trig = "key"
+        out = update_scenario(trig, choice, contents, filename, system, phase_rows,
+                              actuator_rows, key_vals, store, results, examples)
+        n = len(state.KEY_FIELDS)
+        for k in ("key_values", "key_units", "key_errors"):
+            if out[k] is no_update:
+                out[k] = [no_update] * n
+        return [out[k] for k in OUTPUT_KEYS]
+
+    @app.callback(Output("strategy-select", "options"), Output("strategy-select", "value"),
+                  Input("results-store", "data"), State("strategy-select", "value"))
+    def _strategies(results, current):
+        return strategy_choices(results, current)
+
+    @app.callback(Output("headline", "children"), Input("results-store", "data"),
+                  Input("strategy-select", "value"), Input("units", "value"))
+    def _headline(results, strategy, system):
+        if not results:
+            raise PreventUpdate
+        return figures.headline(results, strategy, system)
+
+    @app.callback(Output("comparison", "children"), Input("results-store", "data"),
+                  Input("units", "value"))
+    def _comparison(results, system):
+        if not results:
+            raise PreventUpdate
+        return figures.comparison_table(results, system)
+
+    @app.callback(Output("sankey", "figure"), Input("results-store", "data"),
+                  Input("strategy-select", "value"), Input("units", "value"))
+    def _sankey(results, strategy, system):
+        if not results:
+            raise PreventUpdate
+        return figures.sankey_figure(results, strategy, system)
+
+    @app.callback(Output("cycle-graph", "figure"), Input("results-store", "data"),
+                  Input("strategy-select", "value"), Input("units", "value"))
+    def _cycle(results, strategy, system):
+        if not results:
+            raise PreventUpdate
+        return figures.cycle_figure(results, strategy, system)
+
+    @app.callback(Output("shift-graph", "figure"), Output("shift-note", "children"),
+                  Input("results-store", "data"), Input("tabs", "value"),
+                  Input("strategy-select", "value"), Input("units", "value"),
+                  State("scenario-store", "data"))
+    def _shift(results, tab, strategy, system, store):
+        if tab != "shift" or not results or not strategy or not store:
+            raise PreventUpdate
+        return shift_view(store["data"], strategy, system)
+
+    @app.callback(Output("cooler-note", "children"), Output("cooler-spec", "children"),
+                  Input("results-store", "data"), Input("tabs", "value"),
+                  Input("strategy-select", "value"), Input("units", "value"),
+                  State("scenario-store", "data"))
+    def _cooler(results, tab, strategy, system, store):
+        if tab != "cooler" or not results or not strategy or not store:
+            raise PreventUpdate
+        return cooler_view(store["data"], strategy, system)
+
+    @app.callback(Output("mc-out", "children"), Input("mc-run", "n_clicks"),
+                  State("scenario-store", "data"), State("strategy-select", "value"),
+                  State("mc-samples", "value"), State("units", "value"),
+                  prevent_initial_call=True)
+    def _mc(n, store, strategy, samples, system):
+        if not n or not store or not strategy:
+            raise PreventUpdate
+        return uncertainty_view(store["data"], strategy, samples, system)
+
+    @app.callback(Output("pay-base", "options"), Output("pay-base", "value"),
+                  Output("pay-candidate", "options"), Output("pay-candidate", "value"),
+                  Input("results-store", "data"), State("pay-base", "value"),
+                  State("pay-candidate", "value"))
+    def _pay_choices(results, base, candidate):
+        return payback_choices(results, base, candidate)
+
+    @app.callback(Output("pay-price", "value"), Input("pay-base", "value"),
+                  Input("pay-candidate", "value"), State("results-store", "data"))
+    def _pay_price(base, candidate, results):
+        if not results:
+            raise PreventUpdate
+        return default_extra_price(results, base, candidate)
+
+    @app.callback(Output("pay-summary", "children"), Output("pay-graph", "figure"),
+                  Input("results-store", "data"), Input("pay-base", "value"),
+                  Input("pay-candidate", "value"), Input("pay-price", "value"),
+                  Input("units", "value"))
+    def _payback(results, base, candidate, price, system):
+        return payback_view(results, base, candidate, price, system)
+
+    @app.callback(Output("download-toml", "data"), Input("download-toml-btn", "n_clicks"),
+                  State("scenario-store", "data"), prevent_initial_call=True)
+    def _download_toml(n, store):
+        if not n or not store:
+            raise PreventUpdate
+        return download_scenario(store["data"])
+
+    @app.callback(Output("download-report", "data"), Output("upload-message", "children",
+                                                            allow_duplicate=True),
+                  Input("download-report-btn", "n_clicks"), State("scenario-store", "data"),
+                  prevent_initial_call=True)
+    def _download_report(n, store):
+        if not n or not store:
+            raise PreventUpdate
+        payload, note = download_report(store["data"], store.get("source"))
+        if payload is None:
+            return no_update, html.Span(note, className="err")
+        return payload, no_update

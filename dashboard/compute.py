@@ -1,0 +1,87 @@
+"""The recompute: a validated scenario in, plain JSON-ready results out.
+
+Everything the figures need is taken from :func:`heatload.tables.comparison_dict`
+(the same numbers as ``heatload compare --json``) and
+:func:`heatload.tables.savings_against`; nothing is kept on the server
+between requests (the results travel to the page's ``dcc.Store``).
+Views that need the engine's objects (temperature over a shift, cooler
+sizing) rebuild the one strategy they show from the stored scenario.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from heatload import chain, io, tables
+from heatload.errors import HeatloadError
+
+
+def plain(x):
+    """A JSON-safe copy of *x* (numpy scalars and arrays to Python; NaN/inf to None)."""
+    if isinstance(x, dict):
+        return {str(k): plain(v) for k, v in x.items()}
+    if isinstance(x, (list, tuple)):
+        return [plain(v) for v in x]
+    if isinstance(x, np.ndarray):
+        return [plain(v) for v in x.tolist()]
+    if isinstance(x, (bool, np.bool_)):
+        return bool(x)
+    if isinstance(x, (int, np.integer)):
+        return int(x)
+    if isinstance(x, (float, np.floating)):
+        v = float(x)
+        return v if math.isfinite(v) else None
+    return x
+
+
+def compute_results(scenario, source=None) -> dict:
+    """Compare every strategy of *scenario* and return the stored results.
+
+    Returns
+    -------
+    dict
+        ``comparison`` (:func:`heatload.tables.comparison_dict`, with phases),
+        ``savings`` ({baseline: {strategy: {energy_saving_kWh, cost_saving,
+        co2_saving_kg}}} for every baseline), ``name``.
+    """
+    cmp = chain.compare(scenario)
+    savings = {o.name: tables.savings_against(cmp, o.name) for o in cmp.outcomes}
+    return plain({"comparison": tables.comparison_dict(cmp, source=source),
+                  "savings": savings, "name": scenario.name})
+
+
+def scenario_of(data: dict, source: str = "dashboard"):
+    """The :class:`~heatload.model.Scenario` of a stored scenario dict."""
+    return io.scenario_from_dict(data, source=source)
+
+
+def strategy_outcome(data: dict, strategy: str):
+    """Scenario and one strategy's :class:`~heatload.chain.StrategyOutcome`."""
+    scenario = scenario_of(data)
+    try:
+        st = scenario.strategy(strategy)
+    except KeyError:
+        raise HeatloadError(f"unknown strategy {strategy!r}", field="strategy") from None
+    return scenario, chain.evaluate_strategy(scenario, st)
+
+
+def downsample(times, values, points: int = 1500):
+    """At most about *points* samples of a long series, keeping each bucket's
+    minimum and maximum so the within-cycle ripple's envelope survives."""
+    t = np.asarray(times, float)
+    v = np.asarray(values, float)
+    if t.size <= points:
+        return t, v
+    buckets = max(points // 2, 1)
+    edges = np.linspace(0, t.size, buckets + 1).astype(int)
+    keep = []
+    for a, b in zip(edges[:-1], edges[1:]):
+        if b <= a:
+            continue
+        seg = v[a:b]
+        i, j = a + int(np.argmin(seg)), a + int(np.argmax(seg))
+        keep.extend(sorted({i, j}))
+    keep = np.unique(np.r_[0, keep, t.size - 1])
+    return t[keep], v[keep]

@@ -1,0 +1,408 @@
+"""Figures and tables of the dashboard, built from the stored results (plain data).
+
+Every axis names its quantity and unit; colours come from the Okabe-Ito
+palette, which stays distinguishable with the common colour-vision
+deficiencies (Okabe & Ito, "Color Universal Design", 2008).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import plotly.graph_objects as go
+from dash import html
+from plotly.subplots import make_subplots
+
+from heatload import units
+
+K0 = 273.15
+
+#: Okabe-Ito colour-blind-safe palette.
+OKABE_ITO = {
+    "black": "#000000", "orange": "#E69F00", "sky": "#56B4E9", "green": "#009E73",
+    "yellow": "#F0E442", "blue": "#0072B2", "vermillion": "#D55E00",
+    "purple": "#CC79A7", "grey": "#999999",
+}
+SERIES = ("#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#000000",
+          "#999999", "#F0E442")
+
+#: Loss components as people call them, with the colour of each (oil heat: warm
+#: colours; room heat of the drive: grey).
+COMPONENT_LABELS = {
+    "pump": "pump losses", "relief": "relief valve", "flow_control": "flow control / meter edge",
+    "bleed": "bleed / bypass", "directional_valve": "directional valve",
+    "check_valve": "check valve", "lines": "pipes and hoses",
+    "counterbalance": "counterbalance valve", "actuator": "actuator friction",
+    "compression": "oil compression", "drive_motor": "drive motor", "converter":
+    "frequency converter",
+}
+ROOM = ("drive_motor", "converter")
+
+FONT = dict(family="Inter, 'Segoe UI', Roboto, Helvetica, Arial, sans-serif", size=13,
+            color="#1f2933")
+
+
+def _u(kind: str, system: str) -> str:
+    return units.pretty_unit(units.display_unit(kind, system))
+
+
+def conv(value, kind: str, system: str):
+    """SI value(s) of *kind* in the display unit of *system*."""
+    if value is None:
+        return None
+    return units.from_si(value, kind, units.display_unit(kind, system))
+
+
+def fmt(value, kind: str, system: str, digits: int = 3) -> str:
+    """A formatted quantity, or an en dash for a missing value."""
+    if value is None:
+        return "–"
+    return units.format_quantity(value, kind, system, digits)
+
+
+def _c_to_k(c):
+    return None if c is None else c + K0
+
+
+def _layout(fig, title=None, height=420):
+    fig.update_layout(template="plotly_white", font=FONT, height=height,
+                      margin=dict(l=70, r=20, t=50 if title else 20, b=50),
+                      title=dict(text=title, x=0.01, font=dict(size=15)) if title else None,
+                      legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0),
+                      colorway=list(SERIES))
+    return fig
+
+
+def empty_figure(message: str, height=320):
+    """A blank figure carrying a note (used while nothing can be shown)."""
+    fig = go.Figure()
+    fig.add_annotation(text=message, showarrow=False, x=0.5, y=0.5, xref="paper",
+                       yref="paper", font=dict(size=14, color="#52606d"))
+    fig.update_xaxes(visible=False)
+    fig.update_yaxes(visible=False)
+    return _layout(fig, height=height)
+
+
+def strategy_record(results: dict, name: str | None) -> dict | None:
+    """The stored record of strategy *name* (the best-ranked one when None)."""
+    if not results:
+        return None
+    recs = results["comparison"]["strategies"]
+    for r in recs:
+        if r["label"] == name or r["strategy"] == name:
+            return r
+    ranking = results["comparison"].get("ranking") or []
+    for r in recs:
+        if ranking and r["label"] == ranking[0]:
+            return r
+    return recs[0] if recs else None
+
+
+# ---------------------------------------------------------------------------
+# comparison
+# ---------------------------------------------------------------------------
+
+COMPARISON_COLUMNS = (
+    ("strategy", "strategy"),
+    ("energy", "electric energy per cycle"),
+    ("heat", "mean heat into oil"),
+    ("peak", "peak pressure"),
+    ("steady", "oil temperature, steady, no cooler"),
+    ("operating", "oil temperature, operating"),
+    ("cooler", "cooler duty (with margin)"),
+    ("cost", "energy cost per year"),
+    ("co2", "CO₂ per year"),
+    ("warnings", "warnings"),
+)
+
+
+def comparison_rows(results: dict, system: str) -> list:
+    """One dict of display strings per strategy, in ranking order."""
+    comp = results["comparison"]
+    ranking = comp.get("ranking") or []
+    recs = {r["label"]: r for r in comp["strategies"]}
+    order = [recs[n] for n in ranking if n in recs] or comp["strategies"]
+    rows = []
+    mass = "kg" if system == "si" else "lb"
+    for rank, r in enumerate(order, 1):
+        co2 = r["co2_per_year_kg"]
+        co2_text = "–" if co2 is None else (
+            f"{units.format_number(co2 / 1000.0, 3)} t" if system == "si"
+            else f"{units.format_number(units.from_si(co2, 'mass', 'lb'), 3)} {mass}")
+        rows.append({
+            "rank": rank, "label": r["label"],
+            "strategy": r["label"],
+            "energy": fmt(r["electric_energy_per_cycle_J"], "energy", system),
+            "heat": fmt(r["heat_to_oil_W"], "power", system),
+            "peak": fmt(r["peak_pressure_Pa"], "pressure", system),
+            "steady": fmt(_c_to_k(r["oil_temperature_steady_C"]), "temperature", system),
+            "operating": fmt(_c_to_k(r["oil_temperature_operating_C"]), "temperature",
+                             system),
+            "cooler": (fmt(r["cooler_duty_W"], "power", system) if r["cooler_needed"]
+                       else "none needed"),
+            "cost": ("–" if r["cost_per_year"] is None else
+                     f"{r['cost_per_year']:,.0f} {r.get('currency') or ''}".strip()),
+            "co2": co2_text,
+            "warnings": [w["message"] if not w.get("phase") else f"{w['phase']}: {w['message']}"
+                         for w in r["warnings"]],
+        })
+    return rows
+
+
+def comparison_table(results: dict, system: str):
+    """The comparison as an HTML table, warnings beside each strategy."""
+    rows = comparison_rows(results, system)
+    head = html.Thead(html.Tr([html.Th("#")] + [html.Th(label) for _, label in
+                                                 COMPARISON_COLUMNS]))
+    body = []
+    for r in rows:
+        cells = [html.Td(str(r["rank"]), className="num")]
+        for key, _ in COMPARISON_COLUMNS:
+            if key == "warnings":
+                ws = r["warnings"]
+                cells.append(html.Td(html.Ul([html.Li(w) for w in ws]) if ws else "none",
+                                     className="warnings" + (" has" if ws else "")))
+            elif key == "strategy":
+                cells.append(html.Td(r[key], className="name"))
+            else:
+                cells.append(html.Td(r[key], className="num"))
+        body.append(html.Tr(cells, **{"data-strategy": r["label"]}))
+    return html.Table([head, html.Tbody(body)], className="comparison", id="comparison-table")
+
+
+def headline(results: dict, strategy: str | None, system: str):
+    """Key figures of one strategy as tiles (always in view)."""
+    r = strategy_record(results, strategy)
+    if r is None:
+        return []
+    tiles = [
+        ("electric energy per cycle", fmt(r["electric_energy_per_cycle_J"], "energy", system)),
+        ("mean heat into oil", fmt(r["heat_to_oil_W"], "power", system)),
+        ("steady oil temperature, no cooler",
+         fmt(_c_to_k(r["oil_temperature_steady_C"]), "temperature", system)),
+        ("cooler duty", fmt(r["cooler_duty_W"], "power", system) if r["cooler_needed"]
+         else "none needed"),
+        ("energy cost per year", "–" if r["cost_per_year"] is None else
+         f"{r['cost_per_year']:,.0f} {r.get('currency') or ''}"),
+    ]
+    return [html.Div([html.Div(label, className="tile-label"),
+                      html.Div(value, className="tile-value",
+                               id=f"tile-{i}")], className="tile")
+            for i, (label, value) in enumerate(tiles)]
+
+
+# ---------------------------------------------------------------------------
+# where the energy goes
+# ---------------------------------------------------------------------------
+
+def sankey_figure(results: dict, strategy: str | None, system: str):
+    """Electric input -> drive losses (room) and hydraulic power -> each oil
+    loss and the useful work, per cycle, in the energy unit of *system*."""
+    r = strategy_record(results, strategy)
+    if r is None:
+        return empty_figure("no results yet")
+    unit = _u("energy", system)
+    comp = r["component_energy_per_cycle_J"]
+    e_in = r["electric_energy_per_cycle_J"] or 0.0
+    useful = r["useful_energy_per_cycle_J"] or 0.0
+    room = sum((comp.get(k) or 0.0) for k in ROOM)
+    labels = ["electric input", "shaft and hydraulic power"]
+    colors = [OKABE_ITO["blue"], OKABE_ITO["sky"]]
+    src, dst, val, lcol = [], [], [], []
+
+    def node(label, color):
+        labels.append(label)
+        colors.append(color)
+        return len(labels) - 1
+
+    def link(a, b, v, color):
+        if v and v > 0:
+            src.append(a)
+            dst.append(b)
+            val.append(float(conv(v, "energy", system)))
+            lcol.append(color)
+
+    for k in ROOM:
+        v = comp.get(k) or 0.0
+        if v > 0:
+            link(0, node(f"{COMPONENT_LABELS[k]} (heats the room)", OKABE_ITO["grey"]), v,
+                 "rgba(153,153,153,0.45)")
+    link(0, 1, e_in - room, "rgba(86,180,233,0.45)")
+    if useful < 0:
+        # overrunning loads return more work than the actuators deliver: a source
+        link(node("work done by overrunning loads", OKABE_ITO["green"]), 1, -useful,
+             "rgba(0,158,115,0.45)")
+    oil_colors = (OKABE_ITO["vermillion"], OKABE_ITO["orange"], OKABE_ITO["purple"],
+                  OKABE_ITO["yellow"], OKABE_ITO["black"])
+    ci = 0
+    for k, v in sorted(comp.items(), key=lambda kv: -(kv[1] or 0.0)):
+        if k in ROOM or not v or v <= 0:
+            continue
+        col = oil_colors[ci % len(oil_colors)]
+        ci += 1
+        link(1, node(f"{COMPONENT_LABELS.get(k, k)} (heats the oil)", col), v,
+             "rgba(213,94,0,0.35)")
+    if useful > 0:
+        link(1, node("useful work", OKABE_ITO["green"]), useful, "rgba(0,158,115,0.45)")
+    fig = go.Figure(go.Sankey(
+        valueformat=".4g", valuesuffix=f" {unit}",
+        node=dict(label=labels, color=colors, pad=14, thickness=16,
+                  line=dict(color="#ffffff", width=0.5)),
+        link=dict(source=src, target=dst, value=val, color=lcol)))
+    title = (f"{r['label']}: energy per cycle [{unit}], electric input "
+             f"{fmt(e_in, 'energy', system)}")
+    return _layout(fig, title, height=460)
+
+
+# ---------------------------------------------------------------------------
+# the cycle over time
+# ---------------------------------------------------------------------------
+
+def _steps(durations, values):
+    """Step-plot coordinates: each phase's value held from its start to its end."""
+    t = np.r_[0.0, np.cumsum(durations)]
+    v = list(values) + [values[-1] if len(values) else None]
+    return t.tolist(), v
+
+
+def cycle_figure(results: dict, strategy: str | None, system: str):
+    """Pressures, flows and heat into the oil per phase, against time in the cycle."""
+    r = strategy_record(results, strategy)
+    if r is None or not r.get("phases"):
+        return empty_figure("no results yet")
+    ph = r["phases"]
+    dur = [p["duration_s"] or 0.0 for p in ph]
+    pu, qu, wu = _u("pressure", system), _u("flow", system), _u("power", system)
+    fig = make_subplots(rows=3, cols=1, shared_xaxes=True, vertical_spacing=0.06)
+
+    def trace(row, key, kind, name, color, dash=None):
+        vals = [conv(p[key], kind, system) if p[key] is not None else None for p in ph]
+        t, v = _steps(dur, vals)
+        fig.add_trace(go.Scatter(x=t, y=v, name=name, mode="lines", line_shape="hv",
+                                 line=dict(color=color, width=2, dash=dash),
+                                 legendgroup=str(row)), row=row, col=1)
+
+    trace(1, "pump_pressure_Pa", "pressure", "pump pressure", OKABE_ITO["blue"])
+    trace(1, "cap_pressure_Pa", "pressure", "cap side", OKABE_ITO["orange"])
+    trace(1, "rod_pressure_Pa", "pressure", "rod side", OKABE_ITO["green"], "dot")
+    trace(2, "pump_flow_m3_s", "flow", "pump flow", OKABE_ITO["blue"])
+    trace(2, "actuator_flow_m3_s", "flow", "actuator flow", OKABE_ITO["orange"])
+    trace(2, "relief_flow_m3_s", "flow", "over the relief", OKABE_ITO["vermillion"], "dash")
+    trace(2, "bleed_flow_m3_s", "flow", "bled / bypassed", OKABE_ITO["purple"], "dot")
+    trace(3, "heat_to_oil_W", "power", "heat into oil", OKABE_ITO["vermillion"])
+    trace(3, "electric_power_W", "power", "electric input", OKABE_ITO["grey"], "dot")
+    starts = np.r_[0.0, np.cumsum(dur)[:-1]]
+    for s, p in zip(starts, ph):
+        fig.add_vline(x=float(s), line=dict(color="#e4e7eb", width=1))
+    fig.update_xaxes(title_text="time in the cycle [s]", row=3, col=1)
+    fig.update_yaxes(title_text=f"pressure [{pu}]", row=1, col=1, rangemode="tozero")
+    fig.update_yaxes(title_text=f"flow [{qu}]", row=2, col=1, rangemode="tozero")
+    fig.update_yaxes(title_text=f"power [{wu}]", row=3, col=1, rangemode="tozero")
+    fig.update_traces(hovertemplate="%{y:.4g}<extra>%{fullData.name}</extra>")
+    _layout(fig, f"{r['label']}: one cycle of {units.format_number(sum(dur), 3)} s "
+                 "(phases as steps)", height=640)
+    fig.update_layout(hovermode="x unified",
+                      legend=dict(orientation="h", y=1.04, yanchor="bottom"))
+    return fig
+
+
+# ---------------------------------------------------------------------------
+# temperature over a shift
+# ---------------------------------------------------------------------------
+
+def shift_figure(profiles: dict, system: str, title: str = ""):
+    """Oil temperature over a shift without and with the thermostat-switched cooler.
+
+    *profiles*: ``{"without": (t [s], T [K]), "with": (t, T) or None,
+    "limit": K, "design": K}``.
+    """
+    tu = _u("temperature", system)
+    fig = go.Figure()
+    t0, T0 = profiles["without"]
+    fig.add_trace(go.Scatter(x=np.asarray(t0) / 3600.0, y=conv(np.asarray(T0), "temperature",
+                                                                 system),
+                             name="no cooler", line=dict(color=OKABE_ITO["vermillion"],
+                                                         width=2)))
+    if profiles.get("with") is not None:
+        t1, T1 = profiles["with"]
+        fig.add_trace(go.Scatter(x=np.asarray(t1) / 3600.0,
+                                 y=conv(np.asarray(T1), "temperature", system),
+                                 name="with the sized cooler (thermostat)",
+                                 line=dict(color=OKABE_ITO["blue"], width=2)))
+    for key, label, color in (("limit", "fluid's upper limit", OKABE_ITO["black"]),
+                              ("design", "design oil temperature", OKABE_ITO["grey"])):
+        v = profiles.get(key)
+        if v is not None:
+            fig.add_hline(y=float(conv(v, "temperature", system)),
+                          line=dict(color=color, dash="dash", width=1),
+                          annotation_text=label, annotation_position="top left")
+    fig.update_xaxes(title_text="time from a cold start [h]")
+    fig.update_yaxes(title_text=f"oil temperature [{tu}]")
+    return _layout(fig, title, height=460)
+
+
+# ---------------------------------------------------------------------------
+# cooler sizing
+# ---------------------------------------------------------------------------
+
+def spec_table(rows: list):
+    """The cooler spec sheet (item, value) as an HTML table."""
+    return html.Table(html.Tbody([html.Tr([html.Th(a), html.Td(b)]) for a, b in rows]),
+                      className="spec", id="spec-table")
+
+
+def histogram_figure(samples_w, percentiles: dict, system: str, title: str):
+    """Distribution of the cooler duty from the Monte Carlo, with P50/P90/P95."""
+    pu = _u("power", system)
+    fig = go.Figure()
+    if samples_w is not None and len(samples_w):
+        fig.add_trace(go.Histogram(x=conv(np.asarray(samples_w, float), "power", system),
+                                   nbinsx=40, marker_color=OKABE_ITO["blue"],
+                                   name="samples", opacity=0.85))
+    for (k, v), color in zip(sorted((percentiles or {}).items()),
+                             (OKABE_ITO["orange"], OKABE_ITO["vermillion"],
+                              OKABE_ITO["purple"])):
+        if v is None:
+            continue
+        fig.add_vline(x=float(conv(v, "power", system)), line=dict(color=color, dash="dash"),
+                      annotation_text=k, annotation_position="top")
+    fig.update_xaxes(title_text=f"cooler duty [{pu}]")
+    fig.update_yaxes(title_text="samples [count]")
+    return _layout(fig, title, height=360)
+
+
+def sensitivity_figure(rows: list, system: str, title: str):
+    """Inputs ranked by how far they move the cooler duty (tornado-style bars)."""
+    pu = _u("power", system)
+    names = [str(r.get("path", "?")) for r in rows][::-1]
+    swings = []
+    for r in rows[::-1]:
+        v = r.get("swing_W", r.get("swing"))
+        swings.append(float(conv(abs(v), "power", system)) if isinstance(v, (int, float))
+                      else 0.0)
+    fig = go.Figure(go.Bar(x=swings, y=names, orientation="h",
+                           marker_color=OKABE_ITO["orange"]))
+    fig.update_xaxes(title_text=f"swing of the cooler duty [{pu}]")
+    fig.update_yaxes(title_text="uncertain input", automargin=True)
+    return _layout(fig, title, height=320)
+
+
+# ---------------------------------------------------------------------------
+# payback
+# ---------------------------------------------------------------------------
+
+def payback_figure(extra_price: float, yearly_saving: float, payback: float,
+                   currency: str, candidate: str, baseline: str, years: int = 15):
+    """Cumulative net saving of *candidate* over *baseline*: saving x years minus
+    the extra price."""
+    y = np.arange(0, years + 1, dtype=float)
+    net = yearly_saving * y - extra_price
+    fig = go.Figure(go.Scatter(x=y, y=net, mode="lines+markers", name="cumulative net saving",
+                               line=dict(color=OKABE_ITO["green"], width=2)))
+    fig.add_hline(y=0.0, line=dict(color=OKABE_ITO["black"], width=1))
+    if np.isfinite(payback) and payback <= years:
+        fig.add_vline(x=float(payback), line=dict(color=OKABE_ITO["vermillion"], dash="dash"),
+                      annotation_text=f"payback {payback:.1f} years",
+                      annotation_position="top right")
+    fig.update_xaxes(title_text="years in service [year]")
+    fig.update_yaxes(title_text=f"cumulative net saving [{currency}]")
+    return _layout(fig, f"{candidate} instead of {baseline}", height=380)
