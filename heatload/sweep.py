@@ -1,0 +1,277 @@
+"""``heatload sweep``: a grid or a random sample of design variants at array speed.
+
+``--vary PATH=LOW..HIGH:N`` names a scenario field (the paths of
+:mod:`heatload.variants`), its range with units (``16..40cm^3:13``,
+``63..100mm:8``, ``34..42degC:5``; a unit given only on HIGH applies to LOW
+too) and the number of values.  Several ``--vary`` make the full grid
+(every combination); ``--samples N --seed S`` draws N variants uniformly in
+the ranges instead.  Each strategy is evaluated in vectorized chunks
+(:func:`heatload.variants.evaluate_variants`), the table is written to CSV or
+Parquet atomically, and the best variants and the Pareto front (yearly
+energy against cooler duty, and against the pump displacement when it
+varies) are printed.
+"""
+
+from __future__ import annotations
+
+import os
+import re
+import sys
+import tempfile
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from heatload.errors import HeatloadError
+
+#: Variants per vectorized pass (bounds memory: ~12 phases x 60 arrays each).
+CHUNK = 20000
+
+_SPEC = re.compile(r"^\s*([^=\s]+)\s*=\s*(.+?)\s*\.\.\s*(.+?)\s*(?::\s*(\S+))?\s*$")
+_NUMBER = re.compile(r"^([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*)$")
+
+
+@dataclass(frozen=True)
+class VarySpec:
+    """One ``--vary``: field path, SI bounds, number of grid values, kind."""
+
+    path: str
+    low: float
+    high: float
+    count: int | None
+    kind: str
+    text: str
+
+
+def _split(text):
+    m = _NUMBER.match(text.strip())
+    if not m:
+        return None, None
+    return m.group(1), m.group(2).strip()
+
+
+def parse_vary(text: str, scenario, need_count: bool = True) -> VarySpec:
+    """Parse ``PATH=LOW..HIGH:N`` into SI bounds for *scenario*'s field.
+
+    Raises
+    ------
+    HeatloadError
+        Malformed spec, unknown path, a unit of the wrong kind, N < 1,
+        LOW > HIGH; the message names the spec.
+    """
+    from heatload import units, variants
+
+    field = f"--vary {text}"
+    m = _SPEC.match(text or "")
+    if not m:
+        raise HeatloadError("expected PATH=LOW..HIGH:N, e.g. "
+                            "power_unit.pump.displacement=16..40cm^3:13", field=field)
+    path, lo_txt, hi_txt, n_txt = m.groups()
+    try:
+        ref = variants.resolve_path(scenario, path)
+    except HeatloadError as exc:
+        raise HeatloadError(exc.message, field=field) from None
+    if ref.kind is None:
+        raise HeatloadError(f"{path} mixes cylinders and motors: no single unit", field=field)
+    count = None
+    if n_txt is not None:
+        if not re.fullmatch(r"[+-]?\d+", n_txt):
+            raise HeatloadError(f"N must be a whole number, got {n_txt!r}", field=field)
+        count = int(n_txt)
+        if count < 1:
+            raise HeatloadError(f"N must be >= 1, got {count}", field=field)
+    elif need_count:
+        raise HeatloadError("give the number of values, e.g. ...:8", field=field)
+    lo_num, lo_unit = _split(lo_txt)
+    hi_num, hi_unit = _split(hi_txt)
+    if lo_num is None or hi_num is None:
+        raise HeatloadError("LOW and HIGH must be numbers with an optional unit", field=field)
+    lo_unit = lo_unit or hi_unit
+    hi_unit = hi_unit or lo_unit
+    kind = ref.kind
+    try:
+        low = units.to_si(f"{lo_num} {lo_unit}".strip(), kind, field=field)
+        high = units.to_si(f"{hi_num} {hi_unit}".strip(), kind, field=field)
+    except HeatloadError as exc:
+        raise HeatloadError(f"{exc.message} (the field {path} is {units.KINDS[kind].noun})",
+                            field=field) from None
+    if low > high:
+        raise HeatloadError(f"LOW must not exceed HIGH ({lo_txt} > {hi_txt})", field=field)
+    return VarySpec(path=ref.path, low=low, high=high, count=count, kind=kind, text=text)
+
+
+def grid_values(specs) -> dict:
+    """Full grid (every combination) of the specs: path -> (N,) SI values."""
+    axes = [np.linspace(s.low, s.high, s.count) for s in specs]
+    mesh = np.meshgrid(*axes, indexing="ij")
+    return {s.path: m.ravel() for s, m in zip(specs, mesh)}
+
+
+def sample_values(specs, samples: int, seed: int) -> dict:
+    """*samples* variants drawn uniformly in the ranges (numpy ``default_rng(seed)``)."""
+    if samples < 1:
+        raise HeatloadError(f"must be >= 1, got {samples}", field="--samples")
+    rng = np.random.default_rng(seed)
+    return {s.path: rng.uniform(s.low, s.high, samples) for s in specs}
+
+
+def pareto_front(x, y) -> np.ndarray:
+    """Mask of the points no other point dominates, minimising both *x* and *y*.
+
+    Point i is dominated when some j has x_j <= x_i and y_j <= y_i with one
+    of them strict.  Sorted by x then y, a point is on the front exactly
+    when its y is below every y before it (equal points share their fate).
+    O(n log n).  NaN points are never on the front.
+
+    Parameters
+    ----------
+    x, y : array_like
+        Objectives, shape (n,).
+
+    Returns
+    -------
+    ndarray of bool, shape (n,)
+    """
+    x = np.asarray(x, float).ravel()
+    y = np.asarray(y, float).ravel()
+    if x.shape != y.shape:
+        raise HeatloadError("x and y need the same length", field="pareto_front")
+    out = np.zeros(x.size, dtype=bool)
+    ok = np.isfinite(x) & np.isfinite(y)
+    if not ok.any():
+        return out
+    pts = np.stack([x[ok], y[ok]], axis=1)
+    uniq, inverse = np.unique(pts, axis=0, return_inverse=True)
+    prev_min = np.concatenate([[np.inf], np.minimum.accumulate(uniq[:-1, 1])])
+    front_u = uniq[:, 1] < prev_min
+    out[np.nonzero(ok)[0]] = front_u[inverse.reshape(-1)]
+    return out
+
+
+def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK):
+    """Evaluate every variant for each strategy; returns a pandas DataFrame."""
+    import pandas as pd
+
+    from heatload import variants
+
+    n = len(next(iter(values.values()))) if values else 1
+    frames = []
+    bar = None
+    total = n * len(strategies)
+    if progress and total > chunk:
+        from tqdm import tqdm
+        bar = tqdm(total=total, unit="variant", file=sys.stderr, desc="sweep")
+    try:
+        for st in strategies:
+            for start in range(0, n, chunk):
+                part = {k: v[start:start + chunk] for k, v in values.items()}
+                res = variants.evaluate_variants(scenario, st, part)
+                df = res.frame()
+                df.insert(0, "variant", np.arange(start, start + len(res)))
+                frames.append(df)
+                if bar is not None:
+                    bar.update(len(res))
+    finally:
+        if bar is not None:
+            bar.close()
+    return pd.concat(frames, ignore_index=True)
+
+
+def write_table(df, path, force=False) -> Path:
+    """Write *df* to CSV or Parquet (by suffix) atomically; refuse to
+    overwrite an existing file unless *force*."""
+    p = Path(path)
+    suffix = p.suffix.lower()
+    if suffix not in (".csv", ".parquet"):
+        raise HeatloadError(f"expected a .csv or .parquet file, got {p.name!r}", field="--output")
+    if p.exists() and not force:
+        raise HeatloadError(f"{p} exists; use --force to overwrite it", field="--output")
+    directory = p.parent if str(p.parent) else Path(".")
+    if not directory.is_dir():
+        raise HeatloadError(f"no directory {directory}", field="--output")
+    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=directory)
+    os.close(fd)
+    try:
+        if suffix == ".csv":
+            df.to_csv(tmp, index=False)
+        else:
+            df.to_parquet(tmp, index=False, engine="pyarrow")
+        os.replace(tmp, p)
+    finally:
+        if os.path.exists(tmp):
+            os.unlink(tmp)
+    return p
+
+
+def _show(df, specs, system, rows, out):
+    from heatload.units import format_quantity
+    head = ["strategy"] + [s.path for s in specs] + ["energy/yr", "cooler duty", "oil T steady",
+                                                     "warnings"]
+    lines = [head]
+    wcols = [c for c in df.columns if c.startswith("warnings_")]
+    for _, r in df.iloc[rows].iterrows():
+        lines.append([r["strategy"]] + [format_quantity(r[s.path], s.kind, system, 3)
+                                        for s in specs]
+                     + [f"{r['electric_energy_per_year_kWh']:.4g} kWh",
+                        format_quantity(r["cooler_duty_W"], "power", system, 3),
+                        format_quantity(r["oil_temperature_steady_K"], "temperature", system, 3),
+                        str(int(sum(r[c] for c in wcols)))])
+    widths = [max(len(str(x[i])) for x in lines) for i in range(len(head))]
+    for row in lines:
+        print("  ".join(str(v).ljust(w) for v, w in zip(row, widths)), file=out)
+
+
+def run_cli(args) -> int:
+    """``heatload sweep``: parse, evaluate, write, print (exit code 0)."""
+    from heatload import io
+
+    path = args.file or io.default_scenario_path()
+    scenario = io.load_scenario(path)
+    if not args.vary:
+        raise HeatloadError("give at least one --vary PATH=LOW..HIGH:N", field="--vary")
+    sampling = args.samples is not None
+    specs = [parse_vary(t, scenario, need_count=not sampling) for t in args.vary]
+    if len({s.path for s in specs}) < len(specs):
+        raise HeatloadError("the same path is varied twice", field="--vary")
+    if args.top is not None and args.top < 0:
+        raise HeatloadError(f"must be >= 0, got {args.top}", field="--top")
+    names = args.strategy or [s.name for s in scenario.strategies]
+    strategies = []
+    for name in names:
+        try:
+            strategies.append(scenario.strategy(name))
+        except KeyError:
+            raise HeatloadError(f"unknown strategy {name!r}; expected one of "
+                                f"{', '.join(s.name for s in scenario.strategies)}",
+                                field="--strategy") from None
+    values = (sample_values(specs, args.samples, args.seed) if sampling
+              else grid_values(specs))
+    n = len(next(iter(values.values())))
+    df = run_sweep(scenario, values, strategies, progress=True)
+    out = sys.stdout
+    if args.output:
+        written = write_table(df, args.output, force=args.force)
+        print(f"wrote {len(df)} rows to {written}", file=out)
+    system = getattr(args, "units", "si") or "si"
+    print(f"{scenario.name}: {n} variants x {len(strategies)} strategies "
+          f"({'sample, seed ' + str(args.seed) if sampling else 'grid'})", file=out)
+    top = args.top if args.top is not None else 10
+    if top:
+        order = np.argsort(df["electric_energy_per_year_kWh"].to_numpy(), kind="stable")[:top]
+        print(f"\nbest {len(order)} by yearly electric energy:", file=out)
+        _show(df, specs, system, order, out)
+    front = pareto_front(df["electric_energy_per_year_kWh"], df["cooler_duty_W"])
+    idx = np.nonzero(front)[0]
+    idx = idx[np.argsort(df["electric_energy_per_year_kWh"].to_numpy()[idx], kind="stable")]
+    print(f"\nPareto front, yearly energy vs cooler duty ({idx.size} variants):", file=out)
+    _show(df, specs, system, idx[:max(top, 10)], out)
+    disp = "power_unit.pump.displacement"
+    if any(s.path == disp for s in specs):
+        front = pareto_front(df["electric_energy_per_year_kWh"], df[disp])
+        idx = np.nonzero(front)[0]
+        idx = idx[np.argsort(df[disp].to_numpy()[idx], kind="stable")]
+        print(f"\nPareto front, yearly energy vs pump displacement ({idx.size} variants):",
+              file=out)
+        _show(df, specs, system, idx[:max(top, 10)], out)
+    return 0
