@@ -398,10 +398,10 @@ def _table(headers, rows, cls=""):
 
 def comparison_section(data, recommended, present):
     cur = data["scenario"]["currency"]
-    headers = [("strategy", ""), ("energy [kWh/year]", "num"), (f"cost [{cur}/year]", "num"),
-               ("CO₂ [t/year]", "num"), ("heat into oil [kW]", "num"),
-               ("oil, no cooler [°C]", "num"), ("oil, operating [°C]", "num"),
-               ("cooler [kW]", "num"), ("peak pressure [bar]", "num"), ("efficiency [%]", "num"),
+    headers = [("strategy", ""), ("energy [kWh/yr]", "num"), (f"cost [{cur}/yr]", "num"),
+               ("CO₂ [t/yr]", "num"), ("heat to oil [kW]", "num"),
+               ("oil, no cooler [°C]", "num"), ("oil, running [°C]", "num"),
+               ("cooler [kW]", "num"), ("peak [bar]", "num"), ("eff. [%]", "num"),
                ("warnings", "")]
     rows = []
     for rank, name in enumerate(data["ranking"], 1):
@@ -427,8 +427,8 @@ def comparison_section(data, recommended, present):
                     "peak_pressure_Pa")
             + _cell(r["overall_efficiency"], f"{100 * r['overall_efficiency']:.0f}", s,
                     "overall_efficiency")
-            + f'<td class="{"warn" if codes else ""}">{_e(", ".join(codes) or "–")}</td></tr>')
-    return _table(headers, rows)
+            + f'<td class="small {"warn" if codes else ""}">{_e(", ".join(codes) or "–")}</td></tr>')
+    return _table(headers, rows, "compare")
 
 
 def _assumption(item, value, source, kind=None, si=None):

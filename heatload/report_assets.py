@@ -39,6 +39,9 @@ th { text-align: left; background: var(--band); font-weight: 600; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 tr.recommended td { background: #e7f1f9; font-weight: 600; }
 tr.present td:first-child::after { content: " (present)"; font-weight: 400; color: var(--muted); }
+table.compare { font-size: 12px; }
+table.compare th { font-size: 11.5px; }
+table.compare td.small { font-size: 11px; max-width: 150px; }
 .warn { color: var(--warn); }
 .ok { color: var(--ok); }
 .note { color: var(--muted); font-size: 13px; }
@@ -61,6 +64,8 @@ footer { margin-top: 36px; color: var(--muted); font-size: 12px; border-top: 1px
   h2 { break-after: avoid; page-break-after: avoid; margin-top: 0; }
   h3 { break-after: avoid; page-break-after: avoid; }
   table { font-size: 8.5pt; }
+  table.compare { font-size: 7.5pt; }
+  table.compare td.small { font-size: 7pt; }
   thead { display: table-header-group; }
   tr, td, th { break-inside: avoid; page-break-inside: avoid; }
   table.keep { break-inside: avoid; page-break-inside: avoid; }
