@@ -270,6 +270,10 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
         phase_heat=q_phase, phase_durations=res_c.duration, operating_temperature=t_op)
 
     warns = checks.phase_warnings(res_op, scenario, pa)
+    if strategy.kind == "bleed-off":
+        c_op = cycle.circuit_inputs(scenario, strategy, t_op, phases=pa)
+        warns += checks.speed_drift_warnings(circuits.bleed_off_speed_change(c_op, res_op),
+                                             scenario, pa)
     warns += checks.temperature_warnings(scenario, t_c, "steady (no cooler)")
     if t_op != t_c:
         warns += [w for w in checks.temperature_warnings(scenario, t_op, "operating")

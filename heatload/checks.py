@@ -6,7 +6,7 @@ of pint; the edges reformat if asked for US units).
 
 Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 ``cavitation``, ``relief-passing``, ``speed-not-reached``, ``stall``,
-``viscosity-window``, ``oil-temperature``.
+``viscosity-window``, ``oil-temperature``, ``hold-pressure``, ``speed-drift``.
 """
 
 from __future__ import annotations
@@ -15,7 +15,7 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 
-from heatload.circuits import CAVITATION_THRESHOLD, CircuitResult
+from heatload.circuits import CAVITATION_THRESHOLD, UNLOAD_CENTRE, CircuitResult
 
 
 @dataclass(frozen=True)
@@ -59,6 +59,12 @@ def phase_warnings(result: CircuitResult, scenario, pa: dict) -> list:
             out.append(Warning_("pressure-rating", name, v, rating,
                                 f"actuator chamber at {_bar(v)} above its rating {_bar(rating)}"))
         if not moving[i]:
+            p_hold = float(pa["hold_pressure"][i])
+            if (p_hold > 0 and pa["unloading"][i] != UNLOAD_CENTRE
+                    and pp < p_hold * (1 - 1e-6)):
+                out.append(Warning_("hold-pressure", name, p_hold, pp,
+                                    f"the pressure to hold {_bar(p_hold)} is more than the "
+                                    f"pump supplies here ({_bar(pp)})"))
             if result.relief_flow[i] > 1e-9 and result.pump_flow[i] > 0:
                 out.append(Warning_("relief-passing", name, float(result.relief_flow[i]), None,
                                     f"the relief valve passes {result.relief_flow[i] * 6e4:.1f} "
@@ -92,6 +98,22 @@ def phase_warnings(result: CircuitResult, scenario, pa: dict) -> list:
         elif result.relief_flow[i] >= result.pump_flow[i] * 0.999 and result.pump_flow[i] > 0:
             out.append(Warning_("relief-passing", name, float(result.relief_flow[i]), None,
                                 "the relief valve passes the whole pump flow"))
+    return out
+
+
+#: Speed change for +10 % load above which a bleed-off phase is flagged [-]
+SPEED_DRIFT_LIMIT = 0.05
+
+
+def speed_drift_warnings(change, scenario, pa) -> list:
+    """Bleed-off phases whose speed moves more than 5 % when the load rises 10 %
+    (*change* from :func:`heatload.circuits.bleed_off_speed_change`)."""
+    out = []
+    for i, ph in enumerate(scenario.phases):
+        if pa["moving"][i] and abs(change[i]) > SPEED_DRIFT_LIMIT:
+            out.append(Warning_("speed-drift", ph.name, float(change[i]), SPEED_DRIFT_LIMIT,
+                                f"speed changes {100 * change[i]:+.0f} % when the load rises "
+                                f"10 %: a bleed-off speed follows the load"))
     return out
 
 

@@ -451,7 +451,9 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
                           np.minimum(np.where(holding, p_hold, 0.0) + c["bypass_spring"],
                                      relief_full))
     elif strategy == "pressure-compensated":
-        p_rest = np.broadcast_to(c["compensator"], shape).astype(float)
+        # held at its setting at zero stroke; an open/tandem centre vents the
+        # pump line instead: the pump swings out and circulates at the centre drop
+        p_rest = np.where(use_centre, centre_dp, c["compensator"])
     elif strategy == "load-sensing":
         p_rest = np.where(holding, np.minimum(p_hold + c["ls_margin"], c["compensator"]),
                           c["standby"])
@@ -472,6 +474,9 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         frac = np.clip((q1 + leakage) / c["q_theoretical"], 0.0, 1.0)
         n_pump = np.broadcast_to(n_nom, shape).astype(float)
         q_pump = q1 * 1.0
+        if strategy == "pressure-compensated":
+            frac = np.where(use_centre, 1.0, frac)
+            q_pump = np.where(use_centre, np.maximum(c["q_theoretical"] - leakage, 0.0), q_pump)
     elif strategy == "variable-speed":
         n_need = (q1 + leakage) / c["pump_displacement"]
         n_min = n_nom * c["vs_min_fraction"]
@@ -500,10 +505,9 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     elif strategy == "variable-speed":
         to_centre = ~moving & ~holding & centre_ok
         to_relief = ~to_centre & (at_relief | (~moving & ~holding))
-    else:  # variable pumps deliver only what is used
-        to_centre = np.zeros(shape, dtype=bool)
+    else:  # variable pumps deliver only what is used (PC: all of it through a vented centre)
+        to_centre = use_centre if strategy == "pressure-compensated" else np.zeros(shape, dtype=bool)
         to_relief = np.zeros(shape, dtype=bool)
-        surplus = z.copy()
     centre_q = np.where(to_centre, surplus, 0.0)
     relief_q = np.where(to_relief & ~to_centre, surplus, 0.0)
     bleed_q = surplus - centre_q - relief_q
@@ -584,6 +588,37 @@ def _actual_duration(c, speed, stalled):
     by_stroke = c["by_stroke"] & (speed > 0)
     t = np.where(by_stroke, c["stroke"] / np.where(speed > 0, speed, 1.0), c["duration"])
     return np.maximum(t, 1e-9)
+
+
+def bleed_off_speed_change(c: dict, result: CircuitResult, load_factor: float = 1.1,
+                           iterations: int = 30) -> np.ndarray:
+    """Relative speed change of a bleed-off circuit when the load changes by
+    *load_factor*, the bleed restrictor staying as set for the nominal load.
+
+    The bleed restrictor is a sharp-edged orifice, Q_b = Q_b0 sqrt(p / p0)
+    (Merritt 1967, ch. 3); the actuator gets what the pump delivers less the
+    bleed, Q1 = Q_p(p) - Q_b(p), at the pressure the changed load needs,
+    p = drops(Q1) + p1(Q1, F'), solved by damped fixed-point steps.  Returns
+    (v' - v) / v per phase [-] (0 where nothing moves).
+    """
+    c = dict(c)
+    c["cb_active"] = result.counterbalance_active
+    c["cb_setting"] = np.where(result.counterbalance_active, result.counterbalance_setting,
+                               c["cb_setting"])
+    c["q_theoretical"] = c["pump_displacement"] * c["pump_speed"]
+    c["force"] = np.where(c["moving"], c["force"] + (load_factor - 1.0) * c["load"], c["force"])
+    moving = c["moving"] & (result.speed > 0)
+    p0 = np.maximum(result.pump_pressure, 1.0)
+    qb0 = result.bleed_flow
+    leak = _leak_conductance(c)
+    q = result.actuator_flow.copy()
+    for _ in range(iterations):
+        p1, _, _ = _inlet_pressure(q, c, 0.0)
+        p = np.maximum(_supply_drop(q, c) + p1, 0.0)
+        q_new = np.maximum(c["q_theoretical"] - leak * p - qb0 * np.sqrt(p / p0), 0.0)
+        q = 0.5 * (q + q_new)
+    v0 = np.where(moving, result.actuator_flow, 1.0)
+    return np.where(moving, (q - result.actuator_flow) / v0, 0.0)
 
 
 def solve_all(c: dict, strategies=STRATEGIES) -> dict:

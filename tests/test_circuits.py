@@ -705,3 +705,41 @@ def test_unknown_strategy_raises():
     with pytest.raises(HeatloadError) as e:
         circuits.solve_strategy("throttle", cycle.circuit_inputs(SC, "meter-in"))
     assert e.value.field == "strategies"
+
+
+# ---------------------------------------------------------------------------
+# 5. a vented centre, a pressure the pump cannot hold, bleed-off speed drift
+# ---------------------------------------------------------------------------
+
+def test_pressure_compensated_pump_behind_a_vented_centre():
+    # an open/tandem centre vents the pump line: the compensator sees no pressure,
+    # the pump swings to full stroke and circulates Q_th at the centre drop ~Q^2
+    # (orifice law, common practice)
+    sc = _scenario([EXTEND, _hold("centre", hold_pressure=None)])
+    c = _ideal(sc, "pressure-compensated", dv_centre_drop=3e5)
+    r = circuits.solve_strategy("pressure-compensated", c)
+    p_centre = 3e5 * (Q_TH / (60 / 60000)) ** 2
+    assert _close(r.pump_pressure[1], p_centre)
+    assert _close(r.pump_flow[1], Q_TH, abs_=1e-12)
+    assert r.displacement_fraction[1] == 1.0
+    assert _close(r.losses["directional_valve"][1], Q_TH * p_centre)
+
+
+def test_hold_above_relief_is_flagged():
+    from heatload import checks
+    sc = _scenario([EXTEND, _hold("relief", hold_pressure=P_RELIEF + 20e5)])
+    r = _solve(sc, "meter-in")
+    codes = [w.code for w in checks.phase_warnings(r, sc, cycle.phase_arrays(sc))]
+    assert "hold-pressure" in codes
+
+
+def test_bleed_off_speed_follows_the_load():
+    # Ideal pump, no drops: p = F/A1.  The bleed restrictor is an orifice,
+    # Q_b = Q_b0 sqrt(p/p0) (Merritt 1967); with the load 10 % up, p' = 1.1 p0, so
+    # Q1' = Q_th - Q_b0 sqrt(1.1) and (v' - v)/v = Q_b0 (1 - sqrt(1.1)) / Q1.
+    c = _ideal(SC, "bleed-off")
+    r = circuits.solve_strategy("bleed-off", c)
+    change = circuits.bleed_off_speed_change(c, r, 1.1)
+    qb0 = Q_TH - Q1_EXT
+    expected = qb0 * (1 - math.sqrt(1.1)) / Q1_EXT
+    assert change[0] == pytest.approx(expected, rel=1e-6)
