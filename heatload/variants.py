@@ -578,21 +578,26 @@ def _conductance_rows(sc: Scenario, air, h_user):
     Returns (t_nodes (U, 160), ua_nodes (U, 160), inverse (N,)) where
     ``inverse`` maps each variant to its row.
     """
-    from heatload.chain import _conductance_table
-
     air = np.asarray(air, float)
     h = np.asarray(h_user, float)
     key = np.stack([air, h], axis=-1)
     uniq, inverse = np.unique(key, axis=0, return_inverse=True)
-    t_rows, ua_rows = [], []
-    for ta, hu in uniq:
-        res = sc.reservoir
-        if np.isfinite(hu):
-            res = dataclasses.replace(res, heat_transfer_coefficient=float(hu))
-        t, ua = _conductance_table(res, sc.ambient.altitude, float(ta))
-        t_rows.append(t)
-        ua_rows.append(ua)
-    return np.array(t_rows), np.array(ua_rows), inverse.reshape(-1)
+    pressure = _air_pressure(sc.ambient.altitude)
+    # the chain's nodes, every row in one vectorized call
+    t = np.linspace(uniq[:, 0] - 20.0, 523.15, 160, axis=-1)
+    ta = np.broadcast_to(uniq[:, :1], t.shape)
+    free = ~np.isfinite(uniq[:, 1])
+    ua = np.empty(t.shape)
+    if free.any():
+        ua[free] = heat_transfer.reservoir_conductance(sc.reservoir, t[free], ta[free], pressure)
+    if (~free).any():
+        # a user coefficient h: UA = h A_eff + further surfaces (linear in h)
+        unit = heat_transfer.reservoir_heat_transfer(
+            dataclasses.replace(sc.reservoir, heat_transfer_coefficient=1.0),
+            t[~free], ta[~free], pressure)
+        own = unit.conductance - unit.surfaces
+        ua[~free] = uniq[~free, 1:2] * own + unit.surfaces
+    return t, ua, inverse.reshape(-1)
 
 
 class _Conductance:
