@@ -322,11 +322,11 @@ def energy_bar_figure(data, recommended, present):
                          hovertemplate="%{y}: %{x:.2f} kW<extra></extra>"), row=1, col=2)
     fig.update_xaxes(title_text="electric energy [MWh/year]", row=1, col=1)
     fig.update_xaxes(title_text="heat into oil [kW]", row=1, col=2)
-    fig.update_yaxes(autorange="reversed", row=1, col=1)
+    fig.update_yaxes(autorange="reversed", title_text="strategy", row=1, col=1)
     fig.update_yaxes(autorange="reversed", showticklabels=False, row=1, col=2)
     fig = _layout(fig, "Energy and heat by strategy (green: recommended, orange: present)",
                   height=330)
-    fig.update_layout(margin=dict(l=150, r=20, t=46, b=50))
+    fig.update_layout(margin=dict(l=170, r=20, t=46, b=50))
     return fig
 
 

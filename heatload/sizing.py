@@ -323,16 +323,14 @@ def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5) -> dict
         ``available`` (bool), ``note``; when available: ``samples``, ``seed``,
         ``cooler_duty_W`` {P50, P90, P95}, ``oil_temperature_C`` {P50, P90, P95},
         ``sensitivity`` (the *top* entries of the ranking, dicts with ``path`` and
-        ``swing`` ...).
+        ``swing`` = the cooler duty's swing [W] ...).  Scenarios without uncertain
+        inputs use the uncertainty module's typical defaults.
     """
     try:
         from heatload import uncertainty
     except ImportError as exc:
         return {"available": False,
                 "note": f"uncertainty not available (heatload.uncertainty: {exc})"}
-    if not scenario.uncertainty:
-        return {"available": False,
-                "note": "uncertainty not available: the scenario lists no uncertain inputs"}
     try:
         mc = uncertainty.monte_carlo(scenario, strategy, samples=samples, seed=seed,
                                      progress=False)
@@ -345,8 +343,11 @@ def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5) -> dict
         return {k: float(v) for k, v in d.items()}
     rows = []
     for s in list(sens)[:top]:
-        rows.append({k: (float(v) if isinstance(v, (int, float, np.floating)) and
-                         not isinstance(v, bool) else v) for k, v in dict(s).items()})
+        row = {k: (float(v) if isinstance(v, (int, float, np.floating)) and
+                   not isinstance(v, bool) else v) for k, v in dict(s).items()}
+        # one name for the duty's swing whichever key the ranking uses
+        row.setdefault("swing", row.get("cooler_duty_swing_W"))
+        rows.append(row)
     return {"available": True, "note": "", "samples": int(samples), "seed": int(seed),
             "cooler_duty_W": clean(pct["cooler_duty_W"]),
             "oil_temperature_C": clean(pct["oil_temperature_C"]),
@@ -567,8 +568,12 @@ def run_cli(args) -> int:
             print("  inputs that move the duty most:")
             for r in unc["sensitivity"]:
                 sw = r.get("swing")
-                print(f"    {r.get('path')}: swing "
-                      f"{fq(sw, 'power', s) if isinstance(sw, float) else sw}")
+                extra = r.get("oil_temperature_swing_K")
+                print(f"    {r.get('path')}: duty swing "
+                      f"{fq(sw, 'power', s) if isinstance(sw, float) else sw}"
+                      + (f", oil temperature swing "
+                         f"{fq(extra, 'temperature_difference', s)}"
+                         if isinstance(extra, float) else ""))
     else:
         print(unc["note"])
     for n in sz.notes:

@@ -1,0 +1,418 @@
+"""Tests of the customer report and its exports (heatload.report): one
+self-contained HTML file per bundled example, no outside resources (static scan
+and headless Chromium), figures that agree with ``heatload compare --json``,
+spreadsheet and CSV files that read back with the same values, atomic writes
+that never overwrite without --force."""
+
+import contextlib
+import html.parser
+import io as stdio
+import json
+import math
+import os
+import re
+import shutil
+import sys
+import time
+
+import numpy as np
+import pytest
+
+from heatload import chain, io, report, tables
+from heatload.cli import main
+from heatload.errors import HeatloadError
+
+EXAMPLES = io.example_paths()
+SAMPLES = 200  # Monte Carlo samples of the report's cooler uncertainty (speed)
+
+
+@pytest.fixture(scope="module")
+def built():
+    """{path: (scenario, comparison, prepared data, html, seconds)} for every example."""
+    out = {}
+    for p in EXAMPLES:
+        t0 = time.perf_counter()
+        sc = io.load_scenario(p)
+        cmp = chain.compare(sc)
+        rd = report.report_data(sc, cmp, source=str(p), samples=SAMPLES)
+        text = report.build_report(sc, cmp, prepared=rd)
+        out[p] = (sc, cmp, rd, text, time.perf_counter() - t0)
+    return out
+
+
+def _run(argv):
+    out, err = stdio.StringIO(), stdio.StringIO()
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
+        rc = main(argv)
+    return rc, out.getvalue(), err.getvalue()
+
+
+def test_every_example_builds(built):
+    assert len(built) == len(EXAMPLES) >= 3
+    for p, (sc, cmp, rd, text, _) in built.items():
+        assert text.startswith("<!DOCTYPE html>") and text.rstrip().endswith("</html>")
+        for section in ("summary", "comparison", "energy", "cycle", "shift", "cooler",
+                        "payback", "warnings", "assumptions"):
+            assert f'id="{section}"' in text, (p.name, section)
+        assert "ISO 4413" in text and "estimate for early design" in text
+        for method in ("ISO 3448", "ASTM D341", "ASTM D2270", "Cragoe", "Churchill-Chu",
+                       "effectiveness-NTU", "IEC 60034-30-1", "Wilson", "Darcy-Weisbach",
+                       "Colebrook"):
+            assert method in text, method
+        # every warning of the comparison is listed
+        for r in rd["data"]["strategies"]:
+            for w in r["warnings"]:
+                assert _esc(w["message"]) in text
+
+
+def _esc(s):
+    return html.escape(s)
+
+
+class _Refs(html.parser.HTMLParser):
+    """Collects resource attributes, <style> text, style attributes and script bodies."""
+
+    ATTRS = ("src", "href", "xlink:href", "srcset", "poster", "data", "action", "formaction",
+             "background", "manifest", "icon")
+
+    def __init__(self):
+        super().__init__(convert_charrefs=True)
+        self.attrs, self.styles, self.scripts, self.tags = [], [], [], []
+        self._in = None
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.append(tag)
+        for k, v in attrs:
+            if k in self.ATTRS and v:
+                self.attrs.append((tag, k, v))
+            if k == "style" and v:
+                self.styles.append(v)
+        self._in = tag if tag in ("style", "script") else None
+        if tag == "script":
+            self.scripts.append([dict(attrs), ""])
+
+    def handle_data(self, data):
+        if self._in == "style":
+            self.styles.append(data)
+        elif self._in == "script":
+            self.scripts[-1][1] += data
+
+    def handle_endtag(self, tag):
+        self._in = None
+
+
+REMOTE = re.compile(r"^\s*(https?:)?//", re.I)
+CSS_REMOTE = re.compile(r"(@import|url\()\s*['\"]?\s*(https?:)?//", re.I)
+ANY_RESOURCE = re.compile(r"(src\s*=\s*['\"]?\s*(https?:)?//|@import[^;]*https?://|"
+                          r"url\(\s*['\"]?\s*(https?:)?//)", re.I)
+
+
+def test_no_outside_resources(built):
+    from plotly.offline import get_plotlyjs
+
+    bundle = get_plotlyjs()
+    for p, (*_, text, _) in built.items():
+        # the whole file, plotly.js included: no src=, @import or url() to a server
+        assert not ANY_RESOURCE.search(text), (p.name, ANY_RESOURCE.search(text).group(0))
+        parser = _Refs()
+        parser.feed(text)
+        assert "link" not in parser.tags and "img" not in parser.tags and "iframe" not in parser.tags
+        for tag, k, v in parser.attrs:
+            assert not REMOTE.match(v), (p.name, tag, k, v)
+        for s in parser.styles:
+            assert not CSS_REMOTE.search(s), (p.name, s[:80])
+        assert "@font-face" not in text
+        scripts = parser.scripts
+        assert all("src" not in a for a, _ in scripts)
+        # plotly.js is inline exactly once, unaltered; every other script (ours) has no URL
+        # at all.  The library's own text holds link strings (map attributions, the logo,
+        # which displaylogo=False never draws); the browser test checks nothing is fetched.
+        assert sum(bundle in body for _, body in scripts) == 1
+        for _, body in scripts:
+            if bundle not in body:
+                assert not re.search(r"https?://", body), (p.name, body[:120])
+        outside = re.sub(r"<script\b[^>]*>.*?</script>", "", text, flags=re.S | re.I)
+        assert not re.search(r"https?://", outside), p.name
+
+
+def _cells(text):
+    """[(strategy, key, value)] from the data-* attributes of the report's numbers."""
+    pat = re.compile(r'data-key="([^"]+)"(?: data-strategy="([^"]*)")? data-value="([^"]+)"')
+    return [(html.unescape(s) if s else None, k, float(v)) for k, s, v in pat.findall(text)]
+
+
+def test_figures_equal_compare_json(built):
+    keys = ("electric_energy_per_year_kWh", "cost_per_year", "co2_per_year_kg", "heat_to_oil_W",
+            "oil_temperature_steady_C", "oil_temperature_operating_C", "cooler_duty_W",
+            "peak_pressure_Pa", "overall_efficiency")
+    for p, (sc, cmp, rd, text, _) in built.items():
+        rc, out, _ = _run(["compare", str(p), "--json"])
+        assert rc == 0
+        js = {r["label"]: r for r in json.loads(out)["strategies"]}
+        cells = _cells(text)
+        seen = set()
+        for s, k, v in cells:
+            if s is not None and k in keys:
+                assert v == pytest.approx(js[s][k], rel=1e-12, abs=1e-9), (p.name, s, k)
+                seen.add((s, k))
+        assert seen == {(s, k) for s in js for k in keys}, p.name
+        # the shown text is the value rounded (energy with thousands separators)
+        for s, r in js.items():
+            shown = f"{r['electric_energy_per_year_kWh']:,.0f}"
+            assert (f'data-strategy="{_esc(s)}" data-value="{r["electric_energy_per_year_kWh"]!r}"'
+                    f'>{shown}<') in text
+        # savings of the summary equal tables.savings_against (kWh and money)
+        sav = tables.savings_against(cmp, rd["present"])[rd["recommended"]]
+        top = {k: v for s, k, v in cells if s is None}
+        assert top["energy_saving_kWh"] == pytest.approx(sav["energy_saving_kWh"], rel=1e-12)
+        assert top["cost_saving"] == pytest.approx(sav["cost_saving"], rel=1e-12)
+        # the embedded data block is the same comparison
+        m = re.search(r'<script type="application/json" id="heatload-data">(.*?)</script>',
+                      text, re.S)
+        block = json.loads(m.group(1).replace("<\\/", "</"))
+        assert block["comparison"]["ranking"] == json.loads(out)["ranking"]
+
+
+def test_recommendation_logic(built):
+    p = io.default_scenario_path()
+    sc, cmp, rd, text, _ = built[p]
+    data = rd["data"]
+    crit = {r["label"] for r in data["strategies"] if report.critical_warnings(r, sc)}
+    ok = [r for r in data["strategies"] if r["label"] not in crit]
+    assert rd["recommended"] == min(ok, key=lambda r: r["electric_energy_per_year_kWh"])["label"]
+    for r in data["strategies"]:
+        codes = {w["code"] for w in r["warnings"]}
+        if codes & {"pressure-rating", "stall", "overrunning-load"}:
+            assert r["label"] in crit
+    # a hand-made comparison: the cheapest has a stall, so the next one wins
+    fake = {"strategies": [
+        {"label": "a", "electric_energy_per_year_kWh": 1.0,
+         "warnings": [{"code": "stall", "phase": None, "value": 0.0}]},
+        {"label": "b", "electric_energy_per_year_kWh": 2.0,
+         "warnings": [{"code": "oil-temperature", "phase": None, "value": 0.0}]},
+        {"label": "c", "electric_energy_per_year_kWh": 3.0, "warnings": []}]}
+    best, why, excluded = report.recommend(fake, sc)
+    assert best["label"] == "b" and excluded == {"a": ["stall"]}
+
+
+def test_payback_by_hand(built):
+    p = io.default_scenario_path()
+    sc, cmp, rd, *_ = built[p]
+    data = rd["data"]
+    rows = report.payback_rows(data, "meter-in", {"load-sensing": 4200.0})
+    r = next(x for x in rows if x["strategy"] == "load-sensing")
+    base = next(x for x in data["strategies"] if x["label"] == "meter-in")
+    ls = next(x for x in data["strategies"] if x["label"] == "load-sensing")
+    saving = base["cost_per_year"] - ls["cost_per_year"]
+    price0 = base["price"] or 0.0
+    # simple payback = extra price / yearly saving (definition)
+    assert r["extra_price"] == pytest.approx(4200.0 - price0)
+    assert r["payback_years"] == pytest.approx((4200.0 - price0) / saving, rel=1e-12)
+    with pytest.raises(HeatloadError) as e:
+        report.parse_prices(["nothing=3"], sc)
+    assert e.value.field == "--price"
+    with pytest.raises(HeatloadError):
+        report.parse_prices(["load-sensing=cheap"], sc)
+    assert report.parse_prices(["load-sensing=4200"], sc) == {"load-sensing": 4200.0}
+
+
+def test_print_stylesheet(built):
+    text = next(iter(built.values()))[3]
+    css = re.search(r"<style>(.*?)</style>", text, re.S).group(1)
+    assert re.search(r"@page\s*{\s*size:\s*auto;\s*margin:", css)
+    assert "@media print" in css
+    assert "page-break-before: always" in css and "break-inside: avoid" in css
+    assert "display: table-header-group" in css
+    # charts fit the printable width of A4 and Letter with 15 mm margins: 180 mm = 680 px
+    from heatload.report_assets import FIGURE_WIDTH
+    assert FIGURE_WIDTH <= (210 - 30) / 25.4 * 96 + 0.5
+
+
+def test_axes_have_units_and_palette(built):
+    from heatload.report_assets import PALETTE
+
+    p = io.default_scenario_path()
+    sc, cmp, rd, *_ = built[p]
+    recs = {r["label"]: r for r in rd["data"]["strategies"]}
+    o = cmp.outcome(rd["recommended"])
+    w = chain.shift_profile(sc, o)
+    figs = [report.cycle_figure([recs["meter-in"]], ["meter-in"]),
+            report.shift_figure([("x", w.times, w.temperatures, "solid")], 80.0, 55.0),
+            report.energy_bar_figure(rd["data"], rd["recommended"], rd["present"])]
+    for fig in figs:
+        lay = fig.layout
+        for name in dir(lay):
+            if re.fullmatch(r"[xy]axis\d*", name):
+                ax = getattr(lay, name)
+                if ax.showticklabels is False:
+                    continue
+                assert ax.title.text, name
+                # numeric axes carry their unit in brackets; the strategy axis is categories
+                if ax.title.text != "strategy":
+                    assert re.search(r"\[.+\]", ax.title.text), (name, ax.title.text)
+        assert tuple(lay.colorway) == PALETTE
+        for tr in fig.data:
+            c = getattr(getattr(tr, "line", None), "color", None) or \
+                getattr(getattr(tr, "marker", None), "color", None)
+            cs = c if isinstance(c, (list, tuple)) else [c]
+            assert all(x in PALETTE for x in cs if x is not None)
+
+
+def test_sankey_closes_first_law(built):
+    for p, (sc, cmp, rd, *_) in built.items():
+        for r in rd["data"]["strategies"]:
+            fig = report.sankey_figure(r, "x")
+            s = fig.data[0]
+            src, dst, val = list(s.link.source), list(s.link.target), list(s.link.value)
+            n = len(s.node.label)
+            inflow = [sum(v for a, b, v in zip(src, dst, val) if b == i) for i in range(n)]
+            outflow = [sum(v for a, b, v in zip(src, dst, val) if a == i) for i in range(n)]
+            # energy conservation per cycle: sources = electric input (+ overrunning load),
+            # sinks = losses + useful work; balance within the engine's closure
+            sources = sum(outflow[i] for i in range(n) if inflow[i] == 0)
+            sinks = sum(inflow[i] for i in range(n) if outflow[i] == 0)
+            assert outflow[0] == pytest.approx(r["electric_energy_per_cycle_J"] / 1e3, rel=1e-3)
+            assert sinks == pytest.approx(sources, rel=2e-3), (p.name, r["label"])
+
+
+def _read_back_checks(frames_read, cmp, sc):
+    sf = tables.strategy_frame(cmp)
+    got = frames_read["strategies"]
+    for col in ("electric_energy_per_year_kWh", "cost_per_year", "heat_to_oil_W",
+                "cooler_duty_W", "peak_pressure_Pa"):
+        np.testing.assert_allclose(got[col].to_numpy(float), sf[col].to_numpy(float),
+                                   rtol=1e-12)
+    assert list(got["label"]) == list(sf["label"])
+    data = tables.comparison_dict(cmp)
+    for r, e in zip(data["strategies"], got["electric_energy_per_year_kWh"]):
+        assert float(e) == pytest.approx(r["electric_energy_per_year_kWh"], rel=1e-12)
+    pc = tables.phase_component_frame(cmp)
+    np.testing.assert_allclose(frames_read["phase_components"]["energy_J"].to_numpy(float),
+                               pc["energy_J"].to_numpy(float), rtol=1e-12)
+    for o in cmp.outcomes:
+        recs = tables.phase_records(o, sc, cmp.phase_arrays)
+        ph = frames_read[o.name]
+        np.testing.assert_allclose(ph["heat_to_oil_W"].to_numpy(float),
+                                   [r["heat_to_oil_W"] for r in recs], rtol=1e-12)
+        np.testing.assert_allclose(ph["loss_relief_W"].to_numpy(float),
+                                   [r["losses_W"]["relief"] for r in recs], rtol=1e-12)
+    cool = frames_read["cooler"]
+    for o in cmp.outcomes:
+        row = cool[cool["strategy"] == o.name].iloc[0]
+        assert float(row["duty_W"]) == pytest.approx(o.thermal.cooler_duty, rel=1e-12, abs=1e-9)
+    assert len(frames_read["assumptions"]) > 30
+
+
+def test_xlsx_and_csv_read_back(built, tmp_path):
+    import pandas as pd
+
+    p = io.default_scenario_path()
+    sc, cmp, rd, *_ = built[p]
+    frames = report.export_tables(sc, cmp, rd)
+    x = report.write_xlsx(frames, tmp_path / "r.xlsx")
+    sheets = pd.read_excel(x, sheet_name=None)
+    assert {"strategies", "phase_components", "cooler", "assumptions", "payback"} <= set(sheets)
+    by_strategy = {o.name: sheets[f"phases {o.name}"[:31]] for o in cmp.outcomes}
+    _read_back_checks({**sheets, **by_strategy}, cmp, sc)
+    files = report.write_csv(frames, tmp_path / "csv")
+    read = {f.stem: pd.read_csv(f) for f in files}
+    by_strategy = {o.name: read["phases_" + o.name] for o in cmp.outcomes}
+    _read_back_checks({**read, **by_strategy}, cmp, sc)
+    # nothing but the written files remains (temporary files replaced)
+    assert sorted(os.listdir(tmp_path / "csv")) == sorted(f.name for f in files)
+    with pytest.raises(HeatloadError) as e:
+        report.write_csv(frames, tmp_path / "csv")
+    assert e.value.field == "--csv"
+    report.write_csv(frames, tmp_path / "csv", force=True)
+
+
+def test_atomic_and_no_overwrite(tmp_path):
+    target = tmp_path / "r.html"
+    report.write_html("<p>one</p>", target)
+    with pytest.raises(HeatloadError) as e:
+        report.write_html("<p>two</p>", target)
+    assert e.value.field == "--output"
+    assert target.read_text() == "<p>one</p>"
+    report.write_html("<p>two</p>", target, force=True)
+    assert target.read_text() == "<p>two</p>"
+    assert os.listdir(tmp_path) == ["r.html"]
+    with pytest.raises(HeatloadError) as e:
+        report.write_xlsx({}, target)
+    assert e.value.field == "--xlsx"
+
+
+def test_cli_report(tmp_path, monkeypatch):
+    monkeypatch.setattr("heatload.sizing.REPORT_SAMPLES", SAMPLES)
+    out = tmp_path / "press.html"
+    rc, text, err = _run(["report", "-o", str(out), "--xlsx", str(tmp_path / "t.xlsx"),
+                          "--csv", str(tmp_path / "csv"), "--price", "load-sensing=4200",
+                          "--present", "meter-in"])
+    assert rc == 0, err
+    assert out.stat().st_size > 1_000_000 and "bytes" in text
+    assert (tmp_path / "t.xlsx").exists() and (tmp_path / "csv" / "strategies.csv").exists()
+    rc, _, err = _run(["report", "-o", str(out)])
+    assert rc == 2 and "--force" in err
+    rc, _, err = _run(["report", "-o", str(tmp_path / "x.html"), "--present", "nope"])
+    assert rc == 2 and "--present" in err
+    rc, _, err = _run(["report", "-o", str(tmp_path / "y.html"), "--price", "a=b"])
+    assert rc == 2 and "--price" in err
+    assert not (tmp_path / "x.html").exists() and not (tmp_path / "y.html").exists()
+
+
+def _browser_binaries():
+    chrome = os.environ.get("CHROME_BIN", "/usr/bin/chromium")
+    driver = shutil.which("chromedriver") or "/usr/bin/chromedriver"
+    return (chrome, driver) if os.path.exists(chrome) and os.path.exists(driver) else None
+
+
+@pytest.mark.browser
+def test_opens_offline_in_chromium(built, tmp_path):
+    bins = _browser_binaries()
+    if bins is None:
+        pytest.skip("chromium / chromedriver not installed")
+    from selenium import webdriver
+    from selenium.webdriver.chrome.options import Options
+    from selenium.webdriver.chrome.service import Service
+
+    opts = Options()
+    opts.binary_location = bins[0]
+    for arg in ("--headless=new", "--no-sandbox", "--disable-gpu", "--disable-dev-shm-usage",
+                "--disable-background-networking", "--disable-component-update",
+                "--disable-sync", "--disable-default-apps", "--disable-extensions",
+                "--no-first-run", "--no-default-browser-check", "--window-size=1200,900",
+                "--host-resolver-rules=MAP * ~NOTFOUND, EXCLUDE localhost, EXCLUDE 127.0.0.1"):
+        opts.add_argument(arg)
+    opts.set_capability("goog:loggingPrefs", {"browser": "ALL"})
+    drv = webdriver.Chrome(service=Service(bins[1]), options=opts)
+    try:
+        for p, (sc, cmp, rd, text, _) in built.items():
+            f = tmp_path / (p.stem + ".html")
+            f.write_text(text, encoding="utf-8")
+            drv.get(f.as_uri())
+            deadline = time.time() + 20
+            n_fig = text.count('class="figure"')
+            while time.time() < deadline and drv.execute_script(
+                    "return document.querySelectorAll('.js-plotly-plot .main-svg').length"
+                    ) < n_fig:
+                time.sleep(0.2)
+            assert drv.execute_script("return typeof Plotly") == "object"
+            assert drv.execute_script(
+                "return document.querySelectorAll('.js-plotly-plot').length") == n_fig
+            logs = [e for e in drv.get_log("browser") if e["level"] in ("SEVERE", "WARNING")]
+            assert logs == [], (p.name, logs)
+            names = drv.execute_script(
+                "return performance.getEntriesByType('resource').map(e => e.name)")
+            assert [u for u in names if re.match(r"^(https?|wss?|ftp):", u)] == [], names
+            assert all(u.startswith(("about:", "data:", "blob:", "file:")) for u in names), names
+            # printing works: the print media lays out without script errors
+            drv.execute_script("window.matchMedia('print')")
+    finally:
+        drv.quit()
+
+
+def test_report_size_and_time(built):
+    """Regression figures, not physics: a report is one file of a few MB made in seconds."""
+    for p, (*_, text, seconds) in built.items():
+        size = len(text.encode("utf-8"))
+        assert 1_000_000 < size < 12_000_000, (p.name, size)
+        print(f"{p.name}: {size:,} bytes, built in {seconds:.1f} s")
