@@ -633,7 +633,8 @@ def _cooler_html(rec, sz, unc):
             "<tr><td>cooler duty [kW]</td>" + "".join(
                 _cell(d[k], _num(d[k] / 1e3), None, f"uncertainty_duty_{k}")
                 for k in ("P50", "P90", "P95")) + "</tr>",
-            "<tr><td>oil temperature [°C]</td>" + "".join(
+            "<tr><td>oil temperature, steady without cooler at typical ambient [°C]</td>"
+            + "".join(
                 _cell(tt[k], f"{tt[k]:.1f}", None, f"uncertainty_oil_{k}")
                 for k in ("P50", "P90", "P95")) + "</tr>"]
         parts.append(f"<p class=\"note\">Monte Carlo, {unc['samples']} samples (seed "

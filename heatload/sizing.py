@@ -562,7 +562,7 @@ def run_cli(args) -> int:
         print(f"Uncertainty ({unc['samples']} samples, seed {unc['seed']}):")
         print("  cooler duty      " + ", ".join(f"{k} {fq(d[k], 'power', s)}"
                                                for k in ("P50", "P90", "P95")))
-        print("  oil temperature  " + ", ".join(f"{k} {fq(tt[k] + K0, 'temperature', s)}"
+        print("  oil temperature (steady, no cooler, typical ambient)\n                   " + ", ".join(f"{k} {fq(tt[k] + K0, 'temperature', s)}"
                                                for k in ("P50", "P90", "P95")))
         if unc["sensitivity"]:
             print("  inputs that move the duty most:")
