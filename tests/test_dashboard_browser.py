@@ -1,0 +1,164 @@
+"""The dashboard in a real headless Chromium (dash_duo, Selenium).
+
+Needs /usr/bin/chromium and /usr/bin/chromedriver (Debian's chromium and
+chromium-driver; .ci/run installs them).  Each test starts its own server,
+so one browser session never sees another's state.  Screenshots go to
+test-output/ (ignored by git).
+"""
+
+import os
+import shutil
+import time
+from pathlib import Path
+
+import pytest
+
+pytestmark = [
+    pytest.mark.browser,
+    pytest.mark.skipif(not (shutil.which("chromedriver") and (
+        shutil.which("chromium") or os.environ.get("CHROME_BIN"))),
+        reason="needs chromium and chromedriver"),
+]
+
+OUT = Path(__file__).resolve().parents[1] / "test-output"
+
+
+def _shot(dash_duo, name):
+    OUT.mkdir(exist_ok=True)
+    dash_duo.driver.save_screenshot(str(OUT / f"{name}.png"))
+
+
+def _start(dash_duo):
+    from dashboard.app import make_app
+
+    dash_duo.start_server(make_app())
+    dash_duo.wait_for_element("#tile-0", timeout=60)
+    return dash_duo
+
+
+def _tab(dash_duo, label):
+    for el in dash_duo.find_elements(".tab"):
+        if el.text.strip() == label:
+            el.click()
+            return
+    raise AssertionError(f"no tab {label!r}")
+
+
+def _edit_cell(dash_duo, table, row, column, text):
+    from selenium.webdriver.common.action_chains import ActionChains
+    from selenium.webdriver.common.keys import Keys
+
+    cell = dash_duo.find_element(
+        f'#{table} td[data-dash-column="{column}"][data-dash-row="{row}"]')
+    cell.click()
+    ActionChains(dash_duo.driver).send_keys(text).send_keys(Keys.ENTER).perform()
+
+
+def _text(dash_duo, selector):
+    """An element's text, read again when a re-render replaced the element."""
+    from selenium.common.exceptions import StaleElementReferenceException
+
+    for _ in range(20):
+        try:
+            return dash_duo.find_element(selector).text
+        except StaleElementReferenceException:
+            time.sleep(0.1)
+    return dash_duo.find_element(selector).text
+
+
+def _wait_text_change(dash_duo, selector, old, timeout=30):
+    end = time.time() + timeout
+    while time.time() < end:
+        now = _text(dash_duo, selector)
+        if now and now != old:
+            return now
+        time.sleep(0.2)
+    raise AssertionError(f"{selector} stayed {old!r}")
+
+
+def test_default_scenario_shows_the_comparison(dash_duo):
+    _start(dash_duo)
+    _tab(dash_duo, "Comparison")
+    dash_duo.wait_for_element("#comparison-table tbody tr", timeout=20)
+    rows = dash_duo.find_elements("#comparison-table tbody tr")
+    assert len(rows) == 7                  # the forming press compares seven circuits
+    assert "kJ" in rows[0].text and "°C" in rows[0].text
+    _tab(dash_duo, "Where the energy goes")
+    dash_duo.wait_for_element("#sankey .main-svg", timeout=20)
+    _tab(dash_duo, "Cycle over time")
+    dash_duo.wait_for_element("#cycle-graph .main-svg", timeout=20)
+    _shot(dash_duo, "browser_cycle")
+    _tab(dash_duo, "Shift temperature")
+    dash_duo.wait_for_element("#shift-graph .scatterlayer .trace", timeout=30)
+    _tab(dash_duo, "Cooler sizing")
+    dash_duo.wait_for_element("#spec-table", timeout=30)
+    _tab(dash_duo, "Payback")
+    dash_duo.wait_for_element("#pay-text", timeout=20)
+    assert "years" in dash_duo.find_element("#pay-text").text
+    _shot(dash_duo, "browser_payback")
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
+def test_edit_invalid_entry_and_units(dash_duo):
+    _start(dash_duo)
+    before = _text(dash_duo, "#tile-4")
+    # forming load 100 kN -> 130 kN: more work per cycle, the numbers change
+    _edit_cell(dash_duo, "phase-table", 2, "load", "130")
+    after = _wait_text_change(dash_duo, "#tile-4", before)
+    assert after != before
+    # a mass where a speed belongs: flagged with the reason, results kept
+    _edit_cell(dash_duo, "phase-table", 2, "speed", "12 kg")
+    dash_duo.wait_for_contains_text("#form-errors", "expected a velocity", timeout=20)
+    assert "12 kg" in _text(dash_duo, "#form-errors")
+    assert _text(dash_duo, "#tile-4") == after
+    _shot(dash_duo, "browser_invalid")
+    # the app stays alive: a valid value clears the error and recomputes
+    _edit_cell(dash_duo, "phase-table", 2, "speed", "25")
+    end = time.time() + 20
+    while _text(dash_duo, "#form-errors") and time.time() < end:
+        time.sleep(0.2)
+    assert _text(dash_duo, "#form-errors") == ""
+    _wait_text_change(dash_duo, "#tile-4", after)
+    # units: SI -> US customary changes the headers and the figures' units
+    assert "kN" in dash_duo.find_element("#phase-table").text
+    dash_duo.find_element("#units input[value='us']").click()
+    dash_duo.wait_for_contains_text("#phase-table", "lbf", timeout=20)
+    dash_duo.wait_for_contains_text("#tile-0", "Btu", timeout=20)
+    dash_duo.wait_for_contains_text("#headline", "°F", timeout=20)
+    _shot(dash_duo, "browser_us_units")
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
+def test_bad_upload_refused_and_download_loads_back(dash_duo, tmp_path):
+    from heatload import io
+
+    _start(dash_duo)
+    before = _text(dash_duo, "#tile-4")
+    bad = tmp_path / "broken.toml"
+    bad.write_text('[scenario]\nname = "x"\n[[phases]]\nname = "a"\nmotion = "fly"\n',
+                   encoding="utf-8")
+    dash_duo.find_element("#upload input[type=file]").send_keys(str(bad))
+    dash_duo.wait_for_element("#upload-error", timeout=20)
+    msg = dash_duo.find_element("#upload-error").text
+    assert "Upload refused" in msg and "broken.toml" in msg
+    assert _text(dash_duo, "#tile-4") == before
+    assert "forming_press.toml" in dash_duo.find_element("#source-label").text
+    _shot(dash_duo, "browser_bad_upload")
+
+    # download the scenario (after an edit) and load it back
+    _edit_cell(dash_duo, "phase-table", 3, "load", "125")
+    _wait_text_change(dash_duo, "#tile-4", before)
+    dash_duo.driver.execute_cdp_cmd("Page.setDownloadBehavior",
+                                    {"behavior": "allow",
+                                     "downloadPath": dash_duo.download_path})
+    dash_duo.find_element("#download-toml-btn").click()
+    target = Path(dash_duo.download_path) / "forming_press_140_kn.toml"
+    end = time.time() + 20
+    while not target.exists() and time.time() < end:
+        time.sleep(0.2)
+    assert target.exists(), list(Path(dash_duo.download_path).iterdir())
+    sc = io.load_scenario(target)
+    assert sc.phases[3].load == pytest.approx(125e3, rel=1e-12)
+    ref = io.load_scenario(io.default_scenario_path())
+    assert sc.phases[:3] == ref.phases[:3] and sc.phases[4:] == ref.phases[4:]
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
