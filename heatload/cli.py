@@ -314,6 +314,9 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--price", action="append", default=[], metavar="NAME=AMOUNT",
                     help="extra price of a strategy's circuit, e.g. load-sensing=4200 (repeatable)")
     sp.add_argument("--force", action="store_true", help="overwrite existing files")
+    sp.add_argument("--samples", type=int, default=2000,
+                    help="Monte Carlo samples for the cooler duty (default 2000)")
+    sp.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
 
     sp = add("sweep", cmd_sweep, "evaluate a grid or sample of design variants at array speed")
     sp.add_argument("--vary", action="append", default=[], metavar="PATH=LOW..HIGH:N",

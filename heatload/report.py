@@ -1027,7 +1027,7 @@ def write_csv(frames, directory, force=False) -> list:
 
 def run_cli(args) -> int:
     """``heatload report [FILE] -o report.html [--xlsx F] [--csv DIR] [--present NAME]
-    [--price NAME=AMOUNT ...] [--force]``."""
+    [--price NAME=AMOUNT ...] [--samples N] [--seed S] [--force]``."""
     from heatload import chain, io
 
     t0 = time.perf_counter()
@@ -1040,7 +1040,8 @@ def run_cli(args) -> int:
     if args.xlsx:
         _refuse(args.xlsx, args.force, "--xlsx")
     cmp = chain.compare(sc)
-    rd = report_data(sc, cmp, args.present, prices, str(path))
+    rd = report_data(sc, cmp, args.present, prices, str(path),
+                     samples=getattr(args, "samples", None), seed=getattr(args, "seed", 1))
     text = build_report(sc, cmp, prepared=rd)
     frames = None
     if args.csv:

@@ -228,7 +228,10 @@ _PRETTY = {"degC": "°C", "degF": "°F", "delta_degF": "°F", "m^2": "m²", "m^3
            "mm^2/s": "mm²/s", "cm^3": "cm³", "in^3": "in³", "ft^2": "ft²",
            "kg/m^3": "kg/m³", "lb/ft^3": "lb/ft³", "W/(m^2*K)": "W/(m²·K)",
            "N*m": "N·m", "lbf*ft": "lbf·ft", "gal/min": "gpm", "mPa*s": "mPa·s",
-           "kJ/(kg*K)": "kJ/(kg·K)", "W/(m*K)": "W/(m·K)"}
+           "kJ/(kg*K)": "kJ/(kg·K)", "W/(m*K)": "W/(m·K)",
+           "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(lb*delta_degF)": "Btu/(lb·°F)",
+           "Btu/(h*ft^2*delta_degF)": "Btu/(h·ft²·°F)", "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)",
+           "1/delta_degF": "1/°F"}
 
 
 def pretty_unit(unit: str) -> str:
