@@ -300,8 +300,9 @@ def cycle_figure(results: dict, strategy: str | None, system: str):
     fig.update_traces(hovertemplate="%{y:.4g}<extra>%{fullData.name}</extra>")
     _layout(fig, f"{r['label']}: one cycle of {units.format_number(sum(dur), 3)} s "
                  "(phases as steps)", height=640)
-    fig.update_layout(hovermode="x unified",
-                      legend=dict(orientation="h", y=1.04, yanchor="bottom"))
+    fig.update_layout(hovermode="x unified", margin=dict(l=70, r=170, t=50, b=50),
+                      legend=dict(orientation="v", x=1.01, y=1.0, yanchor="top",
+                                  tracegroupgap=105))
     return fig
 
 

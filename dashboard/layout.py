@@ -21,12 +21,12 @@ CSS = """
 * { box-sizing: border-box; }
 body { margin:0; font-family: Inter, "Segoe UI", Roboto, Helvetica, Arial, sans-serif;
        color:var(--ink); background:var(--bg); font-size:14px; }
-.page { max-width: 1800px; margin: 0 auto; padding: 10px 16px 24px; }
-.top { display:flex; flex-wrap:wrap; align-items:flex-end; gap:12px 20px;
+.page { max-width: 1800px; margin: 0 auto; padding: 8px 14px 24px; }
+.top { display:flex; flex-wrap:wrap; align-items:flex-end; gap:8px 16px;
        background:#fff; border:1px solid var(--line); border-radius:6px; padding:10px 14px; }
 .brand h1 { font-size:19px; margin:0; letter-spacing:.2px; }
 .brand .sub { color:var(--muted); font-size:12px; }
-.ctl { display:flex; flex-direction:column; gap:3px; min-width:150px; }
+.ctl { display:flex; flex-direction:column; gap:3px; }
 .ctl label, .ctl .lab { font-size:11px; color:var(--muted); text-transform:uppercase;
                         letter-spacing:.4px; }
 .upload { border:1px dashed #9aa5b1; border-radius:4px; padding:6px 10px; cursor:pointer;
@@ -38,7 +38,9 @@ body { margin:0; font-family: Inter, "Segoe UI", Roboto, Helvetica, Arial, sans-
 .msg.bad, .err { color:var(--bad); }
 .msg.ok { color:#007a5a; }
 .caution { font-size:12px; color:var(--muted); margin:8px 2px; }
-.tiles { display:flex; flex-wrap:wrap; gap:10px; margin:10px 0; }
+.tiles { display:flex; flex-wrap:wrap; gap:8px; margin:6px 0 8px; }
+.msgs { display:flex; gap:18px; flex-wrap:wrap; }
+.tabs-row .tab { padding:7px 10px !important; line-height:20px; }
 .tile { background:#fff; border:1px solid var(--line); border-left:4px solid var(--accent);
         border-radius:5px; padding:6px 12px; min-width:170px; flex:1 1 170px; }
 .tile-label { font-size:11px; color:var(--muted); text-transform:uppercase; }
@@ -115,12 +117,12 @@ def make_layout(initial: dict):
                       for c in state.PHASE_COLUMNS if c.choices}
     controls = html.Div([
         html.Div([html.H1("heatload"),
-                  html.Div("heat load, oil temperature and cooler duty of a hydraulic "
-                           "duty cycle", className="sub")], className="brand"),
+                  html.Div("hydraulic heat load and cooling", className="sub")],
+                 className="brand"),
         html.Div([html.Label("scenario", htmlFor="scenario-select"),
                   dcc.Dropdown(id="scenario-select", options=initial["options"],
                                value=initial["value"], clearable=False,
-                               style={"minWidth": "230px"})], className="ctl"),
+                               style={"minWidth": "220px"})], className="ctl"),
         html.Div([html.Span("or open a file", className="lab"),
                   dcc.Upload(id="upload", children=html.Div("drop or choose a .toml file"),
                              className="upload", multiple=False, accept=".toml",
@@ -133,7 +135,7 @@ def make_layout(initial: dict):
                                  labelStyle={"marginRight": "10px"})], className="ctl"),
         html.Div([html.Label("strategy shown", htmlFor="strategy-select"),
                   dcc.Dropdown(id="strategy-select", options=[], value=None,
-                               clearable=False, style={"minWidth": "210px"})],
+                               clearable=False, style={"minWidth": "200px"})],
                  className="ctl"),
         html.Div([html.Span("download", className="lab"),
                   html.Div([html.Button("scenario (.toml)", id="download-toml-btn",
@@ -143,9 +145,10 @@ def make_layout(initial: dict):
                                         style={"marginLeft": "6px"})])], className="ctl"),
         dcc.Download(id="download-toml"), dcc.Download(id="download-report"),
     ], className="top")
-    messages = html.Div([html.Div(initial.get("note", ""), id="upload-message", className="msg"),
-                         html.Div(f"showing: {initial['source']}", id="source-label",
-                                  className="msg")])
+    messages = html.Div([html.Div(f"showing: {initial['source']}", id="source-label",
+                                  className="msg"),
+                         html.Div(initial.get("note", ""), id="upload-message", className="msg")],
+                        className="msgs")
     cycle_tab = html.Div([
         html.Div([
             html.Div([
@@ -162,7 +165,7 @@ def make_layout(initial: dict):
         ], className="grid2"),
         html.Ul(id="form-errors", className="form-errors"),
     ])
-    tabs = dcc.Tabs(id="tabs", value="cycle", children=[
+    tabs = dcc.Tabs(id="tabs", value="cycle", parent_className="tabs-row", children=[
         dcc.Tab(label="Cycle and machine", value="cycle",
                 children=html.Div(cycle_tab, className="panel")),
         dcc.Tab(label="Comparison", value="comparison",

@@ -1,0 +1,423 @@
+"""Server-side behaviour of the dashboard: the callbacks' plain functions,
+called directly (no browser, no server).
+
+Check values: conversions from NIST SP 811 (2008) Appendix B; mechanical work
+W = F s (definition); payback = extra price / yearly saving (definition of a
+simple payback).  Everything else is checked against the engine's own public
+functions called independently (the dashboard must only lay them out).
+"""
+
+import base64
+
+import numpy as np
+import pytest
+from dash import no_update
+
+from dashboard import app as dash_app
+from dashboard import callbacks, compute, figures, state
+from heatload import chain, io, tables
+
+LBF = 4.4482216152605        # N per lbf, NIST SP 811 (exact by definition of lbm and g_n)
+PSI = 6894.757293168         # Pa per psi, NIST SP 811
+
+
+@pytest.fixture(scope="module")
+def examples():
+    return dash_app.scenario_choices()[2]
+
+
+@pytest.fixture(scope="module")
+def base():
+    """The default scenario loaded and computed once, as the page would."""
+    sc = io.load_scenario(io.default_scenario_path())
+    data = io.scenario_to_dict(sc)
+    form = state.render_form(data, "si")
+    store = {"data": data, "source": "forming_press.toml"}
+    return {"scenario": sc, "data": data, "form": form, "store": store,
+            "results": compute.compute_results(sc, source="forming_press.toml")}
+
+
+def _edit(base, examples, rows=None, keys=None, system="si", store=None, results=None):
+    f = base["form"]
+    return callbacks.update_scenario(
+        "phase-table", None, None, None, system,
+        rows if rows is not None else f["phase_rows"], f["actuator_rows"],
+        keys if keys is not None else f["key_values"],
+        store or base["store"], results or base["results"], examples)
+
+
+def _rows(base):
+    return [dict(r) for r in base["form"]["phase_rows"]]
+
+
+# ---------------------------------------------------------------------------
+# loading and the comparison
+# ---------------------------------------------------------------------------
+
+def test_page_load_computes_the_default_comparison(base, examples):
+    f = base["form"]
+    out = callbacks.update_scenario(None, None, None, None, "si", f["phase_rows"],
+                                    f["actuator_rows"], f["key_values"], base["store"],
+                                    None, examples)
+    res = out["results"]
+    ref = tables.comparison_dict(chain.compare(base["scenario"]))
+    assert [r["label"] for r in res["comparison"]["strategies"]] == \
+        [r["label"] for r in ref["strategies"]]
+    for mine, theirs in zip(res["comparison"]["strategies"], ref["strategies"]):
+        assert mine["electric_energy_per_cycle_J"] == pytest.approx(
+            theirs["electric_energy_per_cycle_J"], rel=1e-9)
+        assert mine["cooler_duty_W"] == pytest.approx(theirs["cooler_duty_W"], rel=1e-9)
+    rows = figures.comparison_rows(res, "si")
+    assert [r["label"] for r in rows] == ref["ranking"]
+    assert all(r["energy"].endswith("kJ") and r["steady"].endswith("°C") for r in rows)
+    # warnings sit beside their strategy
+    meter_in = next(r for r in rows if r["label"] == "meter-in")
+    assert any("relief" in w for w in meter_in["warnings"])
+
+
+def test_results_are_json_serialisable(base):
+    import json
+
+    text = json.dumps(base["results"], allow_nan=False)
+    assert "comparison" in json.loads(text)
+
+
+def test_choosing_an_example_loads_it(base, examples):
+    key = next(k for k, p in examples.items() if p.stem == "platform_lift")
+    f = base["form"]
+    out = callbacks.update_scenario("scenario-select", key, None, None, "si", f["phase_rows"],
+                                    f["actuator_rows"], f["key_values"], base["store"],
+                                    base["results"], examples)
+    lift = io.load_scenario(examples[key])
+    assert out["results"]["name"] == lift.name
+    assert len(out["phase_rows"]) == len(lift.phases)
+    assert "platform_lift.toml" in out["source_label"]
+
+
+# ---------------------------------------------------------------------------
+# editing
+# ---------------------------------------------------------------------------
+
+def test_editing_a_phase_load_changes_the_numbers(base, examples):
+    rows = _rows(base)
+    assert rows[2]["name"] == "forming" and rows[2]["load"] == "100"
+    rows[2]["load"] = "130"
+    out = _edit(base, examples, rows)
+    assert out["form_errors"] == []
+    new = io.scenario_from_dict(out["store"]["data"])
+    assert new.phases[2].load == 130e3
+    old_rec = figures.strategy_record(base["results"], "meter-in")
+    new_rec = figures.strategy_record(out["results"], "meter-in")
+    # useful work rises by dF * stroke = 30 kN * 60 mm = 1800 J (W = F s)
+    dw = new_rec["useful_energy_per_cycle_J"] - old_rec["useful_energy_per_cycle_J"]
+    assert dw == pytest.approx(30e3 * 0.060, rel=1e-6)
+    assert new_rec["cost_per_year"] != old_rec["cost_per_year"]
+
+
+def test_a_number_with_its_own_unit_is_accepted(base, examples):
+    rows = _rows(base)
+    rows[2]["load"] = "25000 lbf"
+    out = _edit(base, examples, rows)
+    new = io.scenario_from_dict(out["store"]["data"])
+    assert new.phases[2].load == pytest.approx(25000 * LBF, rel=1e-12)  # NIST SP 811
+
+
+def test_us_numbers_are_taken_in_us_units(base, examples):
+    form_us = state.render_form(base["data"], "us")
+    rows = [dict(r) for r in form_us["phase_rows"]]
+    rows[2]["load"] = "20000"             # lbf, the header's unit
+    keys = list(form_us["key_values"])
+    keys[3] = "2500"                      # relief setting in psi
+    out = callbacks.update_scenario("phase-table", None, None, None, "us", rows,
+                                    form_us["actuator_rows"], keys, base["store"],
+                                    base["results"], examples)
+    assert out["form_errors"] == []
+    new = io.scenario_from_dict(out["store"]["data"])
+    assert new.phases[2].load == pytest.approx(20000 * LBF, rel=1e-12)
+    assert new.power_unit.relief.cracking_pressure == pytest.approx(2500 * PSI, rel=1e-9)
+
+
+def test_untouched_cells_keep_their_exact_values_in_either_system(base):
+    for system in ("si", "us"):
+        form = state.render_form(base["data"], system)
+        sc, _, errors = state.apply_form(base["data"], form["phase_rows"],
+                                         form["actuator_rows"], form["key_values"], system)
+        assert errors == [] and sc == base["scenario"]
+
+
+def test_invalid_value_is_flagged_at_its_cell_and_results_stay(base, examples):
+    rows = _rows(base)
+    rows[2]["speed"] = "12 kg"
+    out = _edit(base, examples, rows)
+    assert out["results"] is no_update and out["store"] is no_update
+    style = out["phase_styles"]
+    assert style and style[0]["if"] == {"row_index": 2, "column_id": "speed"}
+    tip = out["phase_tooltips"][2]["speed"]["value"]
+    assert "expected a velocity" in tip and "12 kg" in tip
+    text = " ".join(str(li.children) for li in out["form_errors"])
+    assert "phase 3 'forming', speed" in text and "12 kg" in text
+
+
+@pytest.mark.parametrize("text", ["fast", "1e999", "--3", "3 mm/s/s"])
+def test_unparsable_speeds_are_refused(base, examples, text):
+    rows = _rows(base)
+    rows[1]["speed"] = text
+    out = _edit(base, examples, rows)
+    assert out["results"] is no_update
+    assert out["phase_styles"][0]["if"]["row_index"] == 1
+
+
+def test_validation_errors_from_the_engine_reach_the_field(base, examples):
+    rows = _rows(base)
+    rows[2]["motion"] = "fly"
+    out = _edit(base, examples, rows)
+    assert out["results"] is no_update
+    assert out["phase_styles"][0]["if"]["row_index"] == 2
+
+
+def test_key_number_error_and_fix(base, examples):
+    keys = list(base["form"]["key_values"])
+    keys[0] = "40 bar"                    # a pressure where a displacement belongs
+    out = _edit(base, examples, keys=keys)
+    assert out["results"] is no_update
+    assert "displacement" in out["key_errors"][0]
+    keys[0] = "45"
+    out = _edit(base, examples, keys=keys)
+    assert out["key_errors"] == [""] * len(state.KEY_FIELDS)
+    new = io.scenario_from_dict(out["store"]["data"])
+    assert new.power_unit.pump.displacement == pytest.approx(45e-6, rel=1e-12)
+
+
+def test_deleting_a_row_keeps_the_others(base, examples):
+    rows = _rows(base)
+    del rows[5]                           # the decompression phase
+    out = _edit(base, examples, rows)
+    new = io.scenario_from_dict(out["store"]["data"])
+    old = base["scenario"].phases
+    assert new.phases == old[:5] + old[6:]
+
+
+def test_unchanged_form_does_not_recompute(base, examples):
+    out = _edit(base, examples)
+    assert out["results"] is no_update and out["store"] is no_update
+
+
+def test_units_toggle_changes_headers_and_values(base, examples):
+    f = base["form"]
+    out = callbacks.update_scenario("units", None, None, None, "us", f["phase_rows"],
+                                    f["actuator_rows"], f["key_values"], base["store"],
+                                    base["results"], examples)
+    heads = {c["id"]: c["name"] for c in out["phase_columns"]}
+    assert heads["load"] == "load [lbf]" and heads["hold_pressure"] == "hold pressure [psi]"
+    # 100 kN = 22481 lbf (NIST SP 811)
+    assert float(out["phase_rows"][2]["load"]) == pytest.approx(100e3 / LBF, rel=5e-4)
+    assert out["key_units"][3] == "psi"
+    assert out["results"] is no_update    # a change of display only
+    assert "°F" in figures.comparison_rows(base["results"], "us")[0]["steady"]
+    tiles = figures.headline(base["results"], None, "us")
+    assert "Btu" in tiles[0].children[1].children
+
+
+# ---------------------------------------------------------------------------
+# upload
+# ---------------------------------------------------------------------------
+
+def _payload(raw: bytes) -> str:
+    return "data:application/octet-stream;base64," + base64.b64encode(raw).decode()
+
+
+@pytest.mark.parametrize("raw, reason", [
+    (b"[scenario\nname = 'x'", "TOML syntax error"),
+    (b"[scenario]\nname = 'x'\n", "missing required section"),
+    (b"\xff\xfe\x00garbage", "not UTF-8"),
+    (b"#" * 1_000_001, "larger than"),
+])
+def test_bad_upload_is_refused_and_previous_scenario_stays(base, examples, raw, reason):
+    f = base["form"]
+    out = callbacks.update_scenario("upload", None, _payload(raw), "../../etc/bad.toml", "si",
+                                    f["phase_rows"], f["actuator_rows"], f["key_values"],
+                                    base["store"], base["results"], examples)
+    msg = out["upload_message"].children
+    assert msg.startswith("Upload refused") and reason in msg
+    assert out["store"] is no_update and out["results"] is no_update
+    assert out["phase_rows"] is no_update
+
+
+def test_good_upload_replaces_the_scenario(base, examples, tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    text = io.default_scenario_path().read_text(encoding="utf-8").replace(
+        'name = "Forming press 140 kN"', 'name = "Uploaded press"')
+    f = base["form"]
+    out = callbacks.update_scenario("upload", None, _payload(text.encode()), "mine.toml", "si",
+                                    f["phase_rows"], f["actuator_rows"], f["key_values"],
+                                    base["store"], base["results"], examples)
+    assert out["results"]["name"] == "Uploaded press"
+    assert out["upload_contents"] is None
+    assert list(tmp_path.iterdir()) == []       # nothing written to disk
+
+
+# ---------------------------------------------------------------------------
+# downloads
+# ---------------------------------------------------------------------------
+
+def test_downloaded_scenario_loads_back_equal(base, examples):
+    rows = _rows(base)
+    rows[3]["load"] = "125"
+    rows[0]["speed"] = "0.1 m/s"
+    out = _edit(base, examples, rows)
+    d = callbacks.download_scenario(out["store"]["data"])
+    assert d["filename"] == "forming_press_140_kn.toml"
+    back = io.loads_scenario(d["content"], source=d["filename"])
+    assert back == io.scenario_from_dict(out["store"]["data"])
+    assert back.phases[3].load == 125e3 and back.phases[0].speed == pytest.approx(0.1)
+
+
+def test_report_download_is_html_or_a_note(base):
+    payload, note = callbacks.download_report(base["data"], "forming_press.toml")
+    if payload is None:
+        assert "heatload.report" in note
+    else:
+        assert payload["filename"].endswith(".html")
+        assert payload["content"].lstrip().lower().startswith("<!doctype html")
+
+
+# ---------------------------------------------------------------------------
+# views
+# ---------------------------------------------------------------------------
+
+def test_sankey_balances_electric_input(base):
+    for name in ("meter-in", "load-sensing"):
+        fig = figures.sankey_figure(base["results"], name, "si")
+        s = fig.data[0]
+        src, dst, val = np.array(s.link.source), np.array(s.link.target), np.array(s.link.value)
+        rec = figures.strategy_record(base["results"], name)
+        assert val[src == 0].sum() == pytest.approx(rec["electric_energy_per_cycle_J"] / 1e3,
+                                                    rel=1e-9)   # kJ
+        # what enters the hydraulic node leaves it (first law, up to the solver residual)
+        assert val[dst == 1].sum() == pytest.approx(val[src == 1].sum(), rel=2e-3)
+        assert all(v > 0 for v in val)
+
+
+def test_every_axis_names_its_unit(base):
+    for system, unit in (("si", "bar"), ("us", "psi")):
+        fig = figures.cycle_figure(base["results"], "meter-in", system)
+        titles = [fig.layout[a].title.text for a in ("yaxis", "yaxis2", "yaxis3", "xaxis3")]
+        assert titles[0] == f"pressure [{unit}]"
+        assert all("[" in t and "]" in t for t in titles)
+
+
+def test_cycle_steps_span_the_cycle(base):
+    fig = figures.cycle_figure(base["results"], "meter-in", "si")
+    rec = figures.strategy_record(base["results"], "meter-in")
+    assert fig.data[0].x[-1] == pytest.approx(rec["cycle_time_s"], rel=1e-9)
+    assert fig.data[0].line.shape == "hv"
+
+
+def test_shift_view_with_and_without_cooler(base):
+    fig, note = callbacks.shift_view(base["data"], "meter-in", "si")
+    names = [t.name for t in fig.data]
+    assert names == ["no cooler", "with the sized cooler (thermostat)"]
+    assert fig.layout.yaxis.title.text == "oil temperature [°C]"
+    sc = base["scenario"]
+    ref = chain.shift_profile(sc, chain.evaluate_strategy(sc, sc.strategy("meter-in")), False)
+    assert max(fig.data[0].y) == pytest.approx(float(np.max(ref.temperatures)) - 273.15,
+                                               abs=1e-6)   # downsampling keeps the peak
+    assert "thermostat" in note
+
+
+def test_cooler_view(base):
+    head, spec = callbacks.cooler_view(base["data"], "meter-in", "si")
+    if callbacks.optional_module("sizing") is None:
+        assert "heatload.sizing" in str(head)
+    else:
+        assert "duty to quote" in str(spec)
+
+
+def test_uncertainty_view_runs_or_says_why(base):
+    out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
+    assert out.id in ("mc-result", "mc-note")
+
+
+def test_payback_arithmetic(base):
+    res = base["results"]
+    text, fig = callbacks.payback_view(res, "meter-in", "load-sensing", 3000.0, "si")
+    saving = res["savings"]["meter-in"]["load-sensing"]["cost_saving"]
+    assert saving > 0
+    years = 3000.0 / saving                       # simple payback: price / yearly saving
+    assert f"{years:.1f} years" in text.children
+    assert fig.data[0].y[0] == -3000.0
+    assert fig.data[0].y[5] == pytest.approx(5 * saving - 3000.0)
+    assert callbacks.default_extra_price(res, "meter-in", "load-sensing") == 2800.0
+
+
+def test_strategy_choice_defaults_to_the_present_circuit(base):
+    opts, value = callbacks.strategy_choices(base["results"], None)
+    assert len(opts) == 7 and value == "meter-in"
+    assert callbacks.strategy_choices(base["results"], "bleed-off")[1] == "bleed-off"
+
+
+def test_downsample_keeps_extremes():
+    t = np.linspace(0, 10, 20001)
+    v = np.sin(7 * t) + 0.01 * t
+    td, vd = compute.downsample(t, v, 500)
+    assert len(td) <= 520 and vd.max() == v.max() and vd.min() == v.min()
+    assert td[0] == t[0] and td[-1] == t[-1]
+
+
+# ---------------------------------------------------------------------------
+# sessions, app and command line
+# ---------------------------------------------------------------------------
+
+def test_sessions_do_not_share_state(base, examples):
+    app = dash_app.make_app()
+    first = app.layout()
+    rows = _rows(base)
+    rows[2]["load"] = "140"
+    out = _edit(base, examples, rows)          # "session A" edits
+    assert io.scenario_from_dict(out["store"]["data"]).phases[2].load == 140e3
+    second = app.layout()                      # a new page load starts from the file
+
+    def store_of(layout):
+        return next(c for c in layout.children if getattr(c, "id", None) == "scenario-store")
+    assert store_of(second).data == store_of(first).data == base["store"] | {
+        "source": "forming_press.toml"}
+
+
+def test_make_app_with_a_file_and_a_bad_file(tmp_path):
+    from heatload.errors import HeatloadError
+
+    p = tmp_path / "press.toml"
+    p.write_text(io.default_scenario_path().read_text(encoding="utf-8"), encoding="utf-8")
+    app = dash_app.make_app(p)
+    layout = app.layout()
+    assert "press.toml" in str(layout)
+    bad = tmp_path / "bad.toml"
+    bad.write_text("[scenario\n", encoding="utf-8")
+    with pytest.raises(HeatloadError):
+        dash_app.make_app(bad)
+
+
+class _Args:
+    def __init__(self, **kw):
+        self.file, self.port, self.host, self.debug = None, 8050, "127.0.0.1", False
+        self.__dict__.update(kw)
+
+
+@pytest.mark.parametrize("host, warned", [("127.0.0.1", False), ("0.0.0.0", True)])
+def test_run_cli_binds_loopback_and_warns_otherwise(monkeypatch, capsys, host, warned):
+    seen = {}
+
+    def fake_run(self, host=None, port=None, debug=None, **kw):
+        seen.update(host=host, port=port, debug=debug)
+    monkeypatch.setattr("dash.Dash.run", fake_run)
+    assert dash_app.run_cli(_Args(host=host, port=8123)) == 0
+    assert seen == {"host": host, "port": 8123, "debug": False}
+    err = capsys.readouterr().err
+    assert ("warning" in err) == warned
+
+
+def test_run_cli_debug_only_when_asked(monkeypatch):
+    seen = {}
+    monkeypatch.setattr("dash.Dash.run", lambda self, **kw: seen.update(kw))
+    dash_app.run_cli(_Args(debug=True))
+    assert seen["debug"] is True and seen["host"] == "127.0.0.1"
