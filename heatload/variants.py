@@ -579,14 +579,15 @@ def _conductance_rows(sc: Scenario, air, h_user):
     ``inverse`` maps each variant to its row.
     """
     air = np.asarray(air, float)
-    h = np.asarray(h_user, float)
+    # NaN (no user coefficient) -> -1: np.unique keeps every NaN apart
+    h = np.where(np.isfinite(h_user), np.asarray(h_user, float), -1.0)
     key = np.stack([air, h], axis=-1)
     uniq, inverse = np.unique(key, axis=0, return_inverse=True)
     pressure = _air_pressure(sc.ambient.altitude)
     # the chain's nodes, every row in one vectorized call
     t = np.linspace(uniq[:, 0] - 20.0, 523.15, 160, axis=-1)
     ta = np.broadcast_to(uniq[:, :1], t.shape)
-    free = ~np.isfinite(uniq[:, 1])
+    free = uniq[:, 1] < 0.0
     ua = np.empty(t.shape)
     if free.any():
         ua[free] = heat_transfer.reservoir_conductance(sc.reservoir, t[free], ta[free], pressure)
