@@ -125,6 +125,17 @@ def _blank() -> dict:
     return {k: no_update for k in OUTPUT_KEYS}
 
 
+def _visible(data: dict, tab, strategy):
+    """The one strategy to compute first, or None for all (see compute.NEEDS_ALL)."""
+    if tab is None or tab in compute.NEEDS_ALL:
+        return None
+    names = compute.strategy_names(data)
+    if strategy in names:
+        return strategy
+    present = (data.get("economics") or {}).get("present_strategy")
+    return present if present in names else None
+
+
 def _loaded(out: dict, scenario, data: dict, source: str, system: str) -> dict:
     form = state.render_form(data, system)
     out.update(store={"data": data, "source": source},
@@ -138,7 +149,8 @@ def _loaded(out: dict, scenario, data: dict, source: str, system: str) -> dict:
 
 
 def update_scenario(trigger, choice, upload_contents, upload_filename, system, phase_rows,
-                    actuator_rows, key_vals, store, results, examples: dict) -> dict:
+                    actuator_rows, key_vals, store, results, examples: dict, tab=None,
+                    strategy=None) -> dict:
     """The one state callback (see the module notes).
 
     Parameters
@@ -148,6 +160,11 @@ def update_scenario(trigger, choice, upload_contents, upload_filename, system, p
         'phase-table', 'actuator-table', a key field, or None (page load).
     examples : dict
         Choice value -> file path of the scenarios the server offers.
+    tab, strategy : str, optional
+        The tab in front and the strategy shown.  After an edit, a tab that
+        shows one strategy gets that strategy computed first (the results are
+        marked incomplete and :func:`complete_results` adds the rest when a
+        view needs them); ``None`` computes every strategy.
 
     Returns
     -------
@@ -199,31 +216,41 @@ def update_scenario(trigger, choice, upload_contents, upload_filename, system, p
     if canonical == data and results:
         return out                          # nothing that matters changed
     out["store"] = {"data": canonical, "source": source}
-    out["results"] = compute.compute_results(scenario, source=source)
+    out["results"] = compute.compute_results(scenario, source=source,
+                                             only=_visible(canonical, tab, strategy))
     return out
+
+
+def complete_results(results, tab, strategy, store):
+    """Every strategy's results once a view needs more than the one computed
+    first (``PreventUpdate`` when nothing is missing)."""
+    if not store or not compute.needs_completion(results, tab, strategy):
+        raise PreventUpdate
+    scenario = compute.scenario_of(store["data"])
+    return compute.compute_results(scenario, source=store.get("source"))
 
 
 # ---------------------------------------------------------------------------
 # views
 # ---------------------------------------------------------------------------
 
-def strategy_choices(results, current):
-    """Options of the strategy selector and the value to keep or pick."""
-    if not results:
+def strategy_choices(store, current):
+    """Options of the strategy selector (every strategy of the stored scenario)
+    and the value to keep, else the present circuit, else the first."""
+    if not store or not store.get("data"):
         raise PreventUpdate
-    comp = results["comparison"]
-    names = [r["label"] for r in comp["strategies"]]
+    data = store["data"]
+    names = compute.strategy_names(data)
     opts = [{"label": n, "value": n} for n in names]
     if current in names:
         return opts, current
-    present = comp["scenario"].get("present_strategy")
-    ranking = comp.get("ranking") or names
-    return opts, present if present in names else ranking[0]
+    present = (data.get("economics") or {}).get("present_strategy")
+    return opts, present if present in names else names[0]
 
 
 def payback_choices(results, base, candidate):
     """Options of the two payback selectors and their values."""
-    if not results:
+    if not results or not results.get("complete", True):
         raise PreventUpdate
     comp = results["comparison"]
     names = [r["label"] for r in comp["strategies"]]
@@ -248,7 +275,8 @@ def default_extra_price(results, base, candidate):
 
 def payback_view(results, base, candidate, extra_price, system):
     """Summary text and figure of the payback of *candidate* over *base*."""
-    if not results or base is None or candidate is None:
+    if (not results or not results.get("complete", True) or base is None
+            or candidate is None):
         raise PreventUpdate
     sav = results["savings"].get(base, {}).get(candidate)
     rec = figures.strategy_record(results, candidate)
@@ -431,14 +459,16 @@ def register(app, examples: dict) -> None:
                   State("upload", "filename"), Input("units", "value"),
                   Input("phase-table", "data"), Input("actuator-table", "data"),
                   Input({"type": "key", "index": ALL}, "value"),
-                  State("scenario-store", "data"), State("results-store", "data"))
+                  State("scenario-store", "data"), State("results-store", "data"),
+                  State("tabs", "value"), State("strategy-select", "value"))
     def _update(choice, contents, filename, system, phase_rows, actuator_rows, key_vals,
-                store, results):
+                store, results, tab, strategy):
         trig = ctx.triggered_id
         if isinstance(trig, dict):
             trig = "key"
         out = update_scenario(trig, choice, contents, filename, system, phase_rows,
-                              actuator_rows, key_vals, store, results, examples)
+                              actuator_rows, key_vals, store, results, examples,
+                              tab=tab, strategy=strategy)
         n = len(state.KEY_FIELDS)
         for k in ("key_values", "key_units", "key_errors"):
             if out[k] is no_update:
@@ -446,9 +476,16 @@ def register(app, examples: dict) -> None:
         return [out[k] for k in OUTPUT_KEYS]
 
     @app.callback(Output("strategy-select", "options"), Output("strategy-select", "value"),
-                  Input("results-store", "data"), State("strategy-select", "value"))
-    def _strategies(results, current):
-        return strategy_choices(results, current)
+                  Input("scenario-store", "data"), State("strategy-select", "value"))
+    def _strategies(store, current):
+        return strategy_choices(store, current)
+
+    @app.callback(Output("results-store", "data", allow_duplicate=True),
+                  Input("results-store", "data"), Input("tabs", "value"),
+                  Input("strategy-select", "value"), State("scenario-store", "data"),
+                  prevent_initial_call=True)
+    def _complete(results, tab, strategy, store):
+        return complete_results(results, tab, strategy, store)
 
     @app.callback(Output("headline", "children"), Input("results-store", "data"),
                   Input("strategy-select", "value"), Input("units", "value"))

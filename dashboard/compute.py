@@ -36,20 +36,47 @@ def plain(x):
     return x
 
 
-def compute_results(scenario, source=None) -> dict:
-    """Compare every strategy of *scenario* and return the stored results.
+#: Tabs whose content needs every strategy (the others show one at a time).
+NEEDS_ALL = ("comparison", "payback")
+
+
+def strategy_names(data: dict) -> list:
+    """Names of a stored scenario's strategies, in its order (label or kind)."""
+    return [s.get("label") or s["kind"] for s in data.get("strategies", [])]
+
+
+def compute_results(scenario, source=None, only=None) -> dict:
+    """Compare the strategies of *scenario* and return the stored results.
+
+    Parameters
+    ----------
+    only : str, optional
+        Compute just this strategy (the one in view); the results are then
+        marked ``complete: False`` and completed when a view needs the rest.
 
     Returns
     -------
     dict
         ``comparison`` (:func:`heatload.tables.comparison_dict`, with phases),
         ``savings`` ({baseline: {strategy: {energy_saving_kWh, cost_saving,
-        co2_saving_kg}}} for every baseline), ``name``.
+        co2_saving_kg}}} for every baseline; empty while incomplete), ``name``,
+        ``complete``.
     """
-    cmp = chain.compare(scenario)
-    savings = {o.name: tables.savings_against(cmp, o.name) for o in cmp.outcomes}
+    names = [s.name for s in scenario.strategies]
+    partial = only is not None and only in names and len(names) > 1
+    cmp = chain.compare(scenario, strategies=[only] if partial else None)
+    savings = ({} if partial else
+               {o.name: tables.savings_against(cmp, o.name) for o in cmp.outcomes})
     return plain({"comparison": tables.comparison_dict(cmp, source=source),
-                  "savings": savings, "name": scenario.name})
+                  "savings": savings, "name": scenario.name, "complete": not partial})
+
+
+def needs_completion(results: dict | None, tab: str | None, strategy: str | None) -> bool:
+    """Whether the view in front needs strategies the stored results lack."""
+    if not results or results.get("complete", True):
+        return False
+    have = {r["label"] for r in results["comparison"]["strategies"]}
+    return tab in NEEDS_ALL or (strategy is not None and strategy not in have)
 
 
 def scenario_of(data: dict, source: str = "dashboard"):

@@ -166,7 +166,11 @@ def comparison_table(results: dict, system: str):
             else:
                 cells.append(html.Td(r[key], className="num"))
         body.append(html.Tr(cells, **{"data-strategy": r["label"]}))
-    return html.Table([head, html.Tbody(body)], className="comparison", id="comparison-table")
+    table = html.Table([head, html.Tbody(body)], className="comparison", id="comparison-table")
+    if not results.get("complete", True):
+        return html.Div([html.Div("Only the strategy in view is computed yet; the others "
+                                  "follow when this view opens.", className="note"), table])
+    return table
 
 
 def headline(results: dict, strategy: str | None, system: str):

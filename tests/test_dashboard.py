@@ -351,9 +351,43 @@ def test_payback_arithmetic(base):
 
 
 def test_strategy_choice_defaults_to_the_present_circuit(base):
-    opts, value = callbacks.strategy_choices(base["results"], None)
+    opts, value = callbacks.strategy_choices(base["store"], None)
     assert len(opts) == 7 and value == "meter-in"
-    assert callbacks.strategy_choices(base["results"], "bleed-off")[1] == "bleed-off"
+    assert callbacks.strategy_choices(base["store"], "bleed-off")[1] == "bleed-off"
+
+
+def test_edit_on_a_one_strategy_tab_computes_that_strategy_first(base, examples):
+    from dash.exceptions import PreventUpdate
+
+    rows = _rows(base)
+    rows[2]["load"] = "115"
+    f = base["form"]
+    out = callbacks.update_scenario("phase-table", None, None, None, "si", rows,
+                                    f["actuator_rows"], f["key_values"], base["store"],
+                                    base["results"], examples, tab="energy",
+                                    strategy="load-sensing")
+    part = out["results"]
+    assert part["complete"] is False
+    assert [r["label"] for r in part["comparison"]["strategies"]] == ["load-sensing"]
+    # the views of one strategy are served; nothing more is needed there
+    with pytest.raises(PreventUpdate):
+        callbacks.complete_results(part, "energy", "load-sensing", out["store"])
+    # opening the comparison (or picking another strategy) completes the results
+    full = callbacks.complete_results(part, "comparison", "load-sensing", out["store"])
+    assert full["complete"] is True and len(full["comparison"]["strategies"]) == 7
+    again = callbacks.complete_results(part, "energy", "bleed-off", out["store"])
+    assert again["complete"] is True
+    # the strategy computed first equals its value in the full comparison
+    a = figures.strategy_record(part, "load-sensing")
+    b = figures.strategy_record(full, "load-sensing")
+    assert a["electric_energy_per_cycle_J"] == pytest.approx(b["electric_energy_per_cycle_J"],
+                                                             rel=1e-12)
+    ref = tables.comparison_dict(chain.compare(io.scenario_from_dict(out["store"]["data"])))
+    assert full["comparison"]["ranking"] == ref["ranking"]
+    with pytest.raises(PreventUpdate):
+        callbacks.complete_results(full, "comparison", "meter-in", out["store"])
+    with pytest.raises(PreventUpdate):      # the payback needs every strategy
+        callbacks.payback_view(part, "meter-in", "load-sensing", 100.0, "si")
 
 
 def test_downsample_keeps_extremes():
