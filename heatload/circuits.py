@@ -84,7 +84,8 @@ COUNTERBALANCE_FACTOR = 1.3
 
 _INFEASIBLE = -1e12  # "pressure" of a flow the pump cannot deliver [Pa]
 
-_ROOT_STEPS = 60  # Illinois steps at most (typically 8-15)
+_ROOT_STEPS = 60  # Illinois steps at most (typically 4-8)
+_ROOT_PRESSURE_TOL = 1e-7  # |residual| that counts as solved [Pa] (~1e-14 of the pressures)
 
 
 @dataclass
@@ -234,49 +235,85 @@ def _compensator_supply(q, c, setting, theoretical_flow):
 # the solve
 # ---------------------------------------------------------------------------
 
-def _root_flow(residual, c, q_hi, idx):
+class _Subset(dict):
+    """Entries of a circuit dict restricted to the elements *idx*, taken only
+    when a residual first reads them (most entries are never read)."""
+
+    def __init__(self, c, idx):
+        super().__init__()
+        self._c, self._idx, self._shape = c, idx, idx.shape
+
+    def __missing__(self, key):
+        v = self._c[key]
+        if isinstance(v, np.ndarray) and v.shape == self._shape:
+            v = v[self._idx]
+        self[key] = v
+        return v
+
+
+def _root_flow(residual, c, q_hi, idx, q_kink=None):
     """Root in q of a residual decreasing in q, with residual(0) >= 0 >
     residual(q_hi), for the elements *idx* only.
 
-    Vectorized Illinois (modified regula falsi): superlinear on the smooth
-    residuals here, and never leaves the bracket; ends with the bracket's
+    The supply characteristics have one corner (where the relief or the
+    compensator takes over from the pump's full flow); evaluating the
+    residual there first leaves a bracket on which it is smooth.  Then a
+    vectorized Illinois (modified regula falsi), superlinear, never leaving the
+    bracket; each element stops on its own once converged (so a result does
+    not depend on the other elements of a batch), ending on the bracket's
     feasible side (residual >= 0).
     """
-    sub = {k: (v[idx] if isinstance(v, np.ndarray) and v.shape == q_hi.shape else v)
-           for k, v in c.items()}
-    lo = np.zeros(idx.sum())
+    sub = _Subset(c, idx)
+    lo = np.zeros(int(idx.sum()))
     hi = q_hi[idx].copy()
     r_lo = residual(lo, sub)
     r_hi = residual(hi, sub)
+    if q_kink is not None:
+        k = np.broadcast_to(q_kink, idx.shape)[idx]
+        inside = (k > lo) & (k < hi)
+        if inside.any():
+            r_k = residual(np.where(inside, k, hi), sub)
+            up = inside & (r_k >= 0.0)
+            down = inside & (r_k < 0.0)
+            lo, r_lo = np.where(up, k, lo), np.where(up, r_k, r_lo)
+            hi, r_hi = np.where(down, k, hi), np.where(down, r_k, r_hi)
     side = np.zeros(lo.shape)
+    active = np.ones(lo.shape, dtype=bool)
     for _ in range(_ROOT_STEPS):
         with np.errstate(divide="ignore", invalid="ignore"):  # flat ends: bisect below
             q = (lo * r_hi - hi * r_lo) / (r_hi - r_lo)
         q = np.where(np.isfinite(q) & (q > lo) & (q < hi), q, 0.5 * (lo + hi))
         r = residual(q, sub)
-        pos = r >= 0.0
+        hit = active & (np.abs(r) <= _ROOT_PRESSURE_TOL)  # solved: keep q itself
+        lo = np.where(hit, q, lo)
+        active &= ~hit
+        pos = (r >= 0.0) & active
+        neg = (r < 0.0) & active
         # Illinois: halve the stale end's residual when the same end moves twice
         r_hi = np.where(pos & (side > 0), 0.5 * r_hi, r_hi)
-        r_lo = np.where(~pos & (side < 0), 0.5 * r_lo, r_lo)
+        r_lo = np.where(neg & (side < 0), 0.5 * r_lo, r_lo)
         lo, r_lo = np.where(pos, q, lo), np.where(pos, r, r_lo)
-        hi, r_hi = np.where(pos, hi, q), np.where(pos, r_hi, r)
-        side = np.where(pos, 1.0, -1.0)
-        if np.all(hi - lo <= 1e-12 * np.maximum(hi, 1e-12)):
+        hi, r_hi = np.where(neg, q, hi), np.where(neg, r, r_hi)
+        side = np.where(pos, 1.0, np.where(neg, -1.0, side))
+        active &= hi - lo > 1e-13 * np.maximum(hi, 1e-12)
+        if not active.any():
             break
     return lo
 
 
-def _solve_flow(residual, c, q_target):
+def _solve_flow(residual, c, q_target, q_kink=None):
     """Inlet flow reached: the set flow where the residual allows it, else the
     root of the residual (flow-limited), zero where even q = 0 fails (stall)."""
     q = q_target.copy()
-    short = residual(q_target, c) < 0.0
     moving = c["moving"]
-    short &= moving
-    stalled = moving & (residual(np.zeros_like(q_target), c) < 0.0)
+    short = moving & (residual(q_target, c) < 0.0)
+    stalled = np.zeros_like(short)
+    if short.any():
+        sub = _Subset(c, short)
+        stalled[short] = residual(np.zeros(int(short.sum())), sub) < 0.0
     need = short & ~stalled
     if need.any():
-        q[need] = _root_flow(residual, c, np.minimum(q_target, c["q_reach"]), need)
+        q[need] = _root_flow(residual, c, np.minimum(q_target, c["q_reach"]), need, q_kink)
     q[stalled] = 0.0
     q[~moving] = 0.0
     return q, short & ~stalled, stalled
@@ -370,7 +407,14 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     c["q_target_safe"] = np.where(q_target > 0, q_target, 1.0)
 
     residual = _strategy_residual(strategy)
-    q1, flow_limited, stalled = _solve_flow(residual, c, q_target)
+    # the corner of the supply characteristic: full pump flow at the relief
+    # (fixed pumps) or compensator setting (variable pumps)
+    leak0 = _leak_conductance(c)
+    if variable_pump:
+        q_kink = c["q_theoretical"] - leak0 * c["compensator"]
+    else:
+        q_kink = q_cap - leak0 * c["relief_cracking"]
+    q1, flow_limited, stalled = _solve_flow(residual, c, q_target, q_kink)
     full_flow = moving & ~np.isfinite(c["q_target"])
     flow_limited = flow_limited & ~full_flow
     q_target = np.where(full_flow, q1, q_target)

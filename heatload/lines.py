@@ -17,7 +17,7 @@ RE_LAMINAR = 2000.0
 #: Lower end of fully turbulent flow (Colebrook-White) [-].
 RE_TURBULENT = 4000.0
 
-_NEWTON_STEPS = 6
+_NEWTON_STEPS = 3  # quadratic from Swamee-Jain (~1 %): 1e-2 -> 1e-4 -> 1e-8 -> 1e-16
 
 
 def _out(value):
