@@ -26,7 +26,7 @@ from dash import ALL, Input, Output, State, ctx, html, no_update
 from dash.exceptions import PreventUpdate
 
 from dashboard import compute, figures, state
-from dashboard.layout import MAX_UPLOAD_BYTES
+from dashboard.layout import ACTIVE_CELL, MAX_UPLOAD_BYTES
 from heatload import chain, io, tables
 from heatload.errors import HeatloadError
 
@@ -110,8 +110,9 @@ def error_outputs(errors: list, phase_rows: list, actuator_rows: list) -> dict:
     if items:
         items.append(html.Li("The results shown are those of the last valid entry.",
                              className="caution"))
-    return {"phase_styles": styles["phases"], "phase_tooltips": tips["phases"],
-            "actuator_styles": styles["actuators"], "actuator_tooltips": tips["actuators"],
+    return {"phase_styles": list(ACTIVE_CELL) + styles["phases"],
+            "phase_tooltips": tips["phases"],
+            "actuator_styles": list(ACTIVE_CELL) + styles["actuators"], "actuator_tooltips": tips["actuators"],
             "key_errors": key_errors, "form_errors": items}
 
 

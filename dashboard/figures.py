@@ -65,9 +65,9 @@ def _c_to_k(c):
 
 def _layout(fig, title=None, height=420):
     fig.update_layout(template="plotly_white", font=FONT, height=height,
-                      margin=dict(l=70, r=20, t=50 if title else 20, b=50),
+                      margin=dict(l=70, r=20, t=50 if title else 20, b=60),
                       title=dict(text=title, x=0.01, font=dict(size=15)) if title else None,
-                      legend=dict(orientation="h", yanchor="bottom", y=1.02, x=0),
+                      legend=dict(orientation="h", yanchor="top", y=-0.16, x=0),
                       colorway=list(SERIES))
     return fig
 
@@ -342,7 +342,9 @@ def shift_figure(profiles: dict, system: str, title: str = ""):
                           annotation_text=label, annotation_position="top left")
     fig.update_xaxes(title_text="time from a cold start [h]")
     fig.update_yaxes(title_text=f"oil temperature [{tu}]")
-    return _layout(fig, title, height=460)
+    _layout(fig, title, height=480)
+    fig.update_layout(margin=dict(l=70, r=20, t=50, b=100))
+    return fig
 
 
 # ---------------------------------------------------------------------------
@@ -363,30 +365,41 @@ def histogram_figure(samples_w, percentiles: dict, system: str, title: str):
         fig.add_trace(go.Histogram(x=conv(np.asarray(samples_w, float), "power", system),
                                    nbinsx=40, marker_color=OKABE_ITO["blue"],
                                    name="samples", opacity=0.85))
-    for (k, v), color in zip(sorted((percentiles or {}).items()),
-                             (OKABE_ITO["orange"], OKABE_ITO["vermillion"],
-                              OKABE_ITO["purple"])):
+    for (k, v), color, pos in zip(sorted((percentiles or {}).items()),
+                                  (OKABE_ITO["orange"], OKABE_ITO["vermillion"],
+                                   OKABE_ITO["purple"]),
+                                  ("top left", "top right", "bottom right")):
         if v is None:
             continue
         fig.add_vline(x=float(conv(v, "power", system)), line=dict(color=color, dash="dash"),
-                      annotation_text=k, annotation_position="top")
+                      annotation_text=f"{k} {fmt(v, 'power', system)}",
+                      annotation_position=pos)
     fig.update_xaxes(title_text=f"cooler duty [{pu}]")
     fig.update_yaxes(title_text="samples [count]")
     return _layout(fig, title, height=360)
 
 
 def sensitivity_figure(rows: list, system: str, title: str):
-    """Inputs ranked by how far they move the cooler duty (tornado-style bars)."""
+    """Inputs ranked by how far they move the cooler duty: each bar spans the
+    duty with the input at its low and at its high bound (the others nominal)."""
     pu = _u("power", system)
-    names = [str(r.get("path", "?")) for r in rows][::-1]
-    swings = []
-    for r in rows[::-1]:
-        v = r.get("swing_W", r.get("swing"))
-        swings.append(float(conv(abs(v), "power", system)) if isinstance(v, (int, float))
-                      else 0.0)
-    fig = go.Figure(go.Bar(x=swings, y=names, orientation="h",
-                           marker_color=OKABE_ITO["orange"]))
-    fig.update_xaxes(title_text=f"swing of the cooler duty [{pu}]")
+    rows = rows[::-1]                       # largest swing on top
+    names, base, width = [], [], []
+    for r in rows:
+        lo, hi = r.get("cooler_duty_low_W"), r.get("cooler_duty_high_W")
+        if lo is None or hi is None:
+            sw = r.get("cooler_duty_swing_W", r.get("swing_W", r.get("swing")))
+            if not isinstance(sw, (int, float)):
+                continue
+            lo, hi = 0.0, abs(sw)
+        a, b = sorted((float(conv(lo, "power", system)), float(conv(hi, "power", system))))
+        names.append(str(r.get("path", "?")))
+        base.append(a)
+        width.append(max(b - a, 1e-9))
+    fig = go.Figure(go.Bar(x=width, base=base, y=names, orientation="h",
+                           marker_color=OKABE_ITO["orange"],
+                           hovertemplate="%{base:.4g} to %{x:.4g} wide<extra></extra>"))
+    fig.update_xaxes(title_text=f"cooler duty, input at its low and high bound [{pu}]")
     fig.update_yaxes(title_text="uncertain input", automargin=True)
     return _layout(fig, title, height=320)
 
@@ -395,16 +408,23 @@ def sensitivity_figure(rows: list, system: str, title: str):
 # payback
 # ---------------------------------------------------------------------------
 
+def payback_horizon(payback: float) -> float:
+    """Years shown: about three paybacks, 2 to 20 years (10 when it never pays back)."""
+    if not np.isfinite(payback):
+        return 10.0
+    return float(min(max(np.ceil(3.0 * payback), 2.0), 20.0))
+
+
 def payback_figure(extra_price: float, yearly_saving: float, payback: float,
-                   currency: str, candidate: str, baseline: str, years: int = 15):
+                   currency: str, candidate: str, baseline: str):
     """Cumulative net saving of *candidate* over *baseline*: saving x years minus
     the extra price."""
-    y = np.arange(0, years + 1, dtype=float)
+    y = np.linspace(0.0, payback_horizon(payback), 121)
     net = yearly_saving * y - extra_price
-    fig = go.Figure(go.Scatter(x=y, y=net, mode="lines+markers", name="cumulative net saving",
-                               line=dict(color=OKABE_ITO["green"], width=2)))
+    fig = go.Figure(go.Scatter(x=y, y=net, mode="lines", name="cumulative net saving",
+                               line=dict(color=OKABE_ITO["green"], width=2.5)))
     fig.add_hline(y=0.0, line=dict(color=OKABE_ITO["black"], width=1))
-    if np.isfinite(payback) and payback <= years:
+    if np.isfinite(payback):
         fig.add_vline(x=float(payback), line=dict(color=OKABE_ITO["vermillion"], dash="dash"),
                       annotation_text=f"payback {payback:.1f} years",
                       annotation_position="top right")

@@ -15,6 +15,10 @@ CAUTION = ("Estimates for early design. Component makers' data, the machine-safe
 
 MAX_UPLOAD_BYTES = 1_000_000
 
+#: The cell being edited: a blue frame (the table's default pink would read as an error).
+ACTIVE_CELL = ({"if": {"state": "active"}, "backgroundColor": "#e8f1fa",
+                "border": "1px solid #0072B2"},)
+
 CSS = """
 :root { --ink:#1f2933; --muted:#52606d; --line:#d9dee3; --bg:#f5f7f9; --accent:#0072B2;
         --bad:#D55E00; }
@@ -47,7 +51,8 @@ body { margin:0; font-family: Inter, "Segoe UI", Roboto, Helvetica, Arial, sans-
 .tile-value { font-size:20px; font-weight:600; font-variant-numeric: tabular-nums; }
 .panel { background:#fff; border:1px solid var(--line); border-top:0; padding:12px 14px; }
 .grid2 { display:grid; grid-template-columns: minmax(0,3fr) minmax(260px,1fr); gap:14px; }
-@media (max-width: 1100px) { .grid2 { grid-template-columns: 1fr; } }
+.grid2.even { grid-template-columns: minmax(0,1fr) minmax(0,1fr); }
+@media (max-width: 1100px) { .grid2, .grid2.even { grid-template-columns: 1fr; } }
 h3 { font-size:15px; margin:6px 0 8px; }
 .keys { display:grid; grid-template-columns: 1fr 110px 64px; gap:4px 8px; align-items:center; }
 .keys input { width:100%; padding:4px 6px; border:1px solid #bcccdc; border-radius:3px;
@@ -80,6 +85,7 @@ def _table(id_, columns, rows, dropdown=None, deletable=False):
     return dash_table.DataTable(
         id=id_, columns=columns, data=rows, editable=True, row_deletable=deletable,
         dropdown=dropdown or {}, style_table={"overflowX": "auto"},
+        style_data_conditional=list(ACTIVE_CELL),
         style_header={"backgroundColor": "#eef2f6", "fontWeight": "600",
                       "whiteSpace": "normal", "height": "auto", "fontSize": "12px"},
         style_cell={"fontFamily": "Inter, 'Segoe UI', Roboto, Arial, sans-serif",
@@ -156,6 +162,7 @@ def make_layout(initial: dict):
                 html.Div("Numbers are in the units of the headers; a number with its own "
                          "unit (e.g. '110 kN') is accepted too. 'full' speed = the whole "
                          "pump flow.", className="caution"),
+                html.Ul(id="form-errors", className="form-errors"),
                 _table("phase-table", form["phase_columns"], form["phase_rows"],
                        dropdown=phase_dropdown, deletable=True),
                 html.H3("actuators", style={"marginTop": "16px"}),
@@ -163,7 +170,6 @@ def make_layout(initial: dict):
             ]),
             html.Div([html.H3("power unit, tank, site"), _keys_block(form)]),
         ], className="grid2"),
-        html.Ul(id="form-errors", className="form-errors"),
     ])
     tabs = dcc.Tabs(id="tabs", value="cycle", parent_className="tabs-row", children=[
         dcc.Tab(label="Cycle and machine", value="cycle",
@@ -193,7 +199,7 @@ def make_layout(initial: dict):
                                                       className="btn", n_clicks=0)],
                                          className="row"),
                                 dcc.Loading(html.Div(id="mc-out"))])],
-                     className="grid2")], className="panel")),
+                     className="grid2 even")], className="panel")),
         dcc.Tab(label="Payback", value="payback", children=html.Div([
             html.Div([
                 html.Div([html.Label("present circuit", htmlFor="pay-base"),

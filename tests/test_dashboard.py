@@ -46,6 +46,12 @@ def _edit(base, examples, rows=None, keys=None, system="si", store=None, results
         store or base["store"], results or base["results"], examples)
 
 
+def _flagged(styles):
+    """The (row, column) cells an error style marks (the active-cell style aside)."""
+    return [(st["if"]["row_index"], st["if"]["column_id"]) for st in styles
+            if "row_index" in st["if"]]
+
+
 def _rows(base):
     return [dict(r) for r in base["form"]["phase_rows"]]
 
@@ -150,8 +156,7 @@ def test_invalid_value_is_flagged_at_its_cell_and_results_stay(base, examples):
     rows[2]["speed"] = "12 kg"
     out = _edit(base, examples, rows)
     assert out["results"] is no_update and out["store"] is no_update
-    style = out["phase_styles"]
-    assert style and style[0]["if"] == {"row_index": 2, "column_id": "speed"}
+    assert _flagged(out["phase_styles"]) == [(2, "speed")]
     tip = out["phase_tooltips"][2]["speed"]["value"]
     assert "expected a velocity" in tip and "12 kg" in tip
     text = " ".join(str(li.children) for li in out["form_errors"])
@@ -164,7 +169,7 @@ def test_unparsable_speeds_are_refused(base, examples, text):
     rows[1]["speed"] = text
     out = _edit(base, examples, rows)
     assert out["results"] is no_update
-    assert out["phase_styles"][0]["if"]["row_index"] == 1
+    assert _flagged(out["phase_styles"]) == [(1, "speed")]
 
 
 def test_validation_errors_from_the_engine_reach_the_field(base, examples):
@@ -172,7 +177,7 @@ def test_validation_errors_from_the_engine_reach_the_field(base, examples):
     rows[2]["motion"] = "fly"
     out = _edit(base, examples, rows)
     assert out["results"] is no_update
-    assert out["phase_styles"][0]["if"]["row_index"] == 2
+    assert [r for r, _ in _flagged(out["phase_styles"])] == [2]
 
 
 def test_key_number_error_and_fix(base, examples):
@@ -335,7 +340,18 @@ def test_cooler_view(base):
 
 def test_uncertainty_view_runs_or_says_why(base):
     out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
-    assert out.id in ("mc-result", "mc-note")
+    unc = callbacks.optional_module("uncertainty")
+    if unc is None:
+        assert out.id == "mc-note" and "heatload.uncertainty" in str(out)
+        return
+    assert out.id == "mc-result"
+    hist, tornado = (g.figure for g in out.children)
+    sc = base["scenario"]
+    mc = unc.monte_carlo(sc, sc.strategy("load-sensing"), samples=200, seed=1)
+    assert len(hist.data[0].x) == 200
+    assert np.sort(hist.data[0].x) == pytest.approx(np.sort(mc.cooler_duty) / 1e3)   # kW
+    assert hist.layout.xaxis.title.text == "cooler duty [kW]"
+    assert len(tornado.data[0].y) == len(sc.uncertainty)
 
 
 def test_payback_arithmetic(base):
@@ -345,8 +361,10 @@ def test_payback_arithmetic(base):
     assert saving > 0
     years = 3000.0 / saving                       # simple payback: price / yearly saving
     assert f"{years:.1f} years" in text.children
-    assert fig.data[0].y[0] == -3000.0
-    assert fig.data[0].y[5] == pytest.approx(5 * saving - 3000.0)
+    x, y = np.asarray(fig.data[0].x), np.asarray(fig.data[0].y)
+    assert y[0] == -3000.0
+    assert y == pytest.approx(saving * x - 3000.0)
+    assert np.interp(0.0, y, x) == pytest.approx(years, rel=1e-9)   # crosses zero at payback
     assert callbacks.default_extra_price(res, "meter-in", "load-sensing") == 2800.0
 
 
