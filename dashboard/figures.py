@@ -188,10 +188,13 @@ def headline(results: dict, strategy: str | None, system: str):
         ("energy cost per year", "–" if r["cost_per_year"] is None else
          f"{r['cost_per_year']:,.0f} {r.get('currency') or ''}"),
     ]
-    return [html.Div([html.Div(label, className="tile-label"),
-                      html.Div(value, className="tile-value",
-                               id=f"tile-{i}")], className="tile")
-            for i, (label, value) in enumerate(tiles)]
+    name = html.Div([html.Div("strategy shown", className="tile-label"),
+                     html.Div(r["label"], className="tile-value", id="tile-strategy")],
+                    className="tile strategy")
+    return [name] + [html.Div([html.Div(label, className="tile-label"),
+                               html.Div(value, className="tile-value", id=f"tile-{i}")],
+                              className="tile")
+                     for i, (label, value) in enumerate(tiles)]
 
 
 # ---------------------------------------------------------------------------

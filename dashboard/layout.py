@@ -47,6 +47,7 @@ body { margin:0; font-family: Inter, "Segoe UI", Roboto, Helvetica, Arial, sans-
 .tabs-row .tab { padding:7px 10px !important; line-height:20px; }
 .tile { background:#fff; border:1px solid var(--line); border-left:4px solid var(--accent);
         border-radius:5px; padding:6px 12px; min-width:170px; flex:1 1 170px; }
+.tile.strategy { border-left-color:#009E73; background:#f3faf7; }
 .tile-label { font-size:11px; color:var(--muted); text-transform:uppercase; }
 .tile-value { font-size:20px; font-weight:600; font-variant-numeric: tabular-nums; }
 .panel { background:#fff; border:1px solid var(--line); border-top:0; padding:12px 14px; }

@@ -219,8 +219,9 @@ def test_units_toggle_changes_headers_and_values(base, examples):
     assert out["key_units"][3] == "psi"
     assert out["results"] is no_update    # a change of display only
     assert "°F" in figures.comparison_rows(base["results"], "us")[0]["steady"]
-    tiles = figures.headline(base["results"], None, "us")
-    assert "Btu" in tiles[0].children[1].children
+    tiles = figures.headline(base["results"], "meter-in", "us")
+    assert tiles[0].children[1].children == "meter-in"
+    assert "Btu" in tiles[1].children[1].children
 
 
 # ---------------------------------------------------------------------------
