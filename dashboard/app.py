@@ -61,6 +61,7 @@ def make_app(scenario_path=None) -> Dash:
     app = Dash(__name__, title="heatload dashboard", update_title=None,
                suppress_callback_exceptions=False, serve_locally=True)
     app.index_string = layout.INDEX
+    app.server.config["MAX_CONTENT_LENGTH"] = layout.MAX_REQUEST_BYTES
     # a function: every page load starts a fresh session from the opened file
     app.layout = lambda: layout.make_layout(initial)
     callbacks.register(app, examples)

@@ -140,7 +140,8 @@ def _visible(data: dict, tab, strategy):
 def _loaded(out: dict, scenario, data: dict, source: str, system: str) -> dict:
     form = state.render_form(data, system)
     out.update(store={"data": data, "source": source},
-               results=compute.compute_results(scenario, source=source),
+               results=compute.compute_results(scenario, source=source,
+                                               key=compute.scenario_key(data)),
                phase_rows=form["phase_rows"], phase_columns=form["phase_columns"],
                actuator_rows=form["actuator_rows"], actuator_columns=form["actuator_columns"],
                key_values=form["key_values"], key_units=form["key_units"],
@@ -218,17 +219,23 @@ def update_scenario(trigger, choice, upload_contents, upload_filename, system, p
         return out                          # nothing that matters changed
     out["store"] = {"data": canonical, "source": source}
     out["results"] = compute.compute_results(scenario, source=source,
-                                             only=_visible(canonical, tab, strategy))
+                                             only=_visible(canonical, tab, strategy),
+                                             key=compute.scenario_key(canonical))
     return out
 
 
 def complete_results(results, tab, strategy, store):
     """Every strategy's results once a view needs more than the one computed
-    first (``PreventUpdate`` when nothing is missing)."""
-    if not store or not compute.needs_completion(results, tab, strategy):
+    first, or when the stored results belong to an older scenario (a late
+    answer); ``PreventUpdate`` when nothing is missing."""
+    if not store or not store.get("data"):
+        raise PreventUpdate
+    stale = bool(results) and not compute.matches(results, store)
+    if not stale and not compute.needs_completion(results, tab, strategy):
         raise PreventUpdate
     scenario = compute.scenario_of(store["data"])
-    return compute.compute_results(scenario, source=store.get("source"))
+    return compute.compute_results(scenario, source=store.get("source"),
+                                   key=compute.scenario_key(store["data"]))
 
 
 # ---------------------------------------------------------------------------
@@ -488,32 +495,36 @@ def register(app, examples: dict) -> None:
     def _complete(results, tab, strategy, store):
         return complete_results(results, tab, strategy, store)
 
-    @app.callback(Output("headline", "children"), Input("results-store", "data"),
-                  Input("strategy-select", "value"), Input("units", "value"))
-    def _headline(results, strategy, system):
-        if not results:
+    def current(results, store):
+        # a late answer for an older scenario is never shown (completion replaces it)
+        if not compute.matches(results, store):
             raise PreventUpdate
+
+    @app.callback(Output("headline", "children"), Input("results-store", "data"),
+                  Input("strategy-select", "value"), Input("units", "value"),
+                  State("scenario-store", "data"))
+    def _headline(results, strategy, system, store):
+        current(results, store)
         return figures.headline(results, strategy, system)
 
     @app.callback(Output("comparison", "children"), Input("results-store", "data"),
-                  Input("units", "value"))
-    def _comparison(results, system):
-        if not results:
-            raise PreventUpdate
+                  Input("units", "value"), State("scenario-store", "data"))
+    def _comparison(results, system, store):
+        current(results, store)
         return figures.comparison_table(results, system)
 
     @app.callback(Output("sankey", "figure"), Input("results-store", "data"),
-                  Input("strategy-select", "value"), Input("units", "value"))
-    def _sankey(results, strategy, system):
-        if not results:
-            raise PreventUpdate
+                  Input("strategy-select", "value"), Input("units", "value"),
+                  State("scenario-store", "data"))
+    def _sankey(results, strategy, system, store):
+        current(results, store)
         return figures.sankey_figure(results, strategy, system)
 
     @app.callback(Output("cycle-graph", "figure"), Input("results-store", "data"),
-                  Input("strategy-select", "value"), Input("units", "value"))
-    def _cycle(results, strategy, system):
-        if not results:
-            raise PreventUpdate
+                  Input("strategy-select", "value"), Input("units", "value"),
+                  State("scenario-store", "data"))
+    def _cycle(results, strategy, system, store):
+        current(results, store)
         return figures.cycle_figure(results, strategy, system)
 
     @app.callback(Output("shift-graph", "figure"), Output("shift-note", "children"),
@@ -560,8 +571,9 @@ def register(app, examples: dict) -> None:
     @app.callback(Output("pay-summary", "children"), Output("pay-graph", "figure"),
                   Input("results-store", "data"), Input("pay-base", "value"),
                   Input("pay-candidate", "value"), Input("pay-price", "value"),
-                  Input("units", "value"))
-    def _payback(results, base, candidate, price, system):
+                  Input("units", "value"), State("scenario-store", "data"))
+    def _payback(results, base, candidate, price, system, store):
+        current(results, store)
         return payback_view(results, base, candidate, price, system)
 
     @app.callback(Output("download-toml", "data"), Input("download-toml-btn", "n_clicks"),

@@ -10,6 +10,8 @@ sizing) rebuild the one strategy they show from the stored scenario.
 
 from __future__ import annotations
 
+import hashlib
+import json
 import math
 
 import numpy as np
@@ -45,7 +47,7 @@ def strategy_names(data: dict) -> list:
     return [s.get("label") or s["kind"] for s in data.get("strategies", [])]
 
 
-def compute_results(scenario, source=None, only=None) -> dict:
+def compute_results(scenario, source=None, only=None, key=None) -> dict:
     """Compare the strategies of *scenario* and return the stored results.
 
     Parameters
@@ -53,6 +55,8 @@ def compute_results(scenario, source=None, only=None) -> dict:
     only : str, optional
         Compute just this strategy (the one in view); the results are then
         marked ``complete: False`` and completed when a view needs the rest.
+    key : str, optional
+        :func:`scenario_key` of the stored scenario dict, kept with the results.
 
     Returns
     -------
@@ -68,7 +72,24 @@ def compute_results(scenario, source=None, only=None) -> dict:
     savings = ({} if partial else
                {o.name: tables.savings_against(cmp, o.name) for o in cmp.outcomes})
     return plain({"comparison": tables.comparison_dict(cmp, source=source),
-                  "savings": savings, "name": scenario.name, "complete": not partial})
+                  "savings": savings, "name": scenario.name, "complete": not partial,
+                  "key": key})
+
+
+def scenario_key(data: dict) -> str:
+    """A digest of a stored scenario dict: results carry the key of the
+    scenario they were computed from, so a late answer for an older edit is
+    recognised and never shown as the current one."""
+    text = json.dumps(data, sort_keys=True, ensure_ascii=True, default=str)
+    return hashlib.sha256(text.encode()).hexdigest()[:24]
+
+
+def matches(results: dict | None, store: dict | None) -> bool:
+    """Whether *results* were computed from the scenario in *store*."""
+    if not results or not store or "data" not in store:
+        return False
+    key = results.get("key")
+    return key is None or key == scenario_key(store["data"])
 
 
 def needs_completion(results: dict | None, tab: str | None, strategy: str | None) -> bool:

@@ -13,7 +13,11 @@ CAUTION = ("Estimates for early design. Component makers' data, the machine-safe
            "standards for hydraulic systems, local codes and licensed engineering "
            "practice govern the final design and selection.")
 
+#: Largest duty-cycle file accepted; a larger one is refused with a message
+#: by the server (the browser's own size filter would drop it silently).
 MAX_UPLOAD_BYTES = 1_000_000
+#: Bound on any request the server reads (uploads travel base64-encoded).
+MAX_REQUEST_BYTES = 16 * 1024 * 1024
 
 #: The cell being edited: a blue frame (the table's default pink would read as an error).
 ACTIVE_CELL = ({"if": {"state": "active"}, "backgroundColor": "#e8f1fa",
@@ -132,8 +136,8 @@ def make_layout(initial: dict):
                                style={"minWidth": "220px"})], className="ctl"),
         html.Div([html.Span("or open a file", className="lab"),
                   dcc.Upload(id="upload", children=html.Div("drop or choose a .toml file"),
-                             className="upload", multiple=False, accept=".toml",
-                             max_size=MAX_UPLOAD_BYTES)], className="ctl"),
+                             className="upload", multiple=False, accept=".toml")],
+                 className="ctl"),
         html.Div([html.Span("units", className="lab"),
                   dcc.RadioItems(id="units", value=system, inline=True,
                                  options=[{"label": " SI ", "value": "si"},

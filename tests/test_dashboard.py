@@ -409,6 +409,21 @@ def test_edit_on_a_one_strategy_tab_computes_that_strategy_first(base, examples)
         callbacks.payback_view(part, "meter-in", "load-sensing", 100.0, "si")
 
 
+def test_a_late_answer_for_an_older_scenario_is_replaced(base, examples):
+    rows = _rows(base)
+    rows[2]["load"] = "111"
+    out = _edit(base, examples, rows)
+    assert compute.matches(out["results"], out["store"])
+    # results of the scenario before the edit arrive after it: recognised as stale
+    old = dict(base["results"], key=compute.scenario_key(base["data"]))
+    assert not compute.matches(old, out["store"])
+    fresh = callbacks.complete_results(old, "energy", "meter-in", out["store"])
+    assert compute.matches(fresh, out["store"])
+    assert figures.strategy_record(fresh, "meter-in")["useful_energy_per_cycle_J"] == \
+        pytest.approx(figures.strategy_record(out["results"], "meter-in")
+                      ["useful_energy_per_cycle_J"], rel=1e-12)
+
+
 def test_downsample_keeps_extremes():
     t = np.linspace(0, 10, 20001)
     v = np.sin(7 * t) + 0.01 * t
