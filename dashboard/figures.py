@@ -281,12 +281,16 @@ def cycle_figure(results: dict, strategy: str | None, system: str):
     pu, qu, wu = _u("pressure", system), _u("flow", system), _u("power", system)
     fig = make_subplots(rows=3, cols=1, shared_xaxes=True, vertical_spacing=0.06)
 
+    phase_names = [p["phase"] for p in ph]
+    phase_names = phase_names + phase_names[-1:]
+
     def trace(row, key, kind, name, color, dash=None):
         vals = [conv(p[key], kind, system) if p[key] is not None else None for p in ph]
         t, v = _steps(dur, vals)
         fig.add_trace(go.Scatter(x=t, y=v, name=name, mode="lines", line_shape="hv",
                                  line=dict(color=color, width=2, dash=dash),
-                                 legendgroup=str(row)), row=row, col=1)
+                                 customdata=phase_names, legendgroup=str(row)),
+                      row=row, col=1)
 
     trace(1, "pump_pressure_Pa", "pressure", "pump pressure", OKABE_ITO["blue"])
     trace(1, "cap_pressure_Pa", "pressure", "cap side", OKABE_ITO["orange"])
@@ -304,7 +308,7 @@ def cycle_figure(results: dict, strategy: str | None, system: str):
     fig.update_yaxes(title_text=f"pressure [{pu}]", row=1, col=1, rangemode="tozero")
     fig.update_yaxes(title_text=f"flow [{qu}]", row=2, col=1, rangemode="tozero")
     fig.update_yaxes(title_text=f"power [{wu}]", row=3, col=1, rangemode="tozero")
-    fig.update_traces(hovertemplate="%{y:.4g}<extra>%{fullData.name}</extra>")
+    fig.update_traces(hovertemplate="%{customdata}: %{y:.4g}<extra>%{fullData.name}</extra>")
     _layout(fig, f"{r['label']}: one cycle of {units.format_number(sum(dur), 3)} s "
                  "(phases as steps)", height=640)
     fig.update_layout(hovermode="x unified", margin=dict(l=70, r=170, t=50, b=50),

@@ -35,7 +35,7 @@ body { margin:0; font-family: Inter, "Segoe UI", Roboto, Helvetica, Arial, sans-
 .brand h1 { font-size:19px; margin:0; letter-spacing:.2px; }
 .brand .sub { color:var(--muted); font-size:12px; }
 .ctl { display:flex; flex-direction:column; gap:3px; }
-.ctl label, .ctl .lab { font-size:11px; color:var(--muted); text-transform:uppercase;
+.ctl > label, .ctl > .lab { font-size:11px; color:var(--muted); text-transform:uppercase;
                         letter-spacing:.4px; }
 .upload { border:1px dashed #9aa5b1; border-radius:4px; padding:6px 10px; cursor:pointer;
           background:#fafbfc; font-size:13px; }

@@ -256,9 +256,16 @@ def key_values(data: dict, system: str) -> list:
     return [display_text(_get(data, f.path), f.kind, system) for f in KEY_FIELDS]
 
 
-def key_units(system: str) -> list:
-    """The unit shown beside each key number."""
-    return [unit_label(f.kind, system) or f.unit_note for f in KEY_FIELDS]
+def key_units(system: str, data: dict | None = None) -> list:
+    """The unit shown beside each key number (prices per kWh in the scenario's currency)."""
+    currency = ((data or {}).get("economics") or {}).get("currency") or ""
+    out = []
+    for f in KEY_FIELDS:
+        if f.kind == "specific_energy_price":
+            out.append(f"{currency}/kWh".strip())
+        else:
+            out.append(unit_label(f.kind, system) or f.unit_note)
+    return out
 
 
 def render_form(data: dict, system: str) -> dict:
@@ -269,7 +276,7 @@ def render_form(data: dict, system: str) -> dict:
         "actuator_rows": table_rows(ACTUATOR_COLUMNS, data, system, "actuators"),
         "actuator_columns": table_columns(ACTUATOR_COLUMNS, data, system, "actuators"),
         "key_values": key_values(data, system),
-        "key_units": key_units(system),
+        "key_units": key_units(system, data),
     }
 
 

@@ -167,3 +167,36 @@ def test_bad_upload_refused_and_download_loads_back(dash_duo, tmp_path):
     ref = io.load_scenario(io.default_scenario_path())
     assert sc.phases[:3] == ref.phases[:3] and sc.phases[4:] == ref.phases[4:]
     assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
+def test_example_choice_and_report_download(dash_duo):
+    _start(dash_duo)
+    dash_duo.find_element("#scenario-select").click()
+    option = next(o for o in dash_duo.find_elements(".dash-dropdown-option")
+                  if o.text.strip().lower() == "platform lift (example)")
+    option.click()
+    dash_duo.wait_for_contains_text("#source-label", "platform_lift.toml", timeout=30)
+    from heatload import io
+
+    lift = io.load_scenario(io.default_scenario_path().parent / "platform_lift.toml")
+    end = time.time() + 20
+    while time.time() < end and len(dash_duo.find_elements(
+            "#phase-table tr td[data-dash-column='name']")) != len(lift.phases):
+        time.sleep(0.2)
+    names = [c.text for c in dash_duo.find_elements("#phase-table td[data-dash-column='name']")]
+    assert names == [p.name for p in lift.phases]
+    dash_duo.driver.execute_cdp_cmd("Page.setDownloadBehavior",
+                                    {"behavior": "allow",
+                                     "downloadPath": dash_duo.download_path})
+    dash_duo.find_element("#download-report-btn").click()
+    folder = Path(dash_duo.download_path)
+    end = time.time() + 60
+    found = []
+    while not found and time.time() < end:
+        found = [p for p in folder.glob("*_report.html")]
+        time.sleep(0.3)
+    assert found, list(folder.iterdir())
+    time.sleep(0.5)
+    text = found[0].read_text(encoding="utf-8")
+    assert "<html" in text.lower() and lift.name in text
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
