@@ -274,10 +274,7 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
         c_op = cycle.circuit_inputs(scenario, strategy, t_op, phases=pa)
         warns += checks.speed_drift_warnings(circuits.bleed_off_speed_change(c_op, res_op),
                                              scenario, pa)
-    warns += checks.temperature_warnings(scenario, t_c, "steady (no cooler)")
-    if t_op != t_c:
-        warns += [w for w in checks.temperature_warnings(scenario, t_op, "operating")
-                  if w.code == "viscosity-window"]
+    warns += checks.thermal_warnings(scenario, t_c, t_op, duty)
     return StrategyOutcome(strategy=strategy, circuit=res_op,
                            energy=energy.summarize(res_op, scenario.economics),
                            circuit_uncoupled=res_u,

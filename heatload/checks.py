@@ -111,9 +111,11 @@ def speed_drift_warnings(change, scenario, pa) -> list:
     out = []
     for i, ph in enumerate(scenario.phases):
         if pa["moving"][i] and abs(change[i]) > SPEED_DRIFT_LIMIT:
+            what = ("the actuator stalls" if change[i] <= -0.999
+                    else f"speed changes {100 * change[i]:+.0f} %")
             out.append(Warning_("speed-drift", ph.name, float(change[i]), SPEED_DRIFT_LIMIT,
-                                f"speed changes {100 * change[i]:+.0f} % when the load rises "
-                                f"10 %: a bleed-off speed follows the load"))
+                                f"{what} when the load rises 10 %: a bleed-off speed "
+                                f"follows the load"))
     return out
 
 
@@ -135,4 +137,40 @@ def temperature_warnings(scenario, oil_temperature: float, label: str = "steady"
                             f"viscosity {nu * 1e6:.1f} mm²/s at {label} "
                             f"{oil_temperature - 273.15:.0f} °C outside the pump's window "
                             f"{pump.viscosity_min * 1e6:.0f}-{pump.viscosity_max * 1e6:.0f} mm²/s"))
+    return out
+
+
+def thermal_warnings(scenario, steady_no_cooler: float, operating: float,
+                     cooler_duty: float) -> list:
+    """The temperature warnings of one strategy.
+
+    - ``oil-temperature``: without a cooler the oil would settle above the
+      fluid's limit (with the sized cooler's duty when one is needed);
+    - ``viscosity-window``: the viscosity at the *operating* temperature (the
+      coupled one, or the design temperature the sized cooler holds), or at the
+      cold start, lies outside the pump's allowed window.
+    """
+    from heatload import oil
+
+    out = []
+    fluid = scenario.fluid
+    pump = scenario.power_unit.pump
+    limit = fluid.temperature_max
+    if steady_no_cooler > limit:
+        tail = (f": a cooler is needed ({cooler_duty / 1e3:.2f} kW sized)" if cooler_duty > 0
+                else "")
+        out.append(Warning_("oil-temperature", None, steady_no_cooler, limit,
+                            f"without a cooler the oil would settle at "
+                            f"{steady_no_cooler - 273.15:.0f} °C, above the fluid's limit "
+                            f"{limit - 273.15:.0f} °C{tail}"))
+    for t, label in ((operating, "running"),
+                     (scenario.ambient.cold_start_temperature, "cold start")):
+        nu = float(oil.kinematic_viscosity(fluid, t))
+        if nu < pump.viscosity_min or nu > pump.viscosity_max:
+            edge = pump.viscosity_min if nu < pump.viscosity_min else pump.viscosity_max
+            out.append(Warning_("viscosity-window", None, nu, edge,
+                                f"viscosity {nu * 1e6:.1f} mm²/s at {label} "
+                                f"({t - 273.15:.0f} °C) outside the pump's window "
+                                f"{pump.viscosity_min * 1e6:.0f}-{pump.viscosity_max * 1e6:.0f} "
+                                f"mm²/s"))
     return out

@@ -32,12 +32,13 @@ class HeatloadError(ValueError):
         super().__init__(self.one_line())
 
     def one_line(self) -> str:
-        """The error as one line: ``file:line: field: message``."""
+        """The error as one line: ``file:line: field: message`` (control
+        characters a user's key or value may carry are shown escaped)."""
         where = ""
         if self.file:
             where = f"{self.file}:{self.line}: " if self.line else f"{self.file}: "
         field = f"{self.field}: " if self.field else ""
-        return f"{where}{field}{self.message}"
+        return _printable(f"{where}{field}{self.message}")
 
     def located(self, file: str | None = None, line: int | None = None,
                 field_prefix: str | None = None) -> "HeatloadError":
@@ -48,6 +49,11 @@ class HeatloadError(ValueError):
         return HeatloadError(self.message, field=field,
                              file=file if file is not None else self.file,
                              line=line if line is not None else self.line)
+
+
+def _printable(text: str) -> str:
+    return "".join(ch if ch.isprintable() else ch.encode("unicode_escape").decode("ascii")
+                   for ch in text)
 
 
 def require(condition, message: str, field: str | None = None) -> None:

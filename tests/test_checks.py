@@ -115,3 +115,19 @@ def test_warning_as_dict():
               "meter-in")[0]
     d = w.as_dict()
     assert set(d) == {"code", "phase", "value", "limit", "message"}
+
+
+def test_thermal_warnings_at_running_and_cold_start():
+    # VG 46 by D341 through the model's default datasheet points (ASTM D341):
+    # about 7 mm^2/s at 100 degC and several hundred mm^2/s at -10 degC
+    from heatload import model as m
+    sc = m.Scenario("t", (m.Phase("i", None, "idle", duration=1.0),), (),
+                    (m.Strategy("meter-in"),),
+                    power_unit=m.PowerUnit(pump=m.Pump(viscosity_min=10e-6, viscosity_max=300e-6)),
+                    ambient=m.Ambient(cold_start_temperature=263.15))
+    ws = checks.thermal_warnings(sc, steady_no_cooler=373.15, operating=328.15, cooler_duty=5e3)
+    assert _codes(ws) == {"oil-temperature", "viscosity-window"}
+    assert "a cooler is needed" in ws[0].message
+    assert all("cold start" in w.message for w in ws if w.code == "viscosity-window")
+    calm = checks.thermal_warnings(sc, 323.15, 323.15, 0.0)   # 50 degC: inside the window
+    assert [w.message.split(" at ")[1][:10] for w in calm] == ["cold start"]

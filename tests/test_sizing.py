@@ -10,6 +10,8 @@ import sys
 import numpy as np
 import pytest
 
+import heatload
+
 from heatload import chain, io, sizing
 from heatload.cli import main
 from heatload.errors import HeatloadError
@@ -232,7 +234,8 @@ def _run(argv):
 
 
 def test_cli_json_and_text(monkeypatch):
-    monkeypatch.setitem(sys.modules, "heatload.uncertainty", None)  # fast; tested below
+    monkeypatch.setitem(sys.modules, "heatload.uncertainty", None)
+    monkeypatch.delattr(heatload, "uncertainty", raising=False)  # fast; tested below
     rc, out, _ = _run(["cooler", "--json", "--rated-duty", "10 kW", "--rated-etd", "40 K"])
     assert rc == 0
     rec = json.loads(out)
@@ -252,7 +255,8 @@ def test_cli_json_and_text(monkeypatch):
 
 def test_uncertainty_degrades(press, monkeypatch):
     sc, cmp = press
-    monkeypatch.setitem(sys.modules, "heatload.uncertainty", None)  # import fails
+    monkeypatch.setitem(sys.modules, "heatload.uncertainty", None)
+    monkeypatch.delattr(heatload, "uncertainty", raising=False)  # import fails
     u = sizing.cooler_uncertainty(sc, cmp.outcomes[0].strategy, samples=10)
     assert u["available"] is False and "uncertainty not available" in u["note"]
 
