@@ -443,6 +443,17 @@ def test_concurrent_sessions_each_get_their_own_results(server):
     assert server.alive
 
 
+def test_concurrent_sessions_with_every_strategy_in_view(server):
+    """Edits made with the comparison in front recompute all seven strategies
+    (about five times the work of one): fewer edits, the same checks."""
+    res = run_load(server.url, clients=20, edits=5, deadline_s=120.0, tab="comparison")
+    s = res.summary()
+    print("\n" + format_table([("comparison", s)]))
+    assert res.errors == [], res.errors[:10]
+    assert s["requests"] == 20 * 5 and s["clients_finished"] == 20
+    assert server.alive
+
+
 # --- uploads ---------------------------------------------------------------
 
 def _data_url(raw: bytes) -> str:
@@ -497,6 +508,22 @@ def test_bad_upload_is_refused_over_http_and_the_server_keeps_serving(server, na
     ok = b.post(main, ["phase-table.data"], {("phase-table", "data"): rows})
     assert check_edit(ok, 91.25e3) == []
     assert server.alive
+
+
+def test_a_request_over_the_server_bound_is_refused_and_serving_goes_on(server):
+    bound = server.app.server.config.get("MAX_CONTENT_LENGTH")
+    assert bound, "the server reads requests of any size (no MAX_CONTENT_LENGTH)"
+    b = Browser(server.url)
+    main = b.start_session()
+    huge = "data:application/octet-stream;base64," + "A" * (bound + 1)
+    ans = b.post(main, ["upload.contents"],
+                 {("upload", "contents"): huge, ("upload", "filename"): "huge.toml"})
+    assert ans.status == 413
+    b.values[("upload", "contents")] = None       # the page never got an answer to apply
+    rows = copy.deepcopy(b.value("phase-table", "data"))
+    rows[PHASE]["load"] = "66.6"
+    assert check_edit(b.post(main, ["phase-table.data"], {("phase-table", "data"): rows}),
+                      66.6e3) == []
 
 
 def test_a_good_upload_after_the_bad_ones_is_opened(server):
