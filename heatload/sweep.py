@@ -7,8 +7,8 @@ too) and the number of values.  Several ``--vary`` make the full grid
 (every combination); ``--samples N --seed S`` draws N variants uniformly in
 the ranges instead.  Each strategy is evaluated in vectorized chunks
 (:func:`heatload.variants.evaluate_variants`), the table is written to CSV or
-Parquet atomically, and the best variants and the Pareto front (yearly
-energy against cooler duty, and against the pump displacement when it
+Parquet atomically, and the best variants and the Pareto front (energy per
+cycle against cooler duty, and against the pump displacement when it
 varies) are printed.
 """
 
@@ -206,14 +206,17 @@ def write_table(df, path, force=False) -> Path:
 
 def _show(df, specs, system, rows, out):
     from heatload.units import format_quantity
-    head = ["strategy"] + [s.path for s in specs] + ["energy/yr", "cooler duty", "oil T steady",
+    head = ["strategy"] + [s.path for s in specs] + ["energy/cycle", "cycle", "energy/yr",
+                                                      "cooler duty", "oil T steady",
                                                      "warnings"]
     lines = [head]
     wcols = [c for c in df.columns if c.startswith("warnings_")]
     for _, r in df.iloc[rows].iterrows():
         lines.append([r["strategy"]] + [format_quantity(r[s.path], s.kind, system, 3)
                                         for s in specs]
-                     + [f"{r['electric_energy_per_year_kWh']:.4g} kWh",
+                     + [f"{r['electric_energy_per_cycle_J'] / 1e3:.4g} kJ",
+                        f"{r['cycle_time_s']:.1f} s",
+                        f"{r['electric_energy_per_year_kWh']:.4g} kWh",
                         format_quantity(r["cooler_duty_W"], "power", system, 3),
                         format_quantity(r["oil_temperature_steady_K"], "temperature", system, 3),
                         str(int(sum(r[c] for c in wcols)))])
@@ -257,21 +260,32 @@ def run_cli(args) -> int:
     print(f"{scenario.name}: {n} variants x {len(strategies)} strategies "
           f"({'sample, seed ' + str(args.seed) if sampling else 'grid'})", file=out)
     top = args.top if args.top is not None else 10
+    # Rank by energy per cycle (per part made: a slower variant makes fewer
+    # parts in the same hours, so yearly energy alone would flatter it), and put
+    # variants that stall, miss their speeds, run away or exceed a rating last.
+    bad_cols = [c for c in df.columns if c in (
+        "warnings_stall", "warnings_speed-not-reached", "warnings_runaway",
+        "warnings_pressure-rating")]
+    flawed = (df[bad_cols].sum(axis=1).to_numpy() > 0) if bad_cols else np.zeros(len(df), bool)
+    energy = df["electric_energy_per_cycle_J"].to_numpy()
+    ranked = np.lexsort((energy, flawed))
     if top:
-        order = np.argsort(df["electric_energy_per_year_kWh"].to_numpy(), kind="stable")[:top]
-        print(f"\nbest {len(order)} by yearly electric energy:", file=out)
+        order = ranked[:top]
+        print(f"\nbest {len(order)} by electric energy per cycle (variants that stall, miss a "
+              f"speed, run away or exceed a rating last; {int(flawed.sum())} of {len(df)} do):",
+              file=out)
         _show(df, specs, system, order, out)
-    front = pareto_front(df["electric_energy_per_year_kWh"], df["cooler_duty_W"])
-    idx = np.nonzero(front)[0]
-    idx = idx[np.argsort(df["electric_energy_per_year_kWh"].to_numpy()[idx], kind="stable")]
-    print(f"\nPareto front, yearly energy vs cooler duty ({idx.size} variants):", file=out)
-    _show(df, specs, system, idx[:max(top, 10)], out)
+    clean = np.nonzero(~flawed)[0]
+    front = clean[pareto_front(energy[clean], df["cooler_duty_W"].to_numpy()[clean])]
+    front = front[np.argsort(energy[front], kind="stable")]
+    print(f"\nPareto front, energy per cycle vs cooler duty ({front.size} variants, "
+          f"without those warnings):", file=out)
+    _show(df, specs, system, front[:max(top, 10)], out)
     disp = "power_unit.pump.displacement"
     if any(s.path == disp for s in specs):
-        front = pareto_front(df["electric_energy_per_year_kWh"], df[disp])
-        idx = np.nonzero(front)[0]
-        idx = idx[np.argsort(df[disp].to_numpy()[idx], kind="stable")]
-        print(f"\nPareto front, yearly energy vs pump displacement ({idx.size} variants):",
+        front = clean[pareto_front(energy[clean], df[disp].to_numpy()[clean])]
+        front = front[np.argsort(df[disp].to_numpy()[front], kind="stable")]
+        print(f"\nPareto front, energy per cycle vs pump displacement ({front.size} variants):",
               file=out)
-        _show(df, specs, system, idx[:max(top, 10)], out)
+        _show(df, specs, system, front[:max(top, 10)], out)
     return 0
