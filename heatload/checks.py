@@ -27,7 +27,11 @@ class Warning_:
     message: str
 
     def as_dict(self) -> dict:
-        return asdict(self)
+        d = asdict(self)
+        for k in ("value", "limit"):  # plain floats: JSON-ready
+            if d[k] is not None:
+                d[k] = float(d[k])
+        return d
 
 
 def _bar(p):

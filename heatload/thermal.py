@@ -23,6 +23,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Callable, Optional
 
+import math
+
 import numpy as np
 
 from heatload.errors import HeatloadError
@@ -412,6 +414,9 @@ def warm_up(heat_per_phase, durations, capacity, conductance_fn, ambient, initia
     limit_time = np.full(lead, np.nan)
     if limit_temperature is not None:
         limit_time = np.where(t0 >= limit_temperature, 0.0, limit_time)
+    if lead == ():
+        return _warm_up_scalar(q, idx, lengths, times, float(c), float(ta), float(t0), fn,
+                               limit_temperature)
     for k, (i, dt) in enumerate(zip(idx, lengths)):
         ua = _eval_ua(fn, theta + ta)
         tau = c / ua
@@ -438,6 +443,52 @@ def warm_up(heat_per_phase, durations, capacity, conductance_fn, ambient, initia
     return WarmUp(times=times, temperatures=temps, time_to_limit=ttl,
                   final_temperature=temps[..., -1], maximum_temperature=temps.max(axis=-1),
                   heat_in=heat_in, stored=stored, dissipated=dissipated)
+
+
+#: A single run refreshes UA(T) once the oil has moved this far since the
+#: last evaluation [K]; UA changes by well under 0.1 % over it.
+UA_REFRESH = 0.05
+
+
+def _warm_up_scalar(q, idx, lengths, times, c, ta, t0, fn, limit_temperature):
+    """:func:`warm_up` for one variant, in plain floats (the same exact
+    exponential segments; UA refreshed every :data:`UA_REFRESH` kelvin)."""
+    import math
+
+    qs = [float(v) for v in q]
+    temps = [t0]
+    theta = t0 - ta
+    heat_in = dissipated = 0.0
+    limit_time = 0.0 if (limit_temperature is not None and t0 >= limit_temperature) else None
+    ua = float(_eval_ua(fn, t0))
+    t_ua = t0
+    for k, (i, dt) in enumerate(zip(idx.tolist(), lengths.tolist())):
+        t_now = theta + ta
+        if abs(t_now - t_ua) > UA_REFRESH:
+            ua = float(_eval_ua(fn, t_now))
+            t_ua = t_now
+        tau = c / ua
+        qi = qs[i]
+        theta_inf = qi / ua
+        x = dt / tau
+        decay = math.exp(-x)
+        theta1 = theta_inf + (theta - theta_inf) * decay
+        integral = theta_inf * dt + (theta - theta_inf) * tau * (-math.expm1(-x))
+        if limit_temperature is not None and limit_time is None:
+            th_l = limit_temperature - ta
+            if theta < th_l <= theta1:
+                ratio = (theta - theta_inf) / (th_l - theta_inf)
+                tc = tau * math.log(ratio) if ratio >= 1.0 else dt
+                limit_time = float(times[k]) + min(tc, dt)
+        heat_in += qi * dt
+        dissipated += ua * integral
+        theta = theta1
+        temps.append(theta + ta)
+    temps = np.array(temps)
+    return WarmUp(times=times, temperatures=temps,
+                  time_to_limit=None if limit_temperature is None else limit_time,
+                  final_temperature=float(temps[-1]), maximum_temperature=float(temps.max()),
+                  heat_in=heat_in, stored=c * (temps[-1] - temps[0]), dissipated=dissipated)
 
 
 @dataclass(frozen=True)
@@ -543,9 +594,12 @@ def thermostat_cooler_run(heat_per_phase, durations, capacity, conductance, ambi
     times, temps, states = [0.0], [t], []
     ons, offs = [], []
     heat_in = dissipated = removed = 0.0
-    for i, dt in zip(idx, lengths):
-        ua = float(_eval_ua(fn, np.asarray(t)))
-        qi = float(q[i])
+    qs = [float(v) for v in q]
+    ua, t_ua = float(_eval_ua(fn, np.asarray(t))), t
+    for i, dt in zip(idx.tolist(), lengths.tolist()):
+        if abs(t - t_ua) > UA_REFRESH:  # UA refreshed once the oil has moved
+            ua, t_ua = float(_eval_ua(fn, np.asarray(t))), t
+        qi = qs[i]
         left = dt
         while left > 0.0:
             if on and cooler_conductance is not None:
@@ -564,11 +618,13 @@ def thermostat_cooler_run(heat_per_phase, durations, capacity, conductance, ambi
             step = left
             switch = False
             if heading and crossing:
-                te = float(_crossing_time(t - t_inf, 0.0, target - t_inf, tau))
+                ratio = (t - t_inf) / (target - t_inf)
+                te = tau * math.log(ratio) if ratio >= 1.0 else math.inf
                 if te < left:
                     step, switch = te, True
-            t1, integral = _segment(t - t_inf, 0.0, tau, step)
-            t1 = float(t1) + t_inf
+            theta0 = t - t_inf
+            t1 = theta0 * math.exp(-step / tau) + t_inf
+            integral = theta0 * tau * (-math.expm1(-step / tau))
             # integral of (T - T_inf) dt, then of the physical flows
             int_t = float(integral) + t_inf * step  # integral of T dt
             heat_in += qi * step
