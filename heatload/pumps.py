@@ -31,6 +31,13 @@ import math
 import numpy as np
 
 from heatload.errors import HeatloadError
+from heatload._validate import (
+    out as _out,
+    as_array as _arr,
+    positive as _positive,
+    non_negative as _non_negative,
+    efficiency as _efficiency,
+)
 
 TWO_PI = 2.0 * math.pi
 
@@ -48,43 +55,14 @@ TYPICAL_PUMP_EFFICIENCIES = {
 PUMP_KINDS = ("fixed", "variable")
 
 
-def _out(value):
-    value = np.asarray(value, dtype=float)
-    return float(value) if value.ndim == 0 else value
 
 
-def _arr(value, name):
-    try:
-        a = np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
-        raise HeatloadError(f"expected a number, got {value!r}", field=name) from None
-    if not np.all(np.isfinite(a)):
-        raise HeatloadError("expected a finite number (not NaN or infinite)", field=name)
-    return a
 
 
-def _positive(value, name):
-    a = _arr(value, name)
-    if np.any(a <= 0):
-        raise HeatloadError(f"must be > 0, got {float(np.min(a)):g}", field=name)
-    return a
 
 
-def _non_negative(value, name):
-    a = _arr(value, name)
-    if np.any(a < 0):
-        raise HeatloadError(f"must be >= 0, got {float(np.min(a)):g}", field=name)
-    return a
 
 
-def _efficiency(value, name):
-    a = _arr(value, name)
-    if np.any((a <= 0) | (a > 1)):
-        bad = a[(a <= 0) | (a > 1)] if a.ndim else a
-        raise HeatloadError(
-            f"must be an efficiency in (0, 1] (a fraction, not per cent), got {float(np.ravel(bad)[0]):g}",
-            field=name)
-    return a
 
 
 def _fraction(value, name):

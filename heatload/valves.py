@@ -21,6 +21,13 @@ import math
 import numpy as np
 
 from heatload.errors import HeatloadError
+from heatload._validate import (
+    out as _out,
+    as_array as _arr,
+    positive as _positive,
+    non_negative as _non_negative,
+    show as _show,
+)
 
 #: Turbulent discharge coefficient of a sharp-edged orifice, pi/(pi+2)
 #: (free-streamline theory; Merritt, Hydraulic Control Systems, 1967).
@@ -36,39 +43,14 @@ UNLOADING_CENTRES = ("open", "tandem")
 CENTRES = ("open", "tandem", "closed")
 
 
-def _out(value):
-    """A float for 0-d results, the array otherwise."""
-    value = np.asarray(value, dtype=float)
-    return float(value) if value.ndim == 0 else value
 
 
-def _arr(value, name):
-    try:
-        a = np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
-        raise HeatloadError(f"expected a number, got {value!r}", field=name) from None
-    if not np.all(np.isfinite(a)):
-        raise HeatloadError("expected a finite number (not NaN or infinite)", field=name)
-    return a
 
 
-def _positive(value, name):
-    a = _arr(value, name)
-    if np.any(a <= 0):
-        raise HeatloadError(f"must be > 0, got {_show(a)}", field=name)
-    return a
 
 
-def _non_negative(value, name):
-    a = _arr(value, name)
-    if np.any(a < 0):
-        raise HeatloadError(f"must be >= 0, got {_show(a)}", field=name)
-    return a
 
 
-def _show(a):
-    a = np.asarray(a)
-    return f"{float(a):g}" if a.ndim == 0 else f"values down to {float(np.min(a)):g}"
 
 
 def discharge_coefficient(reynolds, cd_turbulent=CD_TURBULENT, delta=CD_LAMINAR_DELTA):
