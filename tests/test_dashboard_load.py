@@ -479,7 +479,9 @@ BAD_UPLOADS = {
     "binary junk": (lambda: _data_url(random.Random(7).randbytes(64_000)), "UTF-8"),
     "deeply nested arrays": (lambda: _data_url(b"x = " + b"[" * 300_000 + b"]" * 300_000),
                              "Upload refused"),
-    "deeply nested tables": (lambda: _data_url(b"[" + b".".join([b"a"] * 200_000) + b"]\n"),
+    # kept at 60 000 levels: the stdlib TOML parser takes time quadratic in the
+    # parts of one dotted key (benchmarks/bench_dashboard_load.py measures it)
+    "deeply nested tables": (lambda: _data_url(b"[" + b".".join([b"a"] * 60_000) + b"]\n"),
                              "Upload refused"),
     "deeply nested inline tables": (
         lambda: _data_url(b"x = " + b"{a = " * 100_000 + b"1" + b"}" * 100_000),
@@ -524,6 +526,43 @@ def test_a_request_over_the_server_bound_is_refused_and_serving_goes_on(server):
     rows[PHASE]["load"] = "66.6"
     assert check_edit(b.post(main, ["phase-table.data"], {("phase-table", "data"): rows}),
                       66.6e3) == []
+
+
+def many_phases_file(n: int) -> bytes:
+    """The default scenario with *n* more copies of its forming phase (valid TOML,
+    under the upload cap for n up to about 3 900)."""
+    import re
+
+    from heatload import io
+    text = open(io.default_scenario_path(), encoding="utf-8").read()
+    block = re.search(r'\[\[phases\]\]\nname = "forming".*?(?=\n\[\[)', text, re.S).group(0)
+    return (text + "".join("\n" + block.replace('"forming"', f'"forming {i}"')
+                           for i in range(n))).encode()
+
+
+@pytest.mark.xfail(strict=True, raises=AssertionError, reason=(
+    "an accepted file of ~3 800 phases (940 kB, under the 1 MB cap) gives ~26 MB of "
+    "results that the page posts back as State with every edit: each edit then gets "
+    "HTTP 413 and the session is stuck without a message (see the load-test report)"))
+def test_an_accepted_upload_leaves_the_session_editable(server):
+    """A file under the size cap is either refused with a message or opened,
+    and once opened the session's next edit is answered."""
+    from dashboard.layout import MAX_UPLOAD_BYTES
+    raw = many_phases_file(3_800)
+    assert len(raw) < MAX_UPLOAD_BYTES
+    b = Browser(server.url)
+    main = b.start_session()
+    ans = b.post(main, ["upload.contents"],
+                 {("upload", "contents"): _data_url(raw), ("upload", "filename"): "many.toml"})
+    assert ans.status == 200, ans.text
+    msg = _span_text(ans.prop("upload-message", "children"))
+    if msg.startswith("Upload refused"):
+        return                                     # refused with a message: fine
+    assert msg.startswith("Opened"), msg
+    rows = copy.deepcopy(b.value("phase-table", "data"))
+    rows[PHASE]["load"] = "70"
+    edit = b.post(main, ["phase-table.data"], {("phase-table", "data"): rows})
+    assert check_edit(edit, 70e3) == []
 
 
 def test_a_good_upload_after_the_bad_ones_is_opened(server):
