@@ -141,6 +141,7 @@ class Answer:
     latency: float
     body: dict | None
     text: str = ""
+    output: str = ""        # the callback's output string
 
     def prop(self, cid, prop):
         """A returned property (KeyError when the callback left it unchanged)."""
@@ -225,12 +226,37 @@ class Browser:
                 parsed = r.json()
             except ValueError:
                 parsed = None
-        ans = Answer(r.status_code, dt, parsed, r.text[:500])
+        ans = Answer(r.status_code, dt, parsed, r.text[:500], dep["output"])
         if parsed and isinstance(parsed.get("response"), dict):
             for cid, props in parsed["response"].items():
                 for k, v in props.items():
                     self.values[(cid, k)] = v     # the page now shows the answer
         return ans
+
+    def follow(self, ans: Answer, skip: dict, waves: int = 3) -> list:
+        """Fire the callbacks that read what *ans* changed, wave after wave,
+        as the renderer does after an answer (one at a time here); returns
+        their answers.  A callback that raises ``PreventUpdate`` answers 204."""
+        out = []
+        changed = {f"{c}.{p}" for c, props in ((ans.body or {}).get("response") or {}).items()
+                   for p in props}
+        for _ in range(waves):
+            if not changed:
+                break
+            fired = set()
+            for dep in self.deps:
+                if dep is skip:
+                    continue
+                hit = [f"{i['id']}.{i['property']}" for i in dep["inputs"]
+                       if f"{i['id']}.{i['property']}" in changed]
+                if hit:
+                    a = self.post(dep, hit)
+                    out.append(a)
+                    if a.status == 200 and a.body:
+                        fired |= {f"{c}.{p}" for c, props in a.body["response"].items()
+                                  for p in props}
+            changed = fired
+        return out
 
     def start_session(self) -> dict:
         """Open the page and fire its first callbacks (the initial recompute,
@@ -328,12 +354,15 @@ class LoadResult:
 
 
 def run_load(url: str, clients: int = 20, edits: int = 50, deadline_s: float = 200.0,
-             tab: str = "cycle") -> LoadResult:
+             tab: str = "cycle", follow: bool = False) -> LoadResult:
     """*clients* sessions, each opening the page and then posting *edits*
     recomputes of its own forming load, all at once; stops at *deadline_s*.
 
     *tab*: the tab the sessions have in front ('cycle' computes the strategy in
     view first, as the page does; 'comparison' computes all seven).
+    *follow*: after each recompute also fire the views that read the new
+    stores (:meth:`Browser.follow`); the latency is then the edit's recompute
+    plus those views, each of which must answer 200 or 204.
     """
     stop_at = time.monotonic() + deadline_s
     lock = threading.Lock()
@@ -370,8 +399,17 @@ def run_load(url: str, clients: int = 20, edits: int = 50, deadline_s: float = 2
                     errors.append((k, i, f"request failed: {e!r}"))
                 continue
             problems = check_edit(ans, load_kN * 1e3)
+            latency = ans.latency
+            if follow and not problems:
+                try:
+                    views = b.follow(ans, main)
+                except requests.RequestException as e:
+                    views, problems = [], [f"view request failed: {e!r}"]
+                latency += sum(v.latency for v in views)
+                problems += [f"view answered HTTP {v.status}: {v.text[:200]}"
+                             for v in views if v.status not in (200, 204)]
             with lock:
-                latencies.append(ans.latency)
+                latencies.append(latency)
                 errors.extend((k, i, p) for p in problems)
         with lock:
             finished[0] += 1
