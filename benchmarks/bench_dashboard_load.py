@@ -16,7 +16,7 @@ files with more phases; the time to refuse an upload whose one dotted key has
 many parts, and another session's edit latency meanwhile.
 
     .venv/bin/python benchmarks/bench_dashboard_load.py [--clients 20] [--edits 50]
-        [--comparison-edits 10] [--view-edits 10] [--phases 0 12 36 60]
+        [--comparison-edits 10] [--view-edits 5] [--phases 0 12 36 60]
         [--nested 25000 50000 100000] [--deadline 300]
 """
 
@@ -144,7 +144,7 @@ def main(argv=None) -> int:
     ap.add_argument("--edits", type=int, default=50, help="edits per client, cycle tab")
     ap.add_argument("--comparison-edits", type=int, default=10,
                     help="edits per client with the comparison in view (0: skip)")
-    ap.add_argument("--view-edits", type=int, default=10,
+    ap.add_argument("--view-edits", type=int, default=5,
                     help="edits per client that also fire the views reading the new "
                          "results, as the page does (0: skip)")
     ap.add_argument("--phases", type=int, nargs="*", default=[0, 12, 36, 60],

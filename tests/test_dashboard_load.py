@@ -233,29 +233,42 @@ class Browser:
                     self.values[(cid, k)] = v     # the page now shows the answer
         return ans
 
-    def follow(self, ans: Answer, skip: dict, waves: int = 3) -> list:
-        """Fire the callbacks that read what *ans* changed, wave after wave,
-        as the renderer does after an answer (one at a time here); returns
-        their answers.  A callback that raises ``PreventUpdate`` answers 204."""
-        out = []
-        changed = {f"{c}.{p}" for c, props in ((ans.body or {}).get("response") or {}).items()
-                   for p in props}
-        for _ in range(waves):
-            if not changed:
-                break
-            fired = set()
+    def follow(self, ans: Answer, skip: dict, rounds: int = 6) -> list:
+        """Fire the callbacks that read what *ans* changed, as the renderer
+        does after an answer: a callback waits while another pending one
+        writes one of its inputs, so each fires once per change (one request
+        at a time here); returns their answers.  A callback that raises
+        ``PreventUpdate`` answers 204."""
+        def props(a):
+            return {f"{c}.{p}" for c, ps in ((a.body or {}).get("response") or {}).items()
+                    for p in ps} if a.status == 200 else set()
+
+        def inputs(dep):
+            return {f"{i['id']}.{i['property']}" for i in dep["inputs"]}
+
+        def outputs(dep):
+            return {f"{c}.{p}" for c, p in _split_output(dep["output"])}
+
+        out, changed = [], dict.fromkeys(props(ans))
+        pending = []
+        for _ in range(rounds):
             for dep in self.deps:
-                if dep is skip:
+                if dep is skip or any(dep is q for q, _ in pending):
                     continue
-                hit = [f"{i['id']}.{i['property']}" for i in dep["inputs"]
-                       if f"{i['id']}.{i['property']}" in changed]
+                hit = sorted(inputs(dep) & set(changed))
                 if hit:
-                    a = self.post(dep, hit)
-                    out.append(a)
-                    if a.status == 200 and a.body:
-                        fired |= {f"{c}.{p}" for c, props in a.body["response"].items()
-                                  for p in props}
-            changed = fired
+                    pending.append((dep, hit))
+            changed = {}
+            if not pending:
+                break
+            ready = [(dep, hit) for dep, hit in pending
+                     if not any(inputs(dep) & (outputs(q) - outputs(dep))
+                                for q, _ in pending if q is not dep)] or pending[:1]
+            pending = [(q, h) for q, h in pending if not any(q is r for r, _ in ready)]
+            for dep, hit in ready:
+                a = self.post(dep, hit)
+                out.append(a)
+                changed.update(dict.fromkeys(props(a)))
         return out
 
     def start_session(self) -> dict:
@@ -468,6 +481,21 @@ def test_the_browser_emulation_finds_the_recompute_and_sees_its_own_edit(server)
     assert check_edit(ans, 87.5e3) == []
     # the same check fails for a value the session did not send
     assert check_edit(ans, 87.6e3)
+
+
+def test_every_view_redrawn_after_an_edit_answers(server):
+    b = Browser(server.url)
+    main = b.start_session()
+    rows = copy.deepcopy(b.value("phase-table", "data"))
+    rows[PHASE]["load"] = "82.5"
+    ans = b.post(main, ["phase-table.data"], {("phase-table", "data"): rows})
+    assert check_edit(ans, 82.5e3) == []
+    views = b.follow(ans, main)
+    fired = [_split_output(v.output)[0] for v in views]
+    assert len(fired) == len(set(fired))                 # each view once per edit
+    assert {v.status for v in views} <= {200, 204}, [(v.output, v.text) for v in views]
+    drawn = {f"{c}.{p}" for (c, p), v in zip(fired, views) if v.status == 200}
+    assert {"headline.children", "cycle-graph.figure", "sankey.figure"} <= drawn
 
 
 def test_concurrent_sessions_each_get_their_own_results(server):
