@@ -302,8 +302,11 @@ def cycle_figure(results: dict, strategy: str | None, system: str):
     trace(3, "heat_to_oil_W", "power", "heat into oil", OKABE_ITO["vermillion"])
     trace(3, "electric_power_W", "power", "electric input", OKABE_ITO["grey"], "dot")
     starts = np.r_[0.0, np.cumsum(dur)[:-1]]
-    for s, p in zip(starts, ph):
-        fig.add_vline(x=float(s), line=dict(color="#e4e7eb", width=1))
+    # one shapes list: add_vline per phase re-checks every earlier line (slow)
+    fig.update_layout(shapes=[dict(type="line", xref=f"x{k}", yref=f"y{k} domain",
+                                   x0=float(s), x1=float(s), y0=0, y1=1,
+                                   line=dict(color="#e4e7eb", width=1))
+                              for s in starts for k in ("", "2", "3")])
     fig.update_xaxes(title_text="time in the cycle [s]", row=3, col=1)
     fig.update_yaxes(title_text=f"pressure [{pu}]", row=1, col=1, rangemode="tozero")
     fig.update_yaxes(title_text=f"flow [{qu}]", row=2, col=1, rangemode="tozero")

@@ -844,6 +844,9 @@ def _phases(data, actuators, source):
     items = _array(data, "phases", source)
     if not items:
         raise _err("the duty cycle needs at least one phase", "phases", source)
+    if len(items) > MAX_PHASES:
+        raise _err(f"{len(items)} phases; a duty cycle has at most {MAX_PHASES} (merge "
+                   f"repeated steps into one phase with their total duration)", "phases", source)
     by_name = {a.name: a for a in actuators}
     out, names = [], set()
     for i, item in enumerate(items):
@@ -1225,6 +1228,14 @@ def _line_of(field: str | None, lines: dict) -> int | None:
     return None
 
 
+#: Most phases in one duty cycle: far beyond a real machine's cycle, and it
+#: bounds the results a browser session carries.
+MAX_PHASES = 200
+
+#: Longest line accepted: no real key or value needs more, and it keeps the
+#: TOML parser fast on adversarial keys (its cost grows with a key's parts).
+MAX_LINE_CHARS = 10_000
+
 #: Longest duty-cycle text accepted (a real file is a few kB; this stops a
 #: huge upload or a wrong file from tying up the parser).
 MAX_FILE_CHARS = 1_000_000
@@ -1256,6 +1267,10 @@ def loads_scenario(text: str, source: str = "<string>") -> m.Scenario:
     if len(text) > MAX_FILE_CHARS:
         raise HeatloadError(f"the file is {len(text):,} characters long; a duty-cycle file "
                             f"is at most {MAX_FILE_CHARS:,}", file=source)
+    for number, line in enumerate(text.split("\n"), 1):
+        if len(line) > MAX_LINE_CHARS:
+            raise HeatloadError(f"line of {len(line):,} characters; at most {MAX_LINE_CHARS:,}",
+                                file=source, line=number)
     try:
         data = tomllib.loads(text)
     except RecursionError:

@@ -38,3 +38,23 @@ def test_huge_file_refused(tmp_path):
         io.load_scenario(p)
     with pytest.raises(HeatloadError, match="at most"):
         io.loads_scenario(p.read_text(), source="upload.toml")
+
+
+def test_too_many_phases_refused():
+    import copy
+    import tomllib
+    from heatload.io import MAX_PHASES
+    data = tomllib.loads(io.default_scenario_path().read_text())
+    one = data["phases"][0]
+    data["phases"] = [dict(copy.deepcopy(one), name=f"p{i}") for i in range(MAX_PHASES + 1)]
+    with pytest.raises(HeatloadError, match="at most"):
+        io.scenario_from_dict(data, "many.toml")
+
+
+def test_over_long_line_refused_quickly():
+    import time
+    text = "[" + ".".join(["a"] * 60_000) + "]\n"
+    t0 = time.perf_counter()
+    with pytest.raises(HeatloadError, match="line of"):
+        io.loads_scenario(text, source="keys.toml")
+    assert time.perf_counter() - t0 < 5.0   # generous bound, not a benchmark
