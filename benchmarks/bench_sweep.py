@@ -25,10 +25,10 @@ def main():
     print(f"{'strategy':22s} {'thermal':8s} {'N':>7s} {'time [s]':>9s} {'variants/s':>11s} "
           f"{'per variant / numpy op':>22s}")
     for kind in ("meter-in", "load-sensing"):
-        for thermal in (False, True):
+        for thermal in (False, "design", True):
             n = 20000
             vals = {PATH: np.linspace(16e-6, 40e-6, n)}
-            t = timed(lambda: variants.evaluate_variants(SC, kind, vals, thermal=thermal), 2)
+            t = timed(lambda: variants.evaluate_variants(SC, kind, vals, thermal=thermal), 5)
             x = np.random.default_rng(0).random(n * len(SC.phases))
             t_op = timed(lambda: np.multiply(x, 1.0001), 20)   # one op on variants x phases
             print(f"{kind:22s} {str(thermal):8s} {n:7d} {t:9.3f} {n / t:11.0f} "

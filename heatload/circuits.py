@@ -184,8 +184,11 @@ def _inlet_pressure(q1, c, outlet_extra):
     ``p1_active = (F + A2 (p_back + setting)) / (A1 + r A2)``.
     Returns ``(p1, p2, dp_cb)``.
     """
-    q2 = q1 * c["q_ratio"]
-    p_back = _return_drop(q2, c) + outlet_extra
+    return _inlet_pressure_at(_return_drop(q1 * c["q_ratio"], c) + outlet_extra, c)
+
+
+def _inlet_pressure_at(p_back, c):
+    """:func:`_inlet_pressure` for a known outlet back pressure *p_back* [Pa]."""
     a1, a2, f = c["a_in"], c["a_out"], c["force"]
     p1_open = (f + a2 * p_back) / a1
     setting = np.where(c["cb_active"], c["cb_setting"], 0.0)
@@ -251,7 +254,7 @@ class _Subset(dict):
         return v
 
 
-def _root_flow(residual, c, q_hi, idx, q_kink=None):
+def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
     """Root in q of a residual decreasing in q, with residual(0) >= 0 >
     residual(q_hi), for the elements *idx* only.
 
@@ -266,8 +269,14 @@ def _root_flow(residual, c, q_hi, idx, q_kink=None):
     sub = _Subset(c, idx)
     lo = np.zeros(int(idx.sum()))
     hi = q_hi[idx].copy()
-    r_lo = residual(lo, sub)
-    r_hi = residual(hi, sub)
+    # the ends' residuals where the caller has them already (NaN: not known)
+    r_lo = residual(lo, sub) if r_lo is None else r_lo
+    if r_hi is None:
+        r_hi = residual(hi, sub)
+    elif np.isnan(r_hi).any():
+        miss = np.isnan(r_hi)
+        r_hi = r_hi.copy()
+        r_hi[miss] = residual(hi[miss], _Subset(sub, miss))
     if q_kink is not None:
         k = np.broadcast_to(q_kink, idx.shape)[idx]
         inside = (k > lo) & (k < hi)
@@ -305,15 +314,23 @@ def _solve_flow(residual, c, q_target, q_kink=None):
     """Inlet flow reached: the set flow where the residual allows it, else the
     root of the residual (flow-limited), zero where even q = 0 fails (stall)."""
     q = q_target.copy()
-    moving = c["moving"]
-    short = moving & (residual(q_target, c) < 0.0)
+    moving = np.asarray(c["moving"])
+    r_target = np.full(q_target.shape, np.nan)
+    if moving.all():
+        r_target = residual(q_target, c)
+    elif moving.any():  # hold and idle phases need no flow solve
+        r_target[moving] = residual(q_target[moving], _Subset(c, moving))
+    short = moving & (r_target < 0.0)
     stalled = np.zeros_like(short)
+    r_zero = np.full(q_target.shape, np.nan)
     if short.any():
-        sub = _Subset(c, short)
-        stalled[short] = residual(np.zeros(int(short.sum())), sub) < 0.0
+        r_zero[short] = residual(np.zeros(int(short.sum())), _Subset(c, short))
+        stalled = short & (r_zero < 0.0)
     need = short & ~stalled
     if need.any():
-        q[need] = _root_flow(residual, c, np.minimum(q_target, c["q_reach"]), need, q_kink)
+        q_hi = np.minimum(q_target, c["q_reach"])
+        r_hi = np.where(q_hi == q_target, r_target, np.nan)[need]
+        q[need] = _root_flow(residual, c, q_hi, need, q_kink, r_lo=r_zero[need], r_hi=r_hi)
     q[stalled] = 0.0
     q[~moving] = 0.0
     return q, short & ~stalled, stalled
@@ -431,19 +448,20 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     check_dp, pline_dp, dv_in_dp = _supply_drop_parts(q1, c)
     supply = check_dp + pline_dp + dv_in_dp
+    q2 = q1 * c["q_ratio"]
+    rdv_dp, rline_dp = _return_drop_parts(q2, c)
+    p_back = rdv_dp + rline_dp
     if strategy == "meter-out":
         # throttle drop = what the relief pressure leaves beyond the force balance
         p_pump = _relief_supply(q1, c, c["q_theoretical"])
         p1_open = p_pump - supply
         # p1 A1 - (p_back + dp_fc) A2 = F  ->  dp_fc = (p1 A1 - F)/A2 - p_back
-        q2 = q1 * c["q_ratio"]
-        p_back = _return_drop(q2, c)
         dp_fc_out = np.where(moving & ~stalled,
                              np.maximum((p1_open * c["a_in"] - c["force"]) / c["a_out"]
                                         - p_back, 0.0), 0.0)
-        p1, p2, dp_cb = _inlet_pressure(q1, c, dp_fc_out)
+        p1, p2, dp_cb = _inlet_pressure_at(p_back + dp_fc_out, c)
     else:
-        p1, p2, dp_cb = _inlet_pressure(q1, c, 0.0)
+        p1, p2, dp_cb = _inlet_pressure_at(p_back, c)
 
     required = supply + p1
     if strategy == "meter-in":
@@ -561,8 +579,6 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     torque = pumps.pump_torque(c["pump_displacement"], n_pump, np.maximum(p_pump, 0.0), mu,
                                c["pump_viscous"], c["pump_friction"], frac)
     p_shaft_hyd = pumps.pump_shaft_power(torque, n_pump)
-    q2 = q1 * c["q_ratio"]
-    rdv_dp, rline_dp = _return_drop_parts(q2, c)
     speed = np.where(moving, q1 * c["speed_per_flow"], 0.0)
     useful = c["load"] * speed * c["work_per_load_speed"]
     # what the actuator does not turn into load work: friction, motor efficiencies

@@ -327,6 +327,9 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("-o", "--output", default=None, metavar="FILE", help="CSV or Parquet file")
     sp.add_argument("--force", action="store_true", help="overwrite an existing output")
     sp.add_argument("--top", type=int, default=10, help="best variants to print")
+    sp.add_argument("--coupled", action="store_true",
+                    help="also solve each variant's self-consistent oil temperature "
+                         "(about 5x slower than the default design-point figures)")
 
     sp = add("dashboard", cmd_dashboard, "open the browser dashboard")
     sp.add_argument("--port", type=int, default=8050)

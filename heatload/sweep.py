@@ -149,8 +149,12 @@ def pareto_front(x, y) -> np.ndarray:
     return out
 
 
-def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK):
-    """Evaluate every variant for each strategy; returns a pandas DataFrame."""
+def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK, thermal="design"):
+    """Evaluate every variant for each strategy; returns a pandas DataFrame.
+
+    *thermal* as in :func:`heatload.variants.evaluate_variants`: ``"design"``
+    (one solve per variant, the default) or True for the coupled oil
+    temperature as well."""
     import pandas as pd
 
     from heatload import variants
@@ -166,7 +170,7 @@ def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK):
         for st in strategies:
             for start in range(0, n, chunk):
                 part = {k: v[start:start + chunk] for k, v in values.items()}
-                res = variants.evaluate_variants(scenario, st, part)
+                res = variants.evaluate_variants(scenario, st, part, thermal=thermal)
                 df = res.frame()
                 df.insert(0, "variant", np.arange(start, start + len(res)))
                 frames.append(df)
@@ -218,7 +222,10 @@ def _show(df, specs, system, rows, out):
                         f"{r['cycle_time_s']:.1f} s",
                         f"{r['electric_energy_per_year_kWh']:.4g} kWh",
                         format_quantity(r["cooler_duty_W"], "power", system, 3),
-                        format_quantity(r["oil_temperature_steady_K"], "temperature", system, 3),
+                        format_quantity(r["oil_temperature_steady_K"]
+                                        if np.isfinite(r["oil_temperature_steady_K"])
+                                        else r["oil_temperature_uncoupled_K"],
+                                        "temperature", system, 3),
                         str(int(sum(r[c] for c in wcols)))])
     widths = [max(len(str(x[i])) for x in lines) for i in range(len(head))]
     for row in lines:
@@ -251,14 +258,19 @@ def run_cli(args) -> int:
     values = (sample_values(specs, args.samples, args.seed) if sampling
               else grid_values(specs))
     n = len(next(iter(values.values())))
-    df = run_sweep(scenario, values, strategies, progress=True)
+    coupled = bool(getattr(args, "coupled", False))
+    df = run_sweep(scenario, values, strategies, progress=True,
+                   thermal=True if coupled else "design")
     out = sys.stdout
     if args.output:
         written = write_table(df, args.output, force=args.force)
         print(f"wrote {len(df)} rows to {written}", file=out)
     system = getattr(args, "units", "si") or "si"
     print(f"{scenario.name}: {n} variants x {len(strategies)} strategies "
-          f"({'sample, seed ' + str(args.seed) if sampling else 'grid'})", file=out)
+          f"({'sample, seed ' + str(args.seed) if sampling else 'grid'}); "
+          + ("coupled oil temperature" if coupled else
+             "figures at the design oil temperature, steady temperature without a cooler "
+             "uncoupled (--coupled for the self-consistent one)"), file=out)
     top = args.top if args.top is not None else 10
     # Rank by energy per cycle (per part made: a slower variant makes fewer
     # parts in the same hours, so yearly energy alone would flatter it), and put

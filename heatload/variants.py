@@ -581,8 +581,11 @@ def _conductance_rows(sc: Scenario, air, h_user):
     air = np.asarray(air, float)
     # NaN (no user coefficient) -> -1: np.unique keeps every NaN apart
     h = np.where(np.isfinite(h_user), np.asarray(h_user, float), -1.0)
-    key = np.stack([air, h], axis=-1)
-    uniq, inverse = np.unique(key, axis=0, return_inverse=True)
+    key = np.stack([air, h], axis=-1).reshape(-1, 2)
+    if np.all(key == key[:1]):  # one air temperature and tank for all: no sort
+        uniq, inverse = key[:1], np.zeros(len(key), int)
+    else:
+        uniq, inverse = np.unique(key, axis=0, return_inverse=True)
     pressure = _air_pressure(sc.ambient.altitude)
     # the chain's nodes, every row in one vectorized call
     t = np.linspace(uniq[:, 0] - 20.0, 523.15, 160, axis=-1)
@@ -682,7 +685,7 @@ class VariantResults:
     cooler_duty: np.ndarray            #: with margin [W]
     cooler_duty_without_margin: np.ndarray
     warnings: dict = field(default_factory=dict)  #: code -> counts of phases (N,)
-    thermal: bool = True
+    thermal: object = True  #: True (coupled), "design" or False: see evaluate_variants
 
     def __len__(self):
         return int(np.size(self.cycle_time))
@@ -795,10 +798,15 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
     oil_temperature : float, optional
         Oil temperature [K] of the uncoupled evaluation; default the
         reference temperature (the pump's datasheet viscosity).
-    thermal : bool, optional
-        False: only the circuit at the uncoupled temperature (one solver
-        call); the temperature, duty and operating figures are then the
-        uncoupled ones and the design figures NaN.
+    thermal : bool or "design", optional
+        True (default): everything, with the self-consistent (coupled) oil
+        temperature (about five solver calls).  ``"design"``: one solver
+        call with the oil at the cooler's design temperature — heat, energy,
+        cost, peak pressure and warnings there (where the machine runs once
+        its cooler holds it), the exact cooler duty, and the steady oil
+        temperature without a cooler estimated from that heat (uncoupled);
+        the coupled figures are NaN.  False: only the circuit at the
+        uncoupled temperature (one call); the design figures NaN.
 
     Returns
     -------
@@ -837,11 +845,14 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
     factor = g(("reservoir", "heat_transfer_factor"), 1.0)
     ua_typ = _Conductance(sc, amb_t, h_user, factor)
 
+    nan = np.full(n, np.nan)
+    if thermal == "design":
+        return _design_point_only(sc, st, val, build, n, g, amb_t, amb_hot, h_user, factor,
+                                  ua_typ)
     res_u, c_u = build.solve(t_ref)
     fig_u = _figures(res_u, c_u, sc, val)
     q_u = _mean_heat(res_u)
     t_u = _steady(q_u, t_ref, 0.0, amb_t, ua_typ)
-    nan = np.full(n, np.nan)
     if not thermal:
         return VariantResults(
             strategy=st.name, values=dict(val.by_path),
@@ -931,6 +942,33 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
         oil_temperature_operating=t_op, oil_temperature_cycle_max=periodic.maximum,
         coupling_iterations=iters, design_heat=q_d, cooler_duty=duty,
         cooler_duty_without_margin=duty0, warnings=fig_op["warnings"], thermal=True)
+
+
+def _design_point_only(sc, st, val, build, n, g, amb_t, amb_hot, h_user, factor, ua_typ):
+    """:func:`evaluate_variants` with ``thermal="design"``: one solve."""
+    t_d0 = sc.cooler.oil_temperature_max
+    t_d = _col(g(("cooler", "oil_temperature_max"),
+                 t_d0 if t_d0 is not None else sc.fluid.temperature_max - 5.0), n)
+    res_d, c_d = build.solve(t_d if np.ndim(g(("cooler", "oil_temperature_max"), 0.0))
+                             else float(t_d[0]))
+    fig_d = _figures(res_d, c_d, sc, val)
+    q_d = _mean_heat(res_d)
+    ua_hot = _Conductance(sc, amb_hot, h_user, factor)
+    ua_d, _ = ua_hot(t_d)
+    margin = g(("cooler", "margin"), sc.cooler.margin)
+    duty0 = cooler.required_cooler_duty(q_d, ua_d, t_d, amb_hot, 0.0)
+    t_s = _steady(q_d, t_d, 0.0, amb_t, ua_typ)
+    nan = np.full(n, np.nan)
+    return VariantResults(
+        strategy=st.name, values=dict(val.by_path),
+        cycle_time=fig_d["cycle_time"], heat_to_oil=fig_d["heat"], heat_to_oil_uncoupled=q_d,
+        electric_energy_per_cycle=fig_d["e_cycle"], electric_energy_per_year=fig_d["e_year"],
+        cost_per_year=fig_d["cost"], peak_pressure=fig_d["peak"],
+        oil_temperature_uncoupled=t_s, oil_temperature_steady=nan,
+        oil_temperature_operating=t_d, oil_temperature_cycle_max=nan,
+        coupling_iterations=np.zeros(n, int), design_heat=q_d,
+        cooler_duty=duty0 * (1.0 + margin), cooler_duty_without_margin=duty0,
+        warnings=fig_d["warnings"], thermal="design")
 
 
 def replaced_scenario(scenario: Scenario, values: dict) -> Scenario:

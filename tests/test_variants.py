@@ -85,3 +85,28 @@ def test_heat_grows_with_relief_setting_meter_in():
     r = variants.evaluate_variants(SC, "meter-in", {"power_unit.relief.cracking_pressure":
                                                     np.linspace(170e5, 210e5, 5)}, thermal=False)
     assert np.all(np.diff(r.heat_to_oil_uncoupled) > 0)
+
+
+@pytest.mark.parametrize("path,vals", CASES[:6])
+def test_design_mode_equals_replaced_scenario_and_full_mode(path, vals):
+    # one solve at the design temperature: the cooler duty and the design heat
+    # are exactly those of the full evaluation (the same design-point solve)
+    design = variants.evaluate_variants(SC, "meter-in", {path: np.array(vals)}, thermal="design")
+    full = variants.evaluate_variants(SC, "meter-in", {path: np.array(vals)})
+    np.testing.assert_allclose(design.cooler_duty, full.cooler_duty, rtol=1e-12)
+    np.testing.assert_allclose(design.design_heat, full.design_heat, rtol=1e-12)
+    for i, v in enumerate(vals):
+        one = variants.evaluate_variants(variants.replaced_scenario(SC, {path: v}), "meter-in",
+                                         thermal="design")
+        for f in ("heat_to_oil", "electric_energy_per_cycle", "peak_pressure", "cooler_duty",
+                  "oil_temperature_uncoupled"):
+            np.testing.assert_allclose(getattr(design, f)[i], getattr(one, f)[0], rtol=1e-12)
+    assert np.all(np.isnan(design.oil_temperature_steady))
+
+
+def test_design_mode_heat_is_the_chain_design_heat():
+    cmp = chain.compare(SC)
+    for o in cmp.outcomes:
+        v = variants.evaluate_variants(SC, o.strategy, thermal="design")
+        np.testing.assert_allclose(v.heat_to_oil[0], o.thermal.design_heat, rtol=1e-12)
+        np.testing.assert_allclose(v.cooler_duty[0], o.thermal.cooler_duty, rtol=1e-12)
