@@ -28,6 +28,8 @@ and licensed practice govern the selection.
 
 from __future__ import annotations
 
+import sys
+
 import json
 import math
 from dataclasses import dataclass, field
@@ -313,7 +315,8 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
     return sz
 
 
-def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5) -> dict:
+def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5,
+                       progress=False) -> dict:
     """Monte Carlo spread of the cooler duty and oil temperature, and the inputs
     that move the duty most (:mod:`heatload.uncertainty`, imported lazily).
 
@@ -333,7 +336,7 @@ def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5) -> dict
                 "note": f"uncertainty not available (heatload.uncertainty: {exc})"}
     try:
         mc = uncertainty.monte_carlo(scenario, strategy, samples=samples, seed=seed,
-                                     progress=False)
+                                     progress=progress)
         sens = uncertainty.sensitivity(scenario, strategy)
     except HeatloadError as exc:
         return {"available": False, "note": f"uncertainty not available: {exc.one_line()}"}
@@ -500,7 +503,9 @@ def run_cli(args) -> int:
         raise HeatloadError("--rated-etd must be positive", field="--rated-etd")
     outcome = chain.evaluate_strategy(sc, strat)
     sz = size_cooler(sc, outcome, args.coolant, rd, re_)
-    unc = cooler_uncertainty(sc, strat, samples=args.samples, seed=args.seed)
+    # a progress bar on stderr for long runs in a terminal (never in --json pipes)
+    unc = cooler_uncertainty(sc, strat, samples=args.samples, seed=args.seed,
+                             progress=sys.stderr.isatty() and not args.json)
     if args.json:
         rec = sizing_record(sz, unc)
         rec["scenario"] = sc.name
