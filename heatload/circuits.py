@@ -174,6 +174,23 @@ def _return_drop(q, c):
     return dv + line
 
 
+def _flow_drops(q1, c, rec=None):
+    """Every drop that depends on the inlet flow *q1* only: (check, pressure
+    line, valve P->A, valve B->T, return line) [Pa]; appended to *rec* when
+    given, so the solve can reuse them at the flow it settles on."""
+    d = _supply_drop_parts(q1, c) + _return_drop_parts(q1 * c["q_ratio"], c)
+    if rec is not None:
+        rec.append(d)
+    return d
+
+
+def _supply_and_inlet(q, c, outlet_extra, rec=None):
+    """(supply drop, p1) at inlet flow *q* with *outlet_extra* on the outlet path."""
+    check, pline, dv_in, rdv, rline = _flow_drops(q, c, rec)
+    p1, _, _ = _inlet_pressure_at(rdv + rline + outlet_extra, c)
+    return check + pline + dv_in, p1
+
+
 def _inlet_pressure(q1, c, outlet_extra):
     """Actuator inlet pressure p1 [Pa] from the force balance at inlet flow *q1*.
 
@@ -316,10 +333,11 @@ def _solve_flow(residual, c, q_target, q_kink=None):
     q = q_target.copy()
     moving = np.asarray(c["moving"])
     r_target = np.full(q_target.shape, np.nan)
+    rec = []
     if moving.all():
-        r_target = residual(q_target, c)
+        r_target = residual(q_target, c, rec)
     elif moving.any():  # hold and idle phases need no flow solve
-        r_target[moving] = residual(q_target[moving], _Subset(c, moving))
+        r_target[moving] = residual(q_target[moving], _Subset(c, moving), rec)
     short = moving & (r_target < 0.0)
     stalled = np.zeros_like(short)
     r_zero = np.full(q_target.shape, np.nan)
@@ -333,46 +351,56 @@ def _solve_flow(residual, c, q_target, q_kink=None):
         q[need] = _root_flow(residual, c, q_hi, need, q_kink, r_lo=r_zero[need], r_hi=r_hi)
     q[stalled] = 0.0
     q[~moving] = 0.0
-    return q, short & ~stalled, stalled
+    # the drops at the set flow, kept where the actuator got it (NaN elsewhere)
+    drops = None
+    if rec:
+        drops = []
+        for part in rec[0]:
+            full = np.full(q_target.shape, np.nan)
+            full[moving] = np.broadcast_to(part, q_target.shape)[moving] if np.shape(part) \
+                == q_target.shape else part
+            full[short] = np.nan
+            drops.append(full)
+    return q, short & ~stalled, stalled, drops
 
 
 def _strategy_residual(strategy):
     """Residual ``available - required`` pump pressure as a function of Q1."""
 
-    def meter_in(q, c):
-        p1, _, _ = _inlet_pressure(q, c, 0.0)
+    def meter_in(q, c, rec=None):
+        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
         dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
-        return _relief_supply(q, c, c["q_theoretical"]) - (_supply_drop(q, c) + p1 + dp_fc)
+        return _relief_supply(q, c, c["q_theoretical"]) - (supply + p1 + dp_fc)
 
-    def meter_out(q, c):
+    def meter_out(q, c, rec=None):
         dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
-        p1, _, _ = _inlet_pressure(q, c, dp_fc)
-        return _relief_supply(q, c, c["q_theoretical"]) - (_supply_drop(q, c) + p1)
+        supply, p1 = _supply_and_inlet(q, c, dp_fc, rec)
+        return _relief_supply(q, c, c["q_theoretical"]) - (supply + p1)
 
-    def bypass(q, c):
-        p1, _, _ = _inlet_pressure(q, c, 0.0)
+    def bypass(q, c, rec=None):
+        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
         dp_fc = c["bypass_spring"] * (q / c["q_target_safe"]) ** 2
-        return _relief_supply(q, c, c["q_theoretical"]) - (_supply_drop(q, c) + p1 + dp_fc)
+        return _relief_supply(q, c, c["q_theoretical"]) - (supply + p1 + dp_fc)
 
-    def bleed_off(q, c):
-        p1, _, _ = _inlet_pressure(q, c, 0.0)
-        return _relief_supply(q, c, c["q_theoretical"]) - (_supply_drop(q, c) + p1)
+    def bleed_off(q, c, rec=None):
+        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
+        return _relief_supply(q, c, c["q_theoretical"]) - (supply + p1)
 
-    def pressure_compensated(q, c):
-        p1, _, _ = _inlet_pressure(q, c, 0.0)
+    def pressure_compensated(q, c, rec=None):
+        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
         dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
         avail = _compensator_supply(q, c, c["compensator"], c["q_theoretical"])
-        return avail - (_supply_drop(q, c) + p1 + dp_fc)
+        return avail - (supply + p1 + dp_fc)
 
-    def load_sensing(q, c):
-        p1, _, _ = _inlet_pressure(q, c, 0.0)
+    def load_sensing(q, c, rec=None):
+        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
         avail = np.minimum(_compensator_supply(q, c, c["compensator"], c["q_theoretical"]),
                            p1 + c["ls_margin"])
-        return avail - (_supply_drop(q, c) + p1)
+        return avail - (supply + p1)
 
-    def variable_speed(q, c):
-        p1, _, _ = _inlet_pressure(q, c, 0.0)
-        return _relief_supply(q, c, c["q_theoretical_max"]) - (_supply_drop(q, c) + p1)
+    def variable_speed(q, c, rec=None):
+        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
+        return _relief_supply(q, c, c["q_theoretical_max"]) - (supply + p1)
 
     return {"meter-in": meter_in, "meter-out": meter_out, "bleed-off": bleed_off,
             "bypass-compensated": bypass, "pressure-compensated": pressure_compensated,
@@ -431,7 +459,7 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         q_kink = c["q_theoretical"] - leak0 * c["compensator"]
     else:
         q_kink = q_cap - leak0 * c["relief_cracking"]
-    q1, flow_limited, stalled = _solve_flow(residual, c, q_target, q_kink)
+    q1, flow_limited, stalled, drops_set = _solve_flow(residual, c, q_target, q_kink)
     full_flow = moving & ~np.isfinite(c["q_target"])
     flow_limited = flow_limited & ~full_flow
     q_target = np.where(full_flow, q1, q_target)
@@ -446,10 +474,18 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
                                c["bypass_spring"] * np.minimum(q1 / c["q_target_safe"], 1.0) ** 2,
                                0.0)
 
-    check_dp, pline_dp, dv_in_dp = _supply_drop_parts(q1, c)
+    # the drops at the solved flow: reused from the set-flow pass where the
+    # actuator got its set flow, computed afresh for the rest
+    if drops_set is None:
+        check_dp, pline_dp, dv_in_dp, rdv_dp, rline_dp = _flow_drops(q1, c)
+    else:
+        fresh = np.isnan(drops_set[0])
+        check_dp, pline_dp, dv_in_dp, rdv_dp, rline_dp = drops_set
+        if fresh.any():
+            for full, part in zip(drops_set, _flow_drops(q1[fresh], _Subset(c, fresh))):
+                full[fresh] = part
     supply = check_dp + pline_dp + dv_in_dp
     q2 = q1 * c["q_ratio"]
-    rdv_dp, rline_dp = _return_drop_parts(q2, c)
     p_back = rdv_dp + rline_dp
     if strategy == "meter-out":
         # throttle drop = what the relief pressure leaves beyond the force balance
