@@ -169,6 +169,12 @@ def _return_drop_parts(q, c):
     return dv, line
 
 
+def _centre_drop(q, c):
+    """P->T drop of an open or tandem centre, ~Q^2 from its catalogue point
+    (zero allowed: an ideal centre)."""
+    return c["dv_centre_drop"] * (q / c["dv_rated_flow"]) ** 2
+
+
 def _return_drop(q, c):
     dv, line = _return_drop_parts(q, c)
     return dv + line
@@ -535,8 +541,7 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     centre_ok = c["centre_unloads"]
     use_centre = ~moving & (unload == UNLOAD_CENTRE) & centre_ok
     # centre drop at the full theoretical flow (leakage at a few bar is negligible)
-    centre_dp = valves.power_law_pressure_drop(c["q_theoretical"], c["dv_rated_flow"],
-                                               c["dv_centre_drop"], 2.0)
+    centre_dp = _centre_drop(c["q_theoretical"], c)
     relief_full = _relief_supply(z, c, c["q_theoretical"])
     if strategy in ("meter-in", "meter-out"):
         p_rest = np.where(use_centre, centre_dp, relief_full)
@@ -557,8 +562,7 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
                           c["standby"])
     else:  # variable-speed
         q_min = c["pump_displacement"] * n_nom * c["vs_min_fraction"]
-        centre_dp_min = valves.power_law_pressure_drop(q_min, c["dv_rated_flow"],
-                                                       c["dv_centre_drop"], 2.0)
+        centre_dp_min = _centre_drop(q_min, c)
         p_rest = np.where(holding, np.minimum(p_hold, relief_full),
                           np.where(centre_ok, centre_dp_min,
                                    _relief_supply(z, c, q_min)))

@@ -14,7 +14,9 @@ Invariants (first law and second law of a steady hydraulic circuit):
 - with heat going into the oil the steady oil temperature lies above ambient,
   and more heat never gives a lower temperature at the same conductance;
 - pressures stay above absolute vacuum (-1.01325 bar gauge) except in phases
-  flagged as a runaway or cavitation;
+  flagged as a runaway, a stall or cavitation (a moving actuator whose chamber
+  would fall below the cavitation threshold carries that warning: the figure
+  shows how far the circuit is from holding the load, it is never silent);
 - cooler duty is non-negative, zero when no cooler is needed.
 """
 
@@ -55,7 +57,10 @@ def circuit_violations(result, label: str = "") -> list:
             out.append(f"{tag}loss {k} is negative ({float(np.min(v)):.3g} W)")
     if np.any(result.heat_to_oil < -1e-9 * scale - 1e-9):
         out.append(f"{tag}heat into the oil is negative")
-    flagged = result.runaway | result.stalled
+    from heatload.circuits import CAVITATION_THRESHOLD
+    cavitating = (result.speed > 0) & (np.minimum(result.inlet_pressure, result.outlet_pressure)
+                                       < CAVITATION_THRESHOLD)
+    flagged = result.runaway | result.stalled | cavitating
     for name in ("pump_pressure", "inlet_pressure", "outlet_pressure"):
         p = getattr(result, name)
         if np.any((p < ABSOLUTE_VACUUM) & ~flagged):

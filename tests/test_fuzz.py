@@ -4,7 +4,8 @@ Random and adversarial edits of a valid duty-cycle file (a value replaced by
 random text, numbers, quantities in random units, tables, lists; keys
 deleted): the loader must either return a scenario or raise the project's own
 error naming a field; every scenario it accepts must solve for every strategy
-without NaN or inf.  ``HEATLOAD_FUZZ=long`` runs a longer profile.
+without NaN or inf.  ``HEATLOAD_FUZZ=long`` runs a longer profile (with
+``HYPOTHESIS_PROFILE=explore`` for new random examples; see tests/conftest.py).
 """
 
 import copy
