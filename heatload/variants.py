@@ -865,17 +865,7 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
             cooler_duty_without_margin=nan, warnings=fig_u["warnings"], thermal=False)
 
     # design point: oil at the design temperature, hottest ambient
-    t_d0 = sc.cooler.oil_temperature_max
-    t_d = _col(g(("cooler", "oil_temperature_max"),
-                 t_d0 if t_d0 is not None else sc.fluid.temperature_max - 5.0), n)
-    res_d, c_d = build.solve(t_d if np.ndim(g(("cooler", "oil_temperature_max"), 0.0))
-                             else float(t_d[0]))
-    fig_d = _figures(res_d, c_d, sc, val)
-    q_d = _mean_heat(res_d)
-    ua_hot = _Conductance(sc, amb_hot, h_user, factor)
-    ua_d, _ = ua_hot(t_d)
-    margin = g(("cooler", "margin"), sc.cooler.margin)
-    duty0 = cooler.required_cooler_duty(q_d, ua_d, t_d, amb_hot, 0.0)
+    t_d, fig_d, q_d, margin, duty0 = _design_point(sc, val, build, n, g, amb_hot, h_user, factor)
     duty = duty0 * (1.0 + margin)
 
     # coupled steady temperature at the typical ambient: secant steps on Q(T)
@@ -944,8 +934,9 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
         cooler_duty_without_margin=duty0, warnings=fig_op["warnings"], thermal=True)
 
 
-def _design_point_only(sc, st, val, build, n, g, amb_t, amb_hot, h_user, factor, ua_typ):
-    """:func:`evaluate_variants` with ``thermal="design"``: one solve."""
+def _design_point(sc, val, build, n, g, amb_hot, h_user, factor):
+    """The design-point solve: oil at the design temperature, hottest ambient.
+    Returns ``(T_d, figures, mean heat, margin, duty without margin)``."""
     t_d0 = sc.cooler.oil_temperature_max
     t_d = _col(g(("cooler", "oil_temperature_max"),
                  t_d0 if t_d0 is not None else sc.fluid.temperature_max - 5.0), n)
@@ -957,6 +948,12 @@ def _design_point_only(sc, st, val, build, n, g, amb_t, amb_hot, h_user, factor,
     ua_d, _ = ua_hot(t_d)
     margin = g(("cooler", "margin"), sc.cooler.margin)
     duty0 = cooler.required_cooler_duty(q_d, ua_d, t_d, amb_hot, 0.0)
+    return t_d, fig_d, q_d, margin, duty0
+
+
+def _design_point_only(sc, st, val, build, n, g, amb_t, amb_hot, h_user, factor, ua_typ):
+    """:func:`evaluate_variants` with ``thermal="design"``: one solve."""
+    t_d, fig_d, q_d, margin, duty0 = _design_point(sc, val, build, n, g, amb_hot, h_user, factor)
     t_s = _steady(q_d, t_d, 0.0, amb_t, ua_typ)
     nan = np.full(n, np.nan)
     return VariantResults(
