@@ -245,9 +245,11 @@ def cmd_sweep(args):
 def cmd_dashboard(args):
     try:
         from dashboard import app as dash_app
-    except ImportError as exc:  # the dashboard package needs dash installed
-        raise HeatloadError(f"the dashboard needs the 'dash' package ({exc})",
-                            field="dashboard") from None
+    except ImportError as exc:  # dash missing, or the dashboard package not installed
+        what = ("the 'dash' package" if getattr(exc, "name", "") and exc.name.startswith("dash")
+                and exc.name != "dashboard" else "the dashboard package of this checkout")
+        raise HeatloadError(f"cannot start the dashboard: {what} is not importable ({exc}); "
+                            f"reinstall with `pip install -e .`", field="dashboard") from None
     return dash_app.run_cli(args)
 
 
