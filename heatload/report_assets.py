@@ -37,6 +37,7 @@ table { border-collapse: collapse; width: 100%; margin: 8px 0 14px; font-size: 1
 th, td { padding: 4px 7px; border-bottom: 1px solid var(--rule); vertical-align: top; }
 th { text-align: left; background: var(--band); font-weight: 600; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
+th.num { white-space: normal; }  /* headers wrap so the table fits the page */
 tr.recommended td { background: #e7f1f9; font-weight: 600; }
 tr.present td:first-child::after { content: " (present)"; font-weight: 400; color: var(--muted); }
 table.compare { font-size: 12px; }
