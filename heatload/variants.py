@@ -854,15 +854,11 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
     q_u = _mean_heat(res_u)
     t_u = _steady(q_u, t_ref, 0.0, amb_t, ua_typ)
     if not thermal:
-        return VariantResults(
-            strategy=st.name, values=dict(val.by_path),
-            cycle_time=fig_u["cycle_time"], heat_to_oil=fig_u["heat"], heat_to_oil_uncoupled=q_u,
-            electric_energy_per_cycle=fig_u["e_cycle"], electric_energy_per_year=fig_u["e_year"],
-            cost_per_year=fig_u["cost"], peak_pressure=fig_u["peak"],
-            oil_temperature_uncoupled=t_u, oil_temperature_steady=nan,
-            oil_temperature_operating=nan, oil_temperature_cycle_max=nan,
-            coupling_iterations=np.zeros(n, int), design_heat=nan, cooler_duty=nan,
-            cooler_duty_without_margin=nan, warnings=fig_u["warnings"], thermal=False)
+        return _results(st, val, fig_u, heat_to_oil_uncoupled=q_u,
+                        oil_temperature_uncoupled=t_u, oil_temperature_steady=nan,
+                        oil_temperature_operating=nan, oil_temperature_cycle_max=nan,
+                        coupling_iterations=np.zeros(n, int), design_heat=nan, cooler_duty=nan,
+                        cooler_duty_without_margin=nan, thermal=False)
 
     # design point: oil at the design temperature, hottest ambient
     t_d, fig_d, q_d, margin, duty0 = _design_point(sc, val, build, n, g, amb_hot, h_user, factor)
@@ -923,15 +919,11 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
     at_design = (duty0 > 0.0) & (t_d < t_c)
     t_op = np.where(at_design, t_d, t_c)
     fig_op = _select(at_design, fig_d, fig_c)
-    return VariantResults(
-        strategy=st.name, values=dict(val.by_path),
-        cycle_time=fig_op["cycle_time"], heat_to_oil=fig_op["heat"], heat_to_oil_uncoupled=q_u,
-        electric_energy_per_cycle=fig_op["e_cycle"], electric_energy_per_year=fig_op["e_year"],
-        cost_per_year=fig_op["cost"], peak_pressure=fig_op["peak"],
-        oil_temperature_uncoupled=t_u, oil_temperature_steady=t_c,
-        oil_temperature_operating=t_op, oil_temperature_cycle_max=periodic.maximum,
-        coupling_iterations=iters, design_heat=q_d, cooler_duty=duty,
-        cooler_duty_without_margin=duty0, warnings=fig_op["warnings"], thermal=True)
+    return _results(st, val, fig_op, heat_to_oil_uncoupled=q_u,
+                    oil_temperature_uncoupled=t_u, oil_temperature_steady=t_c,
+                    oil_temperature_operating=t_op, oil_temperature_cycle_max=periodic.maximum,
+                    coupling_iterations=iters, design_heat=q_d, cooler_duty=duty,
+                    cooler_duty_without_margin=duty0, thermal=True)
 
 
 def _design_point(sc, val, build, n, g, amb_hot, h_user, factor):
@@ -956,16 +948,22 @@ def _design_point_only(sc, st, val, build, n, g, amb_t, amb_hot, h_user, factor,
     t_d, fig_d, q_d, margin, duty0 = _design_point(sc, val, build, n, g, amb_hot, h_user, factor)
     t_s = _steady(q_d, t_d, 0.0, amb_t, ua_typ)
     nan = np.full(n, np.nan)
+    return _results(st, val, fig_d, heat_to_oil_uncoupled=q_d,
+                    oil_temperature_uncoupled=t_s, oil_temperature_steady=nan,
+                    oil_temperature_operating=t_d, oil_temperature_cycle_max=nan,
+                    coupling_iterations=np.zeros(n, int), design_heat=q_d,
+                    cooler_duty=duty0 * (1.0 + margin), cooler_duty_without_margin=duty0,
+                    thermal="design")
+
+
+def _results(st, val, fig, **thermal_fields):
+    """:class:`VariantResults` from the figures *fig* of the solve the figures
+    are reported at, and the thermal fields of the mode."""
     return VariantResults(
-        strategy=st.name, values=dict(val.by_path),
-        cycle_time=fig_d["cycle_time"], heat_to_oil=fig_d["heat"], heat_to_oil_uncoupled=q_d,
-        electric_energy_per_cycle=fig_d["e_cycle"], electric_energy_per_year=fig_d["e_year"],
-        cost_per_year=fig_d["cost"], peak_pressure=fig_d["peak"],
-        oil_temperature_uncoupled=t_s, oil_temperature_steady=nan,
-        oil_temperature_operating=t_d, oil_temperature_cycle_max=nan,
-        coupling_iterations=np.zeros(n, int), design_heat=q_d,
-        cooler_duty=duty0 * (1.0 + margin), cooler_duty_without_margin=duty0,
-        warnings=fig_d["warnings"], thermal="design")
+        strategy=st.name, values=dict(val.by_path), cycle_time=fig["cycle_time"],
+        heat_to_oil=fig["heat"], electric_energy_per_cycle=fig["e_cycle"],
+        electric_energy_per_year=fig["e_year"], cost_per_year=fig["cost"],
+        peak_pressure=fig["peak"], warnings=fig["warnings"], **thermal_fields)
 
 
 def replaced_scenario(scenario: Scenario, values: dict) -> Scenario:
