@@ -1,6 +1,6 @@
 """Server-side time of the dashboard's recompute after an edit.
 
-Runs the state callback's plain function (``dashboard.callbacks.update_scenario``)
+Runs the state callback's plain function (``heatload.dashboard.callbacks.update_scenario``)
 as a phase-table edit would: parse the form, validate the scenario, compare
 every strategy, build the stored results.  50 edits of the forming load of the
 default scenario, each a new value (so nothing is reused), after one warm-up.
@@ -25,8 +25,8 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 import numpy as np  # noqa: E402
 
-from dashboard import app as dash_app  # noqa: E402
-from dashboard import callbacks, compute, state  # noqa: E402
+from heatload.dashboard import app as dash_app  # noqa: E402
+from heatload.dashboard import callbacks, compute, state  # noqa: E402
 from heatload import chain, io, tables  # noqa: E402
 
 

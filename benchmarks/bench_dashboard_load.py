@@ -1,6 +1,6 @@
 """Load on the dashboard server: concurrent browser sessions editing over HTTP.
 
-Serves the real app (``dashboard.app.make_app()``) on 127.0.0.1 and a free
+Serves the real app (``heatload.dashboard.app.make_app()``) on 127.0.0.1 and a free
 port with the threaded server ``app.run`` uses, then runs N sessions at once,
 each opening the page and posting M recomputes of its own forming load to
 ``/_dash-update-component`` exactly as the page does (the driver and its

@@ -13,7 +13,7 @@ from pathlib import Path
 
 from dash import Dash
 
-from dashboard import callbacks, layout
+from . import callbacks, layout
 from heatload import io
 from heatload.errors import HeatloadError
 
@@ -52,12 +52,8 @@ def make_app(scenario_path=None) -> Dash:
     path = examples[value] if value else Path(io.default_scenario_path())
     scenario = io.load_scenario(path)
     data = io.scenario_to_dict(scenario)
-    missing = [m for m in ("sizing", "uncertainty", "report")
-               if callbacks.optional_module(m) is None]
-    note = (f"Not installed yet: heatload.{', heatload.'.join(missing)}; the views that "
-            "need them say so." if missing else "")
     initial = {"data": data, "source": path.name, "options": options, "value": value,
-               "system": "si", "note": note}
+               "system": "si", "note": ""}
     app = Dash(__name__, title="heatload dashboard", update_title=None,
                suppress_callback_exceptions=False, serve_locally=True)
     app.index_string = layout.INDEX

@@ -17,7 +17,6 @@ from __future__ import annotations
 
 import base64
 import binascii
-import importlib
 import inspect
 import re
 
@@ -25,20 +24,13 @@ import numpy as np
 from dash import ALL, Input, Output, State, ctx, html, no_update
 from dash.exceptions import PreventUpdate
 
-from dashboard import compute, figures, state
-from dashboard.layout import ACTIVE_CELL, MAX_UPLOAD_BYTES
-from heatload import chain, io, tables
+from . import compute, figures, state
+from .layout import ACTIVE_CELL, MAX_UPLOAD_BYTES
+from heatload import chain, io, report, sizing, tables
+from heatload import uncertainty as unc
 from heatload.errors import HeatloadError
 
 ERROR_STYLE = {"backgroundColor": "#fde4d3", "border": "2px solid #D55E00"}
-
-
-def optional_module(name: str):
-    """``heatload.<name>`` if it is installed, else ``None`` (views then say so)."""
-    try:
-        return importlib.import_module(f"heatload.{name}")
-    except ImportError:
-        return None
 
 
 # ---------------------------------------------------------------------------
@@ -333,10 +325,6 @@ def shift_view(data: dict, strategy: str, system: str):
 
 def cooler_view(data: dict, strategy: str, system: str):
     """Spec sheet rows and notes of the cooler of *strategy* (heatload.sizing)."""
-    sizing = optional_module("sizing")
-    if sizing is None:
-        return (html.Div("Cooler sizing needs heatload.sizing, which this installation "
-                         "does not have yet.", className="note"), "")
     scenario, outcome = compute.strategy_outcome(data, strategy)
     sz = sizing.size_cooler(scenario, outcome, thermostat=False)
     notes = [html.Div(n, className="note") for n in sz.notes]
@@ -378,10 +366,6 @@ def _call(fn, *args, **kwargs):
 def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
     """Monte Carlo histogram of the cooler duty and the sensitivity ranking
     (:mod:`heatload.uncertainty`); a note when it is missing."""
-    unc = optional_module("uncertainty")
-    if unc is None or not hasattr(unc, "monte_carlo"):
-        return html.Div("The uncertainty analysis needs heatload.uncertainty, which this "
-                        "installation does not have yet.", className="note", id="mc-note")
     scenario = compute.scenario_of(data)
     if not scenario.uncertainty:
         return html.Div("The scenario lists no uncertain inputs ([[uncertainty]] in the "
@@ -423,10 +407,6 @@ REPORT_SAMPLES = 1000
 
 def download_report(data: dict, source: str | None = None):
     """The HTML report (heatload.report.build_report), or ``None`` with a note."""
-    report = optional_module("report")
-    if report is None or not hasattr(report, "build_report"):
-        return None, "The HTML report needs heatload.report, which this installation " \
-                     "does not have yet."
     scenario = compute.scenario_of(data)
     cmp = chain.compare(scenario)
     try:

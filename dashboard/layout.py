@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from dash import dash_table, dcc, html
 
-from dashboard import state
+from . import state
 
 #: Shown on every page: what the numbers are and what governs.
 CAUTION = ("Estimates for early design. Component makers' data, the machine-safety "

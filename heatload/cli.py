@@ -243,14 +243,20 @@ def cmd_sweep(args):
 
 
 def cmd_dashboard(args):
+    # The engine does not import its front end: the dashboard registers itself
+    # as an entry point of the group "heatload.frontends" (pyproject.toml).
+    from importlib.metadata import entry_points
+    found = entry_points(group="heatload.frontends", name="dashboard")
+    if not found:
+        raise HeatloadError("cannot start the dashboard: it is not installed; "
+                            "reinstall with `pip install -e .`", field="dashboard")
     try:
-        from dashboard import app as dash_app
-    except ImportError as exc:  # dash missing, or the dashboard package not installed
-        what = ("the 'dash' package" if getattr(exc, "name", "") and exc.name.startswith("dash")
-                and exc.name != "dashboard" else "the dashboard package of this checkout")
-        raise HeatloadError(f"cannot start the dashboard: {what} is not importable ({exc}); "
-                            f"reinstall with `pip install -e .`", field="dashboard") from None
-    return dash_app.run_cli(args)
+        run = next(iter(found)).load()
+    except ImportError as exc:  # dash itself missing
+        raise HeatloadError(f"cannot start the dashboard: {exc.name or exc} is not "
+                            f"importable; reinstall with `pip install -e .`",
+                            field="dashboard") from None
+    return run(args)
 
 
 # ---------------------------------------------------------------------------

@@ -29,7 +29,7 @@ def _shot(dash_duo, name):
 
 
 def _start(dash_duo):
-    from dashboard.app import make_app
+    from heatload.dashboard.app import make_app
 
     dash_duo.start_server(make_app())
     dash_duo.wait_for_element("#tile-0", timeout=60)

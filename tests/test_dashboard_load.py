@@ -1,6 +1,6 @@
 """Load and robustness of the dashboard *server*, driven over HTTP like a browser.
 
-The real app (:func:`dashboard.app.make_app`) is served in-process by the same
+The real app (:func:`heatload.dashboard.app.make_app`) is served in-process by the same
 threaded Werkzeug server ``app.run`` uses, on 127.0.0.1 and a free port.  Each
 simulated browser is a ``requests.Session`` that reads ``/_dash-layout`` and
 ``/_dash-dependencies``, finds the callback that writes the per-session
@@ -68,7 +68,7 @@ class DashServer:
     def __init__(self, scenario_path=None):
         from werkzeug.serving import make_server
 
-        from dashboard.app import make_app
+        from heatload.dashboard.app import make_app
 
         logging.getLogger("werkzeug").setLevel(logging.ERROR)   # no line per request
         self.app = make_app(scenario_path)
@@ -618,7 +618,7 @@ def many_phases_file(n: int) -> bytes:
 def test_an_accepted_upload_leaves_the_session_editable(server):
     """A file under the size cap is either refused with a message or opened,
     and once opened the session's next edit is answered."""
-    from dashboard.layout import MAX_UPLOAD_BYTES
+    from heatload.dashboard.layout import MAX_UPLOAD_BYTES
     raw = many_phases_file(3_800)
     assert len(raw) < MAX_UPLOAD_BYTES
     b = Browser(server.url)

@@ -1,0 +1,61 @@
+"""How the product installs: one top-level name, the engine free of its front end.
+
+The Dash front end lives in the checkout's top-level ``dashboard/`` folder but is
+installed as ``heatload.dashboard`` (pyproject's package-dir): nothing named
+``dashboard`` lands in site-packages, where it would clash with any other
+package of that name.
+"""
+
+import ast
+import os
+import subprocess
+import sys
+from importlib.metadata import entry_points
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def _run_outside(code: str, tmp_path) -> subprocess.CompletedProcess:
+    """Run *code* in a fresh interpreter whose path does not hold the checkout."""
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
+    return subprocess.run([sys.executable, "-c", code], cwd=tmp_path, env=env,
+                          capture_output=True, text=True)
+
+
+def test_no_top_level_dashboard_module(tmp_path):
+    r = _run_outside("import dashboard", tmp_path)
+    assert r.returncode != 0 and "No module named 'dashboard'" in r.stderr
+
+
+def test_dashboard_installs_under_the_project_name(tmp_path):
+    r = _run_outside("import heatload.dashboard.app as a; print(a.make_app.__name__)", tmp_path)
+    assert r.returncode == 0, r.stderr
+    assert r.stdout.strip() == "make_app"
+
+
+def test_cli_finds_the_dashboard_through_its_entry_point():
+    (ep,) = entry_points(group="heatload.frontends", name="dashboard")
+    assert ep.value == "heatload.dashboard.app:run_cli"
+    from heatload.dashboard import app
+    assert ep.load() is app.run_cli
+
+
+def test_no_engine_module_imports_the_dashboard():
+    offenders = []
+    for path in sorted((ROOT / "heatload").rglob("*.py")):
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            names = ([a.name for a in node.names] if isinstance(node, ast.Import)
+                     else [node.module or ""] if isinstance(node, ast.ImportFrom) else [])
+            if any(n.split(".")[0] == "dashboard" or n.startswith("heatload.dashboard")
+                   for n in names):
+                offenders.append(f"{path.name}:{node.lineno}")
+    assert offenders == []
+
+
+def test_dashboard_has_no_import_fallbacks():
+    """A real ImportError in the front end must surface, not read as 'not installed'."""
+    for path in sorted((ROOT / "dashboard").glob("*.py")):
+        text = path.read_text(encoding="utf-8")
+        assert "importlib" not in text, path.name
+        assert "not installed yet" not in text and "does not have yet" not in text, path.name
