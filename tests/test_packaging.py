@@ -59,3 +59,19 @@ def test_dashboard_has_no_import_fallbacks():
         text = path.read_text(encoding="utf-8")
         assert "importlib" not in text, path.name
         assert "not installed yet" not in text and "does not have yet" not in text, path.name
+
+
+def test_engine_docstring_examples_are_collected():
+    """The docstring examples run in CI (pytest's --doctest-modules over heatload/);
+    this guards that the option stays on and the examples stay numerous."""
+    import doctest
+    import importlib
+    import tomllib
+    config = tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["pytest"]["ini_options"]
+    assert "--doctest-modules" in config["addopts"] and "heatload" in config["testpaths"]
+    finder, examples = doctest.DocTestFinder(), 0
+    for path in sorted((ROOT / "heatload").glob("*.py")):
+        module = importlib.import_module(f"heatload.{path.stem}" if path.stem != "__init__"
+                                         else "heatload")
+        examples += sum(len(t.examples) > 0 for t in finder.find(module))
+    assert examples >= 30
