@@ -78,8 +78,16 @@ def motor_load_ratio(shaft_power, rated_power, speed_fraction=1.0):
     and constant power above base speed of a converter-fed induction motor,
     common practice.
     """
-    s = np.minimum(np.asarray(speed_fraction, float), 1.0)
+    # a motor at standstill gives no power: the floor keeps 0 / 0 out
+    s = np.clip(np.asarray(speed_fraction, float), 1e-12, 1.0)
     return np.asarray(shaft_power, float) / (np.asarray(rated_power, float) * s)
+
+
+def motor_overloaded(shaft_power, rated_power, speed_fraction=1.0):
+    """Where the motor carries more than its rating x :data:`MOTOR_SERVICE_FACTOR`
+    (:func:`motor_load_ratio`); vectorized, bool."""
+    return (motor_load_ratio(shaft_power, rated_power, speed_fraction)
+            > MOTOR_SERVICE_FACTOR * (1 + 1e-9))
 
 
 def _kw(p):
@@ -94,9 +102,9 @@ def motor_overload_warning(name, shaft_power, rated_power, speed_fraction, durat
     The message grades the overload: a short one the motor withstands
     (IEC 60034-1: 160 % torque for 15 s), one it does not (it overheats or
     trips), and one past any motor's breakdown torque (no real drive)."""
-    r = float(motor_load_ratio(shaft_power, rated_power, speed_fraction))
-    if not r > MOTOR_SERVICE_FACTOR * (1 + 1e-9):
+    if not motor_overloaded(shaft_power, rated_power, speed_fraction):
         return None
+    r = float(motor_load_ratio(shaft_power, rated_power, speed_fraction))
     s = min(float(speed_fraction), 1.0)
     limit = MOTOR_SERVICE_FACTOR * rated_power * s
     of = (f"{100 * r:.0f} % of its rated torque at {100 * s:.0f} % speed" if s < 1 - 1e-9

@@ -765,10 +765,9 @@ def warning_counts(result, c, sc, val=None, idx=None) -> dict:
     intens = moving & (p2 > pp * (1 + 1e-6)) & (p2 > 1e5) & ~result.counterbalance_active
     stall = moving & result.stalled
     slow = moving & ~result.stalled & result.flow_limited
-    motor = checks.motor_load_ratio(
+    over = checks.motor_overloaded(
         result.shaft_power, pick(get(("motor", "rated_power"), pu.motor.rated_power)),
         result.pump_shaft_speed / pick(get(("pump", "shaft_speed"), pu.pump.shaft_speed)))
-    over = motor > checks.MOTOR_SERVICE_FACTOR * (1 + 1e-9)
     return {"stall": stall.sum(-1), "speed-not-reached": slow.sum(-1),
             "runaway": (moving & result.runaway).sum(-1),
             "intensification": intens.sum(-1), "pressure-rating": rate.sum(-1),
