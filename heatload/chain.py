@@ -96,10 +96,10 @@ class Comparison:
 
 
 def design_oil_temperature(scenario: Scenario) -> float:
-    """Design oil temperature of the cooler sizing [K]."""
-    if scenario.cooler.oil_temperature_max is not None:
-        return scenario.cooler.oil_temperature_max
-    return scenario.fluid.temperature_max - 5.0
+    """Design oil temperature of the cooler sizing [K]
+    (:func:`heatload.model.design_oil_temperature`)."""
+    from heatload.model import design_oil_temperature as design
+    return design(scenario.fluid, scenario.cooler)
 
 
 def heat_capacity(scenario: Scenario, oil_temperature: float) -> float:
@@ -274,7 +274,8 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
         c_op = cycle.circuit_inputs(scenario, strategy, t_op, phases=pa)
         warns += checks.speed_drift_warnings(circuits.bleed_off_speed_change(c_op, res_op),
                                              scenario, pa)
-    warns += checks.thermal_warnings(scenario, t_c, t_op, duty)
+    # the oil's limit is judged on the hottest day, where the cooler is sized
+    warns += checks.thermal_warnings(scenario, t_h, t_op, duty)
     return StrategyOutcome(strategy=strategy, circuit=res_op,
                            energy=energy.summarize(res_op, scenario.economics),
                            circuit_uncoupled=res_u,

@@ -6,7 +6,8 @@ of pint; the edges reformat if asked for US units).
 
 Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 ``cavitation``, ``relief-passing``, ``speed-not-reached``, ``stall``,
-``viscosity-window``, ``oil-temperature``, ``hold-pressure``, ``speed-drift``.
+``viscosity-window``, ``oil-temperature``, ``hold-pressure``, ``speed-drift``,
+``motor-overload``.
 """
 
 from __future__ import annotations
@@ -38,6 +39,90 @@ def _bar(p):
     return f"{p / 1e5:.0f} bar"
 
 
+#: Continuous load an IEC motor may carry, as a multiple of its rating [-]: IEC
+#: 60034-1 rates it for duty type S1 at rated output with no service factor
+#: (NEMA MG 1 motors often carry 1.15; an IEC nameplate does not) (from memory).
+MOTOR_SERVICE_FACTOR = 1.0
+#: Occasional excess torque IEC 60034-1 requires an induction motor to withstand
+#: without stalling: 160 % of rated torque for 15 s (from memory) [-], [s].
+MOTOR_EXCESS_TORQUE = 1.6
+MOTOR_EXCESS_TORQUE_TIME = 15.0
+#: Beyond this multiple of its rated torque a standard induction motor has passed
+#: its breakdown torque (about 2 to 3 x rated in catalogues, common practice, from
+#: memory) and stalls: figures above it describe no real drive [-].
+MOTOR_BREAKDOWN_TORQUE = 3.0
+
+
+def motor_load_ratio(shaft_power, rated_power, speed_fraction=1.0):
+    """Load of the drive motor as a multiple of its continuous rating [-].
+
+    r = P / (P_r min(s, 1))
+
+    Below base speed a converter-fed motor (constant flux) gives at most its
+    rated torque, so its rated power falls with the speed: the ratio is the
+    torque ratio T / T_r = P / (P_r s); above base speed (field weakening) it
+    gives at most its rated power.  On the grid s = 1 and r = P / P_r.
+
+    Parameters
+    ----------
+    shaft_power : array_like
+        Mechanical power the pump shaft takes [W].
+    rated_power : array_like
+        Motor rating [W], > 0.
+    speed_fraction : array_like, optional
+        Motor speed over its nominal speed [-], > 0.
+
+    References
+    ----------
+    IEC 60034-1 (rated output, duty type S1); constant-torque operation below
+    and constant power above base speed of a converter-fed induction motor,
+    common practice.
+    """
+    # a motor at standstill gives no power: the floor keeps 0 / 0 out
+    s = np.clip(np.asarray(speed_fraction, float), 1e-12, 1.0)
+    return np.asarray(shaft_power, float) / (np.asarray(rated_power, float) * s)
+
+
+def motor_overloaded(shaft_power, rated_power, speed_fraction=1.0):
+    """Where the motor carries more than its rating x :data:`MOTOR_SERVICE_FACTOR`
+    (:func:`motor_load_ratio`); vectorized, bool."""
+    return (motor_load_ratio(shaft_power, rated_power, speed_fraction)
+            > MOTOR_SERVICE_FACTOR * (1 + 1e-9))
+
+
+def _kw(p):
+    return f"{p / 1e3:.3g} kW" if abs(p) >= 1e3 else f"{p:.3g} W"
+
+
+def motor_overload_warning(name, shaft_power, rated_power, speed_fraction, duration):
+    """The ``motor-overload`` warning of one phase, or ``None`` within the rating.
+
+    value: the shaft power the pump takes [W]; limit: what the motor gives
+    continuously at that speed, P_r min(s, 1) x :data:`MOTOR_SERVICE_FACTOR` [W].
+    The message grades the overload: a short one the motor withstands
+    (IEC 60034-1: 160 % torque for 15 s), one it does not (it overheats or
+    trips), and one past any motor's breakdown torque (no real drive)."""
+    if not motor_overloaded(shaft_power, rated_power, speed_fraction):
+        return None
+    r = float(motor_load_ratio(shaft_power, rated_power, speed_fraction))
+    s = min(float(speed_fraction), 1.0)
+    limit = MOTOR_SERVICE_FACTOR * rated_power * s
+    of = (f"{100 * r:.0f} % of its rated torque at {100 * s:.0f} % speed" if s < 1 - 1e-9
+          else f"{100 * r:.0f} % of its rating")
+    head = f"the pump takes {_kw(shaft_power)} from the {_kw(rated_power)} motor"
+    if r > MOTOR_BREAKDOWN_TORQUE:
+        text = (f"the pump needs {_kw(shaft_power)}, {r:.3g} x what the {_kw(rated_power)} "
+                f"motor gives: past the breakdown torque of any motor of that rating, the "
+                f"motor stalls; no real drive gives these figures")
+    elif r <= MOTOR_EXCESS_TORQUE and duration <= MOTOR_EXCESS_TORQUE_TIME:
+        text = (f"{head} ({of} for {duration:.3g} s): a short overload within IEC 60034-1's "
+                f"160 % for 15 s; check the cycle's RMS load against the rating")
+    else:
+        text = (f"{head} ({of} for {duration:.3g} s): beyond the 160 % for 15 s of IEC "
+                f"60034-1, the motor overheats or trips; a larger motor is needed")
+    return Warning_("motor-overload", name, float(shaft_power), float(limit), text)
+
+
 def phase_warnings(result: CircuitResult, scenario, pa: dict) -> list:
     """Warnings of one solved strategy over the phases of *scenario* (1-D result)."""
     out = []
@@ -48,6 +133,11 @@ def phase_warnings(result: CircuitResult, scenario, pa: dict) -> list:
         pp = float(result.pump_pressure[i])
         p1 = float(result.inlet_pressure[i])
         p2 = float(result.outlet_pressure[i])
+        w = motor_overload_warning(name, float(result.shaft_power[i]), pu.motor.rated_power,
+                                   float(result.pump_shaft_speed[i]) / pu.pump.shaft_speed,
+                                   float(result.duration[i]))
+        if w is not None:
+            out.append(w)
         if pp > pu.pump.max_pressure * (1 + 1e-9):
             out.append(Warning_("pressure-rating", name, pp, pu.pump.max_pressure,
                                 f"pump pressure {_bar(pp)} above the pump's rating "
@@ -149,7 +239,10 @@ def thermal_warnings(scenario, steady_no_cooler: float, operating: float,
     """The temperature warnings of one strategy.
 
     - ``oil-temperature``: without a cooler the oil would settle above the
-      fluid's limit (with the sized cooler's duty when one is needed);
+      fluid's limit on the hottest day (*steady_no_cooler*: the steady
+      temperature at ``ambient.temperature_max``, the cooler's design point;
+      a limit kept only at the typical ambient is exceeded every hot day),
+      with the sized cooler's duty when one is needed;
     - ``viscosity-window``: the viscosity at the *operating* temperature (the
       coupled one, or the design temperature the sized cooler holds), or at the
       cold start, lies outside the pump's allowed window.
@@ -164,6 +257,8 @@ def thermal_warnings(scenario, steady_no_cooler: float, operating: float,
         tail = (f": a cooler is needed ({cooler_duty / 1e3:.2f} kW sized)" if cooler_duty > 0
                 else "")
         out.append(Warning_("oil-temperature", None, steady_no_cooler, limit,
+                            f"on the hottest day "
+                            f"({scenario.ambient.temperature_max - 273.15:.0f} °C ambient) "
                             f"without a cooler the oil would settle at "
                             f"{steady_no_cooler - 273.15:.0f} °C, above the fluid's limit "
                             f"{limit - 273.15:.0f} °C{tail}"))

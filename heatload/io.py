@@ -92,15 +92,16 @@ kind = "mineral"                       # mineral | water-glycol | ester | other
 # For a fluid given by data instead (at least two points, distinct temperatures):
 # viscosity_points = [["20 degC", "120 mm^2/s"], ["40 degC", "46 mm^2/s"], ["80 degC", "12 mm^2/s"]]
 
-[ambient]
+[ambient]                              # each within -60 .. +70 degC (arctic site to process hall)
 temperature = "25 degC"                # typical air around the power unit
 temperature_max = "40 degC"            # hottest day: the cooler's design point
 cold_start_temperature = "15 degC"     # oil and steel at the start of a shift
 altitude = "0 m"
 
 [reservoir]
-oil_volume = "200 L"                   # oil in tank and circuit
-length = "1.0 m"                       # outside dimensions of the tank
+oil_volume = "200 L"                   # oil in tank and circuit: at least 0.1 L (a compact
+                                       # power unit), at most length x width x height
+length = "1.0 m"                       # outside dimensions of the tank, each at least 10 mm
 width = "0.6 m"
 height = "0.5 m"
 oil_level = 0.8                        # wetted fraction of the wall height
@@ -173,7 +174,8 @@ fittings_k = 2.0
 name = "main"                          # phases refer to this name
 kind = "cylinder"                      # cylinder | motor
 bore = "63 mm"
-rod = "36 mm"                          # must be smaller than the bore
+rod = "36 mm"                          # smaller than the bore; the area ratio
+                                       # D^2/(D^2 - d^2) at most 10 (ISO 7181 lists up to 5)
 stroke = "400 mm"
 friction_force = "500 N"               # seal friction, opposes motion
 max_pressure = "250 bar"
@@ -194,7 +196,8 @@ max_speed = "600 rpm"
 # a force for a cylinder, a torque for a motor.  speed is a velocity, a shaft
 # speed for a motor, or "full" (the whole pump flow, also when left out).
 # A moving cylinder phase needs a stroke or a duration (with both, the duration
-# wins); hold, idle and run phases need a duration.
+# wins); hold, idle and run phases need a duration.  However it arises (a stroke
+# at a crawling speed, or at the full flow of a tiny pump) a phase lasts at most 24 h.
 [[phases]]
 name = "approach"
 actuator = "main"
@@ -281,10 +284,11 @@ max_speed_fraction = 1.0
 price = 1800
 
 [cooler]
-oil_temperature_max = "55 degC"        # design oil temperature; default fluid max - 5 K
+oil_temperature_max = "55 degC"        # design oil temperature; default fluid max - 5 K;
+                                       # above temperature_max of [ambient] for air (ETD > 0)
 margin = 0.2                           # +20 % on the duty
 coolant = "air"                        # air | water
-water_inlet_temperature = "25 degC"
+water_inlet_temperature = "25 degC"    # for water: below the design oil temperature
 water_glycol_fraction = 0.0            # ethylene glycol mass fraction
 # water_flow = "20 L/min"              # default: from the allowed water rise
 water_temperature_rise = "5 K"
@@ -329,9 +333,36 @@ class _F:
     required: bool = False
     low: float | None = None               # plausible range beyond the kind's own
     high: float | None = None
+    why: str | None = None                 # the range and its reason, for the message
 
 
 _BAR = 1e5
+
+# Limits where no machine exists (each is documented with its reason in the
+# README's "Limits" section and in SCHEMA_EXAMPLE).
+
+#: Air temperatures a site can have [K]: -60 degC is about the coldest air
+#: arctic-rated equipment is specified for, +70 degC the air beside hot
+#: processes (foundries, furnaces); weather records lie inside (common practice).
+AMBIENT_RANGE = (213.15, 343.15)
+_AMBIENT_WHY = ("the plausible air temperature range -60 °C .. +70 °C (arctic sites to "
+                "hot process halls)")
+#: Least oil a tank may hold [m^3] (0.1 L): the smallest compact power units carry
+#: a few tenths of a litre (common practice, from memory); below this the model of
+#: a well-mixed tank shedding heat through its walls describes no machine.
+MIN_OIL_VOLUME = 1e-4
+#: Smallest outside dimension of a tank [m]: a tank wall alone is 2-5 mm of steel
+#: (common practice).
+MIN_TANK_DIMENSION = 0.01
+#: Largest cylinder area ratio A_cap / A_annulus [-]: ISO 7181 lists area ratios
+#: up to 5 (d/D = 0.89; ISO 3320 rods reach about d/D = 0.7) (from memory); 10
+#: (d/D = 0.95, an annulus of a tenth of the bore) is twice the largest, and beyond
+#: it the rod side would intensify the supply more than tenfold.
+MAX_AREA_RATIO = 10.0
+#: Longest phase [s]: a duty cycle's step lasts at most a day (the same limit
+#: as a given duration); a longer one is a unit slip in a speed or a stroke.
+MAX_PHASE_DURATION = 86400.0
+
 #: Plausible magnitude of each kind (absolute value), to catch unit slips
 #: such as "3000 bar" or "12 m/s" for a cylinder.  Generous on purpose.
 _LIMITS = {
@@ -395,9 +426,9 @@ _FLUID = {
     "kind": _F("choice", choices=("mineral", "water-glycol", "ester", "other")),
 }
 _AMBIENT = {
-    "temperature": _F("temperature", "pos"),
-    "temperature_max": _F("temperature", "pos"),
-    "cold_start_temperature": _F("temperature", "pos"),
+    "temperature": _F("temperature", "pos", low=AMBIENT_RANGE[0], high=AMBIENT_RANGE[1], why=_AMBIENT_WHY),
+    "temperature_max": _F("temperature", "pos", low=AMBIENT_RANGE[0], high=AMBIENT_RANGE[1], why=_AMBIENT_WHY),
+    "cold_start_temperature": _F("temperature", "pos", low=AMBIENT_RANGE[0], high=AMBIENT_RANGE[1], why=_AMBIENT_WHY),
     "altitude": _F("distance", low=-500.0, high=9000.0),
 }
 _SURFACE = {
@@ -410,10 +441,11 @@ _SURFACE = {
     "emissivity": _F("dimensionless", "frac_pos"),
 }
 _RESERVOIR = {
-    "oil_volume": _F("volume", "pos"),
-    "length": _F("distance", "pos", high=20.0),
-    "width": _F("distance", "pos", high=20.0),
-    "height": _F("distance", "pos", high=20.0),
+    "oil_volume": _F("volume", "pos", low=MIN_OIL_VOLUME,
+                     why="0.1 L, the least oil of a compact power unit"),
+    "length": _F("distance", "pos", low=MIN_TANK_DIMENSION, high=20.0),
+    "width": _F("distance", "pos", low=MIN_TANK_DIMENSION, high=20.0),
+    "height": _F("distance", "pos", low=MIN_TANK_DIMENSION, high=20.0),
     "oil_level": _F("dimensionless", "frac_pos"),
     "steel_mass": _F("mass", "nonneg"),
     "steel_specific_heat": _F("specific_heat", "pos"),
@@ -599,10 +631,18 @@ def _check(value: float, raw, spec: _F, kind: str, field: str, source: str) -> f
         raise _err(f"must lie in (0, 1], got {shown}", field, source)
     unit = f" {KINDS[kind].si}" if KINDS[kind].si else ""
     hint = "; check the unit" if unit else ""
-    if spec.low is not None and value < spec.low:
+    # a limit written in another unit ("-60 degC", "6000 L/min") converts to SI with a
+    # rounding of the last bit: the limit itself is within
+    low = None if spec.low is None else spec.low - 1e-12 * abs(spec.low)
+    high = None if spec.high is None else spec.high + 1e-12 * abs(spec.high)
+    if spec.why and low is not None and value < low:
+        raise _err(f"{shown} is below {spec.why}{hint}", field, source)
+    if spec.why and high is not None and value > high:
+        raise _err(f"{shown} is above {spec.why}{hint}", field, source)
+    if low is not None and value < low:
         raise _err(f"{shown} is implausibly low (below {spec.low:g}{unit}){hint}",
                    field, source)
-    if spec.high is not None and value > spec.high:
+    if high is not None and value > high:
         raise _err(f"{shown} is implausibly high (above {spec.high:g}{unit}){hint}",
                    field, source)
     limit = _LIMITS.get(kind)
@@ -784,7 +824,20 @@ def _reservoir(data, source):
                 raise _err(f"duplicate surface name {s.name!r}", f"{p}.name", source)
             names.add(s.name)
             surfaces.append(s)
-    return dataclasses.replace(m.Reservoir(), **vals, surfaces=tuple(surfaces))
+    r = dataclasses.replace(m.Reservoir(), **vals, surfaces=tuple(surfaces))
+    tank = r.length * r.width * r.height
+    if tank < MIN_OIL_VOLUME:
+        raise _err(f"the tank's outside dimensions hold {tank * 1e3:.3g} L, below the least "
+                   f"oil of a compact power unit (0.1 L); check the units",
+                   "reservoir.length", source)
+    if r.oil_volume > tank * (1 + 1e-12):
+        given = ", ".join(k for k in ("length", "width", "height") if k in vals)
+        dims = ("its dimensions" if given else "the default dimensions") + (
+            f" {r.length:g} x {r.width:g} x {r.height:g} m")
+        raise _err(f"{r.oil_volume * 1e3:.4g} L of oil cannot be in a tank of "
+                   f"{tank * 1e3:.4g} L ({dims}); check the unit or give the tank's "
+                   f"length, width and height", "reservoir.oil_volume", source)
+    return r
 
 
 def _power_unit(data, source):
@@ -832,6 +885,14 @@ def _actuators(data, source):
             if not vals["rod"] < vals["bore"]:
                 raise _err(f"the rod ({_show(item['rod'])}) must be smaller than the "
                            f"bore ({_show(item['bore'])})", f"{p}.rod", source)
+            from heatload.actuators import cylinder_areas
+
+            cap, annulus = (float(a) for a in cylinder_areas(vals["bore"], vals["rod"]))
+            if cap > MAX_AREA_RATIO * annulus:
+                raise _err(f"a rod of {_show(item['rod'])} in a {_show(item['bore'])} bore "
+                           f"leaves an annulus of {100 * annulus / cap:.3g} % of the bore "
+                           f"area (area ratio {cap / annulus:.4g}); a cylinder's area ratio "
+                           f"is at most {MAX_AREA_RATIO:g} (d/D about 0.95)", f"{p}.rod", source)
             out.append(m.Cylinder(**vals))
     return tuple(out)
 
@@ -1172,11 +1233,62 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
              "actuator_kind": {a.name: a.kind for a in actuators}}
     uncertainty = (_uncertainty(data["uncertainty"], parts, source)
                    if "uncertainty" in data else ())
-    return m.Scenario(name=head["name"], phases=phases, actuators=actuators,
-                      strategies=strategies, fluid=fluid, ambient=ambient,
-                      reservoir=reservoir, power_unit=power_unit, economics=economics,
-                      cooler=cooler, uncertainty=uncertainty, **{
-                          k: v for k, v in head.items() if k != "name"})
+    scenario = m.Scenario(name=head["name"], phases=phases, actuators=actuators,
+                          strategies=strategies, fluid=fluid, ambient=ambient,
+                          reservoir=reservoir, power_unit=power_unit, economics=economics,
+                          cooler=cooler, uncertainty=uncertainty, **{
+                              k: v for k, v in head.items() if k != "name"})
+    _check_phase_durations(scenario, source)
+    _check_cooler_design(scenario, "cooler" in data and "oil_temperature_max" in data["cooler"],
+                         source)
+    return scenario
+
+
+def _celsius(t: float) -> str:
+    return f"{t - 273.15:.4g} °C"
+
+
+def _check_phase_durations(scenario: m.Scenario, source: str) -> None:
+    """Refuse a phase longer than :data:`MAX_PHASE_DURATION`, however it arises:
+    a stroke at a crawling set speed, or at the full flow of a tiny pump.  The
+    durations are the solver's own (:func:`heatload.cycle.phase_arrays`)."""
+    from heatload import cycle
+
+    durations = cycle.phase_arrays(scenario)["duration"]
+    for i, (ph, t) in enumerate(zip(scenario.phases, durations)):
+        if t <= MAX_PHASE_DURATION:
+            continue
+        span = (f"{t / 86400:.3g} days" if t < 365.25 * 86400
+                else f"{t / (365.25 * 86400):.3g} years")
+        at = ("at its set speed" if ph.speed is not None
+              else "at the full pump flow")
+        raise _err(f"the stroke of {ph.stroke * 1e3:.4g} mm {at} ({ph.stroke / t:.3g} "
+                   f"m/s) takes {span}; a phase lasts at most 24 h (check the unit of the "
+                   f"{'speed' if ph.speed is not None else 'pump displacement'})",
+                   f"phases[{i}].{'speed' if ph.speed is not None else 'stroke'}", source)
+
+
+def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) -> None:
+    """Refuse a design point no cooler of the chosen coolant can hold: air cannot
+    cool the oil below the hottest air (ETD = T_oil - T_air must be positive), and
+    water cannot cool it below the water's inlet temperature."""
+    cd = scenario.cooler
+    t_d = m.design_oil_temperature(scenario.fluid, cd)
+    what = ("the design oil temperature" if design_given
+            else f"the design oil temperature (the fluid's limit less "
+                 f"{m.DESIGN_TEMPERATURE_HEADROOM:g} K)")
+    where = "cooler.oil_temperature_max" if design_given else "fluid.temperature_max"
+    t_air = scenario.ambient.temperature_max
+    if cd.coolant == "air" and not t_d > t_air:
+        raise _err(f"{what}, {_celsius(t_d)}, is not above the hottest ambient "
+                   f"{_celsius(t_air)}: no air cooler cools oil below the air that cools "
+                   f"it; raise the design temperature or use coolant = \"water\"",
+                   where, source)
+    if cd.coolant == "water" and not cd.water_inlet_temperature < t_d:
+        raise _err(f"water entering at {_celsius(cd.water_inlet_temperature)} is not colder "
+                   f"than {what}, {_celsius(t_d)}: a water cooler cannot cool the oil; "
+                   f"give colder water or use coolant = \"air\"",
+                   "cooler.water_inlet_temperature", source)
 
 
 _HEADER = re.compile(r"^\s*(\[\[?)\s*([^\[\]]+?)\s*\]\]?\s*(?:#.*)?$")
@@ -1324,6 +1436,19 @@ def load_scenario(path) -> m.Scenario:
         raise HeatloadError(f"not UTF-8 text (byte 0x{raw[e.start]:02x}); save the file "
                             "as UTF-8", file=source, line=line) from None
     return loads_scenario(text.removeprefix("\ufeff"), source=source)
+
+
+def locate_in_file(error: HeatloadError, path) -> HeatloadError:
+    """*error* (raised after loading, naming a field of the scenario) with the
+    file and the line of that field in *path* filled in, where they can be found."""
+    if error.file is not None:
+        return error
+    try:
+        text = Path(path).read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):
+        return error.located(file=str(path))
+    return error.located(file=str(path),
+                         line=error.line or _line_of(error.field, _key_lines(text)))
 
 
 # ---------------------------------------------------------------------------

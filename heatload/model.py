@@ -298,6 +298,21 @@ class CoolerDesign:
     thermostat_hysteresis: float = 5.0     #: [K]
 
 
+#: The design oil temperature lies this far below the fluid's limit when the
+#: scenario gives none [K] (common practice: a few kelvin of headroom for the
+#: tank's temperature swing and the thermostat's hysteresis).
+DESIGN_TEMPERATURE_HEADROOM = 5.0
+
+
+def design_oil_temperature(fluid: Fluid, cooler: CoolerDesign) -> float:
+    """Oil temperature the cooler must hold on the hottest day [K]:
+    ``cooler.oil_temperature_max``, or the fluid's limit less
+    :data:`DESIGN_TEMPERATURE_HEADROOM`."""
+    if cooler.oil_temperature_max is not None:
+        return cooler.oil_temperature_max
+    return fluid.temperature_max - DESIGN_TEMPERATURE_HEADROOM
+
+
 @dataclass(frozen=True)
 class UncertainInput:
     """An input the user is unsure of, for the Monte Carlo and the sensitivity ranking.

@@ -11,7 +11,8 @@ existing file unless asked to (``--force``).
 The recommendation is the strategy with the lowest yearly electric energy
 among those without safety-critical warnings (an overrunning load the circuit
 cannot hold, a pressure above a component's rating, a stalled actuator, an
-intensified chamber above its rating).  Oil-temperature warnings are not
+intensified chamber above its rating, a drive motor asked for more than 160 %
+of its rating).  Oil-temperature warnings are not
 disqualifying: the cooler sized here takes care of them.
 """
 
@@ -28,6 +29,7 @@ from pathlib import Path
 
 import numpy as np
 
+from heatload.checks import MOTOR_EXCESS_TORQUE
 from heatload.errors import HeatloadError
 
 K0 = 273.15
@@ -89,6 +91,8 @@ def critical_warnings(record, scenario) -> list:
             out.append(w)
         elif w["code"] == "intensification" and _above_rating(w, scenario):
             out.append(w)
+        elif w["code"] == "motor-overload" and w["value"] > w["limit"] * MOTOR_EXCESS_TORQUE:
+            out.append(w)   # more torque than a motor is built to give even briefly
     return out
 
 

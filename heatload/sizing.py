@@ -213,6 +213,25 @@ def thermostat_summary(scenario, outcome) -> dict:
             "shift_duration_s": float(scenario.shift_duration)}
 
 
+def _check_coolant_colder(coolant, oil_temperature, air_temperature, water_temperature):
+    """Refuse a coolant that enters no colder than the design oil temperature [K]:
+    no cooler of it can take heat from the oil (ETD = T_oil,in - T_coolant,in <= 0;
+    second law).  The loader refuses such a file for its own coolant; this covers
+    a coolant chosen afterwards (``heatload cooler --coolant``)."""
+    def c(t):
+        return f"{t - K0:.4g} °C"
+    if coolant == "water" and not water_temperature < oil_temperature:
+        raise HeatloadError(f"a water cooler cannot cool the oil: the water enters at "
+                            f"{c(water_temperature)}, not colder than the design oil "
+                            f"temperature {c(oil_temperature)}; give colder water or size "
+                            f"an air cooler", field="cooler.water_inlet_temperature")
+    if coolant == "air" and not air_temperature < oil_temperature:
+        raise HeatloadError(f"an air cooler cannot cool the oil: the hottest air, "
+                            f"{c(air_temperature)}, is not colder than the design oil "
+                            f"temperature {c(oil_temperature)}; raise the design temperature "
+                            f"or size a water cooler", field="cooler.oil_temperature_max")
+
+
 def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None,
                 thermostat=True) -> CoolerSizing:
     """Size the cooler of one strategy at the design point.
@@ -258,6 +277,7 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
     th = outcome.thermal
     t_d = float(th.design_oil_temperature)
     t_a = float(th.design_ambient)
+    _check_coolant_colder(coolant, t_d, t_a, float(cd.water_inlet_temperature))
     fluid = scenario.fluid
     q_oil = cycle_average_flow(outcome.circuit.pump_flow, outcome.circuit.duration)
     rho = float(oil.fluid_density(fluid, t_d))
@@ -502,7 +522,12 @@ def run_cli(args) -> int:
     if re_ is not None and re_ <= 0:
         raise HeatloadError("--rated-etd must be positive", field="--rated-etd")
     outcome = chain.evaluate_strategy(sc, strat)
-    sz = size_cooler(sc, outcome, args.coolant, rd, re_)
+    try:
+        sz = size_cooler(sc, outcome, args.coolant, rd, re_)
+    except HeatloadError as exc:
+        if exc.field and exc.field.startswith("cooler."):
+            raise io.locate_in_file(exc, path) from None
+        raise
     # a progress bar on stderr for long runs in a terminal (never in --json pipes)
     unc = cooler_uncertainty(sc, strat, samples=args.samples, seed=args.seed,
                              progress=sys.stderr.isatty() and not args.json)

@@ -277,7 +277,7 @@ def run_cli(args) -> int:
     # variants that stall, miss their speeds, run away or exceed a rating last.
     bad_cols = [c for c in df.columns if c in (
         "warnings_stall", "warnings_speed-not-reached", "warnings_runaway",
-        "warnings_pressure-rating")]
+        "warnings_pressure-rating", "warnings_motor-overload")]
     flawed = (df[bad_cols].sum(axis=1).to_numpy() > 0) if bad_cols else np.zeros(len(df), bool)
     energy = df["electric_energy_per_cycle_J"].to_numpy()
     ranked = np.lexsort((energy, flawed))

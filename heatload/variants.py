@@ -49,15 +49,16 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from heatload import circuits, cooler, cycle, energy, heat_transfer, oil, pumps, motors
+from heatload import checks, circuits, cooler, cycle, energy, heat_transfer, oil, pumps, motors
 from heatload.actuators import cylinder_areas
 from heatload.errors import HeatloadError
-from heatload.model import STRATEGIES, Scenario, Strategy
+from heatload.model import STRATEGIES, Scenario, Strategy, design_oil_temperature
 
 TWO_PI = 2.0 * np.pi
 COUPLING_TOLERANCE = 0.01   # [K], as the chain
 COUPLING_MAX_ITER = 12
-WARNING_CODES = ("stall", "speed-not-reached", "runaway", "intensification", "pressure-rating")
+WARNING_CODES = ("stall", "speed-not-reached", "runaway", "intensification", "pressure-rating",
+                 "motor-overload")
 
 # (field kind, check) of every key that can vary; check: pos, nonneg, eff, frac_pos, any
 _POWER_UNIT_KEYS = {
@@ -764,9 +765,13 @@ def warning_counts(result, c, sc, val=None, idx=None) -> dict:
     intens = moving & (p2 > pp * (1 + 1e-6)) & (p2 > 1e5) & ~result.counterbalance_active
     stall = moving & result.stalled
     slow = moving & ~result.stalled & result.flow_limited
+    over = checks.motor_overloaded(
+        result.shaft_power, pick(get(("motor", "rated_power"), pu.motor.rated_power)),
+        result.pump_shaft_speed / pick(get(("pump", "shaft_speed"), pu.pump.shaft_speed)))
     return {"stall": stall.sum(-1), "speed-not-reached": slow.sum(-1),
             "runaway": (moving & result.runaway).sum(-1),
-            "intensification": intens.sum(-1), "pressure-rating": rate.sum(-1)}
+            "intensification": intens.sum(-1), "pressure-rating": rate.sum(-1),
+            "motor-overload": over.sum(-1)}
 
 
 def _select(mask, a, b):
@@ -929,9 +934,8 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
 def _design_point(sc, val, build, n, g, amb_hot, h_user, factor):
     """The design-point solve: oil at the design temperature, hottest ambient.
     Returns ``(T_d, figures, mean heat, margin, duty without margin)``."""
-    t_d0 = sc.cooler.oil_temperature_max
     t_d = _col(g(("cooler", "oil_temperature_max"),
-                 t_d0 if t_d0 is not None else sc.fluid.temperature_max - 5.0), n)
+                 design_oil_temperature(sc.fluid, sc.cooler)), n)
     res_d, c_d = build.solve(t_d if np.ndim(g(("cooler", "oil_temperature_max"), 0.0))
                              else float(t_d[0]))
     fig_d = _figures(res_d, c_d, sc, val)

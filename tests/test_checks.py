@@ -131,3 +131,135 @@ def test_thermal_warnings_at_running_and_cold_start():
     assert all("cold start" in w.message for w in ws if w.code == "viscosity-window")
     calm = checks.thermal_warnings(sc, 323.15, 323.15, 0.0)   # 50 degC: inside the window
     assert [w.message.split(" at ")[1][:10] for w in calm] == ["cold start"]
+
+
+# ---------------------------------------------------------------------------
+# motor-overload: the pump's shaft power against the drive motor's rating
+# ---------------------------------------------------------------------------
+
+Q_PUMP = 28e-6 * 1450 / 60          # model.Pump default: Q = D n [m^3/s]
+AT_RELIEF = m.Phase("press", "c", "extend", load=200e5 * A1, speed=0.05, stroke=0.3)
+
+
+def _motor_warn(rated_power, strategy="meter-in", phases=(AT_RELIEF,)):
+    pu = m.PowerUnit(motor=m.DriveMotor(rated_power=rated_power))
+    acts = (m.Cylinder("c", bore=BORE, rod=ROD, stroke=0.5),)
+    sc = m.Scenario("mot", tuple(phases), acts, (m.Strategy(strategy),), power_unit=pu)
+    pa = cycle.phase_arrays(sc)
+    r = circuits.solve_strategy(strategy, cycle.circuit_inputs(sc, strategy, phases=pa))
+    return [w for w in checks.phase_warnings(r, sc, pa) if w.code == "motor-overload"], r
+
+
+def test_motor_overload_value_is_the_shaft_power_at_relief():
+    # a stalled meter-in press: the whole pump flow over the relief at about 180-190 bar;
+    # shaft power P = p Q / (600 eta_hm) in kW, bar, L/min (common practice), within the
+    # pump model's efficiency spread (10 %)
+    ws, r = _motor_warn(5.5e3)
+    assert len(ws) == 1 and ws[0].phase == "press"
+    p = float(r.pump_pressure[0])
+    assert ws[0].value == pytest.approx(p / 1e5 * Q_PUMP * 6e4 / 600 / 0.88 * 1e3, rel=0.10)
+    assert ws[0].limit == 5.5e3 * checks.MOTOR_SERVICE_FACTOR
+    # a 22 kW motor drives the same phase without a warning
+    assert _motor_warn(22e3)[0] == []
+
+
+def test_motor_overload_message_grades_the_overload():
+    # about 14 kW demanded (see above): a 11 kW motor at ~125 % for 6 s is a short
+    # overload IEC 60034-1 lets a motor carry (160 % torque for 15 s, from memory);
+    # a 5.5 kW motor at ~250 % is beyond it; a 1 kW motor at ~14 x is past any
+    # motor's breakdown torque (2-3 x rated, common practice)
+    short, _ = _motor_warn(11e3)
+    assert 1.0 < short[0].value / short[0].limit <= 1.6
+    assert "short overload within IEC 60034-1" in short[0].message
+    long_, _ = _motor_warn(5.5e3)
+    assert 1.6 < long_[0].value / long_[0].limit <= 3.0
+    assert "overheats or trips" in long_[0].message
+    absurd, _ = _motor_warn(1e3)
+    assert absurd[0].value / absurd[0].limit > 10
+    assert "no real drive" in absurd[0].message
+    # the same stalled press held for 30 s (0.3 m at a set 0.01 m/s) is no longer short
+    slow = m.Phase("press", "c", "extend", load=200e5 * A1, speed=0.01, stroke=0.3)
+    ws, r = _motor_warn(11e3, phases=(slow,))
+    assert r.duration[0] == pytest.approx(30.0)
+    assert "overheats or trips" in ws[0].message
+
+
+def test_motor_overload_below_base_speed_is_a_torque_limit():
+    # variable speed: the pump turns slower for a slow phase; a converter-fed motor
+    # below base speed gives its rated torque, so at a speed fraction s its power
+    # limit is P_r s (constant-torque region, common practice)
+    ph = m.Phase("press", "c", "extend", load=140e5 * A1, speed=0.005, stroke=0.1)
+    ws, r = _motor_warn(4e3, "variable-speed", (ph,))
+    s = float(r.pump_shaft_speed[0]) / (1450 / 60)
+    assert s < 0.5
+    shaft = float(r.shaft_power[0])
+    assert shaft < 4e3                       # below the rated power ...
+    assert shaft > 4e3 * s                   # ... above the rated torque at this speed
+    assert len(ws) == 1 and ws[0].limit == pytest.approx(4e3 * s, rel=1e-12)
+    assert "rated torque" in ws[0].message
+
+
+def test_motor_load_ratio_by_hand():
+    # r = P / (P_r min(s, 1)): 11 kW on a 22 kW motor is 0.5 on the grid, 1.0 at half
+    # speed, and 0.5 again above base speed (constant power)
+    assert checks.motor_load_ratio(11e3, 22e3) == 0.5
+    assert checks.motor_load_ratio(11e3, 22e3, 0.5) == 1.0
+    assert checks.motor_load_ratio(11e3, 22e3, 1.5) == 0.5
+
+
+def test_motor_overload_in_sweep_counts_and_recommendation():
+    # the variants' vectorized count equals the chain's per-phase warnings, and a
+    # motor asked for more than 160 % rules the strategy out of the recommendation
+    import dataclasses
+
+    from heatload import chain, io, report, tables, variants
+    sc = io.load_scenario(io.default_scenario_path())
+    pu = sc.power_unit
+    sc = dataclasses.replace(sc, power_unit=dataclasses.replace(
+        pu, motor=dataclasses.replace(pu.motor, rated_power=4e3)))
+    o = chain.compare(sc, ["meter-in"]).outcomes[0]
+    ws = [w for w in o.warnings if w.code == "motor-overload"]
+    assert ws
+    v = variants.evaluate_variants(sc, "meter-in")
+    assert int(v.warnings["motor-overload"][0]) == len(ws)
+    rec = tables.strategy_record(o, sc, cycle.phase_arrays(sc), False)
+    crit = report.critical_warnings(rec, sc)
+    assert {w["code"] for w in crit} >= {"motor-overload"}
+
+
+# ---------------------------------------------------------------------------
+# oil-temperature: judged on the hottest day, where the cooler is sized
+# ---------------------------------------------------------------------------
+
+def test_oil_temperature_warning_judged_on_the_hottest_day():
+    # an invented clamp on a variable-speed pump whose oil settles below its limit at
+    # the typical 20 degC but above it on a 35 degC day: the warning must be there,
+    # valued at the hot-day temperature
+    import dataclasses
+
+    from heatload import chain, heat_transfer
+    phases = (m.Phase("close", "c", "extend", load=30e3, speed=0.05, stroke=0.3),
+              m.Phase("hold", "c", "hold", duration=10.0, hold_pressure=100e5,
+                      unloading="held"),
+              m.Phase("open", "c", "retract", load=1e3, stroke=0.3))
+    acts = (m.Cylinder("c", bore=BORE, rod=ROD, stroke=0.5),)
+    sc = m.Scenario("clamp", phases, acts, (m.Strategy("variable-speed"),),
+                    ambient=m.Ambient(temperature=293.15, temperature_max=308.15),
+                    reservoir=m.Reservoir(oil_volume=0.1),
+                    cooler=m.CoolerDesign(oil_temperature_max=333.15))
+    th = chain.compare(sc).outcomes[0].thermal
+    t_typ, t_hot = th.steady_coupled, th.steady_hot
+    assert t_hot > t_typ + 5.0
+    limit = 0.5 * (t_typ + t_hot)
+    sc = dataclasses.replace(sc, fluid=dataclasses.replace(sc.fluid, temperature_max=limit))
+    o = chain.compare(sc).outcomes[0]
+    ws = [w for w in o.warnings if w.code == "oil-temperature"]
+    assert len(ws) == 1
+    assert ws[0].value == pytest.approx(t_hot) and ws[0].limit == limit
+    assert "hottest day (35 °C ambient)" in ws[0].message
+    # the hot-day temperature is the steady balance at the highest ambient (first
+    # law): the mean heat at T_hot leaves through UA(T_hot) (T_hot - T_a,max)
+    res = chain.solve_at(sc, sc.strategies[0], t_hot)
+    q = float((res.heat_to_oil * res.duration).sum() / res.duration.sum())
+    ua = float(heat_transfer.reservoir_conductance(sc.reservoir, t_hot, 308.15))
+    assert q == pytest.approx(ua * (t_hot - 308.15), rel=0.02)

@@ -270,7 +270,9 @@ def test_any_value_round_trips_exactly(p, t, q, f):
         power_unit=dataclasses.replace(
             s.power_unit, relief=dataclasses.replace(s.power_unit.relief,
                                                      cracking_pressure=p, rated_flow=q)),
-        fluid=dataclasses.replace(s.fluid, temperature_max=max(t, 260.0)),
+        # above the hottest ambient (40 degC) + 5 K: the loader refuses an air cooler's
+        # design point at or below the air
+        fluid=dataclasses.replace(s.fluid, temperature_max=max(t, 330.0)),
         phases=(dataclasses.replace(s.phases[0], load=f),) + s.phases[1:])
     assert io.loads_scenario(io.dumps_scenario(s)) == s
 
@@ -501,3 +503,79 @@ def test_text_with_quotes_and_newlines_round_trips():
     s = io.loads_scenario(MINIMAL)
     s = dataclasses.replace(s, name='Press "A"\\B', description="line one\nline two\ttab é")
     assert io.loads_scenario(io.dumps_scenario(s)) == s
+
+
+# ---------------------------------------------------------------------------
+# Limits where no machine exists: the value at the limit loads, just beyond it
+# is refused with the field and the line (the reasons: README, "Limits")
+# ---------------------------------------------------------------------------
+
+def test_area_ratio_limit_by_geometry(tmp_path):
+    # phi = D^2 / (D^2 - d^2) (geometry): d/D = sqrt(1 - 1/phi); phi = 10 at d/D = 0.9487
+    d_at = 63.0 * math.sqrt(1 - 1 / io.MAX_AREA_RATIO)
+    ok = io.loads_scenario(_edit('rod = "36 mm"', f'rod = "{d_at * 0.9999:.4f} mm"'))
+    cyl = ok.actuators[0]
+    assert cyl.bore ** 2 / (cyl.bore ** 2 - cyl.rod ** 2) < io.MAX_AREA_RATIO
+    err = _load_error(tmp_path, _edit('rod = "36 mm"', f'rod = "{d_at * 1.0001:.4f} mm"'))
+    assert err.field == "actuators[0].rod" and "area ratio 10.0" in str(err)
+    # the largest ISO 7181 area ratio, 5 (d/D = 0.894, from memory), loads
+    io.loads_scenario(_edit('rod = "36 mm"', f'rod = "{63 * math.sqrt(0.8):.3f} mm"'))
+
+
+def test_phase_duration_limit_from_stroke_and_speed(tmp_path):
+    # t = stroke / speed: 300 mm at 0.3 mm/min is 1000 min (loads); at 0.2 mm/min it is
+    # 1500 min = 25 h > 24 h (refused at the speed's line)
+    io.loads_scenario(_edit('speed = "0.1 m/s"', 'speed = "0.3 mm/min"'))
+    text = _edit('speed = "0.1 m/s"', 'speed = "0.2 mm/min"')
+    err = _load_error(tmp_path, text)
+    assert err.field == "phases[0].speed" and "1.04 days" in str(err)
+    assert text.splitlines()[err.line - 1].startswith("speed")
+
+
+def test_ambient_range(tmp_path):
+    # -60 degC and +70 degC load (the range's ends); a tenth of a kelvin beyond does not
+    io.loads_scenario(MINIMAL + '\n[ambient]\ntemperature = "-60 degC"\n'
+                      'cold_start_temperature = "-60 degC"\ntemperature_max = "70 degC"\n'
+                      '[fluid]\ntemperature_max = "100 degC"\n')
+    for key, value in (("temperature", "-60.1 degC"), ("temperature_max", "70.1 degC"),
+                       ("cold_start_temperature", "-60.1 degC")):
+        err = _load_error(tmp_path, MINIMAL + f'\n[ambient]\n{key} = "{value}"\n')
+        assert err.field == f"ambient.{key}" and "-60 °C .. +70 °C" in str(err)
+
+
+def test_tank_limits(tmp_path):
+    # 0.1 L of oil loads, 0.09 L does not; the oil must fit the tank's L x W x H
+    io.loads_scenario(MINIMAL + '\n[reservoir]\noil_volume = "0.1 L"\n')
+    err = _load_error(tmp_path, MINIMAL + '\n[reservoir]\noil_volume = "0.09 L"\n')
+    assert err.field == "reservoir.oil_volume" and "0.1 L" in str(err)
+    # 1.0 x 0.6 x 0.5 m = 300 L exactly (the model's default tank) holds 300 L of oil
+    io.loads_scenario(MINIMAL + '\n[reservoir]\noil_volume = "300 L"\n')
+    err = _load_error(tmp_path, MINIMAL + '\n[reservoir]\noil_volume = "301 L"\n')
+    assert err.field == "reservoir.oil_volume" and "tank of 300 L" in str(err)
+
+
+def test_design_point_colder_than_its_coolant(tmp_path):
+    # an air cooler's design oil temperature must lie above the hottest air, a water
+    # cooler's above the water inlet (ETD > 0, second law); at equality it cannot cool
+    amb = '\n[ambient]\ntemperature_max = "40 degC"\n'
+    io.loads_scenario(MINIMAL + amb + '[cooler]\noil_temperature_max = "40.1 degC"\n')
+    err = _load_error(tmp_path, MINIMAL + amb + '[cooler]\noil_temperature_max = "40 degC"\n')
+    assert err.field == "cooler.oil_temperature_max" and "no air cooler" in str(err)
+    # a water cooler may hold the oil below the air, with colder water
+    io.loads_scenario(MINIMAL + amb + '[cooler]\noil_temperature_max = "35 degC"\n'
+                      'coolant = "water"\nwater_inlet_temperature = "20 degC"\n')
+    err = _load_error(tmp_path, MINIMAL + amb + '[cooler]\noil_temperature_max = "35 degC"\n'
+                      'coolant = "water"\nwater_inlet_temperature = "35 degC"\n')
+    assert err.field == "cooler.water_inlet_temperature" and "cannot cool" in str(err)
+
+
+def test_limits_documented_with_their_reasons():
+    # every load-time limit is named in the README's file-format section and the schema
+    from pathlib import Path
+    readme = (Path(__file__).parents[1] / "README.md").read_text(encoding="utf-8")
+    section = readme.split("### Limits", 1)[1].split("\n## ", 1)[0]
+    for fragment in ("-60 °C", "+70 °C", "0.1 L", "10 mm", "area ratio", "24 h",
+                     "ETD", "water", "motor-overload", "160 %", "hottest day"):
+        assert fragment in section, fragment
+    for fragment in ("-60 .. +70 degC", "at least 0.1 L", "area ratio", "24 h"):
+        assert fragment in io.SCHEMA_EXAMPLE, fragment

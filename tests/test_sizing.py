@@ -272,3 +272,48 @@ def test_uncertainty_percentiles(press):
     assert t["P50"] <= t["P90"] <= t["P95"]
     assert u["sensitivity"] and "path" in u["sensitivity"][0]
     json.dumps(u, allow_nan=False)
+
+
+def test_coolant_not_colder_than_the_oil_is_refused(press, tmp_path):
+    # water at 90 degC cannot take heat from oil held at 55 degC (ETD < 0, second
+    # law): `--coolant water` refuses with the field, file and line instead of
+    # printing an air sizing with exit 0
+    import dataclasses
+    sc, cmp = press
+    hot = dataclasses.replace(sc, cooler=dataclasses.replace(
+        sc.cooler, water_inlet_temperature=K0 + 90.0))
+    with pytest.raises(HeatloadError) as e:
+        sizing.size_cooler(hot, cmp.outcome("meter-in"), coolant="water", thermostat=False)
+    assert e.value.field == "cooler.water_inlet_temperature"
+    assert "cannot cool" in e.value.message
+    # equality is no better: the ETD is zero
+    same = dataclasses.replace(sc, cooler=dataclasses.replace(
+        sc.cooler, water_inlet_temperature=cmp.outcomes[0].thermal.design_oil_temperature))
+    with pytest.raises(HeatloadError):
+        sizing.size_cooler(same, cmp.outcomes[0], coolant="water", thermostat=False)
+    # the file's own coolant (air) still sizes; the water sizing is only noted impossible
+    sz = sizing.size_cooler(hot, cmp.outcome("meter-in"), thermostat=False)
+    assert sz.spec is not None and sz.spec.coolant == "air"
+    text = io.default_scenario_path().read_text(encoding="utf-8")
+    text = text.replace('coolant = "air"', 'coolant = "air"\nwater_inlet_temperature = "90 degC"')
+    path = tmp_path / "hot_water.toml"
+    path.write_text(text, encoding="utf-8")
+    rc, out, err = _run(["cooler", str(path), "--coolant", "water", "--samples", "1"])
+    assert rc == 2 and out == ""
+    line = text.splitlines().index('water_inlet_temperature = "90 degC"') + 1
+    assert err.startswith(f"heatload: error: {path}:{line}: cooler.water_inlet_temperature:")
+    assert err.count("\n") == 1
+
+
+def test_air_coolant_hotter_than_the_design_refused(winch):
+    # the winch sizes a water cooler; asked for air on a day hotter than its design
+    # oil temperature, no air cooler can hold it (ETD <= 0)
+    import dataclasses
+    sc, cmp = winch
+    o = cmp.outcome("meter-in")
+    t_d = o.thermal.design_oil_temperature
+    hot_day = dataclasses.replace(o.thermal, design_ambient=t_d + 1.0)
+    with pytest.raises(HeatloadError) as e:
+        sizing.size_cooler(sc, dataclasses.replace(o, thermal=hot_day), coolant="air",
+                           thermostat=False)
+    assert e.value.field == "cooler.oil_temperature_max" and "air cooler" in e.value.message
