@@ -1285,7 +1285,7 @@ def loads_scenario(text: str, source: str = "<string>") -> m.Scenario:
         return scenario_from_dict(data, source)
     except HeatloadError as e:
         raise e.located(file=source, line=e.line or _line_of(e.field, _key_lines(text))) \
-            from None
+            .named_from(data) from None
 
 
 def load_scenario(path) -> m.Scenario:
