@@ -36,8 +36,8 @@ class HeatloadError(ValueError):
     line : int, optional
         1-based line in that file, where it could be found.
     row_name : str, optional
-        Name of the phase the field lies in (``phases[i]...``), shown beside
-        its 1-based number.
+        Name of the phase the field lies in (``phases[i]...``); when known the
+        line names the phase by its 1-based number and this name.
     """
 
     def __init__(self, message: str, field: str | None = None,
@@ -58,12 +58,11 @@ class HeatloadError(ValueError):
             where = f"{self.file}:{self.line}: " if self.line else f"{self.file}: "
         field = f"{self.field}: " if self.field else ""
         row = _ROW.match(self.field or "")
-        if row:
+        if row and self.row_name:
             name = self.row_name
-            if name and len(name) > _NAME_SHOWN:
+            if len(name) > _NAME_SHOWN:
                 name = name[:_NAME_SHOWN - 1] + "…"
-            field = (f"{_ROWS[row.group(1)]} {int(row.group(2)) + 1}"
-                     + (f" '{name}'" if name else "") + f", {field}")
+            field = f"{_ROWS[row.group(1)]} {int(row.group(2)) + 1} '{name}', {field}"
         return printable(f"{where}{field}{self.message}")
 
     def located(self, file: str | None = None, line: int | None = None,
