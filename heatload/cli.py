@@ -14,6 +14,12 @@ bad input, never a traceback):
 
 Heavy packages (pandas, CoolProp, plotly, dash) are imported only by the
 commands that need them, so ``heatload --help`` and ``heatload check`` start fast.
+
+Names come from the user's file, so everything printed passes through one
+escape of terminal control characters (:func:`heatload.errors.printable`, the
+one error lines use; JSON output gets the JSON form ``\\u001b``, so it stays
+valid), and a Python warning from the engine is shown as one line
+``heatload: warning: ...`` without a source line.
 """
 
 from __future__ import annotations
@@ -22,8 +28,9 @@ import argparse
 import json
 import os
 import sys
+import warnings
 
-from heatload.errors import HeatloadError
+from heatload.errors import HeatloadError, printable
 
 K0 = 273.15
 
@@ -129,10 +136,14 @@ def cmd_check(args):
     print(f"  fluid: {sc.fluid.name} (nu40 {sc.fluid.nu40 * 1e6:.1f} mm²/s, "
           f"nu100 {sc.fluid.nu100 * 1e6:.2f} mm²/s), limits "
           f"{_temperature(sc.fluid.temperature_min, s)} .. {_temperature(sc.fluid.temperature_max, s)}")
+    motor = pu.motor
+    # an explicit efficiency is what the engine uses; the class is then unused
+    eff = (f"efficiency {100 * motor.efficiency:.1f} % (given)" if motor.efficiency is not None
+           else f"{motor.efficiency_class}")
     print(f"  pump: {pu.pump.kind} {pu.pump.type}, {pu.pump.displacement * 1e6:.1f} cm³/rev at "
           f"{pu.pump.shaft_speed * 60:.0f} rpm = {_fmt(q, 'flow', s)}; relief "
           f"{_fmt(pu.relief.cracking_pressure, 'pressure', s)}; motor "
-          f"{_fmt(pu.motor.rated_power, 'power', s)} {pu.motor.efficiency_class}")
+          f"{_fmt(motor.rated_power, 'power', s)} {eff}")
     print(f"  reservoir: {_fmt(sc.reservoir.oil_volume, 'volume', s)} oil, "
           f"{sc.reservoir.length:.2f} x {sc.reservoir.width:.2f} x {sc.reservoir.height:.2f} m")
     for a in sc.actuators:
@@ -348,14 +359,43 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
+class _TerminalText:
+    """A text stream that shows control characters escaped (line ends pass)."""
+
+    def __init__(self, stream, json_mode=False):
+        self._stream = stream
+        self._json = json_mode
+
+    def write(self, text):
+        return self._stream.write(printable(text, keep="\n", json=self._json))
+
+    def __getattr__(self, name):
+        return getattr(self._stream, name)
+
+
+def _one_line_warning(seen):
+    def show(message, category, filename, lineno, file=None, line=None):
+        text = printable(str(message))
+        if text in seen:          # once per run, however many variants repeat it
+            return
+        seen.add(text)
+        kind = "" if category is UserWarning else f" ({category.__name__})"
+        print(f"heatload: warning{kind}: {text}", file=sys.stderr)
+    return show
+
+
 def main(argv=None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     if not getattr(args, "command", None):
         parser.print_help()
         return 0
+    stdout = sys.stdout
+    sys.stdout = _TerminalText(stdout, json_mode=bool(getattr(args, "json", False)))
     try:
-        return int(args.func(args) or 0)
+        with warnings.catch_warnings():
+            warnings.showwarning = _one_line_warning(set())
+            return int(args.func(args) or 0)
     except HeatloadError as exc:
         print(f"heatload: error: {exc.one_line()}", file=sys.stderr)
         return 2
@@ -367,9 +407,11 @@ def main(argv=None) -> int:
     except Exception as exc:  # a bug of ours: one line, the trace only on request
         if os.environ.get("HEATLOAD_DEBUG"):
             raise
-        print(f"heatload: internal error: {type(exc).__name__}: {exc} "
+        print(f"heatload: internal error: {type(exc).__name__}: {printable(str(exc))} "
               f"(set HEATLOAD_DEBUG=1 for the traceback)", file=sys.stderr)
         return 3
+    finally:
+        sys.stdout = stdout
 
 
 if __name__ == "__main__":

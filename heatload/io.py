@@ -35,13 +35,12 @@ from __future__ import annotations
 import dataclasses
 import difflib
 import math
-import os
 import re
-import tempfile
 from functools import lru_cache
 from pathlib import Path
 
 from heatload import model as m
+from heatload import outputs
 from heatload.errors import HeatloadError
 from heatload.units import KINDS, from_si, to_si
 
@@ -1397,7 +1396,7 @@ def loads_scenario(text: str, source: str = "<string>") -> m.Scenario:
         return scenario_from_dict(data, source)
     except HeatloadError as e:
         raise e.located(file=source, line=e.line or _line_of(e.field, _key_lines(text))) \
-            from None
+            .named_from(data) from None
 
 
 def load_scenario(path) -> m.Scenario:
@@ -1685,9 +1684,9 @@ def dumps_scenario(scenario: m.Scenario) -> str:
 def save_scenario(scenario: m.Scenario, path, force: bool = False) -> Path:
     """Write the scenario to *path* atomically.
 
-    The text is checked to load back to an equal scenario, written to a
-    temporary file in the same folder and moved into place with
-    :func:`os.replace`, so a reader never sees half a file.
+    The text is checked to load back to an equal scenario and written by
+    :func:`heatload.outputs.write_atomic` (a temporary file in the same
+    folder moved into place), so a reader never sees half a file.
 
     Parameters
     ----------
@@ -1705,37 +1704,22 @@ def save_scenario(scenario: m.Scenario, path, force: bool = False) -> Path:
     Raises
     ------
     HeatloadError
-        The file exists and *force* is false; the scenario is invalid (it
-        would not load back); the folder cannot be written.
+        The file exists and *force* is false; the target is a folder, pipe
+        or device (even with *force*); the scenario is invalid (it would not
+        load back); the folder cannot be written.
     """
     target = Path(path)
-    if target.exists() and not force:
-        raise HeatloadError("file exists; pass force=True to overwrite it",
-                            file=str(target))
+    hint = "pass force=True to overwrite it"
+    outputs.check_output(target, force=force, hint=hint)
     text = dumps_scenario(scenario)
     if loads_scenario(text, source=str(target)) != scenario:
         raise HeatloadError("the scenario does not survive a write and reload "
                             "unchanged", file=str(target))
-    folder = target.resolve().parent
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
-    except OSError as e:
-        raise HeatloadError(f"cannot write in {folder}: {e.strerror or e}",
-                            file=str(target)) from None
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
+
+    def write(tmp):
+        with open(tmp, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(text)
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.replace(tmp, target)
-    except OSError as e:
-        Path(tmp).unlink(missing_ok=True)
-        raise HeatloadError(f"cannot write the file: {e.strerror or e}",
-                            file=str(target)) from None
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return target
+    return outputs.write_atomic(target, write, force=force, hint=hint)
 
 
 # ---------------------------------------------------------------------------

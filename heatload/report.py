@@ -4,9 +4,12 @@ and as CSV files.
 
 Every number comes from :mod:`heatload.tables` records (and, for the cooler,
 :func:`heatload.sizing.sizing_record`), so the report, the spreadsheet and
-``heatload compare --json`` agree.  Files are written atomically (a temporary
-file in the target folder, then ``os.replace``) and never overwrite an
-existing file unless asked to (``--force``).
+``heatload compare --json`` agree.  Every output path is checked before
+anything is computed, and files are written by the project's one atomic
+writer (:func:`heatload.outputs.write_atomic`); an existing file is replaced
+only when asked to (``--force``), a folder, pipe or device never.  Text cells
+of the exports that a spreadsheet would run as a formula are neutralised
+(:mod:`heatload.outputs`).
 
 The recommendation is the strategy with the lowest yearly electric energy
 among those without safety-critical warnings (an overrunning load the circuit
@@ -21,14 +24,13 @@ from __future__ import annotations
 import html
 import json
 import math
-import os
 import re
-import tempfile
 import time
 from pathlib import Path
 
 import numpy as np
 
+from heatload import outputs
 from heatload.checks import MOTOR_EXCESS_TORQUE
 from heatload.errors import HeatloadError
 
@@ -894,10 +896,17 @@ def _jsonable(obj):
 # exports
 # ---------------------------------------------------------------------------
 
+def export_names(strategy_names) -> list:
+    """Names of the export tables (sheets; CSV files by :func:`_csv_name`) for
+    strategies of these names, in the order :func:`export_tables` gives them."""
+    return (["strategies", "phase_components"] + [f"phases {n}" for n in strategy_names]
+            + ["cooler", "payback", "assumptions"])
+
+
 def export_tables(scenario, comparison, prepared=None, present=None, prices=None) -> dict:
     """{name: pandas DataFrame} of the spreadsheet and CSV exports: ``strategies``,
     ``phase_components``, ``phases <strategy>`` per strategy, ``cooler``, ``payback``,
-    ``assumptions``."""
+    ``assumptions`` (:func:`export_names`)."""
     import pandas as pd
     from heatload import sizing, tables
 
@@ -939,11 +948,15 @@ def export_tables(scenario, comparison, prepared=None, present=None, prices=None
         data = tables.comparison_dict(comparison)
         out["payback"] = pd.DataFrame(payback_rows(data, present, prices))
         out["assumptions"] = pd.DataFrame(assumptions(scenario))
-    return out
+    names = export_names(o.name for o in comparison.outcomes)
+    return {k: out[k] for k in names}
 
 
 def _sheet_name(name, used):
-    s = re.sub(r"[\[\]:*?/\\]", "-", name)[:31]
+    # Excel forbids []:*?/\ in a sheet name and 31+ characters; control
+    # characters would make the workbook unreadable
+    s = re.sub(r"[\[\]:*?/\\]", "-", "".join(c if c.isprintable() else "-" for c in name))
+    s = s.strip("'")[:31] or "sheet"
     base, i = s, 2
     while s in used:
         suffix = f" {i}"
@@ -954,79 +967,73 @@ def _sheet_name(name, used):
 
 
 def _csv_name(name):
-    return re.sub(r"[^A-Za-z0-9._-]+", "_", name).strip("_") + ".csv"
+    return (re.sub(r"[^A-Za-z0-9._-]+", "_", name).strip("_.") or "table") + ".csv"
 
 
-def _refuse(path, force, fieldname):
-    if Path(path).exists() and not force:
-        raise HeatloadError(f"{path} exists; use --force to overwrite", field=fieldname)
+def _csv_targets(directory, names) -> dict:
+    d = Path(directory)
+    targets = {name: d / _csv_name(name) for name in names}
+    if len(set(targets.values())) != len(targets):
+        raise HeatloadError("two tables map to the same CSV file name", field="--csv")
+    return targets
 
 
-def _atomic(path, write):
-    """Write through *write(tmp_path)* to a temporary file beside *path*, then replace."""
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    # the temporary name keeps the extension: writers such as pandas' pick the format by it
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.stem}.tmp-", suffix=path.suffix, dir=path.parent)
-    os.close(fd)
-    try:
-        write(tmp)
-        os.chmod(tmp, 0o666 & ~_umask())  # mkstemp makes it 0600; a report is a shared file
-        os.replace(tmp, path)
-    except BaseException:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-        raise
-
-
-def _umask():
-    mask = os.umask(0o022)
-    os.umask(mask)
-    return mask
+def check_outputs(output=None, xlsx=None, csv=None, table_names=(), force=False):
+    """Refuse every output of ``heatload report`` that cannot be written, before
+    anything is computed: wrong extension (``.html``/``.htm``, ``.xlsx``), a
+    folder, pipe or device in the way (even with *force*), an existing file
+    without *force*."""
+    if output is not None:
+        outputs.check_output(output, "--output", force=force, suffixes=(".html", ".htm"))
+    if xlsx:
+        outputs.check_output(xlsx, "--xlsx", force=force, suffixes=(".xlsx",))
+        try:
+            import openpyxl  # noqa: F401  (the spreadsheet writer)
+        except ImportError:
+            raise HeatloadError("writing .xlsx needs the 'openpyxl' package "
+                                "(pip install openpyxl)", field="--xlsx") from None
+    if csv:
+        outputs.check_output_folder(csv, "--csv")
+        for p in _csv_targets(csv, table_names).values():
+            outputs.check_output(p, "--csv", force=force)
 
 
 def write_html(text, path, force=False):
     """Write the report atomically; refuses to overwrite without *force*."""
-    _refuse(path, force, "--output")
-
     def w(tmp):
         with open(tmp, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(text)
-    _atomic(path, w)
-    return Path(path)
+    return outputs.write_atomic(path, w, "--output", force=force)
 
 
 def write_xlsx(frames, path, force=False):
-    """Write {sheet: DataFrame} to an .xlsx workbook (openpyxl via pandas), atomically."""
+    """Write {sheet: DataFrame} to an .xlsx workbook (openpyxl via pandas),
+    atomically; text that would run as a formula is stored as text."""
     import pandas as pd
 
-    _refuse(path, force, "--xlsx")
+    outputs.check_output(path, "--xlsx", force=force, suffixes=(".xlsx",))
 
     def w(tmp):
         used = set()
         with pd.ExcelWriter(tmp, engine="openpyxl") as xw:
             for name, df in frames.items():
-                df.to_excel(xw, sheet_name=_sheet_name(name, used), index=False)
-    _atomic(path, w)
-    return Path(path)
+                sheet = _sheet_name(name, used)
+                outputs.xlsx_safe(df).to_excel(xw, sheet_name=sheet, index=False)
+                outputs.mark_text_cells(xw.sheets[sheet])
+    return outputs.write_atomic(path, w, "--xlsx", force=force)
 
 
 def write_csv(frames, directory, force=False) -> list:
-    """Write each table as ``DIR/<name>.csv`` (UTF-8), atomically; refuses to
-    overwrite any existing file without *force* (checked before writing any)."""
-    d = Path(directory)
-    if d.exists() and not d.is_dir():
-        raise HeatloadError(f"{d} is not a folder", field="--csv")
-    targets = {name: d / _csv_name(name) for name in frames}
-    if len(set(targets.values())) != len(targets):
-        raise HeatloadError("two tables map to the same CSV file name", field="--csv")
+    """Write each table as ``DIR/<name>.csv`` atomically (:func:`heatload.outputs.to_csv`:
+    UTF-8, text that would run as a formula with a leading quote); refuses to overwrite any
+    existing file without *force* (checked before writing any)."""
+    outputs.check_output_folder(directory, "--csv")
+    targets = _csv_targets(directory, frames)
     for p in targets.values():
-        _refuse(p, force, "--csv")
-    out = []
-    for name, p in targets.items():
-        _atomic(p, lambda tmp, df=frames[name]: df.to_csv(tmp, index=False, encoding="utf-8"))
-        out.append(p)
-    return out
+        outputs.check_output(p, "--csv", force=force)
+    return [outputs.write_atomic(p, lambda tmp, df=frames[name]: outputs.to_csv(df, tmp),
+                                 "--csv", force=force)
+            for name, p in targets.items()]
 
 
 def run_cli(args) -> int:
@@ -1040,21 +1047,15 @@ def run_cli(args) -> int:
     prices = parse_prices(getattr(args, "price", None), sc)
     out = Path(args.output)
     # refuse before computing anything
-    _refuse(out, args.force, "--output")
-    if args.xlsx:
-        _refuse(args.xlsx, args.force, "--xlsx")
+    check_outputs(out, args.xlsx, args.csv, export_names(st.name for st in sc.strategies),
+                  args.force)
     cmp = chain.compare(sc)
     rd = report_data(sc, cmp, args.present, prices, str(path),
                      samples=getattr(args, "samples", None), seed=getattr(args, "seed", 1))
     text = build_report(sc, cmp, prepared=rd)
-    frames = None
-    if args.csv:
-        frames = export_tables(sc, cmp, rd)
-        for name in frames:
-            _refuse(Path(args.csv) / _csv_name(name), args.force, "--csv")
     write_html(text, out, args.force)
     if args.xlsx or args.csv:
-        frames = frames or export_tables(sc, cmp, rd)
+        frames = export_tables(sc, cmp, rd)
         if args.xlsx:
             write_xlsx(frames, args.xlsx, args.force)
         if args.csv:

@@ -7,22 +7,22 @@ too) and the number of values.  Several ``--vary`` make the full grid
 (every combination); ``--samples N --seed S`` draws N variants uniformly in
 the ranges instead.  Each strategy is evaluated in vectorized chunks
 (:func:`heatload.variants.evaluate_variants`), the table is written to CSV or
-Parquet atomically, and the best variants and the Pareto front (energy per
-cycle against cooler duty, and against the pump displacement when it
-varies) are printed.
+Parquet atomically (the output path checked before anything is computed; in
+CSV, text a spreadsheet would run as a formula gets a leading quote), and the
+best variants and the Pareto front (energy per cycle against cooler duty, and
+against the pump displacement when it varies) are printed.
 """
 
 from __future__ import annotations
 
-import os
 import re
 import sys
-import tempfile
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
+from heatload import outputs
 from heatload.errors import HeatloadError
 
 #: Variants per vectorized pass (bounds memory: ~12 phases x 60 arrays each).
@@ -182,30 +182,38 @@ def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK, t
     return pd.concat(frames, ignore_index=True)
 
 
+#: Extensions ``heatload sweep -o`` writes.
+TABLE_SUFFIXES = (".csv", ".parquet")
+
+
+def check_table_path(path, force=False) -> Path:
+    """Refuse a ``heatload sweep -o`` target before the sweep runs: an extension
+    other than .csv / .parquet, a folder, pipe or device (even with *force*),
+    an existing file without *force*, Parquet without its writer."""
+    p = outputs.check_output(path, "--output", force=force, suffixes=TABLE_SUFFIXES)
+    if p.suffix.lower() == ".parquet":
+        try:
+            import pyarrow  # noqa: F401  (pandas' Parquet engine)
+        except ImportError:
+            raise HeatloadError("writing .parquet needs the 'pyarrow' package "
+                                "(pip install pyarrow), or write .csv", field="--output") from None
+    return p
+
+
 def write_table(df, path, force=False) -> Path:
     """Write *df* to CSV or Parquet (by suffix) atomically; refuse to
-    overwrite an existing file unless *force*."""
-    p = Path(path)
-    suffix = p.suffix.lower()
-    if suffix not in (".csv", ".parquet"):
-        raise HeatloadError(f"expected a .csv or .parquet file, got {p.name!r}", field="--output")
-    if p.exists() and not force:
-        raise HeatloadError(f"{p} exists; use --force to overwrite it", field="--output")
-    directory = p.parent if str(p.parent) else Path(".")
-    if not directory.is_dir():
-        raise HeatloadError(f"no directory {directory}", field="--output")
-    fd, tmp = tempfile.mkstemp(prefix=f".{p.name}.", suffix=".tmp", dir=directory)
-    os.close(fd)
-    try:
-        if suffix == ".csv":
-            df.to_csv(tmp, index=False)
-        else:
+    overwrite an existing file unless *force*.  In CSV, text cells a
+    spreadsheet would run as a formula get a leading quote
+    (:func:`heatload.outputs.to_csv`); Parquet keeps the values as they are
+    (typed data, not opened as a spreadsheet)."""
+    p = check_table_path(path, force)
+    if p.suffix.lower() == ".csv":
+        def write(tmp):
+            outputs.to_csv(df, tmp)
+    else:
+        def write(tmp):
             df.to_parquet(tmp, index=False, engine="pyarrow")
-        os.replace(tmp, p)
-    finally:
-        if os.path.exists(tmp):
-            os.unlink(tmp)
-    return p
+    return outputs.write_atomic(p, write, "--output", force=force)
 
 
 def _show(df, specs, system, rows, out):
@@ -246,6 +254,8 @@ def run_cli(args) -> int:
         raise HeatloadError("the same path is varied twice", field="--vary")
     if args.top is not None and args.top < 0:
         raise HeatloadError(f"must be >= 0, got {args.top}", field="--top")
+    if args.output:
+        check_table_path(args.output, force=args.force)      # before the sweep runs
     names = args.strategy or [s.name for s in scenario.strategies]
     strategies = []
     for name in names:

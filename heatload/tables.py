@@ -131,7 +131,10 @@ def strategy_frame(cmp):
     for o in cmp.outcomes:
         rec = strategy_record(o, cmp.scenario, cmp.phase_arrays, with_phases=False)
         rec.pop("component_energy_per_cycle_J")
-        rec["warnings"] = "; ".join(f"{w['phase'] or '-'}: {w['code']}" for w in rec["warnings"])
+        # "whole cycle" as the command line says, not "-": a text cell that
+        # begins with "-" reads as a formula in a spreadsheet
+        rec["warnings"] = "; ".join(f"{w['phase'] or 'whole cycle'}: {w['code']}"
+                                    for w in rec["warnings"])
         rows.append(rec)
     return pd.DataFrame(rows)
 

@@ -101,3 +101,81 @@ def test_readme_quick_start_matches_ci():
     quick = readme.split("## Quick start", 1)[1].split("##", 1)[0]
     assert "make run" in quick and "make test" in quick
     assert "make test" in (ROOT / ".ci" / "run").read_text()
+
+
+# ---------------------------------------------------------------------------
+# what the command line prints: escaped names, clean warnings, phase numbers
+# ---------------------------------------------------------------------------
+
+def _press_text(*edits):
+    text = io.default_scenario_path().read_text()
+    for old, new in edits:
+        assert old in text, old
+        text = text.replace(old, new)
+    return text
+
+
+def _write(tmp_path, text, name="press.toml"):
+    p = tmp_path / name
+    p.write_text(text, encoding="utf-8")
+    return p
+
+
+ESC_NAME = ('name = "main"', 'name = "ma\\u001b[2Jin\\u009b"')   # ESC clears a screen; CSI
+
+
+def test_check_escapes_terminal_control_characters(tmp_path, capsys):
+    text = _press_text(ESC_NAME, ('name = "dwell"', 'name = "dw\\u0007ell\\u202e"'))
+    text = text.replace('actuator = "main"', 'actuator = "ma\\u001b[2Jin\\u009b"')
+    p = _write(tmp_path, text)
+    assert main(["check", str(p)]) == 0
+    out = capsys.readouterr().out
+    assert not [c for c in out if not c.isprintable() and c != "\n"]
+    assert "ma\\x1b[2Jin\\x9b" in out and "dw\\x07ell\\u202e" in out
+
+
+def test_json_output_stays_valid_with_control_characters(tmp_path, capsys):
+    text = _press_text(ESC_NAME).replace('actuator = "main"', 'actuator = "ma\\u001b[2Jin\\u009b"')
+    p = _write(tmp_path, text)
+    assert main(["phases", str(p), "--strategy", "meter-in", "--json"]) == 0
+    out = capsys.readouterr().out
+    assert not [c for c in out if not c.isprintable() and c != "\n"]
+    recs = json.loads(out)                               # still JSON, same value
+    assert recs[0]["actuator"] == "ma\x1b[2Jin\x9b"
+
+
+def test_engine_warning_is_one_clean_line(tmp_path):
+    # IEC 60034-30-1's small-motor formula starts at 0.12 kW: a 1 W motor is outside it
+    p = _write(tmp_path, _press_text(('rated_power = "22 kW"', 'rated_power = "1 W"')))
+    r = subprocess.run([sys.executable, "-m", "heatload.cli", "compare", str(p),
+                        "--strategy", "meter-in"], capture_output=True, text=True, cwd=ROOT)
+    assert r.returncode == 0, r.stderr
+    lines = r.stderr.strip().splitlines()
+    assert len(lines) == 1, r.stderr
+    assert lines[0].startswith("heatload: warning: rated power below 0.12 kW")
+    assert "UserWarning" not in r.stderr and ".py:" not in r.stderr
+
+
+def test_phases_are_numbered_from_one_in_messages(tmp_path):
+    # the third [[phases]] item of the press is "forming"; its path stays phases[2]
+    text = io.default_scenario_path().read_text()
+    head, sep, tail = text.partition('name = "forming"')
+    tail = re.sub(r'speed = "[^"]*"', 'speed = "12 kg"', tail, count=1)
+    p = _write(tmp_path, head + sep + tail)
+    r = subprocess.run([sys.executable, "-m", "heatload.cli", "check", str(p)],
+                       capture_output=True, text=True, cwd=ROOT)
+    assert r.returncode == 2
+    line = r.stderr.strip()
+    assert "phase 3 'forming', phases[2].speed: expected a velocity" in line, line
+    number = int(re.search(r"press\.toml:(\d+): ", line).group(1))
+    assert 'speed = "12 kg"' in p.read_text().splitlines()[number - 1]
+
+
+def test_check_shows_a_given_motor_efficiency(tmp_path, capsys):
+    p = _write(tmp_path, _press_text(('efficiency_class = "IE3"',
+                                      'efficiency_class = "IE3"\nefficiency = 0.915')))
+    assert main(["check", str(p)]) == 0
+    motor = [ln for ln in capsys.readouterr().out.splitlines() if "pump:" in ln][0]
+    assert "efficiency 91.5 % (given)" in motor and "IE3" not in motor
+    assert main(["check", str(io.default_scenario_path())]) == 0
+    assert "IE3" in capsys.readouterr().out
