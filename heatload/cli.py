@@ -104,6 +104,7 @@ def cmd_compare(args):
                f"cooler [{_unit('power', s)}]", f"peak [{_unit('pressure', s)}]", "eff. [%]",
                "warnings"]
     rows = []
+    dec = cmp.decision()
     for i, o in enumerate(cmp.ranked(), 1):
         e, th = o.energy, o.thermal
         codes = sorted({w.code for w in o.warnings})
@@ -115,6 +116,14 @@ def cmd_compare(args):
                      _num(e.peak_pressure, "pressure", s), f"{100 * float(e.overall_efficiency):.0f}",
                      ", ".join(codes) if codes else "-"])
     print(_table(headers, rows))
+    print()
+    print(dec.sentence())
+    print("Ranked feasible first, then by yearly cost of ownership (energy, cooler fan, "
+          "annualised circuit and cooler price):")
+    for v in dec.verdicts:
+        print(f"  {v.rank}. {v.name}: {v.reason}")
+    for n in dec.notes:
+        print(f"  note: {n}")
     print()
     for o in cmp.ranked():
         for w in o.warnings:
@@ -336,6 +345,12 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--samples", type=int, default=2000,
                     help="Monte Carlo samples for the cooler duty (default 2000)")
     sp.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
+    for opt, what in (("--project", "project"), ("--customer", "customer"),
+                      ("--prepared-by", "who prepared it"), ("--revision", "revision"),
+                      ("--date", "date (default today)")):
+        sp.add_argument(opt, default=None, help=f"the report cover's {what}; default the "
+                        "scenario file's [scenario] key" if opt != "--date" else
+                        f"the report cover's {what}")
 
     sp = add("sweep", cmd_sweep, "evaluate a grid or sample of design variants at array speed")
     sp.add_argument("--vary", action="append", default=[], metavar="PATH=LOW..HIGH:N",
