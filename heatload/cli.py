@@ -370,7 +370,12 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--host", default="127.0.0.1",
                     help="interface to bind (default 127.0.0.1; anything else is reachable "
                          "from the network)")
-    sp.add_argument("--debug", action="store_true", help="Dash debug mode (never on a shared machine)")
+    sp.add_argument("--threads", type=int, default=8,
+                    help="worker threads of the production server (default 8: about one per "
+                         "person working at the same time; each recompute takes a few "
+                         "seconds of one core)")
+    sp.add_argument("--debug", action="store_true",
+                    help="Dash's development server in debug mode (never on a shared machine)")
     return p
 
 

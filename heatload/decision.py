@@ -388,7 +388,10 @@ def decide(comparison, present=None, prices=None) -> Decision:
     prices = dict(prices or {})
     outcomes = list(comparison.outcomes)
     present = present or sc.economics.present_strategy or outcomes[0].name
-    present = comparison.outcome(present).name
+    try:
+        present = comparison.outcome(present).name
+    except KeyError:            # a comparison of some strategies only: the first one
+        present = outcomes[0].name
     costs = [yearly_cost(sc, o, prices.get(o.name)) for o in outcomes]
     blocks = [blocking_warnings(o, sc) for o in outcomes]
     feasible = np.array([not b for b in blocks])
