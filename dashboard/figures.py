@@ -279,7 +279,9 @@ def decision_figure(results: dict):
         fig.add_annotation(x=tot, y=nm, text=f" {tot:,.0f}" + ("" if r.get("feasible", True)
                                                                else "  ruled out"),
                            showarrow=False, xanchor="left", font=dict(size=12))
-    fig.update_layout(barmode="stack", showlegend=True)
+    # the segments share their bar's role colour, lighter from energy to cooler
+    # price: a legend of one colour would mislead, the view's caption says it
+    fig.update_layout(barmode="stack", showlegend=False)
     fig.update_yaxes(autorange="reversed", title_text="strategy, ranked", automargin=True)
     fig.update_xaxes(title_text=f"yearly cost of ownership [{cur}/year]")
     return _layout(fig, "Yearly cost of ownership, ranked (green: recommended, orange: "
@@ -305,6 +307,9 @@ def decision_view(results: dict, system: str):
     kids = [html.P(dec.get("sentence", ""), className="decision", id="decision-sentence")]
     kids.append(dcc.Graph(id="decision-graph", figure=decision_figure(results),
                           config={"displaylogo": False}))
+    kids.append(html.Div("Each bar, from solid to light: electricity of the circuit, "
+                         "electricity of the cooler's fan, the circuit's extra price and the "
+                         "cooler's price spread over the service life.", className="caution"))
     if out_rows:
         kids += [html.H3("Ruled out"), html.Ul(out_rows, id="ruled-out", className="ruled-out")]
     kids += [html.Div(f"Note: {n}.", className="caution") for n in dec.get("notes") or []]
