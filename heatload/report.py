@@ -836,9 +836,15 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
                       ("simple payback [years]", "num")], prow)
     notes = "".join(f'<p class="note">Note: {_e(n)}.</p>' for n in dec.notes)
 
+    inputs = [a for a in rd["assumptions"] if not a["item"].startswith("method: ")]
+    methods = [a for a in rd["assumptions"] if a["item"].startswith("method: ")]
     arow = "".join(f"<tr><td>{_e(a['item'])}</td><td>{_e(a['value'])}</td>"
-                   f"<td class=\"note\">{_e(a['source'])}</td></tr>" for a in rd["assumptions"])
-    assum = _table([("item", ""), ("value", ""), ("source", "")], [arow])
+                   f"<td class=\"note\">{_e(a['source'])}</td></tr>" for a in inputs)
+    mrow = "".join(f"<tr><td>{_e(a['item'][len('method: '):])}</td>"
+                   f"<td>{_e(a['source'])}</td></tr>" for a in methods)
+    assum = (_table([("item", ""), ("value", ""), ("source", "")], [arow])
+             + "<h3>Methods</h3>" + _table([("step", ""), ("method, standard or source", "")],
+                                           [mrow], "methods"))
 
     sc = data["scenario"]
     meta = (f"{sc['phases']} phases, {sc['hours_per_year']:,.0f} h/year, ambient "

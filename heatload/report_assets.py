@@ -85,6 +85,12 @@ p.quote { border-left: 4px solid var(--accent); padding: 4px 10px; background: v
 tr.out td { color: var(--muted); background: #f6f6f6; }
 td .reason { font-size: 11px; font-weight: 400; color: var(--muted); }
 svg.chart { display: block; max-width: 100%; height: auto; }
+section.appendix table { table-layout: fixed; }
+section.appendix td:nth-child(1), section.appendix th:nth-child(1) { width: 32%; }
+section.appendix td:nth-child(2), section.appendix th:nth-child(2) { width: 43%; }
+section.appendix td:nth-child(3), section.appendix th:nth-child(3) { width: 25%; }
+section.appendix table.methods td:nth-child(1), section.appendix table.methods th:nth-child(1) { width: 32%; }
+section.appendix table.methods td:nth-child(2), section.appendix table.methods th:nth-child(2) { width: 68%; }
 
 /* Paged media: sections flow (no forced page per section); page numbers "x of y" */
 @page { size: auto; margin: 15mm 15mm 18mm 15mm;
@@ -101,6 +107,8 @@ svg.chart { display: block; max-width: 100%; height: auto; }
   table { font-size: 8.5pt; }
   table.compare { font-size: 7.5pt; }
   table.compare td.small { font-size: 7pt; }
+  section.appendix table { font-size: 7.5pt; }
+  section.appendix td { padding: 2px 5px; }
   thead { display: table-header-group; }
   tr, td, th { break-inside: avoid; page-break-inside: avoid; }
   table.keep { break-inside: avoid; page-break-inside: avoid; }

@@ -431,3 +431,43 @@ def test_report_size_and_time(built):
         # the deliverable stays small: at most 2 MB (charts are inline SVG)
         assert 50_000 < size < 2_000_000, (p.name, size)
         print(f"{p.name}: {size:,} bytes, built in {seconds:.1f} s")
+
+
+def _pdf_pages(pdf: bytes) -> int:
+    """Pages of a PDF: its page objects (Chromium writes the page tree uncompressed)."""
+    return len(re.findall(rb"/Type\s*/Page(?![s\w])", pdf))
+
+
+def _print_to_pdf(html_path, pdf_path):
+    import subprocess
+
+    chrome = _browser_binaries()[0]
+    subprocess.run([chrome, "--headless=new", "--no-sandbox", "--disable-gpu",
+                    "--disable-dev-shm-usage", "--no-pdf-header-footer",
+                    "--host-resolver-rules=MAP * ~NOTFOUND", f"--print-to-pdf={pdf_path}",
+                    html_path.as_uri()], check=True, capture_output=True, timeout=120)
+    return pdf_path.read_bytes()
+
+
+@pytest.mark.browser
+def test_print_to_pdf_page_count(built, tmp_path):
+    """The forming press prints to a handful of A4 pages with the sections flowing;
+    forcing a page per section (the old layout) gives more."""
+    if _browser_binaries() is None:
+        pytest.skip("chromium / chromedriver not installed")
+    p = io.default_scenario_path()
+    text = built[p][3]
+    f = tmp_path / "press.html"
+    f.write_text(text, encoding="utf-8")
+    flowing = _pdf_pages(_print_to_pdf(f, tmp_path / "press.pdf"))
+    forced = text.replace("</style>", "@media print { section { break-before: page; } }</style>")
+    g = tmp_path / "forced.html"
+    g.write_text(forced, encoding="utf-8")
+    paged = _pdf_pages(_print_to_pdf(g, tmp_path / "forced.pdf"))
+    print(f"{p.name}: {flowing} pages printed ({paged} with a page per section), "
+          f"{len(text.encode()):,} bytes")
+    assert 3 <= flowing <= 12
+    assert flowing < paged
+    # page numbers "x of y" come from CSS paged media
+    css = re.search(r"<style>(.*?)</style>", text, re.S).group(1)
+    assert 'counter(page) " of " counter(pages)' in css
