@@ -289,8 +289,9 @@ def default_extra_price(results, base, candidate):
     c = figures.strategy_record(results, candidate)
     if b is None or c is None:
         return None
-    return float((c.get("price") or 0.0) - (b.get("price") or 0.0)
-                 + _yc(c, "cooler_price") - _yc(b, "cooler_price"))
+    # whole currency units: a price field, not a computed figure
+    return float(round((c.get("price") or 0.0) - (b.get("price") or 0.0)
+                       + _yc(c, "cooler_price") - _yc(b, "cooler_price")))
 
 
 def yearly_saving(results, base, candidate):
