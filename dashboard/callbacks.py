@@ -460,13 +460,19 @@ def download_scenario(data: dict, name: str | None = None) -> dict:
 REPORT_SAMPLES = 1000
 
 
-def download_report(data: dict, source: str | None = None):
-    """The HTML report (heatload.report.build_report), or ``None`` with a note."""
+def download_report(data: dict, source: str | None = None, system: str = "si"):
+    """The HTML report (heatload.report.build_report), or ``None`` with a note.
+
+    The cover names the scenario as shown (edits included) and its SHA-256 is
+    that of the TOML the page's scenario download gives, not of a file on the
+    server."""
     scenario = compute.scenario_of(data)
     cmp = chain.compare(scenario)
+    label = f"{source or scenario.name} (as shown in the dashboard; download the .toml)"
     try:
-        html_text = _call(report.build_report, scenario, cmp, source=source,
-                          samples=REPORT_SAMPLES)
+        html_text = _call(report.build_report, scenario, cmp, source=None,
+                          samples=REPORT_SAMPLES, cover={"input": label},
+                          system=system if system in ("si", "us") else "si")
     except TypeError:
         # an older signature taking only the comparison
         html_text = report.build_report(cmp)
@@ -637,11 +643,11 @@ def register(app, examples: dict) -> None:
     @app.callback(Output("download-report", "data"), Output("upload-message", "children",
                                                             allow_duplicate=True),
                   Input("download-report-btn", "n_clicks"), State("scenario-store", "data"),
-                  prevent_initial_call=True)
-    def _download_report(n, store):
+                  State("units", "value"), prevent_initial_call=True)
+    def _download_report(n, store, system):
         if not n or not store:
             raise PreventUpdate
-        payload, note = download_report(store["data"], store.get("source"))
+        payload, note = download_report(store["data"], store.get("source"), system)
         if payload is None:
             return no_update, html.Span(note, className="err")
         return payload, no_update

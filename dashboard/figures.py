@@ -13,17 +13,15 @@ from dash import html
 from plotly.subplots import make_subplots
 
 from heatload import units
+from heatload.report_assets import PALETTE, ROLE_COLOURS
 
 K0 = 273.15
 
-#: Okabe-Ito colour-blind-safe palette.
-OKABE_ITO = {
-    "black": "#000000", "orange": "#E69F00", "sky": "#56B4E9", "green": "#009E73",
-    "yellow": "#F0E442", "blue": "#0072B2", "vermillion": "#D55E00",
-    "purple": "#CC79A7", "grey": "#999999",
-}
-SERIES = ("#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#000000",
-          "#999999", "#F0E442")
+#: Okabe-Ito colour-blind-safe palette, by name; the colours are those of the one
+#: palette definition, :data:`heatload.report_assets.PALETTE` (report and dashboard).
+OKABE_ITO = dict(zip(("blue", "orange", "green", "vermillion", "sky", "purple", "yellow",
+                      "black"), PALETTE), grey=ROLE_COLOURS["infeasible"])
+SERIES = PALETTE + (ROLE_COLOURS["infeasible"],)
 
 #: Loss components as people call them, with the colour of each (oil heat: warm
 #: colours; room heat of the drive: grey).

@@ -625,12 +625,12 @@ def cover_data(scenario, source=None, cover=None) -> dict:
     c = {"project": scenario.project or scenario.name, "customer": scenario.customer,
          "prepared_by": scenario.prepared_by, "revision": scenario.revision or "A",
          "date": datetime.date.today().isoformat()}
-    for k, v in (cover or {}).items():
-        if v:
-            c[k] = str(v)
     c["tool"] = f"heatload {tool_version()}"
     c["input"] = Path(source).name if source else "(made in the dashboard)"
     c["sha256"] = input_fingerprint(source, scenario)
+    for k, v in (cover or {}).items():
+        if v and k != "sha256":
+            c[k] = str(v)
     return c
 
 
