@@ -648,7 +648,11 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # compression of the oil in the pressurised chamber, released as heat
     t_actual = _actual_duration(c, speed, stalled)
     prev = c["previous_phase"]
-    p_prev = np.where(prev >= 0, np.take_along_axis(p1, np.maximum(prev, 0), axis=-1), 0.0)
+    # prev and p1 may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
+    shape = np.broadcast_shapes(np.shape(prev), np.shape(p1))
+    at = np.broadcast_to(np.maximum(prev, 0), shape or (1,))
+    p_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p1, shape or (1,)), at,
+                                                    axis=-1).reshape(shape), 0.0)
     e_comp = c["compression_volume"] * (np.maximum(p1, 0.0) ** 2 - np.maximum(p_prev, 0.0) ** 2)
     e_comp = np.where(c["compress"], np.maximum(e_comp, 0.0) / (2.0 * c["bulk_modulus"]), 0.0)
     losses["compression"] = e_comp / t_actual

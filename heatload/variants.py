@@ -735,11 +735,20 @@ def _figures(r, c, sc, val, idx=None):
         price = price[idx] if np.ndim(price) else price
     cycles = hours * 3600.0 / s.cycle_time
     e_year = s.electric_energy_per_cycle * cycles
-    return {"cycle_time": s.cycle_time, "heat": s.average_heat_to_oil,
-            "e_cycle": s.electric_energy_per_cycle, "e_year": e_year,
-            "cost": e_year * price, "peak": s.peak_pressure,
-            "phase_heat": r.heat_to_oil, "durations": r.duration,
-            "warnings": warning_counts(r, c, sc, val, idx)}
+    # a figure that no variant changes comes back unbroadcast (a 0-d cycle time when
+    # the only phase is timed by its stroke): give every figure the batch's shape
+    phase_heat = np.asarray(r.heat_to_oil)
+    batch = phase_heat.shape[:-1] if phase_heat.ndim else ()
+    out = {"cycle_time": s.cycle_time, "heat": s.average_heat_to_oil,
+           "e_cycle": s.electric_energy_per_cycle, "e_year": e_year,
+           "cost": e_year * price, "peak": s.peak_pressure}
+    out = {k: np.broadcast_to(v, np.broadcast_shapes(np.shape(v), batch)).copy()
+           for k, v in out.items()}
+    out.update(phase_heat=phase_heat,
+               durations=np.broadcast_to(r.duration, np.broadcast_shapes(
+                   np.shape(r.duration), phase_heat.shape)).copy(),
+               warnings=warning_counts(r, c, sc, val, idx))
+    return out
 
 
 def warning_counts(result, c, sc, val=None, idx=None) -> dict:
