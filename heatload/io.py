@@ -415,7 +415,7 @@ _FLUID = {
     "nu100": _F("kinematic_viscosity", "pos"),
     "viscosity_index": _F("dimensionless", low=-100.0, high=500.0),
     "density_15C": _F("density", "pos", low=500.0),
-    "expansion_coefficient": _F("expansion_coefficient", "pos"),
+    "expansion_coefficient": _F("expansion_coefficient", "nonneg"),
     "bulk_modulus": _F("bulk_modulus", "pos", low=1e8),
     "specific_heat": _F("specific_heat", "pos", low=500.0),
     "thermal_conductivity": _F("thermal_conductivity", "pos"),
@@ -482,7 +482,7 @@ _RELIEF = {
 }
 _DIRECTIONAL = {
     "rated_flow": _F("flow", "pos"),
-    "pressure_drop": _F("pressure", "pos"),
+    "pressure_drop": _F("pressure", "nonneg"),      # 0: an ideal valve, for hand checks
     "centre": _F("choice", choices=("open", "tandem", "closed")),
     "centre_pressure_drop": _F("pressure", "nonneg"),
     "max_pressure": _F("pressure", "pos"),
@@ -493,7 +493,7 @@ _CHECK = {
     "pressure_drop": _F("pressure", "nonneg"),
 }
 _LINE = {
-    "length": _F("distance", "pos"),
+    "length": _F("distance", "nonneg"),             # 0: fittings only, or no line
     "inner_diameter": _F("length", "pos", high=0.5),
     "roughness": _F("length", "nonneg"),
     "fittings_k": _F("dimensionless", "nonneg", high=1000.0),
