@@ -665,8 +665,10 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
                                           speed_fraction if strategy == "variable-speed" else 1.0)
     losses["drive_motor"] = p_motor_in - p_shaft
     if strategy == "variable-speed":
-        p_el = p_motor_in / c["drive_efficiency"]
-        losses["converter"] = p_el - p_motor_in
+        losses["converter"] = motors.converter_losses(
+            p_motor_in, c["motor_rated_power"] / c["motor_rated_efficiency"],
+            c["drive_efficiency"])
+        p_el = p_motor_in + losses["converter"]
     else:
         p_el = p_motor_in
         losses["converter"] = z.copy()
