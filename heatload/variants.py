@@ -335,7 +335,8 @@ def _phase_arrays(sc: Scenario, val: _Values) -> dict:
     q_pump_nominal = g(("pump", "displacement"), pump.displacement) * g(("pump", "shaft_speed"),
                                                                           pump.shaft_speed)
     keys = ("a_in", "a_out", "q_ratio", "speed_per_flow", "force", "load", "q_target",
-            "hold_pressure", "stroke", "duration", "compression_volume", "work_per_load_speed",
+            "hold_pressure", "stroke", "duration", "compression_volume",
+            "compression_volume_outlet", "work_per_load_speed",
             "max_pressure_inlet", "max_pressure_outlet")
     cols = {k: [] for k in keys}
     flags = {k: [] for k in ("moving", "by_stroke", "compress", "extending", "unloading",
@@ -350,7 +351,7 @@ def _phase_arrays(sc: Scenario, val: _Values) -> dict:
         load = pget("load", ph.load)
         moving = ph.motion in ("extend", "retract", "run") and act is not None
         row = dict(load=load, work_per_load_speed=1.0, force=0.0, compression_volume=0.0,
-                   q_target=0.0, hold_pressure=0.0, duration=0.0)
+                   compression_volume_outlet=0.0, q_target=0.0, hold_pressure=0.0, duration=0.0)
         if act is None:
             row.update(a_in=1.0, a_out=1.0, q_ratio=1.0, speed_per_flow=1.0,
                        max_pressure_inlet=np.inf, max_pressure_outlet=np.inf)
@@ -370,6 +371,7 @@ def _phase_arrays(sc: Scenario, val: _Values) -> dict:
                            work_per_load_speed=TWO_PI,
                            compression_volume=(d + act.dead_volume
                                                if hasattr(act, "dead_volume") else d))
+                row["compression_volume_outlet"] = row["compression_volume"]
                 chamber.append((act.name, "motor"))
             else:
                 cap, ann = cylinder_areas(aget("bore", act.bore), aget("rod", act.rod))
@@ -383,6 +385,8 @@ def _phase_arrays(sc: Scenario, val: _Values) -> dict:
                 row.update(a_in=a_in, a_out=a_out, q_ratio=a_out / a_in,
                            speed_per_flow=1.0 / a_in, force=load + friction,
                            compression_volume=a_in * aget("stroke", act.stroke)
+                           + aget("dead_volume", act.dead_volume),
+                           compression_volume_outlet=a_out * aget("stroke", act.stroke)
                            + aget("dead_volume", act.dead_volume))
         spf = row["speed_per_flow"]
         if moving:
