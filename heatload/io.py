@@ -58,8 +58,8 @@ __all__ = [
 
 SCHEMA_EXAMPLE = '''\
 # A heatload duty-cycle file.  Quantities are strings with a unit ("160 bar",
-# "40 L/min", "35 degC", "1450 rpm"); efficiencies, counts and factors are plain
-# numbers.  Only [scenario], [[actuators]] and [[phases]] are required; every
+# "40 L/min", "35 degC", "1450 rpm"): one number with a decimal point, then the
+# unit; efficiencies, counts and factors are plain numbers.  Only [scenario], [[actuators]] and [[phases]] are required; every
 # other table and key has the default shown here.  Pressures are gauge.
 
 [scenario]
