@@ -36,6 +36,19 @@ def test_help_and_check_import_no_ui_or_coolprop(argv):
     assert not [m for m in HEAVY if m in mods]
 
 
+@pytest.mark.parametrize("argv", [
+    ["compare"], ["thermal"],
+    ["sweep", "--vary", "power_unit.pump.displacement=16..40cm^3:3", "--top", "2"]],
+    ids=lambda a: a[0])
+def test_air_cooled_commands_never_import_coolprop(argv):
+    """Air properties come from the shipped table; CoolProp (a multi-second import)
+    is left to water and glycol coolers."""
+    code = ("import contextlib, io as _io\nfrom heatload.cli import main\n"
+            "with contextlib.redirect_stdout(_io.StringIO()):\n"
+            f"    assert main({argv!r}) == 0")
+    assert "CoolProp" not in _modules_after(code)
+
+
 def test_compare_json_lists_all_strategies(capsys):
     assert main(["compare", "--json"]) == 0
     data = json.loads(capsys.readouterr().out)

@@ -75,3 +75,13 @@ def test_engine_docstring_examples_are_collected():
                                          else "heatload")
         examples += sum(len(t.examples) > 0 for t in finder.find(module))
     assert examples >= 30
+
+
+def test_air_table_ships_as_package_data():
+    """heat_transfer reads heatload/data/air_properties.npz: the wheel must carry it."""
+    import fnmatch
+    import tomllib
+    config = tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["setuptools"]
+    patterns = config["package-data"]["heatload"]
+    assert any(fnmatch.fnmatch("data/air_properties.npz", p) for p in patterns)
+    assert (ROOT / "heatload" / "data" / "air_properties.npz").is_file()
