@@ -30,7 +30,7 @@ from pathlib import Path
 
 import numpy as np
 
-from heatload import outputs
+from heatload import outputs, tables
 from heatload.checks import MOTOR_EXCESS_TORQUE
 from heatload.errors import HeatloadError
 
@@ -119,7 +119,8 @@ def recommend(data, scenario):
     pool = ok or recs
     best = min(pool, key=lambda r: r["electric_energy_per_year_kWh"])
     if ok:
-        why = (f"lowest yearly electric energy among the {len(ok)} of {len(recs)} strategies "
+        why = (f"lowest yearly electric energy among the {len(ok)} of "
+               f"{tables.count(len(recs), 'strategy')} "
                "without safety-critical warnings")
     else:
         why = ("every strategy has a safety-critical warning; this one has the lowest yearly "
@@ -633,7 +634,7 @@ def _cooler_html(rec, sz, unc):
     t = rec.get("thermostat")
     if t and rec["cooler_needed"]:
         parts.append(f"<p>With a thermostat (on at {t['on_temperature_C']:.1f} °C, hysteresis "
-                     f"{t['hysteresis_K']:.0f} K) the cooler switches on {t['switch_count']} times "
+                     f"{t['hysteresis_K']:.0f} K) the cooler switches on {tables.times(t['switch_count'])} "
                      f"in a {t['shift_duration_s'] / 3600:.1f} h shift and runs "
                      f"{100 * t['on_fraction']:.0f} % of the time; the oil peaks at "
                      f"{t['max_temperature_C']:.1f} °C.</p>")

@@ -582,8 +582,9 @@ def run_cli(args) -> int:
               f"(needs {fq(r['required_W'], 'power', s)})")
     if sz.thermostat is not None and sz.cooler_needed:
         t = sz.thermostat
+        from heatload.tables import times
         print(f"\nThermostat over a {t['shift_duration_s'] / 3600:.1f} h shift: on at "
-              f"{fq(t['on_temperature_K'], 'temperature', s)}, {t['switch_count']} switch-ons, "
+              f"{fq(t['on_temperature_K'], 'temperature', s)}, switched on {times(t['switch_count'])}, "
               f"on {100 * t['on_fraction']:.0f} % of the time, max "
               f"{fq(t['max_temperature_K'], 'temperature', s)}")
     print()
