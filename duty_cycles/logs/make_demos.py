@@ -37,5 +37,33 @@ def temperature_log():
     (HERE / "platform_lift_day.csv").write_text("\n".join(lines) + "\n", encoding="utf-8")
 
 
+def pressure_trace():
+    # invented press cycle: approach, pressing, dwell, return, part change
+    # (kind, duration [s], pressure [bar], flow [L/min], speed [mm/s]; + extends)
+    cycle = [("approach", 2.4, 35.0, 52.0, 110.0), ("press", 3.0, 145.0, 6.0, 6.0),
+             ("dwell", 2.0, 150.0, 0.0, 0.0), ("return", 2.6, 55.0, 52.0, -108.0),
+             ("part change", 6.0, 6.0, 0.0, 0.0)]
+    rng = np.random.default_rng(11)
+    dt = 0.02
+    p, q, v = [], [], []
+    for _ in range(4):
+        for _, d, pb, ql, sp in cycle:
+            n = int(round(d / dt))
+            p += [pb] * n
+            q += [ql] * n
+            v += [sp] * n
+    kernel = np.ones(6) / 6.0           # valves take about 0.1 s to shift
+    p = np.convolve(p, kernel, "same") + rng.normal(0.0, 1.5, len(p))
+    q = np.convolve(q, kernel, "same") + rng.normal(0.0, 0.4, len(q))
+    x = np.cumsum(np.asarray(v) * dt) + rng.normal(0.0, 0.1, len(v))
+    lines = ["# Invented demo trace (not a measurement): four cycles of a small press,",
+             "# made by make_demos.py: approach, press, dwell, return, part change.",
+             "time [s],pump pressure [bar],pump flow [L/min],ram position [mm]"]
+    for i, (pi, qi, xi) in enumerate(zip(p, q, x)):
+        lines.append(f"{i * dt:.2f},{pi:.1f},{qi:.2f},{xi:.1f}")
+    (HERE / "press_trace.csv").write_text("\n".join(lines) + "\n", encoding="utf-8")
+
+
 if __name__ == "__main__":
     temperature_log()
+    pressure_trace()
