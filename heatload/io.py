@@ -314,6 +314,17 @@ low = "35 degC"
 high = "45 degC"
 mode = "40 degC"
 relative = false
+
+# Air-oil coolers on offer, by their datasheet curves (any number; `heatload
+# cooler` rates each on the hottest day and picks the smallest that holds).
+# specific_power: specific cooling power at the ETD against oil flow;
+# pressure_drop (optional): oil-side drop against flow at pressure_drop_viscosity.
+[[coolers]]
+name = "AO-2 (invented)"
+specific_power = [["10 L/min", "21 W/K"], ["20 L/min", "29 W/K"], ["40 L/min", "35 W/K"]]
+pressure_drop = [["10 L/min", "0.06 bar"], ["40 L/min", "0.55 bar"]]
+pressure_drop_viscosity = "30 mm^2/s"
+fan_power = "60 W"
 '''
 
 
