@@ -32,6 +32,11 @@ Rating (:func:`rate_coolers`), on the hottest day (``ambient.temperature_max``):
   the sized duty with its margin (:func:`heatload.cooler.required_cooler_duty`);
   the smallest cooler (least S at the machine's flow) holding it with margin
   is chosen;
+- a shift from a cold start on the hottest day with the cooler switched by its
+  thermostat (``cooler.thermostat_on``, default the design temperature) uses
+  the curve's S as the cooler's conductance
+  (:func:`heatload.thermal.thermostat_cooler_run`): its highest temperature
+  and the fan's share of the time;
 - the oil-side drop at the peak return flow, corrected from the datasheet's
   viscosity to the oil's at the settled temperature, is checked against
   ``cooler.oil_pressure_drop_max``; above it a bypass (a check valve across
@@ -271,6 +276,9 @@ class CoolerRating:
     peak_pressure_drop: float | None  #: at the peak flow and the settled oil's viscosity [Pa]
     bypass_needed: bool | None       #: drop above the allowed; None when unknown
     fan_power: float | None
+    shift_max_temperature: float | None = None  #: thermostat shift on the hottest day [K]
+    shift_on_fraction: float | None = None      #: share of that shift with the fan on [-]
+    shift_switch_count: int | None = None       #: fan switch-ons over the shift
     notes: list = field(default_factory=list)
 
 
@@ -306,7 +314,7 @@ def rate_coolers(scenario, outcome, coolers=None) -> DatasheetSelection:
     -------
     DatasheetSelection
     """
-    from heatload import chain, cycle, oil
+    from heatload import chain, cycle, oil, thermal
 
     coolers = tuple(coolers if coolers is not None else scenario.coolers)
     if not coolers:
@@ -328,6 +336,9 @@ def rate_coolers(scenario, outcome, coolers=None) -> DatasheetSelection:
                                              pa, extra_conductance=np.concatenate(([0.0], s)))
     t_d = th.design_oil_temperature
     allowed = scenario.cooler.oil_pressure_drop_max
+    ua_hot = chain.conductance_fn(scenario, ta)
+    amb = scenario.ambient
+    on = scenario.cooler.thermostat_on or t_d
     ratings = []
     for c, s_i, t_i in zip(coolers, s, temps[1:]):
         nu = float(oil.kinematic_viscosity(scenario.fluid, t_i))
@@ -341,12 +352,20 @@ def rate_coolers(scenario, outcome, coolers=None) -> DatasheetSelection:
             notes.append("the drop at the peak flow is extrapolated beyond the datasheet's "
                          "curve (power law through its last two points)")
         duty = float(s_i * (t_d - ta))
+        shift = (thermal.thermostat_cooler_run(
+            th.phase_heat, th.phase_durations, th.capacity, ua_hot, ta,
+            amb.cold_start_temperature, scenario.shift_duration, on,
+            scenario.cooler.thermostat_hysteresis, cooler_conductance=float(s_i))
+            if s_i > 0 else None)
         ratings.append(CoolerRating(
             name=c.name, specific_power=float(s_i), settled_temperature=float(t_i),
             holds_limit=bool(t_i <= t_d + 1e-9), duty_at_design=duty,
             holds_with_margin=bool(duty >= th.cooler_duty * (1 - 1e-12)),
             peak_return_flow=peak_q, peak_pressure_drop=None if dp is None else float(dp),
             bypass_needed=None if dp is None else bool(dp > allowed), fan_power=c.fan_power,
+            shift_max_temperature=None if shift is None else float(shift.maximum_temperature),
+            shift_on_fraction=None if shift is None else float(shift.on_fraction),
+            shift_switch_count=None if shift is None else int(len(shift.switch_on_times)),
             notes=notes))
     holding = [r for r in ratings if r.holds_with_margin and r.holds_limit]
     chosen = min(holding, key=lambda r: r.specific_power).name if holding else None
@@ -383,6 +402,10 @@ def selection_record(sel: DatasheetSelection) -> dict:
                          "holds_with_margin": r.holds_with_margin,
                          "peak_pressure_drop_Pa": f(r.peak_pressure_drop),
                          "bypass_needed": r.bypass_needed, "fan_power_W": f(r.fan_power),
+                         "shift_max_temperature_C": None if r.shift_max_temperature is None
+                         else f(r.shift_max_temperature - 273.15),
+                         "shift_on_fraction": f(r.shift_on_fraction),
+                         "shift_switch_count": r.shift_switch_count,
                          "notes": list(r.notes)} for r in sel.ratings]}
 
 
@@ -410,9 +433,12 @@ def print_selection(sel: DatasheetSelection, system="si") -> None:
                      fq(r.specific_power, "thermal_conductance", system),
                      fq(r.settled_temperature, "temperature", system),
                      fq(r.duty_at_design, "power", system), verdict, drop,
-                     fq(r.fan_power, "power", system) if r.fan_power is not None else "-"])
+                     fq(r.fan_power, "power", system) if r.fan_power is not None else "-",
+                     "-" if r.shift_max_temperature is None else
+                     f"{fq(r.shift_max_temperature, 'temperature', system)}, fan on "
+                     f"{100 * r.shift_on_fraction:.0f} %"])
     print(_table(["cooler", "S over the cycle", "settles at", "duty at design", "limit",
-                  "drop at peak flow", "fan"], rows))
+                  "drop at peak flow", "fan", "shift: max, fan on"], rows))
     print(f"  chosen: {sel.chosen}" if sel.chosen else "  chosen: none")
     for n in sel.notes:
         print(f"  ! {n}")

@@ -112,6 +112,10 @@ def test_smallest_cooler_that_holds_the_limit_is_chosen(lift):
     assert sel.chosen == "AO-2 (invented)"
     small = next(r for r in sel.ratings if r.name == "AO-1 (invented)")
     assert not small.holds_with_margin
+    # over a hot shift a larger cooler needs its fan for less of the time
+    by_size = sorted(sel.ratings, key=lambda r: r.specific_power)
+    fractions = [r.shift_on_fraction for r in by_size]
+    assert fractions == sorted(fractions, reverse=True)
     for r in sel.ratings:
         assert r.holds_limit == (r.settled_temperature <= sel.design_oil_temperature + 1e-9)
         assert r.duty_at_design == pytest.approx(
