@@ -287,7 +287,7 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
         notes.append("no running column: the machine is taken to run throughout the log")
 
     # a scan of tau from a tenth of the shortest step to 100 x the span
-    taus = np.geomspace(max(float(h.min()), 1e-3) * 0.1, 100.0 * span, 50)
+    taus = np.geomspace(max(float(h.min()), 1e-3) * 0.1, 100.0 * span, 30)
     scores = [_profile(t, ta, r, y, 1.0 / tau, fit_heat)[2] for tau in taus]
     k0 = 1.0 / taus[int(np.argmin(scores))]
     q0, t00, _ = _profile(t, ta, r, y, k0, fit_heat)
