@@ -13,7 +13,7 @@ from pathlib import Path
 
 from dash import Dash
 
-from . import callbacks, layout
+from . import callbacks, layout, logfit_view
 from heatload import io
 from heatload.errors import HeatloadError
 
@@ -61,6 +61,7 @@ def make_app(scenario_path=None) -> Dash:
     # a function: every page load starts a fresh session from the opened file
     app.layout = lambda: layout.make_layout(initial)
     callbacks.register(app, examples)
+    logfit_view.register(app)
     return app
 
 
