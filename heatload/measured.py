@@ -134,24 +134,37 @@ def scenario_comparison(scenario, log, fit) -> dict:
 # formatting
 # ---------------------------------------------------------------------------
 
+def _unit(kind, system):
+    from heatload.units import display_unit
+    # a tank's UA reads in W/K (tens of W/K), not the cooler's kW/K
+    return "W/K" if kind == "thermal_conductance" and system == "si" else display_unit(kind, system)
+
+
 def _q(value, kind, system, digits=3):
-    from heatload.units import format_quantity
+    from heatload.units import format_number, from_si, pretty_unit
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return "–"
-    return format_quantity(value, kind, system, digits)
+    unit = _unit(kind, system)
+    v = float(from_si(value, kind, unit)) if unit else float(value)
+    return f"{format_number(v, digits)} {pretty_unit(unit)}".strip()
 
 
 def _iv(pair, kind, system, digits=3):
-    from heatload.units import display_unit, format_number, from_si, pretty_unit
+    """An interval "low .. high unit", with the digits it takes to tell the
+    ends apart."""
+    from heatload.units import format_number, from_si, pretty_unit
     if pair is None:
         return "–"
-    unit = display_unit(kind, system)
-    vals = []
-    for v in pair:
-        if v is None or not math.isfinite(v):
-            vals.append("∞" if v is not None and v > 0 else "–")
-        else:
-            vals.append(format_number(float(from_si(v, kind, unit)), digits))
+    unit = _unit(kind, system)
+    for d in range(digits, 7):
+        vals = []
+        for v in pair:
+            if v is None or not math.isfinite(v):
+                vals.append("∞" if v is not None and v > 0 else "–")
+            else:
+                vals.append(format_number(float(from_si(v, kind, unit)), d))
+        if vals[0] != vals[1]:
+            break
     return f"{vals[0]} .. {vals[1]} {pretty_unit(unit)}".strip()
 
 
@@ -172,8 +185,8 @@ def summary_rows(fit, system="si", capacity_source="given") -> list:
              if fit.capacity is not None else "not given"),
             ("time constant, C/UA", f"{fit.time_constant / 3600:.3g} h"
              if math.isfinite(fit.time_constant) else "∞",
-             " .. ".join(f"{v / 3600:.3g}" if math.isfinite(v) else "∞"
-                         for v in fit.intervals["time_constant"]) + " h", status("conductance")),
+             _iv([v / 3600 for v in fit.intervals["time_constant"]], "dimensionless",
+                 system) + " h", status("conductance")),
             ("steady rise while running, P/UA", _q(fit.temperature_rise,
                                                    "temperature_difference", system),
              _iv(fit.intervals["temperature_rise"], "temperature_difference", system), ""),
@@ -287,6 +300,10 @@ def build_html(log, fit, comparison, system="si", capacity_source="given") -> st
                 f"{e(_q(c['measured_heat_W'], 'power', system))}</td></tr>"
                 f"<tr><td>calibration factor (measured / model)</td><td class='num'>"
                 f"{'–' if factor is None else f'{factor:.3g}'}</td></tr>"
+                f"<tr><td>surfaces' conductance UA at the logged temperatures</td>"
+                f"<td class='num'>model "
+                f"{e(_q(c['model_conductance_W_K'], 'thermal_conductance', system))}, measured "
+                f"{e(_q(c['measured_conductance_W_K'], 'thermal_conductance', system))}</td></tr>"
                 f"<tr><td>cooler duty at the design point</td><td class='num'>model "
                 f"{e(_q(c['model_cooler_duty_W'], 'power', system))}; from the measurement "
                 f"{e(_q(c['measured_cooler_duty_W'], 'power', system))}</td></tr>"
