@@ -103,3 +103,29 @@ def test_parse_assignments():
         "oil": "T tank", "time": "t"}
     with pytest.raises(HeatloadError, match="KEY=VALUE"):
         logs.parse_assignments(["oil"], "--column")
+
+
+def test_any_text_gives_a_log_or_one_line_error():
+    # property: whatever the file holds, the reader returns a log or raises
+    # HeatloadError with one line, never another exception
+    from hypothesis import given, settings
+    from hypothesis import strategies as st
+
+    header = st.sampled_from(["time [s],oil [degC],ambient [degC]",
+                              "time,oil temperature [°C];ambient [C]",
+                              "Time [min]\tOil [degF]\tAmbient [K]\trunning", ""])
+    cell = st.one_of(st.floats(allow_nan=True, allow_infinity=True).map(str),
+                     st.text(max_size=6), st.sampled_from(["", "2026-03-02 06:00:00", "1,5"]))
+    row = st.lists(cell, min_size=0, max_size=5).map(",".join)
+
+    @settings(max_examples=150, deadline=None)
+    @given(header, st.lists(row, max_size=15))
+    def check(h, rows):
+        text = "\n".join([h] + rows)
+        try:
+            log = measured.read_temperature_log("fuzz.csv", text=text)
+        except HeatloadError as e:
+            assert "\n" not in e.one_line()
+        else:
+            assert np.all(np.diff(log.time) > 0)
+    check()

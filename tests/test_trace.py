@@ -126,3 +126,19 @@ def test_trace_without_pressure_column_refused(tmp_path, capsys):
 def test_too_short_trace_refused():
     with pytest.raises(HeatloadError, match="at least"):
         trace.segment_trace(np.arange(5.0), np.ones(5))
+
+
+def test_any_trace_gives_a_draft_that_loads_once_completed():
+    # random and degenerate traces (flat, noise, a random walk; uneven steps):
+    # the segmentation never fails and its completed draft always loads
+    rng = np.random.default_rng(0)
+    for case in range(24):
+        n = int(rng.integers(20, 2000))
+        t = np.cumsum(rng.uniform(0.001, 0.5, n))
+        p = [np.full(n, 1e6), rng.normal(5e6, 1e6, n),
+             np.abs(np.cumsum(rng.normal(0, 1e5, n)))][case % 3]
+        q = rng.uniform(0, 1e-3, n) if case % 2 else None
+        x = np.cumsum(rng.normal(0, 1e-3, n)) if case % 4 == 0 else None
+        cy = trace.segment_trace(t, p, q, x)
+        assert cy.phases and cy.period > 0
+        io.loads_scenario(trace.fill_examples(trace.draft_toml(cy, "random.csv")), "d.toml")
