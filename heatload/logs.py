@@ -132,8 +132,8 @@ def _find_columns(headers, specs, chosen, source, header_line):
             what = " or ".join(repr(w) for w in spec.words)
             unit = f" [{spec.example}]" if spec.example else ""
             raise _err(f"no {key} column: expected a header containing {what}, e.g. "
-                       f"'{spec.words[0]}{unit}' (columns: {', '.join(headers) or 'none'})",
-                       source, header_line)
+                       f"'{spec.words[0]}{unit}', or name it with --column {key}=NAME "
+                       f"(columns: {', '.join(headers) or 'none'})", source, header_line)
     return found
 
 

@@ -63,3 +63,17 @@ def test_bad_upload_shows_one_line():
     assert "base64" in str(msg)
     msg, *_ = logfit_view.log_view(_upload(LOG), LOG.name, "12 bar", None, "si")
     assert "heat capacity" in str(msg)
+
+
+def test_cooler_view_lists_the_datasheet_coolers():
+    from heatload import cooler_datasheet, sizing
+    from heatload.dashboard import callbacks
+    store = _store()
+    sc = io.load_scenario(LIFT)
+    strat = sizing._design_strategy(sc).name
+    head, spec = callbacks.cooler_view(store["data"], strat, "si")
+    text = str(head)
+    sel = cooler_datasheet.rate_coolers(sc, chain.evaluate_strategy(sc, sc.strategy(strat)))
+    assert "datasheet-table" in text and f"Chosen: {sel.chosen}" in text
+    for r in sel.ratings:
+        assert r.name in text
