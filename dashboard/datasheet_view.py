@@ -21,18 +21,12 @@ def datasheet_block(scenario, outcome, system: str):
                                           "limit", "drop at peak flow", "hot shift")])
     rows = []
     for r in sel.ratings:
-        verdict = ("holds, with margin" if r.holds_with_margin and r.holds_limit else
-                   "holds, no margin" if r.holds_limit else "too small")
-        drop = ("no curve" if r.peak_pressure_drop is None else
-                fq(r.peak_pressure_drop, "pressure", system)
-                + (" — bypass needed" if r.bypass_needed else ""))
-        shift = ("–" if r.shift_max_temperature is None else
-                 f"max {fq(r.shift_max_temperature, 'temperature', system)}, fan on "
-                 f"{100 * r.shift_on_fraction:.0f} %")
+        txt = cooler_datasheet.rating_texts(r, system)
         rows.append(html.Tr([html.Td(("✔ " if r.name == sel.chosen else "") + r.name),
                              html.Td(fq(r.specific_power, "thermal_conductance", system)),
                              html.Td(fq(r.settled_temperature, "temperature", system)),
-                             html.Td(verdict), html.Td(drop), html.Td(shift)]))
+                             html.Td(txt["verdict"]), html.Td(txt["drop"]),
+                             html.Td(txt["shift"])]))
     notes = [html.Div(n, className="note") for n in sel.notes]
     notes += [html.Div(f"{r.name}: {n}", className="note") for r in sel.ratings for n in r.notes]
     return html.Div([

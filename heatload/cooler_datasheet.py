@@ -409,6 +409,23 @@ def selection_record(sel: DatasheetSelection) -> dict:
                          "notes": list(r.notes)} for r in sel.ratings]}
 
 
+def rating_texts(r: CoolerRating, system="si") -> dict:
+    """Words for one rating: ``verdict`` (holds with margin / no margin / too
+    small), ``drop`` (at the peak flow, and whether a bypass is needed),
+    ``shift`` (the hot shift's maximum and the fan's share)."""
+    from heatload.units import format_quantity as fq
+
+    verdict = ("holds, with margin" if r.holds_with_margin and r.holds_limit else
+               "holds, no margin" if r.holds_limit else "too small")
+    drop = ("no curve" if r.peak_pressure_drop is None else
+            fq(r.peak_pressure_drop, "pressure", system)
+            + (" -> bypass needed" if r.bypass_needed else ""))
+    shift = ("-" if r.shift_max_temperature is None else
+             f"{fq(r.shift_max_temperature, 'temperature', system)}, fan on "
+             f"{100 * r.shift_on_fraction:.0f} %")
+    return {"verdict": verdict, "drop": drop, "shift": shift}
+
+
 def print_selection(sel: DatasheetSelection, system="si") -> None:
     """The selection as a table for the command line."""
     from heatload.cli import _table
@@ -424,19 +441,13 @@ def print_selection(sel: DatasheetSelection, system="si") -> None:
           f"{fq(sel.allowed_pressure_drop, 'pressure', system)}")
     rows = []
     for r in sel.ratings:
-        verdict = ("holds, with margin" if r.holds_with_margin and r.holds_limit else
-                   "holds, no margin" if r.holds_limit else "too small")
-        drop = ("no curve" if r.peak_pressure_drop is None else
-                fq(r.peak_pressure_drop, "pressure", system)
-                + (" -> bypass needed" if r.bypass_needed else ""))
+        txt = rating_texts(r, system)
         rows.append([("* " if r.name == sel.chosen else "  ") + r.name,
                      fq(r.specific_power, "thermal_conductance", system),
                      fq(r.settled_temperature, "temperature", system),
-                     fq(r.duty_at_design, "power", system), verdict, drop,
+                     fq(r.duty_at_design, "power", system), txt["verdict"], txt["drop"],
                      fq(r.fan_power, "power", system) if r.fan_power is not None else "-",
-                     "-" if r.shift_max_temperature is None else
-                     f"{fq(r.shift_max_temperature, 'temperature', system)}, fan on "
-                     f"{100 * r.shift_on_fraction:.0f} %"])
+                     txt["shift"]])
     print(_table(["cooler", "S over the cycle", "settles at", "duty at design", "limit",
                   "drop at peak flow", "fan", "shift: max, fan on"], rows))
     print(f"  chosen: {sel.chosen}" if sel.chosen else "  chosen: none")
