@@ -14,7 +14,7 @@ from pathlib import Path
 from dash import Dash
 from dash.exceptions import DependencyException
 
-from . import callbacks, layout
+from . import callbacks, layout, logfit_view
 from heatload import io
 from heatload.errors import HeatloadError
 
@@ -93,6 +93,7 @@ def make_app(scenario_path=None) -> Dash:
     # a function: every page load starts a fresh session from the opened file
     app.layout = lambda: layout.make_layout(initial)
     callbacks.register(app, examples)
+    logfit_view.register(app)
     return app
 
 

@@ -165,12 +165,14 @@ def _row(result, i):
     return type(result)(**out)
 
 
-def coupled_temperatures(scenario, strategy, ambients, heat_on_grid, pa):
+def coupled_temperatures(scenario, strategy, ambients, heat_on_grid, pa,
+                         extra_conductance=0.0):
     """Self-consistent steady oil temperatures [K] at each air temperature in *ambients*.
 
-    Solves Q(T) = UA(T) (T - T_a), with Q(T) the strategy's mean heat at oil
-    temperature T: bracketed on :data:`TEMPERATURE_GRID`, then refined by an
-    Illinois regula falsi with exact solves (all ambients in one batched solve
+    Solves Q(T) = (UA(T) + S) (T - T_a), with Q(T) the strategy's mean heat at oil
+    temperature T and S an *extra_conductance* [W/K] per ambient (a cooler's
+    specific cooling power; 0 by default): bracketed on :data:`TEMPERATURE_GRID`,
+    then refined by an Illinois regula falsi with exact solves (all ambients in one batched solve
     per step) until |Q - UA (T - T_a)| < 0.01 K x UA.
     Returns ``(T, iterations, result)`` with *result* solved at those T (one
     row per ambient).
@@ -178,7 +180,10 @@ def coupled_temperatures(scenario, strategy, ambients, heat_on_grid, pa):
     grid = TEMPERATURE_GRID
     n = len(ambients)
     ambients = np.asarray(ambients, float)
+    extra = np.broadcast_to(np.asarray(extra_conductance, float), (n,))
     uas = [conductance_fn(scenario, ta) for ta in ambients]
+    if np.any(extra != 0.0):
+        uas = [(lambda t_oil, f=f, s=s: f(t_oil) + s) for f, s in zip(uas, extra)]
     a = np.empty(n); b = np.empty(n); ga = np.empty(n); gb = np.empty(n)
     t = np.empty(n)
     done = np.zeros(n, dtype=bool)

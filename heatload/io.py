@@ -314,6 +314,17 @@ low = "35 degC"
 high = "45 degC"
 mode = "40 degC"
 relative = false
+
+# Air-oil coolers on offer, by their datasheet curves (any number; `heatload
+# cooler` rates each on the hottest day and picks the smallest that holds).
+# specific_power: specific cooling power at the ETD against oil flow;
+# pressure_drop (optional): oil-side drop against flow at pressure_drop_viscosity.
+[[coolers]]
+name = "AO-2 (invented)"
+specific_power = [["10 L/min", "21 W/K"], ["20 L/min", "29 W/K"], ["40 L/min", "35 W/K"]]
+pressure_drop = [["10 L/min", "0.06 bar"], ["40 L/min", "0.55 bar"]]
+pressure_drop_viscosity = "30 mm^2/s"
+fan_power = "60 W"
 '''
 
 
@@ -581,7 +592,7 @@ _UNCERTAINTY = {
 }
 _TOP = ("scenario", "economics", "fluid", "ambient", "reservoir", "power_unit",
         "actuators", "phases", "strategy_defaults", "strategies", "cooler",
-        "uncertainty")
+        "uncertainty", "coolers")
 _ARRAYS = ("actuators", "phases", "strategies", "uncertainty")
 
 
@@ -1232,10 +1243,13 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
              "actuator_kind": {a.name: a.kind for a in actuators}}
     uncertainty = (_uncertainty(data["uncertainty"], parts, source)
                    if "uncertainty" in data else ())
+    # datasheet coolers: their format lives with their physics
+    from heatload.cooler_datasheet import coolers_from_toml
+    coolers = coolers_from_toml(data["coolers"], source) if "coolers" in data else ()
     scenario = m.Scenario(name=head["name"], phases=phases, actuators=actuators,
                           strategies=strategies, fluid=fluid, ambient=ambient,
                           reservoir=reservoir, power_unit=power_unit, economics=economics,
-                          cooler=cooler, uncertainty=uncertainty, **{
+                          cooler=cooler, uncertainty=uncertainty, coolers=coolers, **{
                               k: v for k, v in head.items() if k != "name"})
     _check_phase_durations(scenario, source)
     _check_cooler_design(scenario, "cooler" in data and "oil_temperature_max" in data["cooler"],
@@ -1642,6 +1656,9 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
         unc.append(item)
     if unc:
         d["uncertainty"] = unc
+    if s.coolers:
+        from heatload.cooler_datasheet import coolers_to_toml
+        d["coolers"] = coolers_to_toml(s.coolers)
     return d
 
 

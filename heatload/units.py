@@ -72,6 +72,7 @@ KINDS: dict[str, Kind] = {
                                       "Btu/(h*ft^2*delta_degF)"),
     "thermal_conductance": Kind("W/K", "a thermal conductance (kW/K)", "0.5 kW/K",
                                 "kW/K", "Btu/(h*delta_degF)"),
+    "heat_capacity": Kind("J/K", "a heat capacity", "650 kJ/K", "kJ/K", "Btu/delta_degF"),
     "specific_heat": Kind("J/(kg*K)", "a specific heat", "1.9 kJ/(kg*K)",
                           "kJ/(kg*K)", "Btu/(lb*delta_degF)"),
     "thermal_conductivity": Kind("W/(m*K)", "a thermal conductivity", "0.13 W/(m*K)",
