@@ -11,6 +11,8 @@ bad input, never a traceback):
 - ``heatload report [FILE] -o report.html``   a customer report
 - ``heatload sweep [FILE] --vary PATH=LOW..HIGH:N``   design sweeps
 - ``heatload dashboard [FILE]``  the browser dashboard
+- ``heatload logfit LOG.csv``   heat load and tank conductance fitted from a temperature log
+- ``heatload trace TRACE.csv -o draft.toml``   a draft duty cycle from a pressure trace
 
 Heavy packages (pandas, CoolProp, plotly, dash) are imported only by the
 commands that need them, so ``heatload --help`` and ``heatload check`` start fast.
@@ -46,8 +48,8 @@ def _load(path):
 
 
 def _fmt(value, kind, system, digits=3):
-    from heatload.units import format_quantity
-    return format_quantity(value, kind, system, digits)
+    # plain numbers with thousands separators (units.format_quantity has none yet)
+    return f"{_num(value, kind, system, digits)} {_unit(kind, system)}".strip()
 
 
 def _unit(kind, system):
@@ -56,22 +58,17 @@ def _unit(kind, system):
 
 
 def _num(value, kind, system, digits=3):
-    from heatload.units import display_unit, format_number, from_si
-    return format_number(float(from_si(value, kind, display_unit(kind, system))), digits)
+    from heatload.tables import plain_number
+    from heatload.units import display_unit, from_si
+    unit = display_unit(kind, system)
+    return plain_number(from_si(value, kind, unit) if unit else float(value), digits)
 
 
-def _table(headers, rows):
-    widths = [max(len(str(h)), *(len(str(r[i])) for r in rows)) if rows else len(str(h))
-              for i, h in enumerate(headers)]
-    line = "  ".join(str(h).ljust(w) for h, w in zip(headers, widths))
-    out = [line, "  ".join("-" * w for w in widths)]
-    def numeric(c):
-        t = str(c).replace(",", "").replace("..", "").lstrip("-")
-        return bool(t) and (t[0].isdigit() or t in ("none", "never"))
-    for r in rows:
-        out.append("  ".join(str(c).rjust(w) if numeric(c) else str(c).ljust(w)
-                             for c, w in zip(r, widths)).rstrip())
-    return "\n".join(out)
+def _table(headers, rows, width="auto", optional=()):
+    """A text table fitted to *width* columns (the terminal's by default; ``None``
+    for every column): the *optional* headers are left out in that order."""
+    from heatload.tables import format_table, terminal_width
+    return format_table(headers, rows, terminal_width() if width == "auto" else width, optional)
 
 
 CAUTION = ("Estimates for early design. Component makers' data, machine-safety standards "
@@ -95,27 +92,31 @@ def cmd_compare(args):
                          indent=2, ensure_ascii=False))
         return 0
     s = args.units
-    print(f"{sc.name} — {len(sc.phases)} phases, {sc.economics.hours_per_year:.0f} h/year, "
+    from heatload.tables import count
+    print(f"{sc.name} — {count(len(sc.phases), 'phase')}, "
+          f"{sc.economics.hours_per_year:,.0f} h/year, "
           f"ambient {_temperature(sc.ambient.temperature, s)} "
           f"(design {_temperature(sc.ambient.temperature_max, s)})")
     cur = sc.economics.currency
-    headers = ["#", "strategy", f"energy/yr [kWh]", f"cost/yr [{cur}]", "CO2/yr [t]",
-               f"heat to oil [{_unit('power', s)}]", f"oil, no cooler [{_unit('temperature', s)}]",
-               f"cooler [{_unit('power', s)}]", f"peak [{_unit('pressure', s)}]", "eff. [%]",
-               "warnings"]
+    co2, eff, peak = "CO2\n[t/yr]", "eff.\n[%]", f"peak\n[{_unit('pressure', s)}]"
+    headers = ["#", "strategy", "energy\n[kWh/yr]", f"cost\n[{cur}/yr]", co2,
+               f"heat to\noil [{_unit('power', s)}]",
+               f"oil, no\ncooler [{_unit('temperature', s)}]",
+               f"cooler\n[{_unit('power', s)}]", peak, eff, "warnings"]
     rows = []
     dec = cmp.decision()
     for i, o in enumerate(cmp.ranked(), 1):
         e, th = o.energy, o.thermal
         codes = sorted({w.code for w in o.warnings})
         rows.append([i, o.name, f"{float(e.electric_energy_per_year) / 3.6e6:,.0f}",
-                     f"{float(e.cost_per_year):,.0f}", f"{float(e.co2_per_year) / 1000:.1f}",
+                     f"{float(e.cost_per_year):,.0f}", f"{float(e.co2_per_year) / 1000:,.1f}",
                      _num(e.average_heat_to_oil, "power", s), _num(th.steady_coupled,
                                                                    "temperature", s),
                      _num(th.cooler_duty, "power", s) if th.cooler_needed else "none",
                      _num(e.peak_pressure, "pressure", s), f"{100 * float(e.overall_efficiency):.0f}",
                      ", ".join(codes) if codes else "-"])
-    print(_table(headers, rows))
+    # key columns first; the warnings are listed in full below the table
+    print(_table(headers, rows, args.width, optional=("warnings", eff, co2, peak)))
     print()
     print(dec.sentence())
     print("Ranked feasible first, then by yearly cost of ownership (energy, cooler fan, "
@@ -150,7 +151,7 @@ def cmd_check(args):
     eff = (f"efficiency {100 * motor.efficiency:.1f} % (given)" if motor.efficiency is not None
            else f"{motor.efficiency_class}")
     print(f"  pump: {pu.pump.kind} {pu.pump.type}, {pu.pump.displacement * 1e6:.1f} cm³/rev at "
-          f"{pu.pump.shaft_speed * 60:.0f} rpm = {_fmt(q, 'flow', s)}; relief "
+          f"{pu.pump.shaft_speed * 60:,.0f} rpm = {_fmt(q, 'flow', s)}; relief "
           f"{_fmt(pu.relief.cracking_pressure, 'pressure', s)}; motor "
           f"{_fmt(motor.rated_power, 'power', s)} {eff}")
     print(f"  reservoir: {_fmt(sc.reservoir.oil_volume, 'volume', s)} oil, "
@@ -161,7 +162,8 @@ def cmd_check(args):
         else:
             print(f"  actuator {a.name}: cylinder {_fmt(a.bore, 'length', s)} / "
                   f"{_fmt(a.rod, 'length', s)} x {_fmt(a.stroke, 'distance', s)}")
-    print(f"  {len(sc.phases)} phases: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
+    from heatload.tables import count
+    print(f"  {count(len(sc.phases), 'phase')}: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
     print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
     return 0
 
@@ -182,11 +184,10 @@ def cmd_phases(args):
         return 0
     s = args.units
     print(f"{sc.name} — {o.name}, oil at {_temperature(o.thermal.operating_temperature, s)}")
-    headers = ["phase", "motion", "t [s]", f"p pump [{_unit('pressure', s)}]",
-               f"p cap [{_unit('pressure', s)}]", f"p rod [{_unit('pressure', s)}]",
-               f"Q pump [{_unit('flow', s)}]", f"Q relief [{_unit('flow', s)}]",
-               "speed/target [%]", f"electric [{_unit('power', s)}]",
-               f"heat [{_unit('power', s)}]", "largest loss"]
+    p, q, w = _unit("pressure", s), _unit("flow", s), _unit("power", s)
+    headers = ["phase", "motion", "t\n[s]", f"p pump\n[{p}]", f"p cap\n[{p}]", f"p rod\n[{p}]",
+               f"Q pump\n[{q}]", f"Q relief\n[{q}]", "speed/\ntarget [%]",
+               f"electric\n[{w}]", f"heat\n[{w}]", "largest loss"]
     rows = []
     for r in recs:
         losses = {k: v for k, v in r["losses_W"].items() if k not in ("drive_motor", "converter")}
@@ -200,7 +201,8 @@ def cmd_phases(args):
                      f"{pct:.0f}" if pct is not None else "-",
                      _num(r["electric_power_W"], "power", s), _num(r["heat_to_oil_W"], "power", s),
                      f"{top} {_fmt(losses[top], 'power', s)}" if (losses[top] or 0) > 0 else "-"])
-    print(_table(headers, rows))
+    print(_table(headers, rows, args.width,
+                 optional=("largest loss", headers[4], headers[5], headers[9], headers[7])))
     for w in o.warnings:
         print(f"  ! {w.phase or 'whole cycle'}: {w.message}")
     return 0
@@ -223,9 +225,10 @@ def cmd_thermal(args):
           f"{_temperature(sc.ambient.temperature_max, s)}, cold start "
           f"{_temperature(sc.ambient.cold_start_temperature, s)}")
     t = _unit("temperature", s)
-    headers = ["strategy", f"heat [{_unit('power', s)}]", f"steady uncoupled [{t}]",
-               f"steady coupled [{t}]", f"cycle min..max [{t}]", f"hot day [{t}]",
-               "UA [W/K]", "to oil limit", "cooler"]
+    uncoupled, cycle_range, ua = f"steady\nuncoupled [{t}]", f"cycle\nmin..max [{t}]", "UA\n[W/K]"
+    headers = ["strategy", f"heat\n[{_unit('power', s)}]", uncoupled,
+               f"steady\ncoupled [{t}]", cycle_range, f"hot day\n[{t}]",
+               ua, "to oil\nlimit", "cooler"]
     rows = []
     for o in cmp.outcomes:
         th = o.thermal
@@ -236,7 +239,7 @@ def cmd_thermal(args):
                      f"{_num(th.cycle_minimum, 'temperature', s)}..{_num(th.cycle_maximum, 'temperature', s)}",
                      _num(th.steady_hot, "temperature", s), f"{th.conductance:.1f}", ttl,
                      _fmt(th.cooler_duty, "power", s) if th.cooler_needed else "not needed"])
-    print(_table(headers, rows))
+    print(_table(headers, rows, args.width, optional=(cycle_range, ua, uncoupled)))
     for o in cmp.outcomes:
         for w in o.warnings:
             if w.code in ("oil-temperature", "viscosity-window"):
@@ -260,6 +263,16 @@ def cmd_report(args):
 def cmd_sweep(args):
     from heatload import sweep
     return sweep.run_cli(args)
+
+
+def cmd_logfit(args):
+    from heatload import measured
+    return measured.run_logfit(args)
+
+
+def cmd_trace(args):
+    from heatload import trace
+    return trace.run_cli(args)
 
 
 def cmd_dashboard(args):
@@ -301,6 +314,9 @@ def build_parser() -> argparse.ArgumentParser:
                             help="duty-cycle file (TOML); the bundled forming press if omitted")
         sp.add_argument("--units", choices=("si", "us"), default="si",
                         help="units of the printed tables (default: si)")
+        sp.add_argument("--wide", action="store_true",
+                        help="every column of the tables, long lines unwrapped (default: "
+                             "fit the terminal, 80 columns in a pipe)")
         sp.set_defaults(func=func)
         return sp
 
@@ -360,10 +376,58 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--seed", type=int, default=1)
     sp.add_argument("-o", "--output", default=None, metavar="FILE", help="CSV or Parquet file")
     sp.add_argument("--force", action="store_true", help="overwrite an existing output")
-    sp.add_argument("--top", type=int, default=10, help="best variants to print")
+    sp.add_argument("--top", type=int, default=10,
+                    help="rows of each printed list: the best variants and each Pareto front "
+                         "(default 10; 0 prints none)")
     sp.add_argument("--coupled", action="store_true",
                     help="also solve each variant's self-consistent oil temperature "
                          "(about 5x slower than the default design-point figures)")
+
+    help_ = "fit the heat load and the tank's conductance to a logged oil temperature (CSV)"
+    sp = sub.add_parser("logfit", help=help_, description=help_ + (
+        ". Columns are found by name: a header containing 'time', 'oil', 'ambient' and "
+        "optionally 'running' (0/1), each with its unit in square brackets, e.g. "
+        "'oil temperature [degC]'; time may also be a timestamp."))
+    sp.add_argument("log", metavar="LOG", help="the temperature log (CSV)")
+    group = sp.add_mutually_exclusive_group()
+    group.add_argument("--scenario", metavar="FILE", default=None,
+                       help="duty-cycle file: heat capacity from its oil and steel, the "
+                            "model's heat beside the measured one, the cooler duty from it")
+    group.add_argument("--heat-capacity", metavar="C", default=None,
+                       help="heat capacity of oil and steel, e.g. '650 kJ/K'")
+    sp.add_argument("--column", action="append", default=[], metavar="KEY=NAME",
+                    help="the column for time, oil, ambient or running (repeatable)")
+    sp.add_argument("--unit", action="append", default=[], metavar="KEY=UNIT",
+                    help="unit of a column whose header gives none, e.g. oil=degF (repeatable)")
+    sp.add_argument("--ambient-temperature", metavar="T", default=None,
+                    help="constant air temperature when the log has no ambient column")
+    sp.add_argument("--confidence", type=float, default=0.95,
+                    help="level of the confidence intervals (default 0.95)")
+    sp.add_argument("--json", action="store_true", help="print as JSON (SI units)")
+    sp.add_argument("-o", "--output", default=None, metavar="HTML",
+                    help="also write a page with the log and the fit")
+    sp.add_argument("--force", action="store_true", help="overwrite an existing output")
+    sp.add_argument("--units", choices=("si", "us"), default="si",
+                    help="units of the printed tables (default: si)")
+    sp.set_defaults(func=cmd_logfit)
+
+    help_ = "segment a pressure trace (CSV) into phases and write a draft duty-cycle file"
+    sp = sub.add_parser("trace", help=help_, description=help_ + (
+        ". Columns are found by name: 'time' and 'pressure', optionally 'flow' and "
+        "'position', each with its unit in square brackets, e.g. 'pump pressure [bar]'."))
+    sp.add_argument("trace", metavar="TRACE", help="the pressure trace (CSV)")
+    sp.add_argument("-o", "--output", default=None, metavar="TOML",
+                    help="the draft duty-cycle file to write (printed when omitted)")
+    sp.add_argument("--column", action="append", default=[], metavar="KEY=NAME",
+                    help="the column for time, pressure, flow or position (repeatable)")
+    sp.add_argument("--unit", action="append", default=[], metavar="KEY=UNIT",
+                    help="unit of a column whose header gives none, e.g. pressure=psi")
+    sp.add_argument("--name", default=None, help="the machine's name in the draft")
+    sp.add_argument("--min-phase", default=None, metavar="T",
+                    help="shortest phase, e.g. '0.5 s' (shorter steps are transitions)")
+    sp.add_argument("--json", action="store_true", help="print the phases as JSON (SI units)")
+    sp.add_argument("--force", action="store_true", help="overwrite an existing draft")
+    sp.set_defaults(func=cmd_trace)
 
     sp = add("dashboard", cmd_dashboard, "open the browser dashboard")
     sp.add_argument("--port", type=int, default=8050)
@@ -380,14 +444,31 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 class _TerminalText:
-    """A text stream that shows control characters escaped (line ends pass)."""
+    """A text stream that shows control characters escaped (line ends pass)
+    and breaks lines longer than *width* (None: as they are)."""
 
-    def __init__(self, stream, json_mode=False):
+    def __init__(self, stream, json_mode=False, width=None):
         self._stream = stream
         self._json = json_mode
+        self._width = width
+        self._pending = ""
 
     def write(self, text):
-        return self._stream.write(printable(text, keep="\n", json=self._json))
+        text = printable(text, keep="\n", json=self._json)
+        if self._width is None:
+            return self._stream.write(text)
+        from heatload.tables import wrap_line
+        *lines, self._pending = (self._pending + text).split("\n")
+        for line in lines:
+            self._stream.write("\n".join(wrap_line(line, self._width)) + "\n")
+        return len(text)
+
+    def flush(self):
+        if self._pending:
+            from heatload.tables import wrap_line
+            self._stream.write("\n".join(wrap_line(self._pending, self._width)))
+            self._pending = ""
+        return self._stream.flush()
 
     def __getattr__(self, name):
         return getattr(self._stream, name)
@@ -410,8 +491,14 @@ def main(argv=None) -> int:
     if not getattr(args, "command", None):
         parser.print_help()
         return 0
+    json_mode = bool(getattr(args, "json", False))
+    if getattr(args, "wide", False) or json_mode:
+        args.width = None
+    else:
+        from heatload.tables import terminal_width
+        args.width = terminal_width()
     stdout = sys.stdout
-    sys.stdout = _TerminalText(stdout, json_mode=bool(getattr(args, "json", False)))
+    sys.stdout = _TerminalText(stdout, json_mode=json_mode, width=args.width)
     try:
         with warnings.catch_warnings():
             warnings.showwarning = _one_line_warning(set())
@@ -431,6 +518,10 @@ def main(argv=None) -> int:
               f"(set HEATLOAD_DEBUG=1 for the traceback)", file=sys.stderr)
         return 3
     finally:
+        try:
+            sys.stdout.flush()
+        except BrokenPipeError:
+            pass
         sys.stdout = stdout
 
 

@@ -356,6 +356,9 @@ class Scenario:
     shift_duration: float = 8 * 3600.0
     #: uncertain inputs (:class:`UncertainInput` items)
     uncertainty: tuple = ()
+    #: air-oil coolers given by their datasheet curves
+    #: (:class:`heatload.cooler_datasheet.DatasheetCooler` items)
+    coolers: tuple = ()
     #: the report's cover: project, customer, who prepared it, revision
     project: str = ""
     customer: str = ""

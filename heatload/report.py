@@ -33,7 +33,7 @@ from pathlib import Path
 
 import numpy as np
 
-from heatload import outputs
+from heatload import outputs, tables
 from heatload.errors import HeatloadError
 
 K0 = 273.15
@@ -121,8 +121,13 @@ def payback_rows(data, present, prices=None) -> list:
     rows = []
     for r in data["strategies"]:
         saving = base["cost_per_year"] - r["cost_per_year"]
+        # prices are extra prices over the present circuit: the present one's is 0
+        # unless the file gives both on one footing
         p, p0 = price[r["label"]], price[present]
-        extra = (p - p0) if (p is not None and p0 is not None) else None
+        p0 = 0.0 if p0 is None else p0
+        if r["label"] == present:
+            p = p0
+        extra = (p - p0) if p is not None else None
         if extra is None:
             years = None
         elif extra <= 0:
@@ -267,12 +272,6 @@ def _grouped(v, decimals=0):
     if v is None:
         return "–"
     return f"{v:,.{decimals}f}"
-
-
-def _times(n):
-    """'once', 'twice', 'N times'."""
-    n = int(n)
-    return {0: "not at all", 1: "once", 2: "twice"}.get(n, f"{n:,} times")
 
 
 def _cell(value, text, strategy=None, key=None):
@@ -540,7 +539,7 @@ def _cooler_html(rec, sz, unc):
     t = rec.get("thermostat")
     if t and rec["cooler_needed"]:
         parts.append(f"<p>With a thermostat (on at {t['on_temperature_C']:.1f} °C, hysteresis "
-                     f"{t['hysteresis_K']:.0f} K) the cooler switches on {_times(t['switch_count'])} "
+                     f"{t['hysteresis_K']:.0f} K) the cooler switches on {tables.times(t['switch_count'])} "
                      f"in a {t['shift_duration_s'] / 3600:.1f} h shift and runs "
                      f"{100 * t['on_fraction']:.0f} % of the time; the oil peaks at "
                      f"{t['max_temperature_C']:.1f} °C.</p>")

@@ -550,6 +550,10 @@ def run_cli(args) -> int:
         rec = sizing_record(sz, unc)
         rec["scenario"] = sc.name
         rec["file"] = str(path)
+        if sc.coolers:
+            from heatload import cooler_datasheet
+            rec["datasheet_coolers"] = cooler_datasheet.selection_record(
+                cooler_datasheet.rate_coolers(sc, outcome))
         print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
                          default=lambda v: None))
         return 0
@@ -597,8 +601,9 @@ def run_cli(args) -> int:
               f"(needs {fq(r['required_W'], 'power', s)})")
     if sz.thermostat is not None and sz.cooler_needed:
         t = sz.thermostat
+        from heatload.tables import times
         print(f"\nThermostat over a {t['shift_duration_s'] / 3600:.1f} h shift: on at "
-              f"{fq(t['on_temperature_K'], 'temperature', s)}, {t['switch_count']} switch-ons, "
+              f"{fq(t['on_temperature_K'], 'temperature', s)}, switched on {times(t['switch_count'])}, "
               f"on {100 * t['on_fraction']:.0f} % of the time, max "
               f"{fq(t['max_temperature_K'], 'temperature', s)}")
     print()
@@ -623,5 +628,8 @@ def run_cli(args) -> int:
         print(unc["note"])
     for n in sz.notes:
         print(f"  note: {n}")
+    if sc.coolers:      # datasheet coolers listed in the file ([[coolers]])
+        from heatload import cooler_datasheet
+        cooler_datasheet.print_selection(cooler_datasheet.rate_coolers(sc, outcome), s)
     print(sz.caution + " Machine-safety standards for hydraulic systems (e.g. ISO 4413) apply.")
     return 0
