@@ -445,7 +445,7 @@ def _assumption(item, value, source, kind=None, si=None):
 def assumptions(scenario, data=None) -> list:
     """Every input and model assumption with its value and source (list of dicts:
     item, value (text), source, kind, value_si)."""
-    from heatload import chain, oil
+    from heatload import evaluation, oil
     from heatload.units import format_quantity as fq
 
     def q(v, kind, digits=3):
@@ -453,7 +453,7 @@ def assumptions(scenario, data=None) -> list:
     sc = scenario
     f, a, r, pu, ec, cd = (sc.fluid, sc.ambient, sc.reservoir, sc.power_unit, sc.economics,
                            sc.cooler)
-    t_d = chain.design_oil_temperature(sc)
+    t_d = float(evaluation.design_temperature(sc))
     out = []
     A = out.append
     A(_assumption("fluid", f.name + (f" (ISO VG {f.iso_grade})" if f.iso_grade else ""),

@@ -60,7 +60,7 @@ def parse_vary(text: str, scenario, need_count: bool = True) -> VarySpec:
         Malformed spec, unknown path, a unit of the wrong kind, N < 1,
         LOW > HIGH; the message names the spec.
     """
-    from heatload import units, variants
+    from heatload import paths, units
 
     field = f"--vary {text}"
     m = _SPEC.match(text or "")
@@ -69,7 +69,7 @@ def parse_vary(text: str, scenario, need_count: bool = True) -> VarySpec:
                             "power_unit.pump.displacement=16..40cm^3:13", field=field)
     path, lo_txt, hi_txt, n_txt = m.groups()
     try:
-        ref = variants.resolve_path(scenario, path)
+        ref = paths.resolve_path(scenario, path)
     except HeatloadError as exc:
         raise HeatloadError(exc.message, field=field) from None
     if ref.kind is None:
@@ -286,7 +286,7 @@ def run_cli(args) -> int:
     # parts in the same hours, so yearly energy alone would flatter it), and put
     # variants that stall, miss their speeds, run away or exceed a rating last.
     bad_cols = [c for c in df.columns if c in (
-        "warnings_stall", "warnings_speed-not-reached", "warnings_runaway",
+        "warnings_stall", "warnings_speed-not-reached", "warnings_overrunning-load",
         "warnings_pressure-rating", "warnings_motor-overload")]
     flawed = (df[bad_cols].sum(axis=1).to_numpy() > 0) if bad_cols else np.zeros(len(df), bool)
     energy = df["electric_energy_per_cycle_J"].to_numpy()

@@ -728,8 +728,9 @@ def test_pressure_compensated_pump_behind_a_vented_centre():
 def test_hold_above_relief_is_flagged():
     from heatload import checks
     sc = _scenario([EXTEND, _hold("relief", hold_pressure=P_RELIEF + 20e5)])
-    r = _solve(sc, "meter-in")
-    codes = [w.code for w in checks.phase_warnings(r, sc, cycle.phase_arrays(sc))]
+    c = cycle.circuit_inputs(sc, "meter-in")
+    r = circuits.solve_strategy("meter-in", c)
+    codes = [w.code for w in checks.phase_warnings(checks.phase_conditions(r, c, sc), sc)]
     assert "hold-pressure" in codes
 
 
