@@ -122,7 +122,8 @@ def valid_paths(scenario: Scenario) -> list:
     for i, a in enumerate(scenario.actuators):
         out += [f"actuators.{a.name}.{k}" for k in _actuator_keys(a)]
     for k in _PHASE_KEYS:
-        out.append(f"phases[*].{k}")
+        if any(getattr(ph, k) is not None for ph in scenario.phases):
+            out.append(f"phases[*].{k}")
         out += [f"phases[{i}].{k}" for i, ph in enumerate(scenario.phases)
                 if getattr(ph, k) is not None or k in ("load", "speed")]
     for s in scenario.strategies:
