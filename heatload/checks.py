@@ -238,24 +238,6 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
     return out
 
 
-#: Speed change for +10 % load above which a bleed-off phase is flagged [-]
-SPEED_DRIFT_LIMIT = 0.05
-
-
-def speed_drift_condition(change, c) -> Condition:
-    """Bleed-off phases whose speed moves more than 5 % when the load rises 10 %
-    (*change* from :func:`heatload.circuits.bleed_off_speed_change`)."""
-    change = np.asarray(change, float)
-    moving = np.broadcast_to(c["moving"], change.shape)
-
-    def text(i):
-        what = ("the actuator stalls" if change[i] <= -0.999
-                else f"speed changes {100 * change[i]:+.0f} %")
-        return f"{what} when the load rises 10 %: a bleed-off speed follows the load"
-    return Condition("speed-drift", moving & (np.abs(change) > SPEED_DRIFT_LIMIT), change,
-                     np.full(change.shape, SPEED_DRIFT_LIMIT), text, listed_last=True)
-
-
 #: Codes of the per-phase conditions, in the order sweeps list their counts
 PHASE_CODES = ("motor-overload", "pressure-rating", "hold-pressure", "relief-passing",
                "intensification", "overrunning-load", "cavitation", "stall",

@@ -42,6 +42,7 @@ from heatload import thermal as lumped
 from heatload.errors import HeatloadError
 from heatload.model import STRATEGIES, Scenario, Strategy, design_oil_temperature
 from heatload.paths import Overrides
+from heatload.strategies import circuit
 
 COUPLING_TOLERANCE = 0.01   # [K]
 COUPLING_MAX_ITER = 20
@@ -580,7 +581,5 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
 
 def _conditions(st, result, c, sc, val):
     """The warning conditions of a solved batch (:func:`heatload.checks.phase_conditions`)."""
-    out = checks.phase_conditions(result, c, sc, val)
-    if st.kind == "bleed-off":
-        out.append(checks.speed_drift_condition(circuits.bleed_off_speed_change(c, result), c))
-    return out
+    return (checks.phase_conditions(result, c, sc, val)
+            + circuit(st.kind).extra_conditions(c, result))

@@ -33,6 +33,7 @@ import numpy as np
 
 from heatload.errors import HeatloadError
 from heatload.model import Scenario
+from heatload.strategies import circuit
 
 # (field kind, check) of every key that can vary; check: pos, nonneg, eff, frac_pos, any
 _POWER_UNIT_KEYS = {
@@ -127,7 +128,7 @@ def valid_paths(scenario: Scenario) -> list:
         out += [f"phases[{i}].{k}" for i, ph in enumerate(scenario.phases)
                 if getattr(ph, k) is not None or k in ("load", "speed")]
     for s in scenario.strategies:
-        out += [f"strategies.{s.name}.{k}" for k in _STRATEGY_KEYS]
+        out += [f"strategies.{s.name}.{k}" for k in circuit(s.kind).settings]
     for head, keys in _TABLE_KEYS.items():
         out += [f"{head}.{k}" for k in keys]
     return out
@@ -218,6 +219,10 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
             chosen = []
         if not chosen or key not in _STRATEGY_KEYS:
             raise _unknown(path, scenario)
+        # a setting varies only where the circuit has it (heatload.strategies)
+        chosen = [s for s in chosen if key in circuit(s.kind).settings]
+        if not chosen:
+            raise _unknown(path, scenario, f"no such strategy has a {key}")
         kind, check = _STRATEGY_KEYS[key]
         return FieldRef(path, tuple(("strategy", s.name, key) for s in chosen), kind, check,
                         tuple(getattr(s.parameters, key) for s in chosen))

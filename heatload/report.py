@@ -446,6 +446,7 @@ def assumptions(scenario, data=None) -> list:
     """Every input and model assumption with its value and source (list of dicts:
     item, value (text), source, kind, value_si)."""
     from heatload import evaluation, oil
+    from heatload.strategies import circuit
     from heatload.units import format_quantity as fq
 
     def q(v, kind, digits=3):
@@ -526,17 +527,7 @@ def assumptions(scenario, data=None) -> list:
                       f"K {ln.fittings_k:.1f}", "scenario; Darcy-Weisbach, Colebrook"))
     for st in sc.strategies:
         sp = st.parameters
-        bits = {"meter-in": f"flow control min. drop {q(sp.flow_control_min_drop, 'pressure')}",
-                "meter-out": f"flow control min. drop {q(sp.flow_control_min_drop, 'pressure')}",
-                "bleed-off": f"flow control min. drop {q(sp.flow_control_min_drop, 'pressure')}",
-                "bypass-compensated": f"3-way spring {q(sp.bypass_spring, 'pressure')}",
-                "pressure-compensated": "compensator " + (
-                    q(sp.compensator_setting, "pressure") if sp.compensator_setting
-                    else "relief cracking - 10 bar"),
-                "load-sensing": f"margin {q(sp.load_sensing_margin, 'pressure')}, standby "
-                                f"{q(sp.standby_pressure, 'pressure')}",
-                "variable-speed": f"speed {100 * sp.min_speed_fraction:.0f}-"
-                                  f"{100 * sp.max_speed_fraction:.0f} % of nominal"}[st.kind]
+        bits = circuit(st.kind).settings_text(sp, q)
         if sp.counterbalance_setting:
             bits += f", counterbalance {q(sp.counterbalance_setting, 'pressure')}"
         A(_assumption(f"strategy {st.name}", bits, "scenario or typical value (common practice)"))
