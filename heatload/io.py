@@ -42,6 +42,7 @@ from pathlib import Path
 from heatload import model as m
 from heatload import outputs
 from heatload.errors import HeatloadError
+from heatload.cooler_types import TYPES as COOLER_TYPES, cooler_type
 from heatload.units import KINDS, from_si, to_si
 
 __all__ = [
@@ -561,7 +562,7 @@ _STRATEGY = {
 _COOLER = {
     "oil_temperature_max": _F("temperature", "pos"),
     "margin": _F("dimensionless", "nonneg", high=5.0),
-    "coolant": _F("choice", choices=("air", "water")),
+    "coolant": _F("choice", choices=tuple(COOLER_TYPES)),
     "water_inlet_temperature": _F("temperature", "pos"),
     "water_glycol_fraction": _F("dimensionless", "frac", high=0.6),
     "water_flow": _F("flow", "pos"),
@@ -1192,17 +1193,10 @@ def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) 
             else f"the design oil temperature (the fluid's limit less "
                  f"{m.DESIGN_TEMPERATURE_HEADROOM:g} K)")
     where = "cooler.oil_temperature_max" if design_given else "fluid.temperature_max"
-    t_air = scenario.ambient.temperature_max
-    if cd.coolant == "air" and not t_d > t_air:
-        raise _err(f"{what}, {_celsius(t_d)}, is not above the hottest ambient "
-                   f"{_celsius(t_air)}: no air cooler cools oil below the air that cools "
-                   f"it; raise the design temperature or use coolant = \"water\"",
-                   where, source)
-    if cd.coolant == "water" and not cd.water_inlet_temperature < t_d:
-        raise _err(f"water entering at {_celsius(cd.water_inlet_temperature)} is not colder "
-                   f"than {what}, {_celsius(t_d)}: a water cooler cannot cool the oil; "
-                   f"give colder water or use coolant = \"air\"",
-                   "cooler.water_inlet_temperature", source)
+    refused = cooler_type(cd.coolant).refusal(t_d, scenario.ambient.temperature_max, cd,
+                                              what, where)
+    if refused:
+        raise _err(refused[0], refused[1], source)
 
 
 _HEADER = re.compile(r"^\s*(\[\[?)\s*([^\[\]]+?)\s*\]\]?\s*(?:#.*)?$")

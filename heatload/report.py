@@ -748,12 +748,9 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
     if cooler["cooler_needed"]:
         spec = cooler["spec"]
         size = ""
-        if spec and spec["coolant"] == "air":
-            size = (f", an air-oil cooler of {spec['specific_cooling_power_W_K'] / 1e3:.3f} kW/K "
-                    f"at an ETD of {spec['etd_K']:.1f} K")
-        elif spec:
-            size = (f", a water-oil cooler ({_e(spec['arrangement'])}) of UA "
-                    f"{spec['required_conductance_W_K'] / 1e3:.3f} kW/K")
+        if spec:
+            from heatload.cooler_types import cooler_type
+            size = ", " + _e(cooler_type(spec["coolant"]).summary(spec))
         lead += (f"<p>A cooler <b>is needed</b> with {_e(rec_name)}: "
                  f"<b>{_num(cooler['duty_W'] / 1e3)} kW</b> including the "
                  f"{100 * cooler['margin']:.0f} % margin{size}.</p>")
