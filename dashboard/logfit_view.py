@@ -3,7 +3,7 @@ the tank model fitted to it beside the scenario's model.
 
 Only lays out and calls the engine: reading and fitting are
 :mod:`heatload.measured` and :mod:`heatload.logfit`; the heat capacity comes
-from the scenario shown (:func:`heatload.chain.heat_capacity`) unless one is
+from the scenario shown (:func:`heatload.evaluation.heat_capacity`) unless one is
 typed in.  ``log_view`` is the plain function behind the callback, testable
 without a browser; nothing is written to disk.
 """
@@ -100,7 +100,7 @@ def log_view(contents, filename, capacity_text, store, system):
     empty views."""
     import numpy as np
 
-    from heatload import chain, measured
+    from heatload import chain, evaluation, measured
     from heatload.units import to_si
 
     empty = ("", None, None, {"data": [], "layout": {"height": 80}})
@@ -120,7 +120,7 @@ def log_view(contents, filename, capacity_text, store, system):
             source = "given"
         elif scenario is not None:
             mean_oil = float(np.mean(log.values["oil"]))
-            capacity = chain.heat_capacity(scenario, mean_oil)
+            capacity = float(evaluation.heat_capacity(scenario, mean_oil))
             source = f"from the scenario's oil and steel at {mean_oil - 273.15:.3g} °C"
         else:
             capacity, source = None, "not given"

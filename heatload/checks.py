@@ -94,122 +94,181 @@ def _kw(p):
     return f"{p / 1e3:.3g} kW" if abs(p) >= 1e3 else f"{p:.3g} W"
 
 
-def motor_overload_warning(name, shaft_power, rated_power, speed_fraction, duration):
-    """The ``motor-overload`` warning of one phase, or ``None`` within the rating.
-
-    value: the shaft power the pump takes [W]; limit: what the motor gives
-    continuously at that speed, P_r min(s, 1) x :data:`MOTOR_SERVICE_FACTOR` [W].
-    The message grades the overload: a short one the motor withstands
-    (IEC 60034-1: 160 % torque for 15 s), one it does not (it overheats or
-    trips), and one past any motor's breakdown torque (no real drive)."""
-    if not motor_overloaded(shaft_power, rated_power, speed_fraction):
-        return None
+def _motor_overload_text(shaft_power, rated_power, speed_fraction, duration):
+    """The message of a ``motor-overload`` warning: it grades the overload: a
+    short one the motor withstands (IEC 60034-1: 160 % torque for 15 s), one it
+    does not (it overheats or trips), and one past any motor's breakdown
+    torque (no real drive)."""
     r = float(motor_load_ratio(shaft_power, rated_power, speed_fraction))
     s = min(float(speed_fraction), 1.0)
-    limit = MOTOR_SERVICE_FACTOR * rated_power * s
     of = (f"{100 * r:.0f} % of its rated torque at {100 * s:.0f} % speed" if s < 1 - 1e-9
           else f"{100 * r:.0f} % of its rating")
     head = f"the pump takes {_kw(shaft_power)} from the {_kw(rated_power)} motor"
     if r > MOTOR_BREAKDOWN_TORQUE:
-        text = (f"the pump needs {_kw(shaft_power)}, {r:.3g} x what the {_kw(rated_power)} "
+        return (f"the pump needs {_kw(shaft_power)}, {r:.3g} x what the {_kw(rated_power)} "
                 f"motor gives: past the breakdown torque of any motor of that rating, the "
                 f"motor stalls; no real drive gives these figures")
-    elif r <= MOTOR_EXCESS_TORQUE and duration <= MOTOR_EXCESS_TORQUE_TIME:
-        text = (f"{head} ({of} for {duration:.3g} s): a short overload within IEC 60034-1's "
+    if r <= MOTOR_EXCESS_TORQUE and duration <= MOTOR_EXCESS_TORQUE_TIME:
+        return (f"{head} ({of} for {duration:.3g} s): a short overload within IEC 60034-1's "
                 f"160 % for 15 s; check the cycle's RMS load against the rating")
-    else:
-        text = (f"{head} ({of} for {duration:.3g} s): beyond the 160 % for 15 s of IEC "
-                f"60034-1, the motor overheats or trips; a larger motor is needed")
-    return Warning_("motor-overload", name, float(shaft_power), float(limit), text)
+    return (f"{head} ({of} for {duration:.3g} s): beyond the 160 % for 15 s of IEC "
+            f"60034-1, the motor overheats or trips; a larger motor is needed")
 
 
-def phase_warnings(result: CircuitResult, scenario, pa: dict) -> list:
-    """Warnings of one solved strategy over the phases of *scenario* (1-D result)."""
-    out = []
+@dataclass(frozen=True)
+class Condition:
+    """One warning code over a batch: where it holds and with what figures.
+
+    *mask*, *value* and *limit* have the batch's shape ``(N, phases)`` (limit
+    None where a code has none); ``text(i, j)`` is the one-line message of
+    variant *i*, phase *j*.  Sweeps count the masks; reports format the
+    messages (:func:`phase_warnings`)."""
+
+    code: str
+    mask: np.ndarray
+    value: np.ndarray
+    limit: np.ndarray | None
+    text: object
+    listed_last: bool = False   #: listed after every phase's other warnings
+
+    def counts(self) -> np.ndarray:
+        """Phases per variant where the condition holds (N,)."""
+        return self.mask.sum(axis=-1)
+
+
+def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> list:
+    """The per-phase warning conditions of a solved batch, vectorized.
+
+    Parameters
+    ----------
+    result : CircuitResult
+        Solved over ``(N, phases)`` (or ``(phases,)``).
+    c : dict
+        Its circuit inputs (:func:`heatload.cycle.circuit_inputs` or the
+        evaluation's builder).
+    scenario : Scenario
+    values : heatload.paths.Overrides, optional
+        Varied ratings (pump and directional-valve maximum pressure).
+
+    Returns
+    -------
+    list of Condition
+        In the order a phase's warnings are listed.
+    """
+    g = values.get if values is not None else (lambda k, d: d)
     pu = scenario.power_unit
-    names = [p.name for p in scenario.phases]
-    moving = pa["moving"]
-    for i, name in enumerate(names):
-        pp = float(result.pump_pressure[i])
-        p1 = float(result.inlet_pressure[i])
-        p2 = float(result.outlet_pressure[i])
-        w = motor_overload_warning(name, float(result.shaft_power[i]), pu.motor.rated_power,
-                                   float(result.pump_shaft_speed[i]) / pu.pump.shaft_speed,
-                                   float(result.duration[i]))
-        if w is not None:
-            out.append(w)
-        if pp > pu.pump.max_pressure * (1 + 1e-9):
-            out.append(Warning_("pressure-rating", name, pp, pu.pump.max_pressure,
-                                f"pump pressure {_bar(pp)} above the pump's rating "
-                                f"{_bar(pu.pump.max_pressure)}"))
-        if max(pp, p1, p2) > pu.directional_valve.max_pressure * (1 + 1e-9):
-            v = max(pp, p1, p2)
-            out.append(Warning_("pressure-rating", name, v, pu.directional_valve.max_pressure,
-                                f"pressure {_bar(v)} above the directional valve's rating "
-                                f"{_bar(pu.directional_valve.max_pressure)}"))
-        rating = float(pa["max_pressure_inlet"][i])
-        if np.isfinite(rating) and max(p1, p2) > rating * (1 + 1e-9):
-            v = max(p1, p2)
-            out.append(Warning_("pressure-rating", name, v, rating,
-                                f"actuator chamber at {_bar(v)} above its rating {_bar(rating)}"))
-        if not moving[i]:
-            p_hold = float(pa["hold_pressure"][i])
-            if (p_hold > 0 and pa["unloading"][i] != UNLOAD_CENTRE
-                    and pp < p_hold * (1 - 1e-6)):
-                out.append(Warning_("hold-pressure", name, p_hold, pp,
-                                    f"the pressure to hold {_bar(p_hold)} is more than the "
-                                    f"pump supplies here ({_bar(pp)})"))
-            if result.relief_flow[i] > 1e-9 and result.pump_flow[i] > 0:
-                out.append(Warning_("relief-passing", name, float(result.relief_flow[i]), None,
-                                    f"the relief valve passes {result.relief_flow[i] * 6e4:.1f} "
-                                    f"L/min at {_bar(pp)} for the whole phase"))
-            continue
-        if p2 > pp * (1 + 1e-6) and p2 > 1e5 and not result.counterbalance_active[i]:
-            ratio = f" (x{p2 / pp:.2f})" if pp >= 1e5 else ""
-            out.append(Warning_("intensification", name, p2, pp,
-                                f"outlet chamber at {_bar(p2)} exceeds supply {_bar(pp)}"
-                                f"{ratio}: the cylinder intensifies"))
-        if result.runaway[i]:
-            out.append(Warning_("overrunning-load", name, float(scenario.phases[i].load), 0.0,
-                                f"overrunning load {scenario.phases[i].load:.0f} this circuit "
-                                f"cannot hold: the actuator runs away; figures assume a "
-                                f"counterbalance valve at {_bar(result.counterbalance_setting[i])}"
-                                f" (fit one, or throttle the outlet)"))
-        if min(p1, p2) < CAVITATION_THRESHOLD:
-            v = min(p1, p2)
-            out.append(Warning_("cavitation", name, v, CAVITATION_THRESHOLD,
-                                f"a chamber would fall to {v / 1e5:.2f} bar gauge: cavitation "
-                                f"risk"))
-        if result.stalled[i]:
-            out.append(Warning_("stall", name, 0.0, float(result.speed_target[i]),
-                                "the load needs more pressure than the supply allows: "
-                                "the actuator stalls and the pump flow crosses the relief"))
-        elif result.flow_limited[i]:
-            frac = result.speed[i] / result.speed_target[i] if result.speed_target[i] else 0
-            out.append(Warning_("speed-not-reached", name, float(result.speed[i]),
-                                float(result.speed_target[i]),
-                                f"speed reaches only {100 * frac:.0f} % of the set speed"))
-        elif result.relief_flow[i] >= result.pump_flow[i] * 0.999 and result.pump_flow[i] > 0:
-            out.append(Warning_("relief-passing", name, float(result.relief_flow[i]), None,
-                                "the relief valve passes the whole pump flow"))
+    shape = np.shape(result.pump_pressure)
+
+    def full(x):
+        return np.broadcast_to(np.asarray(x), shape)
+
+    def col(x):
+        x = np.asarray(x, float)
+        return full(x[..., None] if x.ndim else x)
+
+    pp, p1, p2 = result.pump_pressure, result.inlet_pressure, result.outlet_pressure
+    moving = full(c["moving"])
+    still = ~moving
+    pump_max = col(g(("pump", "max_pressure"), pu.pump.max_pressure))
+    dv_max = col(g(("directional_valve", "max_pressure"), pu.directional_valve.max_pressure))
+    rating = full(c["max_pressure_inlet"])
+    rated_power = full(c["motor_rated_power"])
+    fraction = result.pump_shaft_speed / full(c["pump_speed"])
+    hold = full(c["hold_pressure"])
+    load = full(c["load"])
+    hi = np.maximum(pp, np.maximum(p1, p2))
+    chamber_hi = np.maximum(p1, p2)
+    chamber_lo = np.minimum(p1, p2)
+    relief, pump_flow = result.relief_flow, result.pump_flow
+    stalled, slow = result.stalled, result.flow_limited
+    zero = np.zeros(shape)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        speed_ratio = np.where(result.speed_target != 0, result.speed / result.speed_target, 0)
+
+    def cond(code, mask, value, limit, text):
+        return Condition(code, full(mask), full(value), None if limit is None else full(limit),
+                         text)
+
+    out = [
+        cond("motor-overload", motor_overloaded(result.shaft_power, rated_power, fraction),
+             result.shaft_power,
+             MOTOR_SERVICE_FACTOR * rated_power * np.minimum(fraction, 1.0),
+             lambda i: _motor_overload_text(result.shaft_power[i], rated_power[i],
+                                            fraction[i], result.duration[i])),
+        cond("pressure-rating", pp > pump_max * (1 + 1e-9), pp, pump_max,
+             lambda i: f"pump pressure {_bar(pp[i])} above the pump's rating "
+                       f"{_bar(pump_max[i])}"),
+        cond("pressure-rating", hi > dv_max * (1 + 1e-9), hi, dv_max,
+             lambda i: f"pressure {_bar(hi[i])} above the directional valve's rating "
+                       f"{_bar(dv_max[i])}"),
+        cond("pressure-rating", np.isfinite(rating) & (chamber_hi > rating * (1 + 1e-9)),
+             chamber_hi, rating,
+             lambda i: f"actuator chamber at {_bar(chamber_hi[i])} above its rating "
+                       f"{_bar(rating[i])}"),
+        cond("hold-pressure", still & (hold > 0) & (full(c["unloading"]) != UNLOAD_CENTRE)
+             & (pp < hold * (1 - 1e-6)), hold, pp,
+             lambda i: f"the pressure to hold {_bar(hold[i])} is more than the pump "
+                       f"supplies here ({_bar(pp[i])})"),
+        cond("relief-passing", still & (relief > 1e-9) & (pump_flow > 0), relief, None,
+             lambda i: f"the relief valve passes {relief[i] * 6e4:.1f} L/min at "
+                       f"{_bar(pp[i])} for the whole phase"),
+        cond("intensification", moving & (p2 > pp * (1 + 1e-6)) & (p2 > 1e5)
+             & ~result.counterbalance_active, p2, pp,
+             lambda i: f"outlet chamber at {_bar(p2[i])} exceeds supply {_bar(pp[i])}"
+                       + (f" (x{p2[i] / pp[i]:.2f})" if pp[i] >= 1e5 else "")
+                       + ": the cylinder intensifies"),
+        cond("overrunning-load", moving & result.runaway, load, zero,
+             lambda i: f"overrunning load {load[i]:.0f} this circuit cannot hold: the "
+                       f"actuator runs away; figures assume a counterbalance valve at "
+                       f"{_bar(result.counterbalance_setting[i])} (fit one, or throttle "
+                       f"the outlet)"),
+        cond("cavitation", moving & (chamber_lo < CAVITATION_THRESHOLD), chamber_lo,
+             np.full(shape, CAVITATION_THRESHOLD),
+             lambda i: f"a chamber would fall to {chamber_lo[i] / 1e5:.2f} bar gauge: "
+                       f"cavitation risk"),
+        cond("stall", moving & stalled, zero, result.speed_target,
+             lambda i: "the load needs more pressure than the supply allows: the actuator "
+                       "stalls and the pump flow crosses the relief"),
+        cond("speed-not-reached", moving & ~stalled & slow, result.speed, result.speed_target,
+             lambda i: f"speed reaches only {100 * speed_ratio[i]:.0f} % of the set speed"),
+        cond("relief-passing", moving & ~stalled & ~slow & (relief >= pump_flow * 0.999)
+             & (pump_flow > 0), relief, None,
+             lambda i: "the relief valve passes the whole pump flow"),
+    ]
     return out
 
 
-#: Speed change for +10 % load above which a bleed-off phase is flagged [-]
-SPEED_DRIFT_LIMIT = 0.05
+#: Codes of the per-phase conditions, in the order sweeps list their counts
+PHASE_CODES = ("motor-overload", "pressure-rating", "hold-pressure", "relief-passing",
+               "intensification", "overrunning-load", "cavitation", "stall",
+               "speed-not-reached", "speed-drift")
 
 
-def speed_drift_warnings(change, scenario, pa) -> list:
-    """Bleed-off phases whose speed moves more than 5 % when the load rises 10 %
-    (*change* from :func:`heatload.circuits.bleed_off_speed_change`)."""
+def condition_counts(conditions) -> dict:
+    """Code -> phases per variant that carry it, (N,) ints (every code of
+    :data:`PHASE_CODES`, zero where it was not checked)."""
+    lead = np.shape(conditions[0].mask)[:-1] if conditions else ()
+    out = {code: np.zeros(lead, int) for code in PHASE_CODES}
+    for cd in conditions:
+        n = cd.counts()
+        out[cd.code] = out[cd.code] + n if cd.code in out else n
+    return out
+
+
+def phase_warnings(conditions, scenario, row=None) -> list:
+    """The warnings of one variant as :class:`Warning_` records, phase by
+    phase in the order of :func:`phase_conditions` (*row*: the variant of a
+    batch; None for a batch of one phase axis)."""
+    names = [p.name for p in scenario.phases]
     out = []
-    for i, ph in enumerate(scenario.phases):
-        if pa["moving"][i] and abs(change[i]) > SPEED_DRIFT_LIMIT:
-            what = ("the actuator stalls" if change[i] <= -0.999
-                    else f"speed changes {100 * change[i]:+.0f} %")
-            out.append(Warning_("speed-drift", ph.name, float(change[i]), SPEED_DRIFT_LIMIT,
-                                f"{what} when the load rises 10 %: a bleed-off speed "
-                                f"follows the load"))
+    for group in ([cd for cd in conditions if not cd.listed_last],
+                  [cd for cd in conditions if cd.listed_last]):
+        for j, name in enumerate(names):
+            for cd in group:
+                i = (j,) if row is None else (row, j)
+                if cd.mask[i]:
+                    limit = None if cd.limit is None else float(cd.limit[i])
+                    out.append(Warning_(cd.code, name, float(cd.value[i]), limit, cd.text(i)))
     return out
 
 

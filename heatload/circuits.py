@@ -6,8 +6,8 @@ hydraulic motor) fed by the power unit:
 
     pump (+ relief, bleed or bypass at the pump outlet)
       -> check valve -> pressure line -> directional valve P->A
-      -> [meter-in flow control]  -> actuator inlet  (p1, Q1)
-      actuator outlet (p2, Q2) -> [meter-out flow control] [counterbalance]
+      -> [inlet flow control]  -> actuator inlet  (p1, Q1)
+      actuator outlet (p2, Q2) -> [outlet flow control] [counterbalance]
       -> directional valve B->T -> return line -> tank (0 bar gauge)
 
 The actuator's steady force balance is ``p1 A1 - p2 A2 = F_eff`` with
@@ -25,23 +25,9 @@ limits it; zero when the load stalls the actuator), then books every watt:
 so ``P_electric = useful + sum(losses)`` closes to rounding.  Motor and
 converter losses heat the room, every other loss heats the oil.
 
-Strategies (names as in :data:`heatload.model.STRATEGIES`):
-
-- ``meter-in``: fixed pump, relief sets the pump pressure, a 2-way
-  compensated flow control in the inlet line.  Surplus flow crosses the relief.
-- ``meter-out``: as meter-in with the flow control in the outlet line: the
-  outlet pressure is ``(p1 A1 - F)/A2`` and may exceed supply by the area ratio.
-- ``bleed-off``: fixed pump at the working pressure; the surplus is bled to
-  tank at that pressure by a restrictor set for the phase's speed.
-- ``bypass-compensated``: 3-way compensated flow control: surplus leaves at
-  working pressure + the compensator spring.
-- ``pressure-compensated``: variable pump held at its compensator setting,
-  delivering only the flow used; a meter-in flow control sets the speed.
-- ``load-sensing``: variable pump at the highest load pressure + margin; the
-  proportional valve meters with the margin; standby pressure when idle.
-- ``variable-speed``: fixed pump on a speed-controlled motor delivering the flow
-  used at the working pressure; surplus below its minimum speed is bled at the
-  working pressure.
+What is particular to each strategy (its residual, pump pressure, rest and
+stall pressures, pump state and surplus routing) lives in its class in
+:mod:`heatload.strategies`; :func:`solve_strategy` is the solve they share.
 
 All functions are vectorized: every input broadcasts (e.g. shape
 ``(variants, phases)``), so a design sweep is one call.
@@ -60,7 +46,6 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from heatload import lines, motors, pumps, valves
-from heatload.model import STRATEGIES
 
 TWO_PI = 2.0 * np.pi
 
@@ -370,56 +355,13 @@ def _solve_flow(residual, c, q_target, q_kink=None):
     return q, short & ~stalled, stalled, drops
 
 
-def _strategy_residual(strategy):
-    """Residual ``available - required`` pump pressure as a function of Q1."""
-
-    def meter_in(q, c, rec=None):
-        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
-        dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
-        return _relief_supply(q, c, c["q_theoretical"]) - (supply + p1 + dp_fc)
-
-    def meter_out(q, c, rec=None):
-        dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
-        supply, p1 = _supply_and_inlet(q, c, dp_fc, rec)
-        return _relief_supply(q, c, c["q_theoretical"]) - (supply + p1)
-
-    def bypass(q, c, rec=None):
-        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
-        dp_fc = c["bypass_spring"] * (q / c["q_target_safe"]) ** 2
-        return _relief_supply(q, c, c["q_theoretical"]) - (supply + p1 + dp_fc)
-
-    def bleed_off(q, c, rec=None):
-        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
-        return _relief_supply(q, c, c["q_theoretical"]) - (supply + p1)
-
-    def pressure_compensated(q, c, rec=None):
-        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
-        dp_fc = c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
-        avail = _compensator_supply(q, c, c["compensator"], c["q_theoretical"])
-        return avail - (supply + p1 + dp_fc)
-
-    def load_sensing(q, c, rec=None):
-        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
-        avail = np.minimum(_compensator_supply(q, c, c["compensator"], c["q_theoretical"]),
-                           p1 + c["ls_margin"])
-        return avail - (supply + p1)
-
-    def variable_speed(q, c, rec=None):
-        supply, p1 = _supply_and_inlet(q, c, 0.0, rec)
-        return _relief_supply(q, c, c["q_theoretical_max"]) - (supply + p1)
-
-    return {"meter-in": meter_in, "meter-out": meter_out, "bleed-off": bleed_off,
-            "bypass-compensated": bypass, "pressure-compensated": pressure_compensated,
-            "load-sensing": load_sensing, "variable-speed": variable_speed}[strategy]
-
-
 def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     """Solve every phase for one *strategy*.
 
     Parameters
     ----------
     strategy : str
-        One of :data:`heatload.model.STRATEGIES`.
+        A name of :data:`heatload.strategies.REGISTRY`.
     c : dict
         Circuit arrays from :func:`heatload.cycle.circuit_inputs` (all SI,
         broadcast to one shape).
@@ -428,58 +370,45 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     -------
     CircuitResult
     """
-    if strategy not in STRATEGIES:
-        from heatload.errors import HeatloadError
-        raise HeatloadError(f"unknown strategy {strategy!r}; expected one of "
-                            f"{', '.join(STRATEGIES)}", field="strategies")
+    from heatload.strategies import circuit
+    kind = circuit(strategy)
     c = dict(c)
     shape = c["shape"]
     z = np.zeros(shape)
     moving = c["moving"]
-    variable_pump = strategy in ("pressure-compensated", "load-sensing")
-    holds_overrun = strategy == "meter-out"
     # the load overruns where it beats the seal friction: the effective force pulls
     overrun = moving & (c["load"] < 0.0) & (c["force"] < 0.0)
-    # A counterbalance valve acts only on an overrunning load; meter-out needs
-    # none.  Where none is fitted the load would run away: the phase is flagged
-    # and its figures assume one set at 1.3 x the load-induced pressure.
-    runaway = overrun & ~c["cb_fitted"] & (not holds_overrun)
-    c["cb_active"] = overrun & (c["cb_fitted"] | runaway) & (not holds_overrun)
+    # A counterbalance valve acts only on an overrunning load; an outlet
+    # throttle needs none.  Where none is fitted the load would run away: the
+    # phase is flagged and its figures assume one set at 1.3 x the load-induced
+    # pressure.
+    runaway = overrun & ~c["cb_fitted"] & (not kind.meters_out)
+    c["cb_active"] = overrun & (c["cb_fitted"] | runaway) & (not kind.meters_out)
     c["cb_setting"] = np.where(runaway, COUNTERBALANCE_FACTOR * np.abs(c["force"]) / c["a_out"],
                                c["cb_setting"])
 
     n_nom = c["pump_speed"]
     c["q_theoretical"] = c["pump_displacement"] * n_nom
     c["q_theoretical_max"] = c["pump_displacement"] * n_nom * c["vs_max_fraction"]
-    q_cap = c["q_theoretical_max"] if strategy == "variable-speed" else c["q_theoretical"]
+    q_cap = kind.flow_capacity(c)
     c["q_reach"] = q_cap  # beyond it the pump cannot deliver: keeps the root bracket smooth
     q_target = np.where(np.isfinite(c["q_target"]), c["q_target"], q_cap)
     q_target = np.where(moving, np.maximum(q_target, 0.0), 0.0)
+    if "shape" in c:            # a single phase may arrive as 0-d; the flow solve
+        q_target = np.broadcast_to(q_target, c["shape"]).copy()   # needs every row
     c["q_target_safe"] = np.where(q_target > 0, q_target, 1.0)
 
-    residual = _strategy_residual(strategy)
     # the corner of the supply characteristic: full pump flow at the relief
     # (fixed pumps) or compensator setting (variable pumps)
     leak0 = _leak_conductance(c)
-    if variable_pump:
-        q_kink = c["q_theoretical"] - leak0 * c["compensator"]
-    else:
-        q_kink = q_cap - leak0 * c["relief_cracking"]
-    q1, flow_limited, stalled, drops_set = _solve_flow(residual, c, q_target, q_kink)
+    q_kink = kind.kink(c, q_cap, leak0)
+    q1, flow_limited, stalled, drops_set = _solve_flow(kind.residual, c, q_target, q_kink)
     full_flow = moving & ~np.isfinite(c["q_target"])
     flow_limited = flow_limited & ~full_flow
     q_target = np.where(full_flow, q1, q_target)
 
     # ---- operating point at the solved flow --------------------------------
     leak = _leak_conductance(c)
-    dp_fc_in = z.copy()
-    dp_fc_out = z.copy()
-    spring_drop = z.copy()
-    if strategy == "bypass-compensated":
-        spring_drop = np.where(moving & ~stalled,
-                               c["bypass_spring"] * np.minimum(q1 / c["q_target_safe"], 1.0) ** 2,
-                               0.0)
-
     # the drops at the solved flow: reused from the set-flow pass where the
     # actuator got its set flow, computed afresh for the rest
     if drops_set is None:
@@ -493,45 +422,10 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     supply = check_dp + pline_dp + dv_in_dp
     q2 = q1 * c["q_ratio"]
     p_back = rdv_dp + rline_dp
-    if strategy == "meter-out":
-        # throttle drop = what the relief pressure leaves beyond the force balance
-        p_pump = _relief_supply(q1, c, c["q_theoretical"])
-        p1_open = p_pump - supply
-        # p1 A1 - (p_back + dp_fc) A2 = F  ->  dp_fc = (p1 A1 - F)/A2 - p_back
-        dp_fc_out = np.where(moving & ~stalled,
-                             np.maximum((p1_open * c["a_in"] - c["force"]) / c["a_out"]
-                                        - p_back, 0.0), 0.0)
-        p1, p2, dp_cb = _inlet_pressure_at(p_back + dp_fc_out, c)
-    else:
-        p1, p2, dp_cb = _inlet_pressure_at(p_back, c)
-
-    required = supply + p1
-    if strategy == "meter-in":
-        p_pump = _relief_supply(q1, c, c["q_theoretical"])
-        dp_fc_in = np.maximum(p_pump - required, 0.0)
-    elif strategy == "pressure-compensated":
-        p_pump = _compensator_supply(q1, c, c["compensator"], c["q_theoretical"])
-        dp_fc_in = np.maximum(p_pump - required, 0.0)
-    elif strategy == "load-sensing":
-        p_pump = np.minimum(_compensator_supply(q1, c, c["compensator"], c["q_theoretical"]),
-                            p1 + c["ls_margin"])
-        dp_fc_in = np.maximum(p_pump - required, 0.0)
-    elif strategy == "bypass-compensated":
-        p_pump = np.minimum(required + spring_drop, _relief_supply(q1, c, c["q_theoretical"]))
-        dp_fc_in = np.maximum(p_pump - required, 0.0)
-    elif strategy in ("bleed-off", "variable-speed"):
-        qmax = c["q_theoretical_max"] if strategy == "variable-speed" else c["q_theoretical"]
-        p_pump = np.minimum(required, _relief_supply(q1, c, qmax))
+    p_pump, p1, p2, dp_cb, dp_fc_in, dp_fc_out = kind.operating_pressures(
+        q1, c, supply, p_back, moving, stalled)
     # stalled actuators: the pump sits at what its supply gives at zero flow
-    stall_p = {"pressure-compensated": c["compensator"], "load-sensing": c["compensator"]}
-    if strategy == "variable-speed":
-        # a stalled variable-speed pump turns at its minimum speed (below): the relief
-        # passes that flow only, and its override follows that flow
-        q_stall = c["pump_displacement"] * n_nom * c["vs_min_fraction"]
-        p_stall = _relief_supply(z, c, q_stall)
-    else:
-        p_stall = stall_p.get(strategy, _relief_supply(z, c, c["q_theoretical"]))
-    p_pump = np.where(moving & stalled, p_stall, p_pump)
+    p_pump = np.where(moving & stalled, kind.stall_pressure(c, z), p_pump)
     dp_fc_in = np.where(stalled, 0.0, dp_fc_in)
 
     # ---- phases with nothing moving (hold / idle) ----------------------------
@@ -543,73 +437,18 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # centre drop at the full theoretical flow (leakage at a few bar is negligible)
     centre_dp = _centre_drop(c["q_theoretical"], c)
     relief_full = _relief_supply(z, c, c["q_theoretical"])
-    if strategy in ("meter-in", "meter-out"):
-        p_rest = np.where(use_centre, centre_dp, relief_full)
-    elif strategy == "bleed-off":
-        # the bleed restrictor opens fully: pump at about the centre drop
-        p_rest = np.where(holding & ~use_centre, relief_full, centre_dp)
-    elif strategy == "bypass-compensated":
-        # with the load port vented the 3-way compensator unloads at its spring
-        p_rest = np.where(use_centre, centre_dp,
-                          np.minimum(np.where(holding, p_hold, 0.0) + c["bypass_spring"],
-                                     relief_full))
-    elif strategy == "pressure-compensated":
-        # held at its setting at zero stroke; an open/tandem centre vents the
-        # pump line instead: the pump swings out and circulates at the centre drop
-        p_rest = np.where(use_centre, centre_dp, c["compensator"])
-    elif strategy == "load-sensing":
-        p_rest = np.where(holding, np.minimum(p_hold + c["ls_margin"], c["compensator"]),
-                          c["standby"])
-    else:  # variable-speed
-        q_min = c["pump_displacement"] * n_nom * c["vs_min_fraction"]
-        centre_dp_min = _centre_drop(q_min, c)
-        p_rest = np.where(holding, np.minimum(p_hold, relief_full),
-                          np.where(centre_ok, centre_dp_min,
-                                   _relief_supply(z, c, q_min)))
+    p_rest = kind.rest_pressure(c, z, use_centre, holding, p_hold, centre_dp, relief_full)
     p_pump = np.where(moving, p_pump, p_rest)
     p1 = np.where(moving, p1, p_hold)
     p2 = np.where(moving, p2, 0.0)
 
     # ---- pump flow, stroke and speed --------------------------------------
     leakage = leak * np.maximum(p_pump, 0.0)
-    if variable_pump:
-        frac = np.clip((q1 + leakage) / c["q_theoretical"], 0.0, 1.0)
-        n_pump = np.broadcast_to(n_nom, shape).astype(float)
-        q_pump = q1 * 1.0
-        if strategy == "pressure-compensated":
-            frac = np.where(use_centre, 1.0, frac)
-            q_pump = np.where(use_centre, np.maximum(c["q_theoretical"] - leakage, 0.0), q_pump)
-    elif strategy == "variable-speed":
-        n_need = (q1 + leakage) / c["pump_displacement"]
-        n_min = n_nom * c["vs_min_fraction"]
-        n_max = n_nom * c["vs_max_fraction"]
-        n_pump = np.clip(n_need, n_min, n_max)
-        n_pump = np.where(moving & stalled, np.maximum(leakage / c["pump_displacement"], n_min),
-                          n_pump)
-        frac = np.ones(shape)
-        q_pump = np.maximum(c["pump_displacement"] * n_pump - leakage, 0.0)
-    else:
-        frac = np.ones(shape)
-        n_pump = np.broadcast_to(n_nom, shape).astype(float)
-        q_pump = np.maximum(c["q_theoretical"] - leakage, 0.0)
-
+    frac, n_pump, q_pump = kind.pump_state(c, q1, leakage, moving, stalled, use_centre, shape)
     surplus = np.maximum(q_pump - q1, 0.0)
     at_relief = p_pump >= c["relief_cracking"] * (1.0 - 1e-12)
-    if strategy in ("meter-in", "meter-out"):
-        to_centre = ~moving & use_centre
-        to_relief = ~to_centre
-    elif strategy == "bleed-off":
-        to_centre = np.zeros(shape, dtype=bool)
-        to_relief = np.where(moving, at_relief, holding & ~use_centre)
-    elif strategy == "bypass-compensated":
-        to_centre = ~moving & use_centre
-        to_relief = ~to_centre & at_relief
-    elif strategy == "variable-speed":
-        to_centre = ~moving & ~holding & centre_ok
-        to_relief = ~to_centre & (at_relief | (~moving & ~holding))
-    else:  # variable pumps deliver only what is used (PC: all of it through a vented centre)
-        to_centre = use_centre if strategy == "pressure-compensated" else np.zeros(shape, dtype=bool)
-        to_relief = np.zeros(shape, dtype=bool)
+    to_centre, to_relief = kind.surplus_routing(moving, holding, use_centre, centre_ok,
+                                                at_relief, shape)
     centre_q = np.where(to_centre, surplus, 0.0)
     relief_q = np.where(to_relief & ~to_centre, surplus, 0.0)
     bleed_q = surplus - centre_q - relief_q
@@ -670,9 +509,9 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     speed_fraction = n_pump / n_nom
     p_motor_in = motors.motor_input_power(p_shaft, c["motor_rated_power"],
                                           c["motor_rated_efficiency"],
-                                          speed_fraction if strategy == "variable-speed" else 1.0)
+                                          speed_fraction if kind.speed_controlled else 1.0)
     losses["drive_motor"] = p_motor_in - p_shaft
-    if strategy == "variable-speed":
+    if kind.speed_controlled:
         losses["converter"] = motors.converter_losses(
             p_motor_in, c["motor_rated_power"] / c["motor_rated_efficiency"],
             c["drive_efficiency"])
@@ -687,7 +526,7 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         relief_flow=relief_q, bleed_flow=bleed_q, speed=speed,
         speed_target=np.where(moving, q_target * c["speed_per_flow"], 0.0),
         pump_shaft_speed=n_pump, displacement_fraction=frac,
-        throttle_drop=dp_fc_out if strategy == "meter-out" else dp_fc_in,
+        throttle_drop=dp_fc_out if kind.meters_out else dp_fc_in,
         duration=t_actual, shaft_power=p_shaft, electric_power=p_el, useful_power=useful,
         losses=losses, stalled=stalled, flow_limited=flow_limited, runaway=runaway,
         counterbalance_active=c["cb_active"],
@@ -704,37 +543,9 @@ def _actual_duration(c, speed, stalled):
     return np.maximum(t, 1e-9)
 
 
-def bleed_off_speed_change(c: dict, result: CircuitResult, load_factor: float = 1.1,
-                           iterations: int = 30) -> np.ndarray:
-    """Relative speed change of a bleed-off circuit when the load changes by
-    *load_factor*, the bleed restrictor staying as set for the nominal load.
-
-    The bleed restrictor is a sharp-edged orifice, Q_b = Q_b0 sqrt(p / p0)
-    (Merritt 1967, ch. 3); the actuator gets what the pump delivers less the
-    bleed, Q1 = Q_p(p) - Q_b(p), at the pressure the changed load needs,
-    p = drops(Q1) + p1(Q1, F'), solved by damped fixed-point steps.  Returns
-    (v' - v) / v per phase [-] (0 where nothing moves).
-    """
-    c = dict(c)
-    c["cb_active"] = result.counterbalance_active
-    c["cb_setting"] = np.where(result.counterbalance_active, result.counterbalance_setting,
-                               c["cb_setting"])
-    c["q_theoretical"] = c["pump_displacement"] * c["pump_speed"]
-    c["force"] = np.where(c["moving"], c["force"] + (load_factor - 1.0) * c["load"], c["force"])
-    moving = c["moving"] & (result.speed > 0)
-    p0 = np.maximum(result.pump_pressure, 1.0)
-    qb0 = result.bleed_flow
-    leak = _leak_conductance(c)
-    q = result.actuator_flow.copy()
-    for _ in range(iterations):
-        p1, _, _ = _inlet_pressure(q, c, 0.0)
-        p = np.maximum(_supply_drop(q, c) + p1, 0.0)
-        q_new = np.maximum(c["q_theoretical"] - leak * p - qb0 * np.sqrt(p / p0), 0.0)
-        q = 0.5 * (q + q_new)
-    v0 = np.where(moving, result.actuator_flow, 1.0)
-    return np.where(moving, (q - result.actuator_flow) / v0, 0.0)
-
-
-def solve_all(c: dict, strategies=STRATEGIES) -> dict:
-    """Solve every phase for each strategy name; returns name -> CircuitResult."""
+def solve_all(c: dict, strategies=None) -> dict:
+    """Solve every phase for each strategy name (default: every registered one);
+    returns name -> CircuitResult."""
+    if strategies is None:
+        from heatload.strategies import NAMES as strategies
     return {s: solve_strategy(s, c) for s in strategies}

@@ -337,8 +337,9 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--json", action="store_true", help="print as JSON (SI units)")
 
     sp = add("cooler", cmd_cooler, "size an air-oil or water-oil cooler, with its uncertainty")
-    sp.add_argument("--coolant", choices=("air", "water"), default=None,
-                    help="coolant (default: the scenario's [cooler] coolant)")
+    sp.add_argument("--coolant", default=None,
+                    help="cooler type to size, e.g. air or water (default: the scenario's "
+                         "[cooler] coolant)")
     sp.add_argument("--strategy", metavar="NAME", default=None,
                     help="strategy to size for (default: the present circuit)")
     sp.add_argument("--samples", type=int, default=10000, help="Monte Carlo samples (default 10000)")

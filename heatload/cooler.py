@@ -771,7 +771,7 @@ def cooler_spec_sheet(coolant, duty, oil_inlet_temperature, coolant_inlet_temper
     Parameters
     ----------
     coolant : str
-        'air' or 'water'.
+        A cooler type of :data:`heatload.cooler_types.TYPES` ('air' or 'water').
     duty : float
         Cooler duty WITHOUT margin [W] (e.g. ``required_cooler_duty(..., margin=0)``).
     oil_inlet_temperature : float
@@ -812,8 +812,9 @@ def cooler_spec_sheet(coolant, duty, oil_inlet_temperature, coolant_inlet_temper
     ----------
     See :func:`size_air_cooler`, :func:`size_water_cooler`.
     """
-    if coolant not in ("air", "water"):
-        raise HeatloadError(f"unknown coolant {coolant!r}; expected air or water", field="coolant")
+    from heatload.cooler_types import cooler_type
+
+    kind = cooler_type(coolant)
     base = float(_positive(duty, "duty"))
     m = float(_positive(margin, "margin", allow_zero=True))
     nu = float(_positive(oil_viscosity, "oil_viscosity"))
@@ -823,22 +824,9 @@ def cooler_spec_sheet(coolant, duty, oil_inlet_temperature, coolant_inlet_temper
                   oil_flow=float(oil_flow), oil_inlet_temperature=float(oil_inlet_temperature),
                   oil_pressure_drop_max=dp, oil_viscosity=nu,
                   coolant_inlet_temperature=float(coolant_inlet_temperature))
-    if coolant == "air":
-        s = size_air_cooler(p, oil_inlet_temperature, coolant_inlet_temperature, oil_flow,
-                            oil_density, oil_specific_heat, air_temperature_rise)
-        return CoolerSpec(etd=float(s.etd), oil_outlet_temperature=float(s.oil_outlet_temperature),
-                          coolant_flow=float(s.air_volume_flow),
-                          coolant_outlet_temperature=float(s.air_outlet_temperature),
-                          glycol_fraction=0.0, specific_cooling_power=float(s.specific_cooling_power),
-                          required_conductance=None, arrangement=None, **common)
-    s = size_water_cooler(p, oil_inlet_temperature, coolant_inlet_temperature, oil_flow,
-                          oil_density, oil_specific_heat, water_flow=water_flow,
-                          water_temperature_rise=water_temperature_rise,
-                          glycol_fraction=glycol_fraction, arrangement=arrangement,
-                          shell_passes=shell_passes)
-    return CoolerSpec(etd=float(s.etd), oil_outlet_temperature=float(s.oil_outlet_temperature),
-                      coolant_flow=float(s.water_volume_flow),
-                      coolant_outlet_temperature=float(s.water_outlet_temperature),
-                      glycol_fraction=float(glycol_fraction), specific_cooling_power=None,
-                      required_conductance=float(s.required_conductance),
-                      arrangement=arrangement, **common)
+    options = dict(air_temperature_rise=air_temperature_rise, water_flow=water_flow,
+                   water_temperature_rise=water_temperature_rise,
+                   glycol_fraction=glycol_fraction, arrangement=arrangement,
+                   shell_passes=shell_passes)
+    return kind.spec_sheet(p, oil_inlet_temperature, coolant_inlet_temperature, oil_flow,
+                           oil_density, oil_specific_heat, common, options)

@@ -26,7 +26,7 @@ Rating (:func:`rate_coolers`), on the hottest day (``ambient.temperature_max``):
   value beyond it (never extrapolated upwards);
 - the machine settles where the heat into the oil equals what the surfaces
   and the cooler shed, Q(T) = (UA(T) + S) (T - T_a,max), with the oil's
-  viscosity coupled (:func:`heatload.chain.coupled_temperatures`);
+  viscosity coupled (:func:`heatload.evaluation.coupled_temperature`);
 - a cooler holds the limit when it settles at or below the design oil
   temperature, and holds it *with margin* when S (T_design - T_a,max) covers
   the sized duty with its margin (:func:`heatload.cooler.required_cooler_duty`);
@@ -314,7 +314,8 @@ def rate_coolers(scenario, outcome, coolers=None) -> DatasheetSelection:
     -------
     DatasheetSelection
     """
-    from heatload import chain, cycle, oil, thermal
+    from heatload import chain, evaluation, oil, thermal
+    from heatload.paths import Overrides
 
     coolers = tuple(coolers if coolers is not None else scenario.coolers)
     if not coolers:
@@ -327,13 +328,25 @@ def rate_coolers(scenario, outcome, coolers=None) -> DatasheetSelection:
     mean_q = float(np.sum(q_ret * t) / np.sum(t))
     peak_q = float(np.max(q_ret))
     s = np.array([cycle_specific_cooling_power(c.specific_power, q_ret, t) for c in coolers])
-    pa = cycle.phase_arrays(scenario)
-    heat_grid = chain._mean_heat(chain.solve_at(scenario, outcome.strategy,
-                                                chain.TEMPERATURE_GRID, pa))
+    # the coupled temperature on the hottest day with each cooler's S added to the
+    # surfaces' UA (row 0: no cooler), through the one coupled solve
     ta = th.design_ambient
-    ambients = np.full(len(coolers) + 1, ta)
-    temps, _, _ = chain.coupled_temperatures(scenario, outcome.strategy, ambients, heat_grid,
-                                             pa, extra_conductance=np.concatenate(([0.0], s)))
+    m = len(coolers) + 1
+    build = evaluation.Builder(scenario, outcome.strategy,
+                               Overrides(scenario, outcome.strategy, None))
+    h = scenario.reservoir.heat_transfer_coefficient
+    surfaces = evaluation.ConductanceTable(scenario, np.full(m, ta),
+                                           np.nan if h is None else h)
+    extra = np.concatenate(([0.0], s))
+
+    def with_cooler(t_oil, rows=None):
+        ua, dua = surfaces(t_oil, rows)
+        return ua + (extra if rows is None else extra[rows]), dua
+
+    temps, _, _ = evaluation.coupled_temperature(
+        build, np.zeros(m, int), np.full(m, ta), with_cooler,
+        (th.reference_temperature, th.heat_uncoupled),
+        (th.design_oil_temperature, th.design_heat))
     t_d = th.design_oil_temperature
     allowed = scenario.cooler.oil_pressure_drop_max
     ua_hot = chain.conductance_fn(scenario, ta)

@@ -28,6 +28,7 @@ from heatload import motors, oil, pumps
 from heatload.actuators import cylinder_areas
 from heatload.circuits import UNLOAD_CENTRE, UNLOAD_HELD, UNLOAD_RELIEF
 from heatload.model import Scenario, Strategy, StrategyParameters
+from heatload.paths import Overrides
 
 _UNLOAD_CODE = {"relief": UNLOAD_RELIEF, "centre": UNLOAD_CENTRE, "held": UNLOAD_HELD}
 TWO_PI = 2.0 * np.pi
@@ -49,147 +50,204 @@ def reference_oil_temperature(scenario: Scenario) -> float:
     return float(np.clip(t, 253.15, 393.15))
 
 
-def phase_arrays(scenario: Scenario) -> dict:
-    """Per-phase arrays that do not depend on the strategy or the oil state."""
+def _nominal(key, default):
+    return default
+
+
+def _row(x):
+    """A per-variant value (N,) as a column (N, 1) against the phase axis."""
+    return np.asarray(x)[:, None] if np.ndim(x) == 1 else x
+
+
+def phase_arrays(scenario: Scenario, values: Overrides | None = None) -> dict:
+    """Per-phase arrays that do not depend on the strategy or the oil state.
+
+    With *values* (:class:`heatload.paths.Overrides`) a varied field is an
+    array over N variants and the entries it touches get shape ``(N, phases)``;
+    the others stay ``(phases,)``.
+    """
+    g = values.get if values is not None else _nominal
     phases = scenario.phases
     n = len(phases)
     pump = scenario.power_unit.pump
-    q_pump_nominal = pump.displacement * pump.shaft_speed
-    out = {k: np.zeros(n) for k in (
-        "a_in", "a_out", "q_ratio", "speed_per_flow", "force", "load", "q_target",
-        "hold_pressure", "stroke", "duration", "compression_volume",
-        "compression_volume_outlet", "work_per_load_speed",
-        "max_pressure_inlet", "max_pressure_outlet")}
-    out["moving"] = np.zeros(n, dtype=bool)
-    out["by_stroke"] = np.zeros(n, dtype=bool)
-    out["compress"] = np.zeros(n, dtype=bool)
-    out["extending"] = np.zeros(n, dtype=bool)
-    out["unloading"] = np.zeros(n, dtype=int)
-    out["previous_phase"] = -np.ones(n, dtype=int)
+    q_pump_nominal = g(("pump", "displacement"), pump.displacement) * g(("pump", "shaft_speed"),
+                                                                          pump.shaft_speed)
+    keys = ("a_in", "a_out", "q_ratio", "speed_per_flow", "force", "load", "q_target",
+            "hold_pressure", "stroke", "duration", "compression_volume",
+            "compression_volume_outlet", "work_per_load_speed",
+            "max_pressure_inlet", "max_pressure_outlet")
+    cols = {k: [] for k in keys}
+    out = {"moving": np.zeros(n, dtype=bool), "by_stroke": np.zeros(n, dtype=bool),
+           "compress": np.zeros(n, dtype=bool), "extending": np.zeros(n, dtype=bool),
+           "unloading": np.zeros(n, dtype=int), "previous_phase": -np.ones(n, dtype=int)}
     chamber = [None] * n
     for i, ph in enumerate(phases):
         act = scenario.actuator(ph.actuator) if ph.actuator else None
-        moving = ph.motion in ("extend", "retract", "run") and (ph.speed is None or ph.speed > 0)
-        out["moving"][i] = moving and act is not None
-        out["unloading"][i] = _UNLOAD_CODE[ph.unloading]
-        out["load"][i] = ph.load
-        out["work_per_load_speed"][i] = 1.0
-        out["extending"][i] = ph.motion in ("extend", "hold", "run")
+
+        def pget(key, default, i=i):
+            return g(("phase", i, key), default)
+        speed = pget("speed", ph.speed)
+        stroke = pget("stroke", ph.stroke)
+        duration = pget("duration", ph.duration)
+        load = pget("load", ph.load)
+        moving = (ph.motion in ("extend", "retract", "run") and (ph.speed is None or ph.speed > 0)
+                  and act is not None)
+        row = dict(load=load, work_per_load_speed=1.0, force=0.0, compression_volume=0.0,
+                   compression_volume_outlet=0.0,
+                   q_target=0.0, hold_pressure=0.0, duration=0.0)
         if act is None:
-            out["a_in"][i] = out["a_out"][i] = 1.0
-            out["q_ratio"][i] = 1.0
-            out["speed_per_flow"][i] = 1.0
-            out["max_pressure_inlet"][i] = out["max_pressure_outlet"][i] = np.inf
-        elif act.kind == "motor":
-            d = act.displacement
-            out["a_in"][i] = out["a_out"][i] = d
-            out["q_ratio"][i] = 1.0
-            t = ph.load
-            eta = act.hydromechanical_efficiency
-            # driven by the oil the motor leaks (n = Q eta_v / D); overrun by its load it
-            # pumps, and the load turns it faster than the flow (n = Q / (eta_v D))
-            ev = act.volumetric_efficiency
-            out["speed_per_flow"][i] = ev / d if t >= 0 else 1.0 / (ev * d)
-            out["force"][i] = TWO_PI * t / eta if t >= 0 else TWO_PI * t * eta
-            out["work_per_load_speed"][i] = TWO_PI
-            out["compression_volume"][i] = d + act.dead_volume if hasattr(act, "dead_volume") else d
-            out["compression_volume_outlet"][i] = out["compression_volume"][i]
-            out["max_pressure_inlet"][i] = out["max_pressure_outlet"][i] = act.max_pressure
-            chamber[i] = (act.name, "motor")
+            row.update(a_in=1.0, a_out=1.0, q_ratio=1.0, speed_per_flow=1.0,
+                       max_pressure_inlet=np.inf, max_pressure_outlet=np.inf)
         else:
-            cap, ann = cylinder_areas(act.bore, act.rod)
-            if ph.motion == "retract":
-                a_in, a_out = ann, cap
-                chamber[i] = (act.name, "rod")
+            def aget(key, default, a=act):
+                return g(("actuator", a.name, key), default)
+            mp = aget("max_pressure", act.max_pressure)
+            row.update(max_pressure_inlet=mp, max_pressure_outlet=mp)
+            if act.kind == "motor":
+                d = aget("displacement", act.displacement)
+                eta = aget("hydromechanical_efficiency", act.hydromechanical_efficiency)
+                ev = aget("volumetric_efficiency", act.volumetric_efficiency)
+                t = np.asarray(load, float)
+                # driven by the oil the motor leaks (n = Q eta_v / D); overrun by its load
+                # it pumps, and the load turns it faster than the flow (n = Q / (eta_v D))
+                row.update(a_in=d, a_out=d, q_ratio=1.0,
+                           speed_per_flow=np.where(t >= 0, ev / d, 1.0 / (ev * d)),
+                           force=np.where(t >= 0, TWO_PI * t / eta, TWO_PI * t * eta),
+                           work_per_load_speed=TWO_PI,
+                           compression_volume=(d + act.dead_volume
+                                               if hasattr(act, "dead_volume") else d))
+                row["compression_volume_outlet"] = row["compression_volume"]
+                chamber[i] = (act.name, "motor")
             else:
-                a_in, a_out = cap, ann
-                chamber[i] = (act.name, "cap")
-            out["a_in"][i], out["a_out"][i] = a_in, a_out
-            out["q_ratio"][i] = a_out / a_in
-            out["speed_per_flow"][i] = 1.0 / a_in
-            friction = act.friction_force if moving else 0.0
-            out["force"][i] = ph.load + friction
-            out["compression_volume"][i] = a_in * act.stroke + act.dead_volume
-            # the outlet chamber, full at the phase's start, is pressed to p2 too
-            out["compression_volume_outlet"][i] = a_out * act.stroke + act.dead_volume
-            out["max_pressure_inlet"][i] = out["max_pressure_outlet"][i] = act.max_pressure
+                cap, ann = cylinder_areas(aget("bore", act.bore), aget("rod", act.rod))
+                if ph.motion == "retract":
+                    a_in, a_out = ann, cap
+                    chamber[i] = (act.name, "rod")
+                else:
+                    a_in, a_out = cap, ann
+                    chamber[i] = (act.name, "cap")
+                friction = aget("friction_force", act.friction_force) if moving else 0.0
+                row.update(a_in=a_in, a_out=a_out, q_ratio=a_out / a_in,
+                           speed_per_flow=1.0 / a_in, force=load + friction,
+                           compression_volume=a_in * aget("stroke", act.stroke)
+                           + aget("dead_volume", act.dead_volume),
+                           # the outlet chamber, full at the phase's start, is pressed
+                           # to p2 too
+                           compression_volume_outlet=a_out * aget("stroke", act.stroke)
+                           + aget("dead_volume", act.dead_volume))
+        spf = row["speed_per_flow"]
         # speed target as inlet flow
-        if moving and act is not None:
-            if ph.speed is None:
-                out["q_target"][i] = np.inf
-            else:
-                out["q_target"][i] = ph.speed / out["speed_per_flow"][i]
+        if moving:
+            row["q_target"] = np.inf if speed is None else speed / spf
         # duration: given, or the stroke at the set speed
-        v_set = (ph.speed if ph.speed is not None
-                 else q_pump_nominal * out["speed_per_flow"][i])
-        if ph.duration is not None:
-            out["duration"][i] = ph.duration
-        elif ph.stroke is not None and moving:
-            out["duration"][i] = ph.stroke / v_set
+        v_set = speed if speed is not None else q_pump_nominal * spf
+        if duration is not None:
+            row["duration"] = duration
+        elif stroke is not None and moving:
+            row["duration"] = stroke / v_set
             out["by_stroke"][i] = True
-        out["stroke"][i] = ph.stroke if ph.stroke is not None else 0.0
+        row["stroke"] = stroke if stroke is not None else 0.0
         # held pressure in hold phases
         if not moving:
-            if ph.hold_pressure is not None:
-                out["hold_pressure"][i] = ph.hold_pressure
-            elif ph.hold_force is not None and act is not None:
-                area = out["a_in"][i]
-                out["hold_pressure"][i] = ph.hold_force / area
+            hp = pget("hold_pressure", ph.hold_pressure)
+            hf = pget("hold_force", ph.hold_force)
+            if hp is not None:
+                row["hold_pressure"] = hp
+            elif hf is not None and act is not None:
+                row["hold_pressure"] = hf / row["a_in"]
+        for k in keys:
+            cols[k].append(np.asarray(row[k], dtype=float))
+        out["moving"][i] = moving
         out["compress"][i] = ph.compress and act is not None
+        out["extending"][i] = ph.motion in ("extend", "hold", "run")
+        out["unloading"][i] = _UNLOAD_CODE[ph.unloading]
     # the chamber's pressure before this phase: the previous phase's, when the
     # previous phase (cyclically) pressurised the same chamber
     for i in range(n):
         j = (i - 1) % n
         if n > 1 and chamber[i] is not None and chamber[i] == chamber[j]:
             out["previous_phase"][i] = j
+    for k, v in cols.items():
+        out[k] = np.stack(np.broadcast_arrays(*v), axis=-1)
     return out
 
 
-def power_unit_arrays(scenario: Scenario, oil_temperature) -> dict:
-    """Power-unit constants and oil state for the solvers (SI floats/arrays)."""
-    pu = scenario.power_unit
-    pump = pu.pump
-    state = oil_state(scenario, oil_temperature)
-    # the datasheet point: rated kinematic viscosity at the oil's density there
-    t_rated = reference_oil_temperature(scenario)
-    rho_rated = float(oil.fluid_density(scenario.fluid, t_rated))
-    slip, viscous, friction = pumps.wilson_coefficients(
-        pump.volumetric_efficiency, pump.hydromechanical_efficiency, pump.rated_pressure,
-        pump.shaft_speed, pump.rated_viscosity * rho_rated)
-    motor = pu.motor
-    eta_motor = (motor.efficiency if motor.efficiency is not None
-                 else motors.ie_class_efficiency(motor.rated_power, motor.efficiency_class,
-                                                 motor.poles))
+def oil_entries(scenario: Scenario, oil_temperature) -> dict:
+    """Oil state entries at *oil_temperature* [K] (scalar, or (M,) for M rows):
+    :func:`oil_state`, with the pump's dynamic viscosity ``mu`` held inside its
+    datasheet window."""
+    t = np.asarray(oil_temperature, dtype=float)
+    t = t[..., None] if t.ndim else t
+    state = oil_state(scenario, t)
+    pump = scenario.power_unit.pump
     # The pump's loss model is calibrated inside its datasheet viscosity window;
     # outside it the leakage and drag are held at the window's edge rather than
     # extrapolated (a warning says when the oil leaves the window).
     nu_pump = np.clip(state["viscosity"], pump.viscosity_min, pump.viscosity_max)
-    return {
-        **state,
-        "mu": state["density"] * nu_pump,
-        "pump_displacement": pump.displacement, "pump_speed": pump.shaft_speed,
+    return {**state, "mu": state["density"] * nu_pump}
+
+
+def power_unit_constants(scenario: Scenario, values: Overrides | None = None) -> dict:
+    """Power-unit constants for the solvers (SI), independent of the oil
+    temperature; a varied value is a column ``(N, 1)``."""
+    g = values.get if values is not None else _nominal
+    pu = scenario.power_unit
+    pump = pu.pump
+    # the datasheet point: rated kinematic viscosity at the oil's density there
+    t_rated = reference_oil_temperature(scenario)
+    rho_rated = float(oil.fluid_density(scenario.fluid, t_rated))
+    speed = g(("pump", "shaft_speed"), pump.shaft_speed)
+    slip, viscous, friction = pumps.wilson_coefficients(
+        g(("pump", "volumetric_efficiency"), pump.volumetric_efficiency),
+        g(("pump", "hydromechanical_efficiency"), pump.hydromechanical_efficiency),
+        g(("pump", "rated_pressure"), pump.rated_pressure), speed,
+        pump.rated_viscosity * rho_rated)
+    motor = pu.motor
+    rated_power = g(("motor", "rated_power"), motor.rated_power)
+    eff = g(("motor", "efficiency"), motor.efficiency)
+    eta_motor = (eff if eff is not None
+                 else motors.ie_class_efficiency(rated_power, motor.efficiency_class, motor.poles))
+
+    def part(name, key):
+        return g((name, key), getattr(getattr(pu, name), key))
+
+    out = {
+        "pump_displacement": part("pump", "displacement"), "pump_speed": speed,
         "pump_slip": slip, "pump_viscous": viscous, "pump_friction": friction,
-        "relief_cracking": pu.relief.cracking_pressure, "relief_override": pu.relief.override,
-        "relief_rated_flow": pu.relief.rated_flow,
-        "dv_rated_flow": pu.directional_valve.rated_flow,
-        "dv_rated_drop": pu.directional_valve.pressure_drop,
-        "dv_centre_drop": pu.directional_valve.centre_pressure_drop,
+        "relief_cracking": part("relief", "cracking_pressure"),
+        "relief_override": part("relief", "override"),
+        "relief_rated_flow": part("relief", "rated_flow"),
+        "dv_rated_flow": part("directional_valve", "rated_flow"),
+        "dv_rated_drop": part("directional_valve", "pressure_drop"),
+        "dv_centre_drop": part("directional_valve", "centre_pressure_drop"),
         "centre_unloads": pu.directional_valve.centre in ("open", "tandem"),
-        "check_cracking": pu.check_valve.cracking_pressure,
-        "check_rated_flow": pu.check_valve.rated_flow,
-        "check_rated_drop": pu.check_valve.pressure_drop,
-        "pline_d": pu.pressure_line.inner_diameter, "pline_l": pu.pressure_line.length,
-        "pline_rough": pu.pressure_line.roughness, "pline_k": pu.pressure_line.fittings_k,
-        "rline_d": pu.return_line.inner_diameter, "rline_l": pu.return_line.length,
-        "rline_rough": pu.return_line.roughness, "rline_k": pu.return_line.fittings_k,
-        "motor_rated_power": motor.rated_power, "motor_rated_efficiency": eta_motor,
-        "drive_efficiency": motor.drive_efficiency,
-        "bulk_modulus": scenario.fluid.bulk_modulus,
+        "check_cracking": part("check_valve", "cracking_pressure"),
+        "check_rated_flow": part("check_valve", "rated_flow"),
+        "check_rated_drop": part("check_valve", "pressure_drop"),
+        "pline_d": part("pressure_line", "inner_diameter"),
+        "pline_l": part("pressure_line", "length"),
+        "pline_rough": part("pressure_line", "roughness"),
+        "pline_k": part("pressure_line", "fittings_k"),
+        "rline_d": part("return_line", "inner_diameter"),
+        "rline_l": part("return_line", "length"),
+        "rline_rough": part("return_line", "roughness"),
+        "rline_k": part("return_line", "fittings_k"),
+        "motor_rated_power": rated_power, "motor_rated_efficiency": eta_motor,
+        "drive_efficiency": part("motor", "drive_efficiency"),
+        "bulk_modulus": g(("fluid", "bulk_modulus"), scenario.fluid.bulk_modulus),
     }
+    return {k: _row(v) for k, v in out.items()}
 
 
-def strategy_arrays(scenario: Scenario, strategy: Strategy | str) -> dict:
-    """Strategy settings as solver entries (defaults filled in)."""
+def power_unit_arrays(scenario: Scenario, oil_temperature, values: Overrides | None = None) -> dict:
+    """Power-unit constants and oil state for the solvers (SI floats/arrays)."""
+    return {**oil_entries(scenario, oil_temperature), **power_unit_constants(scenario, values)}
+
+
+def strategy_arrays(scenario: Scenario, strategy: Strategy | str,
+                    values: Overrides | None = None) -> dict:
+    """Strategy settings as solver entries (defaults filled in); a varied
+    value is a column ``(N, 1)``."""
     if isinstance(strategy, str):
         # a name means the scenario's strategy of that name (its parameters), and
         # the defaults only when the scenario does not list it
@@ -198,17 +256,23 @@ def strategy_arrays(scenario: Scenario, strategy: Strategy | str) -> dict:
         except KeyError:
             strategy = Strategy(strategy)
     p: StrategyParameters = strategy.parameters
-    relief = scenario.power_unit.relief.cracking_pressure
-    compensator = p.compensator_setting if p.compensator_setting is not None else relief - 10e5
-    return {
-        "fc_min_drop": p.flow_control_min_drop, "bypass_spring": p.bypass_spring,
-        "compensator": compensator, "ls_margin": p.load_sensing_margin,
-        "standby": p.standby_pressure,
-        "cb_fitted": p.counterbalance_setting is not None,
-        "cb_setting": p.counterbalance_setting if p.counterbalance_setting is not None else 0.0,
-        "cb_ratio": p.counterbalance_pilot_ratio,
-        "vs_min_fraction": p.min_speed_fraction, "vs_max_fraction": p.max_speed_fraction,
+    g = values.get if values is not None else _nominal
+
+    def sp(key):
+        return g(("strategy", key), getattr(p, key))
+
+    relief = g(("relief", "cracking_pressure"), scenario.power_unit.relief.cracking_pressure)
+    comp = sp("compensator_setting")
+    cb = sp("counterbalance_setting")
+    out = {
+        "fc_min_drop": sp("flow_control_min_drop"), "bypass_spring": sp("bypass_spring"),
+        "compensator": comp if comp is not None else relief - 10e5,
+        "ls_margin": sp("load_sensing_margin"), "standby": sp("standby_pressure"),
+        "cb_fitted": cb is not None, "cb_setting": cb if cb is not None else 0.0,
+        "cb_ratio": sp("counterbalance_pilot_ratio"),
+        "vs_min_fraction": sp("min_speed_fraction"), "vs_max_fraction": sp("max_speed_fraction"),
     }
+    return {k: _row(v) for k, v in out.items()}
 
 
 def finalize(c: dict) -> dict:
@@ -219,7 +283,8 @@ def finalize(c: dict) -> dict:
     return {**{k: np.broadcast_to(a, shape) for k, a in arrays.items()}, "shape": shape}
 
 
-def circuit_inputs(scenario: Scenario, strategy, oil_temperature=None, phases=None) -> dict:
+def circuit_inputs(scenario: Scenario, strategy, oil_temperature=None, phases=None,
+                   values: Overrides | None = None) -> dict:
     """Everything :func:`heatload.circuits.solve_strategy` needs, broadcast.
 
     Parameters
@@ -230,11 +295,12 @@ def circuit_inputs(scenario: Scenario, strategy, oil_temperature=None, phases=No
         Oil temperature [K]; default :func:`reference_oil_temperature`.
     phases : dict, optional
         Precomputed :func:`phase_arrays` (reuse across strategies).
+    values : heatload.paths.Overrides, optional
+        Fields varied over N variants (a leading axis of N).
     """
     if oil_temperature is None:
         oil_temperature = reference_oil_temperature(scenario)
-    c = dict(phases if phases is not None else phase_arrays(scenario))
-    c.update(power_unit_arrays(scenario, np.asarray(oil_temperature, dtype=float)[..., None]
-                               if np.ndim(oil_temperature) else oil_temperature))
-    c.update(strategy_arrays(scenario, strategy))
+    c = dict(phases if phases is not None else phase_arrays(scenario, values))
+    c.update(power_unit_arrays(scenario, oil_temperature, values))
+    c.update(strategy_arrays(scenario, strategy, values))
     return finalize(c)

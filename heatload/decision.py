@@ -40,7 +40,7 @@ import numpy as np
 BLOCKING = ("stall", "speed-not-reached", "pressure-rating", "overrunning-load",
             "hold-pressure")
 
-#: The sweep's warning counts (:func:`heatload.variants.warning_counts`) name the
+#: Sweep tables written before the warnings became one table of conditions name the
 #: overrunning-load condition ``runaway``.
 SWEEP_ALIASES = {"runaway": "overrunning-load"}
 
@@ -244,7 +244,7 @@ def blocking_warnings(outcome, scenario) -> list:
 
 def feasible_counts(counts: dict):
     """Feasibility of N sweep variants from their warning counts
-    (``code -> (N,) phases``, :func:`heatload.variants.warning_counts`): bool (N,).
+    (``code -> (N,) phases``, the ``warnings_<code>`` columns of a sweep): bool (N,).
 
     The counts do not grade a motor overload, so any overloaded phase counts
     (stricter than :func:`blocking_warnings`)."""

@@ -42,6 +42,7 @@ from pathlib import Path
 from heatload import model as m
 from heatload import outputs
 from heatload.errors import HeatloadError
+from heatload.cooler_types import TYPES as COOLER_TYPES, cooler_type
 from heatload.units import KINDS, from_si, to_si
 
 __all__ = [
@@ -587,7 +588,7 @@ _STRATEGY = {
 _COOLER = {
     "oil_temperature_max": _F("temperature", "pos"),
     "margin": _F("dimensionless", "nonneg", high=5.0),
-    "coolant": _F("choice", choices=("air", "water")),
+    "coolant": _F("choice", choices=tuple(COOLER_TYPES)),
     "water_inlet_temperature": _F("temperature", "pos"),
     "water_glycol_fraction": _F("dimensionless", "frac", high=0.6),
     "water_flow": _F("flow", "pos"),
@@ -1057,106 +1058,25 @@ def _economics(data, strategies, source):
 
 
 # ---------------------------------------------------------------------------
-# Uncertain inputs: paths into the file's numeric keys
+# Uncertain inputs: field paths of the one grammar (heatload.paths)
 # ---------------------------------------------------------------------------
 
-_PATH_PART = re.compile(r"^([a-z_0-9A-Z]+)(?:\[(\*|\d+)\])?$")
+def _path_ref(path: str, scenario: m.Scenario, field: str, source):
+    """Resolve an uncertainty *path* by :func:`heatload.paths.resolve_path` (the
+    grammar sweeps and the Monte Carlo read), so a file that loads never names a
+    path they cannot vary; the error names the file's field."""
+    from heatload import paths
 
-
-def _path_kind(path: str, scenario_parts: dict, field: str, source: str):
-    """Resolve an uncertainty *path*; return (kind, nominal values)."""
-    parts = path.split(".")
-    parsed = []
-    for part in parts:
-        mt = _PATH_PART.match(part)
-        if not mt:
-            raise _err(f"cannot read path {path!r}; write it like 'phases[2].load' "
-                       "or 'ambient.temperature_max'", field, source)
-        parsed.append((mt.group(1), mt.group(2)))
-
-    def bad(msg):
-        return _err(f"{path!r}: {msg}", field, source)
-
-    head, index = parsed[0]
-    tables = {"scenario": _SCENARIO, "economics": _ECONOMICS, "fluid": _FLUID,
-              "ambient": _AMBIENT, "reservoir": _RESERVOIR, "cooler": _COOLER}
-    arrays = {"actuators": None, "phases": _PHASE, "strategies": _STRATEGY,
-              "reservoir.surfaces": _SURFACE}
-    if head == "power_unit":
-        if len(parsed) != 3 or parsed[1][0] not in _POWER_UNIT or parsed[1][1]:
-            raise bad("expected power_unit.<part>.<key>, part one of "
-                      + ", ".join(_POWER_UNIT))
-        spec = _POWER_UNIT[parsed[1][0]]
-        objs = [getattr(scenario_parts["power_unit"], parsed[1][0])]
-        key, kidx = parsed[2]
-    elif head == "reservoir" and len(parsed) == 3 and parsed[1][0] == "surfaces":
-        spec, key, kidx = _SURFACE, parsed[2][0], parsed[2][1]
-        objs = _pick(scenario_parts["reservoir"].surfaces, parsed[1][1], bad)
-    elif head in arrays and head != "reservoir.surfaces":
-        if len(parsed) != 2:
-            raise bad(f"expected {head}[i].<key> or {head}[*].<key>")
-        key, kidx = parsed[1]
-        objs = _pick(scenario_parts[head], index, bad)
-        spec = arrays[head]
-        if head == "actuators":
-            kinds = {o.kind for o in objs}
-            spec = _HYDRAULIC_MOTOR if kinds == {"motor"} else _CYLINDER
-            if len(kinds) > 1:
-                spec = {k: v for k, v in _CYLINDER.items() if k in _HYDRAULIC_MOTOR}
-    elif head in tables and not index:
-        if len(parsed) != 2:
-            raise bad(f"expected {head}.<key>")
-        spec = tables[head]
-        key, kidx = parsed[1]
-        objs = [scenario_parts[head]]
-    else:
-        raise bad("the first part must be one of " + ", ".join(
-            ["scenario", "economics", "fluid", "ambient", "reservoir", "power_unit",
-             "actuators[i]", "phases[i]", "strategies[i]", "cooler"]))
-    if kidx is not None:
-        raise bad(f"{key!r} is not an array")
-    if key not in spec:
-        raise bad(f"no key {key!r} there{_suggest(key, spec)}")
-    f = spec[key]
-    if f.kind not in KINDS:
-        raise bad(f"{key!r} is not a number that can vary")
-    if head == "phases" and key in ("load", "speed"):
-        motor = {scenario_parts["actuator_kind"].get(o.actuator) == "motor" for o in objs}
-        if len(motor) > 1:
-            kinds = None                     # mixed: only relative bounds make sense
-        elif key == "load":
-            kinds = "torque" if motor == {True} else "force"
-        else:
-            kinds = "shaft_speed" if motor == {True} else "velocity"
-    else:
-        kinds = f.kind
-    if head == "strategies":
-        nominal = [getattr(o.parameters, key, None) if key in _PARAMETERS
-                   else getattr(o, key) for o in objs]
-    elif head == "scenario":
-        nominal = [scenario_parts["shift_duration"]] if key == "shift_duration" else [None]
-    else:
-        nominal = [getattr(o, key) for o in objs]
-    return kinds, nominal
-
-
-def _pick(items, index, bad):
-    if index is None:
-        raise bad("give an index such as [0] or [*]")
-    if index == "*":
-        if not items:
-            raise bad("there are no items")
-        return list(items)
-    i = int(index)
-    if i >= len(items):
-        raise bad(f"index {i} is out of range (there are {len(items)})")
-    return [items[i]]
+    try:
+        return paths.resolve_path(scenario, path)
+    except HeatloadError as e:
+        raise _err(e.message, field, source) from None
 
 
 _PERCENT = re.compile(r"^\s*([+-]?\d+(?:\.\d*)?(?:[eE][+-]?\d+)?)\s*%\s*$")
 
 
-def _uncertainty(data, parts: dict, source):
+def _uncertainty(data, scenario: m.Scenario, source):
     items = _array(data, "uncertainty", source)
     out = []
     for i, item in enumerate(items):
@@ -1167,7 +1087,8 @@ def _uncertainty(data, parts: dict, source):
                           f"{p}.relative", source)
         dist = _value(item.get("distribution", "uniform"), _UNCERTAINTY["distribution"],
                       f"{p}.distribution", source)
-        kind, nominal = _path_kind(path, parts, f"{p}.path", source)
+        ref = _path_ref(path, scenario, f"{p}.path", source)
+        kind, nominal = ref.kind, ref.nominal
         if relative and all(v is None for v in nominal):
             raise _err(f"{path!r} has no value to scale; give absolute bounds with "
                        "relative = false", f"{p}.relative", source)
@@ -1254,21 +1175,17 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
                  if "economics" in data else m.Economics())
     cooler = (_simple(data["cooler"], _COOLER, "cooler", source, m.CoolerDesign())
               if "cooler" in data else m.CoolerDesign())
-    parts = {"fluid": fluid, "ambient": ambient, "reservoir": reservoir,
-             "power_unit": power_unit, "actuators": actuators, "phases": phases,
-             "strategies": strategies, "economics": economics, "cooler": cooler,
-             "shift_duration": head.get("shift_duration", 8 * 3600.0),
-             "actuator_kind": {a.name: a.kind for a in actuators}}
-    uncertainty = (_uncertainty(data["uncertainty"], parts, source)
-                   if "uncertainty" in data else ())
     # datasheet coolers: their format lives with their physics
     from heatload.cooler_datasheet import coolers_from_toml
     coolers = coolers_from_toml(data["coolers"], source) if "coolers" in data else ()
     scenario = m.Scenario(name=head["name"], phases=phases, actuators=actuators,
                           strategies=strategies, fluid=fluid, ambient=ambient,
                           reservoir=reservoir, power_unit=power_unit, economics=economics,
-                          cooler=cooler, uncertainty=uncertainty, coolers=coolers, **{
-                              k: v for k, v in head.items() if k != "name"})
+                          cooler=cooler, coolers=coolers,
+                          **{k: v for k, v in head.items() if k != "name"})
+    if "uncertainty" in data:
+        scenario = dataclasses.replace(
+            scenario, uncertainty=_uncertainty(data["uncertainty"], scenario, source))
     _check_phase_durations(scenario, source)
     _check_cooler_design(scenario, "cooler" in data and "oil_temperature_max" in data["cooler"],
                          source)
@@ -1309,17 +1226,10 @@ def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) 
             else f"the design oil temperature (the fluid's limit less "
                  f"{m.DESIGN_TEMPERATURE_HEADROOM:g} K)")
     where = "cooler.oil_temperature_max" if design_given else "fluid.temperature_max"
-    t_air = scenario.ambient.temperature_max
-    if cd.coolant == "air" and not t_d > t_air:
-        raise _err(f"{what}, {_celsius(t_d)}, is not above the hottest ambient "
-                   f"{_celsius(t_air)}: no air cooler cools oil below the air that cools "
-                   f"it; raise the design temperature or use coolant = \"water\"",
-                   where, source)
-    if cd.coolant == "water" and not cd.water_inlet_temperature < t_d:
-        raise _err(f"water entering at {_celsius(cd.water_inlet_temperature)} is not colder "
-                   f"than {what}, {_celsius(t_d)}: a water cooler cannot cool the oil; "
-                   f"give colder water or use coolant = \"air\"",
-                   "cooler.water_inlet_temperature", source)
+    refused = cooler_type(cd.coolant).refusal(t_d, scenario.ambient.temperature_max, cd,
+                                              what, where)
+    if refused:
+        raise _err(refused[0], refused[1], source)
 
 
 _HEADER = re.compile(r"^\s*(\[\[?)\s*([^\[\]]+?)\s*\]\]?\s*(?:#.*)?$")
@@ -1658,17 +1568,12 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
     d["strategies"] = strategies
     d["cooler"] = _dump_fields(s.cooler, _COOLER)
     unc = []
-    kinds_of = {"actuator_kind": kinds, "power_unit": s.power_unit,
-                "reservoir": s.reservoir, "actuators": s.actuators,
-                "phases": s.phases, "strategies": s.strategies,
-                "economics": s.economics, "cooler": s.cooler, "fluid": s.fluid,
-                "ambient": s.ambient, "shift_duration": s.shift_duration}
     for u in s.uncertainty:
         item = {"path": u.path, "distribution": u.distribution}
         if u.relative:
             kind = "dimensionless"
         else:
-            kind, _ = _path_kind(u.path, kinds_of, "uncertainty.path", None)
+            kind = _path_ref(u.path, s, "uncertainty.path", None).kind
         for key in ("low", "high", "mode"):
             v = getattr(u, key)
             if v is not None:

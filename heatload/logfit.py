@@ -22,7 +22,7 @@ What a log can tell
 -------------------
 Temperatures alone fix two rates: q = P / C [K/s] and k = UA / C = 1 / tau
 [1/s], and the initial temperature.  Heat and conductance in watts need C:
-from the masses of oil and steel (:func:`heatload.chain.heat_capacity` of a
+from the masses of oil and steel (:func:`heatload.evaluation.heat_capacity` of a
 scenario) or given.  Without C the fit still gives the time constant and the
 steady temperature rise P / UA.  The conductance needs the log to bend: a log
 much shorter than tau shows only the initial slope (P / C), and a log at a

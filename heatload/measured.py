@@ -2,7 +2,7 @@
 
 A temperature log (CSV, :mod:`heatload.logs`) is fitted with the lumped tank
 model (:mod:`heatload.logfit`); with a scenario the heat capacity comes from
-its oil and steel (:func:`heatload.chain.heat_capacity`), the measured heat
+its oil and steel (:func:`heatload.evaluation.heat_capacity`), the measured heat
 is set beside the model's heat for the present circuit at the logged oil
 temperature, and the cooler duty at the design point is worked out again from
 the measured heat load (:func:`heatload.cooler.required_cooler_duty`).
@@ -83,12 +83,12 @@ def scenario_comparison(scenario, log, fit) -> dict:
     """The measured heat and conductance beside the scenario's model, the
     calibration factors and the cooler duty at the design point from the
     measurement (see the module notes).  SI values, unit-suffixed keys."""
-    from heatload import chain, cooler, sizing
+    from heatload import chain, cooler, evaluation, sizing
 
     strat = sizing._design_strategy(scenario)
     t_log = logged_oil_temperature(log, fit)
     ta_log = float(np.mean(log.values["ambient"]))
-    q_model = float(chain._mean_heat(chain.solve_at(scenario, strat, t_log)))
+    q_model = float(evaluation.mean_heat(chain.solve_at(scenario, strat, t_log)))
     ua_model = float(chain.conductance_fn(scenario, ta_log)(t_log))
     outcome = chain.evaluate_strategy(scenario, strat)
     th = outcome.thermal
@@ -347,10 +347,10 @@ def run_logfit(args) -> int:
     capacity = None
     source = "not given"
     if args.scenario:
-        from heatload import chain, io
+        from heatload import chain, evaluation, io
         scenario = io.load_scenario(args.scenario)
         mean_oil = float(np.mean(log.values["oil"]))
-        capacity = chain.heat_capacity(scenario, mean_oil)
+        capacity = float(evaluation.heat_capacity(scenario, mean_oil))
         source = (f"from {args.scenario}: oil and steel at {mean_oil - K0:.3g} °C")
     elif args.heat_capacity:
         capacity = to_si(args.heat_capacity, "heat_capacity", field="--heat-capacity")

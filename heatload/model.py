@@ -14,16 +14,16 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Optional
 
-#: Strategies heatload compares, in the order it shows them.
-STRATEGIES = (
-    "meter-in",
-    "meter-out",
-    "bleed-off",
-    "bypass-compensated",
-    "pressure-compensated",
-    "load-sensing",
-    "variable-speed",
-)
+
+
+def __getattr__(name):
+    # STRATEGIES: the names heatload compares, in the order it shows them, read
+    # from the registry (heatload.strategies) when first asked for, so the model
+    # stays free of the solver's imports
+    if name == "STRATEGIES":
+        from heatload.strategies import NAMES
+        return NAMES
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 #: Motions a phase may have.
 MOTIONS = ("extend", "retract", "hold", "idle", "run")
@@ -261,7 +261,7 @@ class StrategyParameters:
 class Strategy:
     """A control strategy to compare, by name, with its parameters."""
 
-    kind: str                              #: one of :data:`STRATEGIES`
+    kind: str                              #: a name of :data:`heatload.strategies.REGISTRY`
     label: Optional[str] = None            #: shown name; None -> kind
     parameters: StrategyParameters = field(default_factory=StrategyParameters)
 

@@ -344,7 +344,8 @@ def _assumption(item, value, source, kind=None, si=None):
 def assumptions(scenario, data=None, system="si") -> list:
     """Every input and model assumption with its value and source (list of dicts:
     item, value (text in *system*'s units: "si" or "us"), source, kind, value_si)."""
-    from heatload import chain, decision, oil
+    from heatload import chain, decision, evaluation, oil
+    from heatload.strategies import circuit
     from heatload.units import format_quantity as fq
 
     def q(v, kind, digits=3):
@@ -352,7 +353,7 @@ def assumptions(scenario, data=None, system="si") -> list:
     sc = scenario
     f, a, r, pu, ec, cd = (sc.fluid, sc.ambient, sc.reservoir, sc.power_unit, sc.economics,
                            sc.cooler)
-    t_d = chain.design_oil_temperature(sc)
+    t_d = float(evaluation.design_temperature(sc))
     out = []
     A = out.append
     A(_assumption("fluid", f.name + (f" (ISO VG {f.iso_grade})" if f.iso_grade else ""),
@@ -425,17 +426,7 @@ def assumptions(scenario, data=None, system="si") -> list:
                       f"K {ln.fittings_k:.1f}", "scenario; Darcy-Weisbach, Colebrook"))
     for st in sc.strategies:
         sp = st.parameters
-        bits = {"meter-in": f"flow control min. drop {q(sp.flow_control_min_drop, 'pressure')}",
-                "meter-out": f"flow control min. drop {q(sp.flow_control_min_drop, 'pressure')}",
-                "bleed-off": f"flow control min. drop {q(sp.flow_control_min_drop, 'pressure')}",
-                "bypass-compensated": f"3-way spring {q(sp.bypass_spring, 'pressure')}",
-                "pressure-compensated": "compensator " + (
-                    q(sp.compensator_setting, "pressure") if sp.compensator_setting
-                    else "relief cracking - 10 bar"),
-                "load-sensing": f"margin {q(sp.load_sensing_margin, 'pressure')}, standby "
-                                f"{q(sp.standby_pressure, 'pressure')}",
-                "variable-speed": f"speed {100 * sp.min_speed_fraction:.0f}-"
-                                  f"{100 * sp.max_speed_fraction:.0f} % of nominal"}[st.kind]
+        bits = circuit(st.kind).settings_text(sp, q)
         if sp.counterbalance_setting:
             bits += f", counterbalance {q(sp.counterbalance_setting, 'pressure')}"
         A(_assumption(f"strategy {st.name}", bits, "scenario or typical value (common practice)"))
@@ -738,12 +729,9 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
     if cooler["cooler_needed"]:
         spec = cooler["spec"]
         size = ""
-        if spec and spec["coolant"] == "air":
-            size = (f", an air-oil cooler of {spec['specific_cooling_power_W_K'] / 1e3:.3f} kW/K "
-                    f"at an ETD of {spec['etd_K']:.1f} K")
-        elif spec:
-            size = (f", a water-oil cooler ({_e(spec['arrangement'])}) of UA "
-                    f"{spec['required_conductance_W_K'] / 1e3:.3f} kW/K")
+        if spec:
+            from heatload.cooler_types import cooler_type
+            size = ", " + _e(cooler_type(spec["coolant"]).summary(spec))
         lead += (f"<p>A cooler <b>is needed</b> with {_e(rec_name)}: "
                  f"<b>{_num(cooler['duty_W'] / 1e3)} kW</b> including the "
                  f"{100 * cooler['margin']:.0f} % margin{size}.</p>")

@@ -39,6 +39,7 @@ import numpy as np
 
 from heatload import cooler
 from heatload.model import design_oil_temperature
+from heatload.cooler_types import TYPES, cooler_type
 from heatload.errors import HeatloadError
 
 K0 = 273.15
@@ -47,10 +48,6 @@ K0 = 273.15
 #: machine-safety note the report and command line carry).
 CAUTION = ("Cooler sizing is an estimate for early design. Component makers' data, local "
            "codes and licensed engineering practice govern the selection.")
-
-#: Water-oil arrangements sized side by side: counterflow and a shell-and-tube
-#: unit with one shell pass and two tube passes.
-WATER_ARRANGEMENTS = ("counterflow", "shell-and-tube")
 
 #: Monte Carlo samples used when the report asks for the uncertainty.
 REPORT_SAMPLES = 2000
@@ -169,8 +166,8 @@ def rate_cooler(sizing: CoolerSizing, rated_duty: float, rated_etd: float) -> di
     Common practice of cooler catalogues (W per K of ETD); Incropera et al.,
     6th ed., Sec. 11.4 (P = eps Cmin ETD).
     """
-    coolant_in = (sizing.design_ambient if sizing.coolant == "air"
-                  else sizing.water_inlet_temperature)
+    # the sizing carries the coolant inlet temperatures of its design point
+    coolant_in = cooler_type(sizing.coolant).inlet_temperature(sizing, sizing.design_ambient)
     etd = sizing.design_oil_temperature - coolant_in
     if not etd > 0.0:
         raise HeatloadError("the design point has no positive ETD for rating",
@@ -214,25 +211,6 @@ def thermostat_summary(scenario, outcome) -> dict:
             "shift_duration_s": float(scenario.shift_duration)}
 
 
-def _check_coolant_colder(coolant, oil_temperature, air_temperature, water_temperature):
-    """Refuse a coolant that enters no colder than the design oil temperature [K]:
-    no cooler of it can take heat from the oil (ETD = T_oil,in - T_coolant,in <= 0;
-    second law).  The loader refuses such a file for its own coolant; this covers
-    a coolant chosen afterwards (``heatload cooler --coolant``)."""
-    def c(t):
-        return f"{t - K0:.4g} °C"
-    if coolant == "water" and not water_temperature < oil_temperature:
-        raise HeatloadError(f"a water cooler cannot cool the oil: the water enters at "
-                            f"{c(water_temperature)}, not colder than the design oil "
-                            f"temperature {c(oil_temperature)}; give colder water or size "
-                            f"an air cooler", field="cooler.water_inlet_temperature")
-    if coolant == "air" and not air_temperature < oil_temperature:
-        raise HeatloadError(f"an air cooler cannot cool the oil: the hottest air, "
-                            f"{c(air_temperature)}, is not colder than the design oil "
-                            f"temperature {c(oil_temperature)}; raise the design temperature "
-                            f"or size a water cooler", field="cooler.oil_temperature_max")
-
-
 def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None,
                 thermostat=True) -> CoolerSizing:
     """Size the cooler of one strategy at the design point.
@@ -271,14 +249,18 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
     from heatload import oil
 
     coolant = coolant or scenario.cooler.coolant
-    if coolant not in ("air", "water"):
-        raise HeatloadError(f"unknown coolant {coolant!r}; expected air or water",
-                            field="--coolant")
+    kind = cooler_type(coolant, field="--coolant")
     cd = scenario.cooler
     th = outcome.thermal
     t_d = float(th.design_oil_temperature)
     t_a = float(th.design_ambient)
-    _check_coolant_colder(coolant, t_d, t_a, float(cd.water_inlet_temperature))
+    # no cooler of a coolant entering no colder than the oil cools it (second
+    # law); the loader refuses such a file for its own coolant, this covers a
+    # coolant chosen afterwards (``heatload cooler --coolant``)
+    refused = kind.refusal(t_d, t_a, cd, "the design oil temperature",
+                           "cooler.oil_temperature_max")
+    if refused:
+        raise HeatloadError(refused[0], field=refused[1])
     fluid = scenario.fluid
     q_oil = cycle_average_flow(outcome.circuit.pump_flow, outcome.circuit.duration)
     rho = float(oil.fluid_density(fluid, t_d))
@@ -301,29 +283,18 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
         sz.notes.append("no return flow through a cooler (the pump delivers nothing over "
                         "the cycle): use an off-line cooler with its own pump")
     else:
-        try:
-            sz.air = cooler.size_air_cooler(sz.duty, t_d, t_a, q_oil, rho, cp,
-                                            cd.air_temperature_rise)
-        except HeatloadError as exc:
-            sz.notes.append(f"air-oil not possible: {exc.one_line()}")
-        for arr in WATER_ARRANGEMENTS:
-            try:
-                sz.water[arr] = cooler.size_water_cooler(
-                    sz.duty, t_d, cd.water_inlet_temperature, q_oil, rho, cp,
-                    water_flow=cd.water_flow, water_temperature_rise=cd.water_temperature_rise,
-                    glycol_fraction=cd.water_glycol_fraction, arrangement=arr, shell_passes=1)
-            except HeatloadError as exc:
-                sz.notes.append(f"water-oil {arr} not possible: {exc.one_line()}")
-        arrangement = "shell-and-tube" if "shell-and-tube" in sz.water else "counterflow"
-        possible = sz.air is not None if coolant == "air" else bool(sz.water)
-        if possible:
+        # every coolant is sized where it can be; the spec sheet is for *coolant*
+        for other in TYPES.values():
+            other.size(sz, cd)
+        arrangement = kind.arrangement(sz)
+        if kind.possible(sz):
             sz.spec = cooler.cooler_spec_sheet(
-                coolant, duty0, t_d, t_a if coolant == "air" else cd.water_inlet_temperature,
+                coolant, duty0, t_d, kind.inlet_temperature(cd, t_a),
                 q_oil, rho, cp, nu, margin=cd.margin, oil_pressure_drop_max=cd.oil_pressure_drop_max,
                 air_temperature_rise=cd.air_temperature_rise, water_flow=cd.water_flow,
                 water_temperature_rise=cd.water_temperature_rise,
                 glycol_fraction=cd.water_glycol_fraction, arrangement=arrangement, shell_passes=1)
-            if coolant == "water" and arrangement == "counterflow":
+            if sz.spec.arrangement == "counterflow":
                 sz.notes.append("spec sheet for a counterflow unit: one-shell shell-and-tube "
                                 "cannot reach the effectiveness")
     if rated_duty is not None or rated_etd is not None:
@@ -485,9 +456,8 @@ def spec_rows(sz: CoolerSizing, system="si") -> list:
     s = sz.spec
     if s is None:
         return []
-    rows = [("coolant", "air-oil" if s.coolant == "air" else
-             f"water-oil, {s.arrangement}" + (", one shell pass, two tube passes"
-                                              if s.arrangement == "shell-and-tube" else "")),
+    kind = cooler_type(s.coolant)
+    rows = [("coolant", kind.description(s)),
             ("duty to quote (with margin)", f"{fq(s.duty, 'power', system)} "
              f"(+{100 * s.margin:.0f} % on {fq(s.duty_without_margin, 'power', system)})"),
             ("entering temperature difference (ETD)",
@@ -497,20 +467,12 @@ def spec_rows(sz: CoolerSizing, system="si") -> list:
             ("oil outlet temperature", fq(s.oil_outlet_temperature, "temperature", system)),
             ("allowed oil-side pressure drop", fq(s.oil_pressure_drop_max, "pressure", system)),
             ("oil viscosity at inlet", fq(s.oil_viscosity, "kinematic_viscosity", system)),
-            (f"{'air' if s.coolant == 'air' else 'coolant'} inlet temperature",
+            (f"{kind.medium} inlet temperature",
              fq(s.coolant_inlet_temperature, "temperature", system)),
-            (f"{'air' if s.coolant == 'air' else 'coolant'} flow",
-             fq(s.coolant_flow, "flow", system) if s.coolant == "water" else
-             air_flow_text(s.coolant_flow, system)),
-            (f"{'air' if s.coolant == 'air' else 'coolant'} outlet temperature",
+            (f"{kind.medium} flow", kind.flow_text(s.coolant_flow, system, fq)),
+            (f"{kind.medium} outlet temperature",
              fq(s.coolant_outlet_temperature, "temperature", system))]
-    if s.coolant == "air":
-        rows.append(("specific cooling power at the ETD",
-                     fq(s.specific_cooling_power, "thermal_conductance", system)))
-    else:
-        rows.append(("glycol mass fraction", f"{100 * s.glycol_fraction:.0f} %"))
-        rows.append(("required UA", fq(s.required_conductance, "thermal_conductance", system)))
-    return rows
+    return rows + kind.extra_rows(s, system, fq)
 
 
 def _parse(text, kind, fieldname):

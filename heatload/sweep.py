@@ -60,7 +60,7 @@ def parse_vary(text: str, scenario, need_count: bool = True) -> VarySpec:
         Malformed spec, unknown path, a unit of the wrong kind, N < 1,
         LOW > HIGH; the message names the spec.
     """
-    from heatload import units, variants
+    from heatload import paths, units
 
     field = f"--vary {text}"
     m = _SPEC.match(text or "")
@@ -69,7 +69,7 @@ def parse_vary(text: str, scenario, need_count: bool = True) -> VarySpec:
                             "power_unit.pump.displacement=16..40cm^3:13", field=field)
     path, lo_txt, hi_txt, n_txt = m.groups()
     try:
-        ref = variants.resolve_path(scenario, path)
+        ref = paths.resolve_path(scenario, path)
     except HeatloadError as exc:
         raise HeatloadError(exc.message, field=field) from None
     if ref.kind is None:

@@ -95,9 +95,9 @@ def draw(u: UncertainInput, n: int, rng, default=False) -> np.ndarray:
 
 def _targets(scenario, u: UncertainInput, default: bool):
     """(single-item paths, nominal values, how: 'factor' | 'offset' | 'value')."""
-    from heatload import variants
+    from heatload.paths import resolve_path
 
-    ref = variants.resolve_path(scenario, u.path)
+    ref = resolve_path(scenario, u.path)
     paths = []
     for t in ref.targets:
         if t[0] == "phase":
@@ -238,8 +238,8 @@ def sensitivity(scenario: Scenario, strategy) -> list:
         lo, hi, _ = _bounds(u, default)
         base = nominal_x[u.path]
         if base is None:   # absolute values: the nominal is the scenario's own
-            from heatload import variants
-            nom = variants.resolve_path(scenario, u.path).nominal[0]
+            from heatload.paths import resolve_path
+            nom = resolve_path(scenario, u.path).nominal[0]
             base = nom if nom is not None else 0.5 * (lo + hi)
         x = np.full(2 * k, float(base))
         x[2 * i], x[2 * i + 1] = lo, hi

@@ -5,7 +5,7 @@ independent solve at the returned T) and the cooler duty formula."""
 import numpy as np
 import pytest
 
-from heatload import chain, io
+from heatload import chain, evaluation, io
 
 EXAMPLES = io.example_paths()
 
@@ -86,7 +86,7 @@ def test_periodic_cycle_brackets_and_phase_heat(comparison):
         mean = float((th.phase_heat * th.phase_durations).sum() / th.phase_durations.sum())
         assert mean == pytest.approx(th.heat_coupled, rel=1e-9)
         # a hotter day cannot make the oil cooler
-        assert th.steady_hot >= th.steady_coupled - chain.COUPLING_TOLERANCE
+        assert th.steady_hot >= th.steady_coupled - evaluation.COUPLING_TOLERANCE
 
 
 def test_uncoupled_steady_temperature(comparison):

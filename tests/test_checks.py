@@ -22,9 +22,9 @@ def _sc(phases, pump=None, dv=None, cyl_rating=250e5, **par):
 
 
 def _warn(sc, strategy):
-    pa = cycle.phase_arrays(sc)
-    r = circuits.solve_strategy(strategy, cycle.circuit_inputs(sc, strategy, phases=pa))
-    return checks.phase_warnings(r, sc, pa)
+    c = cycle.circuit_inputs(sc, strategy)
+    r = circuits.solve_strategy(strategy, c)
+    return checks.phase_warnings(checks.phase_conditions(r, c, sc), sc)
 
 
 def _codes(ws):
@@ -145,9 +145,10 @@ def _motor_warn(rated_power, strategy="meter-in", phases=(AT_RELIEF,)):
     pu = m.PowerUnit(motor=m.DriveMotor(rated_power=rated_power))
     acts = (m.Cylinder("c", bore=BORE, rod=ROD, stroke=0.5),)
     sc = m.Scenario("mot", tuple(phases), acts, (m.Strategy(strategy),), power_unit=pu)
-    pa = cycle.phase_arrays(sc)
-    r = circuits.solve_strategy(strategy, cycle.circuit_inputs(sc, strategy, phases=pa))
-    return [w for w in checks.phase_warnings(r, sc, pa) if w.code == "motor-overload"], r
+    c = cycle.circuit_inputs(sc, strategy)
+    r = circuits.solve_strategy(strategy, c)
+    return [w for w in checks.phase_warnings(checks.phase_conditions(r, c, sc), sc)
+            if w.code == "motor-overload"], r
 
 
 def test_motor_overload_value_is_the_shaft_power_at_relief():

@@ -15,7 +15,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from heatload import chain, cooler_datasheet as cd, io, sizing
+from heatload import chain, cooler_datasheet as cd, evaluation, io, sizing
 from heatload.errors import HeatloadError
 
 LPM = 1e-3 / 60
@@ -97,7 +97,7 @@ def test_settled_temperatures_satisfy_the_heat_balance(lift):
     ua = chain.conductance_fn(sc, ta)
     for r in sel.ratings:
         t = r.settled_temperature
-        heat = float(chain._mean_heat(chain.solve_at(sc, outcome.strategy, t)))
+        heat = float(evaluation.mean_heat(chain.solve_at(sc, outcome.strategy, t)))
         shed = (float(ua(t)) + r.specific_power) * (t - ta)
         # first law at the settled temperature, to the chain's 0.01 K tolerance
         assert heat == pytest.approx(shed, abs=0.02 * (float(ua(t)) + r.specific_power))

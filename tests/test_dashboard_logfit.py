@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pytest
 
-from heatload import chain, io, measured
+from heatload import chain, evaluation, io, measured
 from heatload.dashboard import app as dash_app
 from heatload.dashboard import logfit_view
 
@@ -49,7 +49,7 @@ def test_view_uses_the_scenario_and_compares():
     sc = io.load_scenario(LIFT)
     log = measured.read_temperature_log(LOG)
     import numpy as np
-    cap = chain.heat_capacity(sc, float(np.mean(log.values["oil"])))
+    cap = float(evaluation.heat_capacity(sc, float(np.mean(log.values["oil"]))))
     fit = measured.fit_log(log, cap)
     c = measured.scenario_comparison(sc, log, fit)
     assert f"{c['heat_calibration_factor']:.3g}" in str(comp)

@@ -374,7 +374,7 @@ APPENDED = [
     ("uncertain index out of range", '[[uncertainty]]\npath = "phases[9].load"\n',
      "uncertainty[0].path", "out of range"),
     ("uncertain key misspelt", '[[uncertainty]]\npath = "ambient.temprature"\n',
-     "uncertainty[0].path", "did you mean 'temperature'?"),
+     "uncertainty[0].path", "did you mean ambient.temperature"),
     ("uncertain field without value", '[[uncertainty]]\npath = "reservoir.heat_transfer_coefficient"\n',
      "uncertainty[0].relative", "no value to scale"),
     ("uncertain low above high", '[[uncertainty]]\npath = "phases[*].load"\nlow = 1.2\nhigh = 0.8\n',

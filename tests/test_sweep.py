@@ -5,7 +5,7 @@ import argparse
 import numpy as np
 import pytest
 
-from heatload import io, sweep, variants
+from heatload import io, paths, sweep, variants
 from heatload.errors import HeatloadError
 
 SC = io.load_scenario(io.default_scenario_path())
@@ -69,7 +69,7 @@ def test_sweep_rows_equal_single_scenarios(tmp_path):
     df = sweep.run_sweep(SC, values, [SC.strategy("bleed-off")], chunk=4)   # two chunks
     for i in (0, 3, 5):
         one = variants.evaluate_variants(
-            variants.replaced_scenario(SC, {k: v[i] for k, v in values.items()}), "bleed-off")
+            paths.replaced_scenario(SC, {k: v[i] for k, v in values.items()}), "bleed-off")
         np.testing.assert_allclose(df["cooler_duty_W"][i], one.cooler_duty[0], rtol=1e-12)
         np.testing.assert_allclose(df["electric_energy_per_year_kWh"][i] * 3.6e6,
                                    one.electric_energy_per_year[0], rtol=1e-12)
@@ -117,6 +117,6 @@ def test_a_single_phase_cycle_sweeps(coupled):
     df = sweep.run_sweep(sc, values, [sc.strategy("meter-in")], thermal=thermal)
     assert len(df) == 3 and np.all(np.isfinite(df["cooler_duty_W"]))
     one = variants.evaluate_variants(
-        variants.replaced_scenario(sc, {k: v[1] for k, v in values.items()}), "meter-in",
+        paths.replaced_scenario(sc, {k: v[1] for k, v in values.items()}), "meter-in",
         thermal=thermal)
     np.testing.assert_allclose(df["cooler_duty_W"][1], one.cooler_duty[0], rtol=1e-12)

@@ -1,0 +1,573 @@
+"""The one evaluation of a strategy: a scenario and optional field overrides
+(N variants) -> circuits, heat, oil temperatures, cooler duty and warnings.
+
+``heatload compare`` (one scenario, N = 1), sweeps and the Monte Carlo all
+call :func:`evaluate`; :mod:`heatload.chain` and :mod:`heatload.variants`
+only reshape its arrays into their result objects.
+
+Steps
+-----
+1. solver inputs of the N variants through the one builder (:mod:`heatload.cycle`
+   with :class:`heatload.paths.Overrides`), the oil temperature left open;
+2. *uncoupled*: the circuit at the reference oil temperature (the pump's
+   datasheet viscosity), its mean heat turned into a steady temperature at
+   the typical ambient, ``Q = UA(T)(T - T_a)`` (:func:`steady_temperature`);
+3. *design point*: oil held at the design temperature on the hottest day,
+   ``duty = max(0, Q(T_d) - UA(T_d)(T_d - T_a,max)) (1 + margin)``;
+4. *coupled*: ``Q(T) = UA(T)(T - T_a)`` with the circuit re-solved at each
+   variant's own oil temperature (:func:`coupled_temperature`: secant steps
+   on a linear model of Q(T) through exact solves, started from the
+   reference and design-point solves, to 0.01 K x UA; each row iterates on
+   its own, so its result does not depend on the others in the batch);
+   optionally also at the hottest ambient;
+5. the machine runs at the coupled temperature, or at the design temperature
+   where a sized cooler holds it there; warnings are the conditions of
+   :func:`heatload.checks.phase_conditions` at that operating point.
+
+UA(T) is one table per distinct air temperature and tank
+(:class:`ConductanceTable`: 160 points from T_a - 20 K to 250 degC, linear
+interpolation).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+
+from heatload import checks, circuits, cooler, cycle, heat_transfer, oil
+from heatload import thermal as lumped
+from heatload.errors import HeatloadError
+from heatload.model import STRATEGIES, Scenario, Strategy, design_oil_temperature
+from heatload.paths import Overrides
+from heatload.strategies import circuit
+
+COUPLING_TOLERANCE = 0.01   # [K]
+COUPLING_MAX_ITER = 20
+#: Points of the UA(T) table and its top [K] (UA varies slowly and smoothly with T)
+TABLE_POINTS = 160
+TABLE_TOP = 523.15
+
+
+def strategy_of(scenario: Scenario, strategy) -> Strategy:
+    """The scenario's strategy of that name or kind, or a kind with default settings."""
+    if isinstance(strategy, Strategy):
+        return strategy
+    try:
+        return scenario.strategy(strategy)
+    except KeyError:
+        if strategy in STRATEGIES:
+            return Strategy(strategy)
+        raise HeatloadError(f"unknown strategy {strategy!r}; expected one of "
+                            f"{', '.join(s.name for s in scenario.strategies)}",
+                            field="strategy") from None
+
+
+# ---------------------------------------------------------------------------
+# the solver inputs of N variants
+# ---------------------------------------------------------------------------
+
+def _compact(c: dict, shape) -> dict:
+    """Broadcast entries to *shape*, keeping single values 0-d: the solvers
+    then compute uniform terms once (values identical to
+    :func:`heatload.cycle.finalize`, which broadcasts every entry)."""
+    out = {}
+    for k, v in c.items():
+        a = np.asarray(v)
+        out[k] = a.reshape(()) if a.size == 1 else np.broadcast_to(a, shape)
+    out["shape"] = shape
+    return out
+
+
+def _take(c: dict, idx) -> dict:
+    """Entries of the variants *idx* (leading axis) of an input dict."""
+    return {k: (v[idx] if (isinstance(v, np.ndarray) and v.ndim == 2) else v)
+            for k, v in c.items() if k != "shape"}
+
+
+class Builder:
+    """Solver inputs of N variants of one strategy with the oil temperature left open.
+
+    ``solve(T, rows)``: the strategy solved with the oil at *T* [K] (scalar,
+    or one per row) for the variants *rows* (indices, repeats allowed;
+    default all N)."""
+
+    def __init__(self, scenario: Scenario, strategy: Strategy, values: Overrides, phases=None):
+        self.scenario = scenario
+        self.kind = strategy.kind
+        self.n = values.n
+        pa = phases if phases is not None and values.nominal else cycle.phase_arrays(
+            scenario, values)
+        self.phase_arrays = pa
+        base = dict(pa)
+        base.update(cycle.power_unit_constants(scenario, values))
+        base.update(cycle.strategy_arrays(scenario, strategy, values))
+        self.base = base
+        self.n_phases = len(scenario.phases)
+
+    def inputs(self, t_oil, rows=None) -> dict:
+        t = np.asarray(t_oil, dtype=float)
+        if rows is None:
+            c = dict(self.base)
+            shape = (self.n, self.n_phases)
+        else:
+            c = _take(self.base, rows)
+            shape = (int(np.size(rows)), self.n_phases)
+        c.update(cycle.oil_entries(self.scenario, t))
+        return _compact(c, shape)
+
+    def solve(self, t_oil, rows=None):
+        c = self.inputs(t_oil, rows)
+        return circuits.solve_strategy(self.kind, c), c
+
+
+# ---------------------------------------------------------------------------
+# the surfaces' conductance UA(T)
+# ---------------------------------------------------------------------------
+
+def _table_rows(reservoir, altitude, keys):
+    """UA nodes (U, 160) for the distinct (air temperature, user h or -1) *keys*."""
+    uniq = np.asarray(keys, float).reshape(-1, 2)
+    pressure = heat_transfer.barometric_pressure(altitude)
+    t = np.linspace(uniq[:, 0] - 20.0, TABLE_TOP, TABLE_POINTS, axis=-1)
+    ta = np.broadcast_to(uniq[:, :1], t.shape)
+    free = uniq[:, 1] < 0.0
+    ua = np.empty(t.shape)
+    if free.any():
+        ua[free] = heat_transfer.reservoir_conductance(reservoir, t[free], ta[free], pressure)
+    if (~free).any():
+        # a user coefficient h: UA = h A_eff + further surfaces (linear in h)
+        unit = heat_transfer.reservoir_heat_transfer(
+            dataclasses.replace(reservoir, heat_transfer_coefficient=1.0),
+            t[~free], ta[~free], pressure)
+        own = unit.conductance - unit.surfaces
+        ua[~free] = uniq[~free, 1:2] * own + unit.surfaces
+    return t, ua
+
+
+@lru_cache(maxsize=64)
+def _cached_rows(reservoir, altitude, keys):
+    t, ua = _table_rows(reservoir, altitude, keys)
+    t.flags.writeable = False
+    ua.flags.writeable = False
+    return t, ua
+
+
+class ConductanceTable:
+    """UA(T_oil) [W/K] of the reservoir and further surfaces, one table per row.
+
+    Each row has its air temperature [K], its user heat-transfer coefficient
+    (NaN: computed from natural convection and radiation,
+    :func:`heatload.heat_transfer.reservoir_conductance`) and a factor on UA;
+    the table holds 160 nodes from T_a - 20 K to 250 degC and is
+    interpolated linearly (clamped at its ends), the formula of
+    :func:`numpy.interp`.  ``table(T, rows)`` -> ``(UA, dUA/dT)``.
+    """
+
+    def __init__(self, scenario: Scenario, air, h_user=np.nan, factor=1.0):
+        air = np.atleast_1d(np.asarray(air, float))
+        h_user = np.broadcast_to(np.asarray(h_user, float), air.shape)
+        # NaN (no user coefficient) -> -1: np.unique keeps every NaN apart
+        h = np.where(np.isfinite(h_user), h_user, -1.0)
+        key = np.stack([air, h], axis=-1).reshape(-1, 2)
+        if np.all(key == key[:1]):  # one air temperature and tank for all: no sort
+            uniq, inverse = key[:1], np.zeros(len(key), int)
+        else:
+            uniq, inverse = np.unique(key, axis=0, return_inverse=True)
+        if len(uniq) <= 8:
+            self.t, self.ua = _cached_rows(scenario.reservoir, float(scenario.ambient.altitude),
+                                           tuple(map(tuple, uniq.tolist())))
+        else:
+            self.t, self.ua = _table_rows(scenario.reservoir, scenario.ambient.altitude, uniq)
+        self.row = inverse.reshape(-1)
+        self.factor = np.broadcast_to(np.asarray(factor, float), self.row.shape)
+        self.t0 = self.t[:, 0]
+        self.step = (self.t[:, -1] - self.t[:, 0]) / (self.t.shape[1] - 1)
+
+    def __call__(self, t_oil, rows=None):
+        """(UA, dUA/dT) at *t_oil* for the rows *rows* (default all)."""
+        row = self.row if rows is None else self.row[rows]
+        f = self.factor if rows is None else self.factor[rows]
+        t, row, f = np.broadcast_arrays(np.asarray(t_oil, float), row, f)
+        m = self.t.shape[1]
+        xs, ys = self.t, self.ua
+        j = np.clip(np.floor((t - self.t0[row]) / self.step[row]), 0, m - 2).astype(int)
+        # floor on rounded nodes can land one segment off: step to xs[j] <= t < xs[j+1]
+        j = np.where((j > 0) & (t < xs[row, j]), j - 1, j)
+        j = np.where((j < m - 2) & (t >= xs[row, j + 1]), j + 1, j)
+        x0, x1 = xs[row, j], xs[row, j + 1]
+        y0, y1 = ys[row, j], ys[row, j + 1]
+        slope = (y1 - y0) / (x1 - x0)
+        ua = slope * (t - x0) + y0
+        below, above = t < xs[row, 0], t >= xs[row, -1]
+        ua = np.where(below, ys[row, 0], np.where(above, ys[row, -1], ua))
+        slope = np.where(below | above, 0.0, slope)
+        return ua * f, slope * f
+
+    def fn(self, row=0):
+        """UA(T) [W/K] of one row as a plain vectorized function of T."""
+        def ua(t_oil):
+            t = np.asarray(t_oil, float)
+            v, _ = self(t.ravel(), np.full(t.size, row))
+            return v.reshape(t.shape) if t.ndim else float(v[0])
+        return ua
+
+
+def steady_temperature(q0, t0, slope, ambient, conductance: ConductanceTable, rows=None):
+    """Oil temperature T [K] with ``q0 + slope (T - t0) = UA(T) (T - T_a)``.
+
+    The steady first law of the lumped oil with the heat linear in T (slope 0:
+    a fixed heat).  Newton's method on the piecewise-linear UA to machine
+    precision (a few steps); vectorized over rows.
+
+    References
+    ----------
+    Incropera et al., 6th ed., eq. 1.3a (Newton's law of cooling).
+    """
+    q0, t0, slope, ta = (np.asarray(x, float) for x in (q0, t0, slope, ambient))
+    ua, _ = conductance(ta, rows)
+    t = ta + np.maximum(q0, 0.0) / ua
+    for _ in range(60):
+        ua, dua = conductance(t, rows)
+        g = ua * (t - ta) - q0 - slope * (t - t0)
+        dg = ua + dua * (t - ta) - slope
+        step = g / np.where(dg > 0, dg, 1.0)
+        t_new = np.maximum(t - step, ta - 19.0)
+        done = np.abs(t_new - t) <= 1e-11 * np.abs(t)
+        t = t_new
+        if np.all(done):
+            break
+    return t
+
+
+def mean_heat(result) -> np.ndarray:
+    """Time-average heat into the oil over the cycle [W], per row."""
+    t = result.duration
+    return (result.heat_to_oil * t).sum(axis=-1) / t.sum(axis=-1)
+
+
+# ---------------------------------------------------------------------------
+# rows of results
+# ---------------------------------------------------------------------------
+
+def _fields(result):
+    for f in dataclasses.fields(result):
+        yield f.name, getattr(result, f.name)
+
+
+def _map(result, fn):
+    """A result with *fn* applied to every array (and every loss)."""
+    out = {}
+    for name, v in _fields(result):
+        if isinstance(v, np.ndarray):
+            v = fn(v)
+        elif isinstance(v, dict):
+            v = {k: fn(np.asarray(a)) for k, a in v.items()}
+        out[name] = v
+    return type(result)(**out)
+
+
+def result_row(result, i):
+    """Row *i* of a result solved over a leading axis of variants."""
+    return _map(result, lambda a: a[i] if a.ndim >= 2 else a)
+
+
+def select(mask, a, b):
+    """Rows of result *a* where *mask*, else of *b* (same shapes)."""
+    ba = dict(_fields(a))
+
+    def pick(name, key=None):
+        def fn(x):
+            y = ba[name] if key is None else ba[name][key]
+            y = np.asarray(y)
+            m = mask.reshape(mask.shape + (1,) * (max(x.ndim, y.ndim) - 1))
+            return np.where(m, y, x)
+        return fn
+    out = {}
+    for name, v in _fields(b):
+        if isinstance(v, np.ndarray):
+            v = pick(name)(v)
+        elif isinstance(v, dict):
+            v = {k: pick(name, k)(np.asarray(x)) for k, x in v.items()}
+        out[name] = v
+    return type(b)(**out)
+
+
+class _Rows:
+    """Results of rows that converge at different steps, gathered in place."""
+
+    def __init__(self, m):
+        self.m = m
+        self.data = None
+        self.inputs = None
+
+    @staticmethod
+    def _alloc(src, m):
+        return {k: np.empty((m,) + np.shape(v)[1:], np.asarray(v).dtype)
+                for k, v in src.items()}
+
+    def put(self, where, result, c, sel):
+        shape = c["shape"]
+        flat = {n: v for n, v in _fields(result) if isinstance(v, np.ndarray)}
+        flat.update({("losses", k): v for k, v in result.losses.items()})
+        flat = {k: np.broadcast_to(v, shape) for k, v in flat.items()}
+        if self.data is None:
+            self.data = self._alloc(flat, self.m)
+            self.template = result
+        for k, v in flat.items():
+            self.data[k][where] = v[sel]
+
+    def result(self):
+        out = {}
+        for name, v in _fields(self.template):
+            if isinstance(v, np.ndarray):
+                v = self.data[name]
+            elif isinstance(v, dict):
+                v = {k: self.data[("losses", k)] for k in v}
+            out[name] = v
+        return type(self.template)(**out)
+
+
+def coupled_temperature(builder: Builder, rows, ambient, conductance: ConductanceTable,
+                        start_a, start_b):
+    """Self-consistent steady oil temperature [K] of each row: Q(T) = UA(T)(T - T_a).
+
+    Q(T) is the strategy's mean heat with the circuit solved at T.  Secant
+    steps on a linear model of Q(T) through two points (*start_a*, *start_b*:
+    ``(T, Q)`` pairs of exact solves), each step solved exactly for T by
+    :func:`steady_temperature`, until ``|Q - UA (T - T_a)| < 0.01 K x UA``
+    (at most :data:`COUPLING_MAX_ITER` solves).
+
+    Returns ``(T, iterations, result)``: *result* solved at T, one row per
+    row of *rows*.
+    """
+    m = len(rows)
+    ta_, qa = (np.array(np.broadcast_to(x, (m,)), float) for x in start_a)
+    tb_, qb = (np.array(np.broadcast_to(x, (m,)), float) for x in start_b)
+    t_c = np.full(m, np.nan)
+    iters = np.zeros(m, int)
+    gathered = _Rows(m)
+    todo = np.arange(m)
+    for it in range(1, COUPLING_MAX_ITER + 1):
+        if not todo.size:
+            break
+        dt = tb_[todo] - ta_[todo]
+        slope = np.where(dt != 0, (qb[todo] - qa[todo]) / np.where(dt != 0, dt, 1.0), 0.0)
+        t_new = steady_temperature(qa[todo], ta_[todo], slope, ambient[todo], conductance, todo)
+        r, c = builder.solve(t_new, rows[todo])
+        q_new = mean_heat(r)
+        ua_new, _ = conductance(t_new, todo)
+        gap = q_new - ua_new * (t_new - ambient[todo])
+        done = (np.abs(gap) < COUPLING_TOLERANCE * np.maximum(ua_new, 1e-9)) | (
+            it == COUPLING_MAX_ITER)
+        sel = todo[done]
+        gathered.put(sel, r, c, done)
+        t_c[sel] = t_new[done]
+        iters[sel] = it
+        # the secant keeps the newest point and the older one nearer to it
+        keep_a = np.abs(ta_[todo] - t_new) < np.abs(tb_[todo] - t_new)
+        nt, nq = todo[~done], ~done
+        ta_[nt] = np.where(keep_a[nq], ta_[nt], tb_[nt])
+        qa[nt] = np.where(keep_a[nq], qa[nt], qb[nt])
+        tb_[nt], qb[nt] = t_new[nq], q_new[nq]
+        todo = nt
+    return t_c, iters, gathered.result()
+
+
+# ---------------------------------------------------------------------------
+# heat capacity, design temperature
+# ---------------------------------------------------------------------------
+
+def heat_capacity(scenario: Scenario, oil_temperature, values: Overrides | None = None):
+    """Oil + steel heat capacity C = V rho(T) c_p(T) + m c_steel [J/K]
+    (:func:`heatload.thermal.heat_capacity`), per variant."""
+    g = values.get if values is not None else (lambda k, d: d)
+    r = scenario.reservoir
+    rho = oil.fluid_density(scenario.fluid, oil_temperature)
+    cp = oil.fluid_specific_heat(scenario.fluid, oil_temperature)
+    return lumped.heat_capacity(g(("reservoir", "oil_volume"), r.oil_volume), rho, cp,
+                                 g(("reservoir", "steel_mass"), r.steel_mass),
+                                 g(("reservoir", "steel_specific_heat"), r.steel_specific_heat))
+
+
+def design_temperature(scenario: Scenario, values: Overrides | None = None):
+    """Design oil temperature of the cooler sizing [K]
+    (:func:`heatload.model.design_oil_temperature`), per variant."""
+    g = values.get if values is not None else (lambda k, d: d)
+    return g(("cooler", "oil_temperature_max"),
+             design_oil_temperature(scenario.fluid, scenario.cooler))
+
+
+# ---------------------------------------------------------------------------
+# the evaluation
+# ---------------------------------------------------------------------------
+
+@dataclass
+class Evaluation:
+    """One strategy over N variants; arrays (N,) or results (N, phases), SI.
+
+    Temperatures [K], heat and duty [W], conductance [W/K], capacity [J/K].
+    Fields of a step that was not run (see :func:`evaluate`'s *thermal*) are None.
+    """
+
+    strategy: Strategy
+    values: Overrides
+    phase_arrays: dict
+    reference_temperature: float
+    uncoupled: circuits.CircuitResult = None      #: at the reference temperature
+    heat_uncoupled: np.ndarray = None
+    steady_uncoupled: np.ndarray = None           #: typical ambient, no cooler
+    design: circuits.CircuitResult = None         #: oil at the design temperature
+    design_temperature: np.ndarray = None
+    design_ambient: np.ndarray = None
+    design_heat: np.ndarray = None
+    design_conductance: np.ndarray = None
+    cooler_duty: np.ndarray = None                #: with margin
+    cooler_duty_without_margin: np.ndarray = None
+    coupled: circuits.CircuitResult = None        #: at the coupled temperature
+    steady_coupled: np.ndarray = None             #: typical ambient, no cooler
+    coupling_iterations: np.ndarray = None
+    heat_coupled: np.ndarray = None
+    conductance: np.ndarray = None                #: UA at the coupled T
+    capacity: np.ndarray = None
+    cycle_minimum: np.ndarray = None
+    cycle_maximum: np.ndarray = None
+    steady_hot: np.ndarray = None                 #: hottest ambient, no cooler (if asked)
+    operating: circuits.CircuitResult = None      #: where the machine runs
+    operating_inputs: dict = None
+    operating_temperature: np.ndarray = None
+    conditions: list = None                       #: heatload.checks.Condition at operating
+    typical_conductance: ConductanceTable = None  #: UA(T) at the typical ambient
+
+    @property
+    def n(self) -> int:
+        return self.values.n
+
+
+def _col(x, n):
+    return np.broadcast_to(np.asarray(x, dtype=float), (n,))
+
+
+def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
+             thermal=True, hot=False, phases=None) -> Evaluation:
+    """Evaluate N variants of *scenario* for one *strategy* (see the module notes).
+
+    Parameters
+    ----------
+    scenario : Scenario
+    strategy : Strategy or str
+        A strategy of the scenario (name or kind) or any kind of
+        :data:`heatload.model.STRATEGIES` with default settings.
+    overrides : dict or Overrides, optional
+        Field path -> 1-D array of N values in SI (:mod:`heatload.paths`).
+        Empty or None: the scenario itself (N = 1).
+    oil_temperature : float, optional
+        Oil temperature [K] of the uncoupled evaluation; default the
+        reference temperature (the pump's datasheet viscosity).
+    thermal : bool or "design", optional
+        True: everything, with the coupled oil temperature.  ``"design"``:
+        one solve with the oil at the design temperature (the operating point
+        there; the steady temperature without a cooler uncoupled from that
+        heat).  False: only the circuit at the uncoupled temperature.
+    hot : bool, optional
+        Also the coupled steady temperature at the hottest ambient (thermal=True).
+    phases : dict, optional
+        Precomputed :func:`heatload.cycle.phase_arrays` of the scenario (N = 1).
+
+    Returns
+    -------
+    Evaluation
+    """
+    sc = scenario
+    st = strategy_of(sc, strategy)
+    val = overrides if isinstance(overrides, Overrides) else Overrides(sc, st, overrides)
+    n = val.n
+    g = val.get
+    build = Builder(sc, st, val, phases)
+    t_ref = (cycle.reference_oil_temperature(sc) if oil_temperature is None
+             else float(oil_temperature))
+    ev = Evaluation(strategy=st, values=val, phase_arrays=build.phase_arrays,
+                    reference_temperature=t_ref)
+    amb_t = _col(g(("ambient", "temperature"), sc.ambient.temperature), n)
+    amb_hot = _col(g(("ambient", "temperature_max"), sc.ambient.temperature_max), n)
+    h_res = sc.reservoir.heat_transfer_coefficient
+    h_user = _col(g(("reservoir", "heat_transfer_coefficient"),
+                    np.nan if h_res is None else h_res), n)
+    factor = _col(g(("reservoir", "heat_transfer_factor"), 1.0), n)
+    ua_typ = ConductanceTable(sc, amb_t, h_user, factor)
+    ev.typical_conductance = ua_typ
+
+    if thermal != "design":
+        res_u, c_u = build.solve(t_ref)
+        q_u = mean_heat(res_u)
+        ev.uncoupled, ev.heat_uncoupled = res_u, q_u
+        ev.steady_uncoupled = steady_temperature(q_u, t_ref, 0.0, amb_t, ua_typ)
+        if not thermal:
+            ev.operating, ev.operating_inputs = res_u, c_u
+            ev.operating_temperature = np.full(n, t_ref)
+            ev.conditions = _conditions(st, res_u, c_u, sc, val)
+            return ev
+
+    # design point: oil at the design temperature, hottest ambient
+    t_d_given = design_temperature(sc, val)
+    t_d = _col(t_d_given, n)
+    res_d, c_d = build.solve(t_d if np.ndim(t_d_given) else float(t_d_given))
+    q_d = mean_heat(res_d)
+    ua_hot = ConductanceTable(sc, amb_hot, h_user, factor)
+    ua_d, _ = ua_hot(t_d)
+    margin = g(("cooler", "margin"), sc.cooler.margin)
+    duty0 = cooler.required_cooler_duty(q_d, ua_d, t_d, amb_hot, 0.0)
+    ev.design, ev.design_temperature, ev.design_ambient = res_d, t_d, amb_hot
+    ev.design_heat, ev.design_conductance = q_d, ua_d
+    ev.cooler_duty_without_margin, ev.cooler_duty = duty0, duty0 * (1.0 + margin)
+    if thermal == "design":
+        ev.heat_uncoupled = q_d
+        ev.steady_uncoupled = steady_temperature(q_d, t_d, 0.0, amb_t, ua_typ)
+        ev.operating, ev.operating_inputs, ev.operating_temperature = res_d, c_d, t_d
+        ev.conditions = _conditions(st, res_d, c_d, sc, val)
+        return ev
+
+    # coupled steady temperature at the typical (and the hottest) ambient
+    rows = np.arange(n)
+    ambient, table = amb_t, ua_typ
+    if hot:
+        rows = np.concatenate([rows, rows])
+        ambient = np.concatenate([amb_t, amb_hot])
+        table = ConductanceTable(sc, ambient, np.concatenate([h_user, h_user]),
+                                 np.concatenate([factor, factor]))
+    t_all, it_all, res_all = coupled_temperature(
+        build, rows, ambient, table, (np.full(n, t_ref)[rows], ev.heat_uncoupled[rows]),
+        (t_d[rows], q_d[rows]))
+    t_c = t_all[:n]
+    res_c = result_row(res_all, slice(0, n)) if hot else res_all
+    if hot:
+        ev.steady_hot = t_all[n:]
+    ev.coupled, ev.steady_coupled, ev.coupling_iterations = res_c, t_c, it_all[:n]
+    ev.heat_coupled = mean_heat(res_c)
+    ev.conductance, _ = ua_typ(t_c)
+    ev.capacity = heat_capacity(sc, t_c, val)
+    periodic = lumped.periodic_steady_state(
+        res_c.heat_to_oil, res_c.duration, ev.capacity, ev.conductance, amb_t)
+    ev.cycle_minimum, ev.cycle_maximum = periodic.minimum, periodic.maximum
+
+    # the machine runs at the coupled temperature, unless the sized cooler holds
+    # it at the design temperature
+    at_design = (duty0 > 0.0) & (t_d < t_c)
+    ev.operating_temperature = np.where(at_design, t_d, t_c)
+    if np.all(at_design):
+        ev.operating, ev.operating_inputs = res_d, c_d
+    elif not np.any(at_design):
+        ev.operating, ev.operating_inputs = res_c, build.inputs(t_c)
+    else:
+        ev.operating = select(at_design, res_d, res_c)
+        ev.operating_inputs = build.inputs(ev.operating_temperature)
+    ev.conditions = _conditions(st, ev.operating, ev.operating_inputs, sc, val)
+    return ev
+
+
+def _conditions(st, result, c, sc, val):
+    """The warning conditions of a solved batch (:func:`heatload.checks.phase_conditions`)."""
+    return (checks.phase_conditions(result, c, sc, val)
+            + circuit(st.kind).extra_conditions(c, result))

@@ -1,0 +1,331 @@
+"""Field paths of a scenario: the one grammar the loader's ``[[uncertainty]]``,
+``heatload sweep --vary``, the Monte Carlo and the dashboard read.
+
+A path names a numeric field of a scenario in the spelling of the file:
+
+``power_unit.<part>.<key>`` (part: pump, motor, relief, directional_valve,
+check_valve, pressure_line, return_line), ``actuators.<name>.<key>`` or
+``actuators[i].<key>`` (``[*]``: every actuator), ``phases[i].<key>`` or
+``phases[*].<key>`` (every phase that has the key), ``strategies.<kind or
+label>.<key>`` or ``strategies[i].<key>``, ``ambient.<key>``,
+``reservoir.<key>``, ``fluid.bulk_modulus``, ``economics.<key>``,
+``cooler.<key>``, and the factor ``reservoir.heat_transfer_factor`` (a
+multiplier on the computed conductance UA, nominal 1; the only path that is
+not a scenario field).
+
+- :func:`resolve_path` -> :class:`FieldRef` (targets, unit kind, value check,
+  nominal values), or a one-line :class:`~heatload.errors.HeatloadError`
+  naming the nearest valid paths;
+- :func:`valid_paths` -> every path that can vary;
+- :func:`replaced_scenario` -> the scenario with fields set (``dataclasses.replace``);
+- :class:`Overrides` -> the lookup the one builder (:mod:`heatload.cycle`)
+  reads: a field's array over N variants, or the scenario's own value.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import difflib
+import re
+from dataclasses import dataclass
+
+import numpy as np
+
+from heatload.errors import HeatloadError
+from heatload.model import Scenario
+from heatload.strategies import circuit
+
+# (field kind, check) of every key that can vary; check: pos, nonneg, eff, frac_pos, any
+_POWER_UNIT_KEYS = {
+    "pump": {"displacement": ("displacement", "pos"), "shaft_speed": ("shaft_speed", "pos"),
+             "volumetric_efficiency": ("dimensionless", "eff"),
+             "hydromechanical_efficiency": ("dimensionless", "eff"),
+             "rated_pressure": ("pressure", "pos"), "max_pressure": ("pressure", "pos")},
+    "motor": {"rated_power": ("power", "pos"), "efficiency": ("dimensionless", "eff"),
+              "drive_efficiency": ("dimensionless", "eff")},
+    "relief": {"cracking_pressure": ("pressure", "pos"), "override": ("pressure", "nonneg"),
+               "rated_flow": ("flow", "pos")},
+    "directional_valve": {"rated_flow": ("flow", "pos"), "pressure_drop": ("pressure", "pos"),
+                          "centre_pressure_drop": ("pressure", "nonneg"),
+                          "max_pressure": ("pressure", "pos")},
+    "check_valve": {"cracking_pressure": ("pressure", "nonneg"), "rated_flow": ("flow", "pos"),
+                    "pressure_drop": ("pressure", "nonneg")},
+    "pressure_line": {"length": ("distance", "pos"), "inner_diameter": ("length", "pos"),
+                      "roughness": ("length", "nonneg"), "fittings_k": ("dimensionless", "nonneg")},
+}
+_POWER_UNIT_KEYS["return_line"] = _POWER_UNIT_KEYS["pressure_line"]
+_CYLINDER_KEYS = {"bore": ("length", "pos"), "rod": ("length", "pos"),
+                  "stroke": ("distance", "pos"), "friction_force": ("force", "nonneg"),
+                  "max_pressure": ("pressure", "pos"), "dead_volume": ("volume", "nonneg")}
+_MOTOR_KEYS = {"displacement": ("displacement", "pos"),
+               "volumetric_efficiency": ("dimensionless", "eff"),
+               "hydromechanical_efficiency": ("dimensionless", "eff"),
+               "max_pressure": ("pressure", "pos")}
+_PHASE_KEYS = {"load": ("force", "any"), "speed": ("velocity", "pos"),
+               "stroke": ("distance", "pos"), "duration": ("time", "pos"),
+               "hold_pressure": ("pressure", "pos"), "hold_force": ("force", "pos")}
+_STRATEGY_KEYS = {"flow_control_min_drop": ("pressure", "nonneg"),
+                  "bypass_spring": ("pressure", "nonneg"),
+                  "compensator_setting": ("pressure", "pos"),
+                  "load_sensing_margin": ("pressure", "nonneg"),
+                  "standby_pressure": ("pressure", "nonneg"),
+                  "counterbalance_setting": ("pressure", "pos"),
+                  "counterbalance_pilot_ratio": ("dimensionless", "pos"),
+                  "min_speed_fraction": ("dimensionless", "frac_pos"),
+                  "max_speed_fraction": ("dimensionless", "pos")}
+_TABLE_KEYS = {
+    "ambient": {"temperature": ("temperature", "pos"), "temperature_max": ("temperature", "pos")},
+    "reservoir": {"oil_volume": ("volume", "pos"), "steel_mass": ("mass", "nonneg"),
+                  "steel_specific_heat": ("specific_heat", "pos"),
+                  "heat_transfer_coefficient": ("heat_transfer_coefficient", "pos"),
+                  "heat_transfer_factor": ("dimensionless", "pos")},
+    "fluid": {"bulk_modulus": ("bulk_modulus", "pos")},
+    "economics": {"hours_per_year": ("dimensionless", "pos"),
+                  "electricity_price": ("specific_energy_price", "nonneg")},
+    "cooler": {"margin": ("dimensionless", "nonneg"),
+               "oil_temperature_max": ("temperature", "pos")},
+}
+
+_PART = re.compile(r"^([A-Za-z0-9_\- ]+)(?:\[(\*|\d+)\])?$")
+
+
+@dataclass(frozen=True)
+class FieldRef:
+    """What one path changes: *targets* are internal keys such as
+    ``("phase", 3, "load")``; *kind* is the :data:`heatload.units.KINDS` key of
+    the value (None where cylinders and motors mix); *nominal* the
+    scenario's values (one per target, None where unset)."""
+
+    path: str
+    targets: tuple
+    kind: str | None
+    check: str
+    nominal: tuple
+
+
+def _actuator_keys(act):
+    return _MOTOR_KEYS if act.kind == "motor" else _CYLINDER_KEYS
+
+
+def _phase_kind(scenario, ph, key):
+    kind = _PHASE_KEYS[key][0]
+    if key in ("load", "speed") and ph.actuator:
+        if scenario.actuator(ph.actuator).kind == "motor":
+            kind = "torque" if key == "load" else "shaft_speed"
+    return kind
+
+
+def valid_paths(scenario: Scenario) -> list:
+    """Every path :func:`resolve_path` accepts for *scenario* (canonical spellings)."""
+    out = []
+    for part, keys in _POWER_UNIT_KEYS.items():
+        out += [f"power_unit.{part}.{k}" for k in keys]
+    for i, a in enumerate(scenario.actuators):
+        out += [f"actuators.{a.name}.{k}" for k in _actuator_keys(a)]
+    for k in _PHASE_KEYS:
+        if any(getattr(ph, k) is not None for ph in scenario.phases):
+            out.append(f"phases[*].{k}")
+        out += [f"phases[{i}].{k}" for i, ph in enumerate(scenario.phases)
+                if getattr(ph, k) is not None or k in ("load", "speed")]
+    for s in scenario.strategies:
+        out += [f"strategies.{s.name}.{k}" for k in circuit(s.kind).settings]
+    for head, keys in _TABLE_KEYS.items():
+        out += [f"{head}.{k}" for k in keys]
+    return out
+
+
+def _unknown(path, scenario, why=""):
+    paths = valid_paths(scenario)
+    near = difflib.get_close_matches(path, paths, n=3, cutoff=0.5)
+    hint = f"; did you mean {' or '.join(near)}?" if near else ""
+    heads = sorted({p.split(".")[0].split("[")[0] for p in paths})
+    return HeatloadError(f"cannot vary {path!r}{(': ' + why) if why else ''}{hint} "
+                         f"(paths start with {', '.join(heads)}; "
+                         f"e.g. {', '.join(paths[:3])} ...)", field=path)
+
+
+def resolve_path(scenario: Scenario, path: str) -> FieldRef:
+    """Resolve a field *path* of *scenario* (see the module notes).
+
+    Raises
+    ------
+    HeatloadError
+        Unknown path, naming it and the nearest valid ones.
+    """
+    if not isinstance(path, str) or not path.strip():
+        raise HeatloadError("expected a field path such as 'phases[2].load'", field="path")
+    path = path.strip()
+    raw = path.split(".")
+    parts = []
+    for p in raw:
+        mt = _PART.match(p)
+        if not mt:
+            raise _unknown(path, scenario)
+        parts.append((mt.group(1), mt.group(2)))
+    head, hidx = parts[0]
+    if head == "power_unit" and len(parts) == 3 and not hidx:
+        part, key = parts[1][0], parts[2][0]
+        keys = _POWER_UNIT_KEYS.get(part)
+        if keys is None or key not in keys or parts[1][1] or parts[2][1]:
+            raise _unknown(path, scenario)
+        kind, check = keys[key]
+        obj = getattr(scenario.power_unit, part)
+        return FieldRef(path, ((part, key),), kind, check, (getattr(obj, key),))
+    if head == "actuators":
+        if hidx is not None and len(parts) == 2:
+            acts = (list(scenario.actuators) if hidx == "*"
+                    else [scenario.actuators[int(hidx)]]
+                    if int(hidx) < len(scenario.actuators) else None)
+            key = parts[1][0]
+        elif hidx is None and len(parts) == 3:
+            acts = [a for a in scenario.actuators if a.name == parts[1][0]] or None
+            key = parts[2][0]
+        else:
+            acts = None
+        if not acts or any(key not in _actuator_keys(a) for a in acts):
+            raise _unknown(path, scenario)
+        kinds = {_actuator_keys(a)[key][0] for a in acts}
+        return FieldRef(path, tuple(("actuator", a.name, key) for a in acts),
+                        kinds.pop() if len(kinds) == 1 else None,
+                        _actuator_keys(acts[0])[key][1],
+                        tuple(getattr(a, key) for a in acts))
+    if head == "phases" and hidx is not None and len(parts) == 2:
+        key = parts[1][0]
+        if key not in _PHASE_KEYS:
+            raise _unknown(path, scenario)
+        n = len(scenario.phases)
+        if hidx == "*":
+            idx = [i for i, ph in enumerate(scenario.phases) if getattr(ph, key) is not None]
+            if not idx:
+                raise _unknown(path, scenario, f"no phase has a {key}")
+        else:
+            if int(hidx) >= n:
+                raise _unknown(path, scenario, f"index {hidx} is out of range (there are {n})")
+            idx = [int(hidx)]
+        kinds = {_phase_kind(scenario, scenario.phases[i], key) for i in idx}
+        return FieldRef(path, tuple(("phase", i, key) for i in idx),
+                        kinds.pop() if len(kinds) == 1 else None, _PHASE_KEYS[key][1],
+                        tuple(getattr(scenario.phases[i], key) for i in idx))
+    if head == "strategies":
+        if hidx is not None and len(parts) == 2:
+            chosen = (list(scenario.strategies) if hidx == "*"
+                      else [scenario.strategies[int(hidx)]]
+                      if int(hidx) < len(scenario.strategies) else [])
+            key = parts[1][0]
+        elif hidx is None and len(parts) == 3:
+            chosen = [s for s in scenario.strategies if parts[1][0] in (s.name, s.kind)]
+            key = parts[2][0]
+        else:
+            chosen = []
+        if not chosen or key not in _STRATEGY_KEYS:
+            raise _unknown(path, scenario)
+        # a setting varies only where the circuit has it (heatload.strategies)
+        chosen = [s for s in chosen if key in circuit(s.kind).settings]
+        if not chosen:
+            raise _unknown(path, scenario, f"no such strategy has a {key}")
+        kind, check = _STRATEGY_KEYS[key]
+        return FieldRef(path, tuple(("strategy", s.name, key) for s in chosen), kind, check,
+                        tuple(getattr(s.parameters, key) for s in chosen))
+    if head in _TABLE_KEYS and hidx is None and len(parts) == 2 and parts[1][0] in _TABLE_KEYS[head]:
+        key = parts[1][0]
+        kind, check = _TABLE_KEYS[head][key]
+        nominal = 1.0 if key == "heat_transfer_factor" else getattr(getattr(scenario, head), key)
+        return FieldRef(path, ((head, key),), kind, check, (nominal,))
+    raise _unknown(path, scenario)
+
+
+def _check_values(ref: FieldRef, values):
+    v = values
+    if not np.all(np.isfinite(v)):
+        raise HeatloadError("values must be finite numbers", field=ref.path)
+    bad = {"pos": v <= 0, "nonneg": v < 0, "eff": (v <= 0) | (v > 1),
+           "frac_pos": (v <= 0) | (v > 1), "any": np.zeros(v.shape, bool)}[ref.check]
+    if np.any(bad):
+        what = {"pos": "> 0", "nonneg": ">= 0", "eff": "within (0, 1]",
+                "frac_pos": "within (0, 1]"}[ref.check]
+        raise HeatloadError(f"values must be {what} (SI), got {float(v[np.argmax(bad)]):g}",
+                            field=ref.path)
+
+
+class Overrides:
+    """Lookup of a field's value: the variants' array (N,) or the scenario's scalar.
+
+    *overrides*: path -> 1-D array of N values in SI (empty or None: the
+    scenario itself, N = 1).  Settings of a strategy other than *strategy*
+    have no effect (each strategy is built on its own).  ``get(key, default)``
+    takes an internal key such as ``("phase", 3, "load")`` or ``("pump",
+    "displacement")``."""
+
+    def __init__(self, scenario, strategy=None, overrides=None):
+        self.sc = scenario
+        self.strategy = strategy
+        self.v = {}
+        self.n = 1
+        self.refs = []
+        self.by_path = {}
+        lengths = set()
+        for path, vals in (overrides or {}).items():
+            ref = resolve_path(scenario, path)
+            a = np.atleast_1d(np.asarray(vals, dtype=float))
+            if a.ndim != 1:
+                raise HeatloadError("give a 1-D array of values per path", field=path)
+            _check_values(ref, a)
+            lengths.add(a.size)
+            self.refs.append(ref)
+            self.by_path[ref.path] = a
+            for t in ref.targets:
+                if t[0] == "strategy":
+                    if strategy is None or t[1] != strategy.name:
+                        continue          # another strategy's setting: no effect here
+                    t = ("strategy", t[2])
+                self.v[t] = a
+        if len(lengths) > 1:
+            raise HeatloadError(f"every path needs the same number of values, got "
+                                f"{sorted(lengths)}", field="overrides")
+        self.n = lengths.pop() if lengths else 1
+
+    def get(self, key, default):
+        return self.v.get(key, default)
+
+    def has(self, *groups):
+        return any(k[0] in groups for k in self.v)
+
+    @property
+    def nominal(self) -> bool:
+        """True when nothing is overridden (the scenario itself)."""
+        return not self.v
+
+
+def replaced_scenario(scenario: Scenario, values: dict) -> Scenario:
+    """The scenario with the fields of *values* (path -> one SI value) set,
+    by :func:`dataclasses.replace` (the single-scenario twin of a variant;
+    ``reservoir.heat_transfer_factor`` has none and is refused)."""
+    sc = scenario
+    for path, value in values.items():
+        ref = resolve_path(sc, path)
+        for t in ref.targets:
+            x = float(value)
+            if t[0] == "phase":
+                phases = list(sc.phases)
+                phases[t[1]] = dataclasses.replace(phases[t[1]], **{t[2]: x})
+                sc = dataclasses.replace(sc, phases=tuple(phases))
+            elif t[0] == "actuator":
+                acts = tuple(dataclasses.replace(a, **{t[2]: x}) if a.name == t[1] else a
+                             for a in sc.actuators)
+                sc = dataclasses.replace(sc, actuators=acts)
+            elif t[0] == "strategy":
+                sts = tuple(dataclasses.replace(s, parameters=dataclasses.replace(
+                    s.parameters, **{t[2]: x})) if s.name == t[1] else s for s in sc.strategies)
+                sc = dataclasses.replace(sc, strategies=sts)
+            elif t[0] in _POWER_UNIT_KEYS:
+                part = dataclasses.replace(getattr(sc.power_unit, t[0]), **{t[1]: x})
+                sc = dataclasses.replace(sc, power_unit=dataclasses.replace(
+                    sc.power_unit, **{t[0]: part}))
+            elif t == ("reservoir", "heat_transfer_factor"):
+                raise HeatloadError("a factor on the conductance has no scenario field",
+                                    field=path)
+            else:
+                sc = dataclasses.replace(sc, **{t[0]: dataclasses.replace(
+                    getattr(sc, t[0]), **{t[1]: x})})
+    return sc
+

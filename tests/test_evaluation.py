@@ -1,0 +1,121 @@
+"""One evaluation for a scenario and for N variants.
+
+A variant equal to the scenario (every overridable field set to its own
+value, so every entry goes through the variant branch of the one builder)
+must reproduce ``heatload compare`` on every bundled example and every
+strategy; an overrunning hydraulic motor must run at the speed of a motor
+turned by its load (it pumps: n = Q / (eta_v D), common practice) both ways.
+"""
+
+import dataclasses
+
+import numpy as np
+import pytest
+
+from heatload import chain, checks, evaluation, io, paths, variants
+
+EXAMPLES = io.example_paths()
+
+
+def _equal_overrides(sc):
+    """Every single-target path with a value, set to that value (N = 1)."""
+    out = {}
+    for p in paths.valid_paths(sc):
+        if "[*]" in p:
+            continue
+        ref = paths.resolve_path(sc, p)
+        if len(ref.targets) == 1 and ref.nominal[0] is not None:
+            out[p] = [float(ref.nominal[0])]
+    return out
+
+
+def _close(a, b, rtol):
+    np.testing.assert_allclose(np.asarray(a, float), np.asarray(b, float), rtol=rtol, atol=0)
+
+
+@pytest.fixture(scope="module", params=EXAMPLES, ids=lambda p: p.stem)
+def example(request):
+    sc = io.load_scenario(request.param)
+    return sc, chain.compare(sc)
+
+
+def _agree(sc, o, v, rtol):
+    th = o.thermal
+    e = o.energy
+    _close(v.electric_energy_per_cycle[0], e.electric_energy_per_cycle, rtol)
+    _close(v.electric_energy_per_year[0], e.electric_energy_per_year, rtol)
+    _close(v.heat_to_oil[0], e.average_heat_to_oil, rtol)
+    _close(v.cycle_time[0], e.cycle_time, rtol)
+    _close(v.peak_pressure[0], e.peak_pressure, rtol)
+    _close(v.heat_to_oil_uncoupled[0], th.heat_uncoupled, rtol)
+    _close(v.oil_temperature_uncoupled[0], th.steady_uncoupled, rtol)
+    _close(v.oil_temperature_steady[0], th.steady_coupled, rtol)
+    _close(v.oil_temperature_operating[0], th.operating_temperature, rtol)
+    _close(v.oil_temperature_cycle_max[0], th.cycle_maximum, rtol)
+    _close(v.design_heat[0], th.design_heat, rtol)
+    _close(v.cooler_duty[0], th.cooler_duty, rtol)
+    # the sweep counts the conditions the report lists
+    listed = {}
+    for w in o.warnings:
+        if w.phase is not None:
+            listed[w.code] = listed.get(w.code, 0) + 1
+    for code in checks.PHASE_CODES:
+        assert int(v.warnings[code][0]) == listed.get(code, 0), (o.name, code)
+
+
+def test_every_example_and_strategy_agrees_with_an_equal_variant(example):
+    sc, cmp = example
+    over = _equal_overrides(sc)
+    assert len(over) > 20
+    for o in cmp.outcomes:
+        v = variants.evaluate_variants(sc, o.strategy, {k: np.array(x) for k, x in over.items()})
+        _agree(sc, o, v, 1e-12)
+        # and the scenario itself (no override) as a batch of one
+        _agree(sc, o, variants.evaluate_variants(sc, o.strategy), 1e-12)
+
+
+def _overrunning_conveyor():
+    """The conveyor example with its 120 N*m phase overrun (-120 N*m)."""
+    sc = io.load_scenario([p for p in EXAMPLES if p.stem == "conveyor_winch"][0])
+    phases = tuple(dataclasses.replace(ph, load=-ph.load) if ph.load == pytest.approx(120.0)
+                   else ph for ph in sc.phases)
+    assert phases != sc.phases
+    return dataclasses.replace(sc, phases=phases)
+
+
+@pytest.mark.parametrize("strategy", ["meter-in", "meter-out", "load-sensing"])
+def test_overrunning_motor_sweep_variant_reproduces_compare(strategy):
+    sc = _overrunning_conveyor()
+    o = chain.compare(sc, [strategy]).outcomes[0]
+    disp = sc.power_unit.pump.displacement
+    v = variants.evaluate_variants(sc, strategy, {"power_unit.pump.displacement": [disp]},
+                                   thermal=True)
+    _close(v.electric_energy_per_cycle[0], o.energy.electric_energy_per_cycle, 1e-9)
+    _agree(sc, o, v, 1e-12)
+
+
+def test_overrunning_motor_turns_faster_than_its_flow():
+    # a motor overrun by its load pumps: its leakage adds to the speed the flow
+    # gives, n = Q / (eta_v D), while a driven motor runs at n = Q eta_v / D
+    # (volumetric efficiency of a motor, common practice)
+    sc = _overrunning_conveyor()
+    act = sc.actuators[0]
+    ev = evaluation.evaluate(sc, "meter-in", {"power_unit.pump.displacement":
+                                              [sc.power_unit.pump.displacement]}, thermal=False)
+    r = ev.uncoupled
+    for i, ph in enumerate(sc.phases):
+        if ph.actuator and r.speed[0, i] > 0:
+            q = r.actuator_flow[0, i]
+            ev_, d = act.volumetric_efficiency, act.displacement
+            expect = q / (ev_ * d) if ph.load < 0 else q * ev_ / d
+            assert r.speed[0, i] == pytest.approx(expect, rel=1e-12), ph.name
+
+
+def test_rows_of_a_batch_do_not_depend_on_each_other():
+    # the same variant alone and inside a batch of different ones
+    sc = io.load_scenario(io.default_scenario_path())
+    vals = np.array([20e-6, sc.power_unit.pump.displacement, 36e-6])
+    many = variants.evaluate_variants(sc, "meter-in", {"power_unit.pump.displacement": vals})
+    one = variants.evaluate_variants(sc, "meter-in", {"power_unit.pump.displacement": vals[1:2]})
+    for f in ("electric_energy_per_cycle", "oil_temperature_steady", "cooler_duty"):
+        _close(getattr(many, f)[1], getattr(one, f)[0], 1e-12)
