@@ -315,8 +315,14 @@ def payback_view(results, base, candidate, extra_price, system):
     if sav is None or rec is None:
         raise PreventUpdate
     currency = rec.get("currency") or ""
-    extra = float(extra_price) if extra_price is not None else (
-        default_extra_price(results, base, candidate) or 0.0)
+    if extra_price is None:
+        extra = default_extra_price(results, base, candidate) or 0.0
+    else:
+        from heatload.decision import price_value
+        try:
+            extra = price_value(extra_price, "extra price")
+        except HeatloadError as e:
+            return html.Span(e.one_line(), id="pay-text", className="err"), no_update
     yearly = yearly_saving(results, base, candidate)
     years = float(tables.payback_years(extra, yearly))
     kwh = f"{sav['energy_saving_kWh']:,.0f} kWh"

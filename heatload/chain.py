@@ -202,6 +202,12 @@ def compare(scenario: Scenario, strategies=None) -> Comparison:
     pa = cycle.phase_arrays(scenario)
     chosen = scenario.strategies
     if strategies:
-        chosen = tuple(scenario.strategy(s) for s in strategies)
+        try:
+            chosen = tuple(scenario.strategy(s) for s in strategies)
+        except KeyError as e:
+            from heatload.errors import HeatloadError
+            raise HeatloadError(f"unknown strategy {e.args[0]!r}; this scenario has "
+                                f"{', '.join(s.name for s in scenario.strategies)}",
+                                field="--strategy") from None
     outcomes = [evaluate_strategy(scenario, s, pa) for s in chosen]
     return Comparison(scenario=scenario, outcomes=outcomes, phase_arrays=pa)

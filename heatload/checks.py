@@ -208,7 +208,7 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
         cond("hold-pressure", still & (hold > 0) & (full(c["unloading"]) != UNLOAD_CENTRE)
              & (pp < hold * (1 - 1e-6)), hold, pp,
              lambda i: f"the pressure to hold {_bar(hold[i])} is more than the pump "
-                       f"supplies here ({_bar(pp[i])})"),
+                       f"supplies here ({_bar(max(pp[i], 0.0))})"),
         cond("relief-passing", still & (relief > 1e-9) & (pump_flow > 0), relief, None,
              lambda i: f"the relief valve passes {relief[i] * 6e4:.1f} L/min at "
                        f"{_bar(pp[i])} for the whole phase"),

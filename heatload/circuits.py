@@ -427,6 +427,12 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # stalled actuators: the pump sits at what its supply gives at zero flow
     p_pump = np.where(moving & stalled, kind.stall_pressure(c, z), p_pump)
     dp_fc_in = np.where(stalled, 0.0, dp_fc_in)
+    # ... and no flow means no drop but the check valve's spring: the inlet chamber
+    # holds what the pump gives, the outlet is open to tank, the load is not met
+    # (not the load's own pressure, which no part of this circuit reaches)
+    stuck = moving & stalled
+    p1 = np.where(stuck, np.maximum(p_pump - c["check_cracking"], 0.0), p1)
+    p2 = np.where(stuck, 0.0, p2)
 
     # ---- phases with nothing moving (hold / idle) ----------------------------
     p_hold = np.where(moving, 0.0, c["hold_pressure"])

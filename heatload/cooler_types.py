@@ -34,6 +34,7 @@ class CoolerType:
     name = ""      #: the file's ``coolant`` value
     label = ""     #: the kind of exchanger on the spec sheet
     medium = ""    #: the coolant as the spec sheet's rows name it
+    has_fan = False  #: a fan draws electric power while the cooler works
 
     def inlet_temperature(self, cooler_design, design_ambient) -> float:
         """Coolant inlet temperature at the design point [K]."""
@@ -84,6 +85,7 @@ class AirOil(CoolerType):
     name = "air"
     label = "air-oil"
     medium = "air"
+    has_fan = True
 
     def inlet_temperature(self, cooler_design, design_ambient):
         return design_ambient
@@ -150,11 +152,22 @@ class WaterOil(CoolerType):
 
     def refusal(self, oil_temperature, design_ambient, cooler_design, what, oil_field):
         t_w = cooler_design.water_inlet_temperature
-        if t_w < oil_temperature:
-            return None
-        return (f"water entering at {_c(t_w)} is not colder than {what}, "
-                f"{_c(oil_temperature)}: a water cooler cannot cool the oil; give colder water "
-                f"or use coolant = \"air\"", "cooler.water_inlet_temperature")
+        field = "cooler.water_inlet_temperature"
+        if cooler_design.water_glycol_fraction == 0.0 and t_w <= 273.15:
+            return (f"pure water at {_c(t_w)} freezes; give water above 0 °C or a "
+                    "water_glycol_fraction", field)
+        if t_w >= oil_temperature:
+            return (f"water entering at {_c(t_w)} is not colder than {what}, "
+                    f"{_c(oil_temperature)}: a water cooler cannot cool the oil; give colder "
+                    f"water, or set coolant = \"air\" in the file", field)
+        rise = cooler_design.water_temperature_rise
+        if cooler_design.water_flow is None and t_w + rise >= oil_temperature:
+            # counterflow at best: the water must leave colder than the oil enters
+            return (f"water entering at {_c(t_w)} and warming the allowed "
+                    f"{rise:.1f} K would leave at {_c(t_w + rise)}, not colder than {what}, "
+                    f"{_c(oil_temperature)}: give colder water or a smaller "
+                    "water_temperature_rise", field)
+        return None
 
     def size(self, sz, cd):
         for arr in WATER_ARRANGEMENTS:

@@ -139,7 +139,8 @@ def fan_power(duty, cooler):
     P_fan = f duty,  f = ``cooler.fan_power_fraction`` or
     :data:`DEFAULT_FAN_POWER_FRACTION`.
     """
-    if getattr(cooler, "coolant", "air") != "air":
+    from heatload.cooler_types import cooler_type
+    if not cooler_type(getattr(cooler, "coolant", "air")).has_fan:
         return np.zeros_like(np.asarray(duty, float))
     f = getattr(cooler, "fan_power_fraction", None)
     f = DEFAULT_FAN_POWER_FRACTION if f is None else f
@@ -433,7 +434,9 @@ def decide(comparison, present=None, prices=None) -> Decision:
         notes.append(f"cooler price {DEFAULT_COOLER_PRICE_FIXED:,.0f} {cur} + "
                      f"{DEFAULT_COOLER_PRICE_PER_KW:,.0f} {cur}/kW of duty where the file gives "
                      "none (common practice)")
-    if getattr(sc.cooler, "fan_power_fraction", None) is None and sc.cooler.coolant == "air":
+    from heatload.cooler_types import cooler_type
+    if (getattr(sc.cooler, "fan_power_fraction", None) is None
+            and cooler_type(sc.cooler.coolant).has_fan):
         notes.append(f"cooler fan power {100 * DEFAULT_FAN_POWER_FRACTION:.0f} % of its duty "
                      "(common practice)")
     unknown = [o.name for o, c in zip(outcomes, costs) if c.circuit_price is None]
@@ -512,3 +515,24 @@ def quoted_duty(duty_with_margin, margin, percentiles=None):
     return p, (f"the {QUOTE_PERCENTILE} of the duty with the {pc} margin over the uncertain "
                f"inputs; the margin alone ({d / 1e3:.3g} kW) does not cover the spread"
                f"{tail}"), False
+
+
+#: Highest price a circuit or cooler may be given [currency]: a billion is beyond
+#: any hydraulic power unit; above it a price is a slipped digit.
+MAX_PRICE = 1e9
+
+
+def price_value(amount, field: str, what: str = "price") -> float:
+    """A price [currency] from text or a number: finite, 0 .. :data:`MAX_PRICE`,
+    else a :class:`~heatload.errors.HeatloadError` naming *field*."""
+    from heatload.errors import HeatloadError
+    try:
+        v = float(amount)
+    except (TypeError, ValueError):
+        raise HeatloadError(f"{what} must be a number, got {amount!r}", field=field) from None
+    if not np.isfinite(v):
+        raise HeatloadError(f"{what} must be a finite number, got {amount!r}", field=field)
+    if not 0.0 <= v <= MAX_PRICE:
+        raise HeatloadError(f"{what} must lie within 0 .. {MAX_PRICE:,.0f}, got {amount!r}",
+                            field=field)
+    return v

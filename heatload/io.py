@@ -36,6 +36,7 @@ import dataclasses
 import difflib
 import math
 import re
+import stat
 from functools import lru_cache
 from pathlib import Path
 
@@ -374,6 +375,13 @@ MIN_OIL_VOLUME = 1e-4
 #: Smallest outside dimension of a tank [m]: a tank wall alone is 2-5 mm of steel
 #: (common practice).
 MIN_TANK_DIMENSION = 0.01
+#: Smallest cylinder bore [m]: ISO 3320 lists bores from 8 mm and miniature
+#: cylinders go down to about 2.5 mm (common practice, from memory); below 2 mm
+#: a bore is a slipped unit (mm written as um).
+MIN_BORE = 2e-3
+#: Lowest relief valve setting [Pa]: 1 bar; a relief set lower relieves nothing
+#: a hydraulic circuit builds (a tank line's back pressure alone is about that).
+MIN_RELIEF_SETTING = 1e5
 #: Largest cylinder area ratio A_cap / A_annulus [-]: ISO 7181 lists area ratios
 #: up to 5 (d/D = 0.89; ISO 3320 rods reach about d/D = 0.7) (from memory); 10
 #: (d/D = 0.95, an annulus of a tenth of the bore) is twice the largest, and beyond
@@ -503,7 +511,8 @@ _MOTOR = {
     "drive_efficiency": _F("dimensionless", "eff"),
 }
 _RELIEF = {
-    "cracking_pressure": _F("pressure", "pos"),
+    "cracking_pressure": _F("pressure", "pos", low=MIN_RELIEF_SETTING,
+                            why="1 bar, the least setting of a relief valve"),
     "override": _F("pressure", "nonneg"),
     "rated_flow": _F("flow", "pos"),
 }
@@ -538,7 +547,8 @@ _POWER_UNIT = {
 _CYLINDER = {
     "name": _F("str", "nonempty", required=True),
     "kind": _F("choice", choices=("cylinder", "motor"), required=True),
-    "bore": _F("length", "pos", required=True),
+    "bore": _F("length", "pos", required=True, low=MIN_BORE,
+               why="2 mm, the smallest bore of a miniature cylinder"),
     "rod": _F("length", "pos", required=True),
     "stroke": _F("distance", "pos", required=True, high=50.0),
     "friction_force": _F("force", "nonneg"),
@@ -1362,7 +1372,12 @@ def load_scenario(path) -> m.Scenario:
     """
     source = str(path)
     try:
-        size = Path(path).stat().st_size
+        st = Path(path).stat()
+        if not stat.S_ISREG(st.st_mode):
+            # a FIFO or a device would block or never end: only regular files are read
+            raise HeatloadError("not a regular file (a duty-cycle file is a .toml file)",
+                                file=source)
+        size = st.st_size
         if size > MAX_FILE_CHARS * 4:
             raise HeatloadError(f"the file is {size:,} bytes; a duty-cycle file is at most "
                                 f"{MAX_FILE_CHARS:,} characters", file=source)

@@ -99,14 +99,8 @@ def parse_prices(items, scenario) -> dict:
             raise HeatloadError(f"unknown strategy {name!r} in --price; this scenario has "
                                 f"{', '.join(s.name for s in scenario.strategies)}",
                                 field="--price") from None
-        try:
-            v = float(amount)
-        except ValueError:
-            raise HeatloadError(f"price of {name} must be a number, got {amount!r}",
-                                field="--price") from None
-        if not math.isfinite(v) or v < 0:
-            raise HeatloadError(f"price of {name} must be >= 0", field="--price")
-        out[st.name] = v
+        from heatload.decision import price_value
+        out[st.name] = price_value(amount.strip(), "--price", f"price of {name}")
     return out
 
 

@@ -297,6 +297,11 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
             if sz.spec.arrangement == "counterflow":
                 sz.notes.append("spec sheet for a counterflow unit: one-shell shell-and-tube "
                                 "cannot reach the effectiveness")
+        else:
+            # the chosen coolant cannot take the duty: a refusal, not a sheet left blank
+            why = "; ".join(n for n in sz.notes if n.startswith(kind.label)) or "no unit fits"
+            raise HeatloadError(f"no {kind.label} cooler can hold the design point "
+                                f"({why})", field="cooler.coolant")
     if rated_duty is not None or rated_etd is not None:
         if rated_duty is None or rated_etd is None:
             raise HeatloadError("rating mode needs both --rated-duty and --rated-etd",
@@ -475,9 +480,19 @@ def spec_rows(sz: CoolerSizing, system="si") -> list:
     return rows + kind.extra_rows(s, system, fq)
 
 
+#: Plausible ranges of a catalogue rating given on the command line: a duty up to
+#: 5 MW, an ETD up to 200 K (the loader's limit for a temperature difference).
+_RATING_RANGE = {"power": (0.0, 5e6, "5 MW"), "temperature_difference": (0.0, 200.0, "200 K")}
+
+
 def _parse(text, kind, fieldname):
     from heatload.units import to_si
-    return to_si(text, kind, field=fieldname)
+    v = to_si(text, kind, field=fieldname)
+    low, high, shown = _RATING_RANGE.get(kind, (-math.inf, math.inf, ""))
+    if not low < v <= high:
+        raise HeatloadError(f"expected a value above 0 and at most {shown}, got {text!r}",
+                            field=fieldname)
+    return v
 
 
 def run_cli(args) -> int:

@@ -15,6 +15,7 @@ against the pump displacement when it varies) are printed.
 
 from __future__ import annotations
 
+import math
 import re
 import sys
 from dataclasses import dataclass
@@ -63,6 +64,9 @@ def parse_vary(text: str, scenario, need_count: bool = True) -> VarySpec:
     from heatload import paths, units
 
     field = f"--vary {text}"
+    if "..." in (text or ""):
+        raise HeatloadError("write two dots between LOW and HIGH, e.g. 16..40cm^3:13",
+                            field=field)
     m = _SPEC.match(text or "")
     if not m:
         raise HeatloadError("expected PATH=LOW..HIGH:N, e.g. "
@@ -99,6 +103,55 @@ def parse_vary(text: str, scenario, need_count: bool = True) -> VarySpec:
     if low > high:
         raise HeatloadError(f"LOW must not exceed HIGH ({lo_txt} > {hi_txt})", field=field)
     return VarySpec(path=ref.path, low=low, high=high, count=count, kind=kind, text=text)
+
+
+#: Most rows (variants x strategies) one sweep evaluates: about 0.5 GB of results
+#: in memory; a larger study is several sweeps.
+MAX_SWEEP_ROWS = 2_000_000
+
+
+def check_size(specs, samples, strategies: int) -> int:
+    """The number of variants, refused beyond :data:`MAX_SWEEP_ROWS` rows before
+    anything is computed."""
+    n = samples if samples is not None else math.prod(s.count for s in specs)
+    if n < 1:
+        raise HeatloadError(f"must be >= 1, got {n}", field="--samples")
+    if n * strategies > MAX_SWEEP_ROWS:
+        from heatload.tables import count
+        raise HeatloadError(f"{n:,} variants x {count(strategies, 'strategy')} is more than the "
+                            f"{MAX_SWEEP_ROWS:,} rows one sweep evaluates; use fewer values "
+                            "or fewer strategies", field="--samples" if samples else "--vary")
+    return n
+
+
+def check_corners(scenario, specs) -> None:
+    """Refuse a range that reaches a machine the loader would refuse.
+
+    The variants at the corners of the ranges (every combination of LOW and
+    HIGH for up to four paths, else each path alone at its ends) go through the
+    loader's own checks (:func:`heatload.io.scenario_from_dict`), so a sweep
+    holds the same limits as a file.  The limits are monotone in each field
+    (areas, volumes, temperatures), so the corners bound the whole range.
+    """
+    import itertools
+
+    from heatload import io, paths, units
+
+    if len(specs) <= 4:
+        corners = [dict(zip(specs, c)) for c in itertools.product(*[(s.low, s.high)
+                                                                    for s in specs])]
+    else:
+        corners = [{s: v} for s in specs for v in (s.low, s.high)]
+    for corner in corners:
+        sc = paths.replaced_scenario(scenario, {s.path: v for s, v in corner.items()})
+        try:
+            io.scenario_from_dict(io.scenario_to_dict(sc), "--vary")
+        except HeatloadError as exc:
+            at = ", ".join(f"{s.path} = {units.format_quantity(v, s.kind)}"
+                           for s, v in corner.items())
+            raise HeatloadError(f"the variant with {at} is no machine the loader accepts: "
+                                f"{exc.field + ': ' if exc.field else ''}{exc.message}",
+                                field="--vary") from None
 
 
 def grid_values(specs) -> dict:
@@ -284,6 +337,8 @@ def run_cli(args) -> int:
             raise HeatloadError(f"unknown strategy {name!r}; expected one of "
                                 f"{', '.join(s.name for s in scenario.strategies)}",
                                 field="--strategy") from None
+    check_size(specs, args.samples if sampling else None, len(strategies))
+    check_corners(scenario, specs)
     values = (sample_values(specs, args.samples, args.seed) if sampling
               else grid_values(specs))
     n = len(next(iter(values.values())))

@@ -121,7 +121,8 @@ def registry():
 
 
 def _clean(text: str) -> str:
-    t = text.strip().replace("°C", "degC").replace("°F", "degF").replace("°", "deg")
+    t = text.strip().replace("\u2103", "degC").replace("\u2109", "degF")   # one-character ℃ ℉
+    t = t.replace("°C", "degC").replace("°F", "degF").replace("°", "deg")
     t = t.replace("²", "^2").replace("³", "^3").replace("·", "*").replace("ℓ", "L")
     # A leading "/" for prices ("0.2 /kWh"): pint needs a numerator.
     parts = t.split(None, 1)
@@ -172,6 +173,9 @@ def _unit_tokens(text: str) -> list[tuple[str, str]]:
         kind = m.lastgroup if m.lastgroup != "suffix" else "name"
         if m.group("name") is not None:
             out.append(("name", m.group("name")))
+            if len(m.group("suffix")) > 1:
+                raise _UnitSyntax(f"unexpected digits {m.group('suffix')!r} after "
+                                  f"{m.group('name')!r}")
             if m.group("suffix"):            # "mm2" is mm^2, as people write it
                 out.append(("power", "^"))
                 out.append(("int", m.group("suffix")))
@@ -281,13 +285,20 @@ def split_quantity(text: str) -> tuple[float, str]:
         number = comma.group(0)
         if number.count(",") > 1 or t[comma.end():comma.end() + 1] == ".":
             raise ValueError("write the number without thousands separators")
-        raise ValueError(f"use a decimal point: {number.replace(',', '.')}{t[comma.end():]}")
+        head, tail = number.lstrip("+-").split(",")
+        rest = t[comma.end():]
+        if len(tail) == 3 and head and head != "0":
+            # "1,000" is a thousand to some readers and one to others: ask
+            raise ValueError(f"no commas in numbers: write {number.replace(',', '')}{rest} "
+                             f"for thousands, or {number.replace(',', '.')}{rest} with a "
+                             "decimal point")
+        raise ValueError(f"use a decimal point: {number.replace(',', '.')}{rest}")
     m = _NUMBER_TEXT.match(t)
     if m is None:
         raise ValueError("it does not start with a number")
     number_text = m.group(0)
     rest = t[m.end():]
-    if rest[:1] and rest[:1] in ".,+-0123456789eE":
+    if rest[:1] and rest[:1] in ".,+-0123456789eE_xX":
         raise ValueError(f"unexpected {rest[:1]!r} after the number")
     if "e" in number_text.lower() and len(number_text.lower().split("e")[1].lstrip("+-")) > 3:
         raise ValueError("the number's exponent is too long")
@@ -359,6 +370,12 @@ def to_si(value, kind: str, field: str | None = None, file: str | None = None) -
         number, unit = split_quantity(_clean(value))
     except ValueError as e:
         raise HeatloadError(f"{expect}, got {value!r} ({e})", field=field, file=file) from None
+    if kind == "temperature_difference" and re.search(
+            r"(?<![A-Za-z_])(degC|degF|celsius|fahrenheit|degree_Celsius|degree_Fahrenheit)\b",
+            unit):
+        raise HeatloadError(f"{expect}, got {value!r} (that is a temperature; a difference "
+                            f"is written in K or delta_degC, e.g. '{number:g} K')",
+                            field=field, file=file)
     try:
         offset, factor = _conversion(unit, kind)
     except _UnknownUnit:

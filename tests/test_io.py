@@ -259,7 +259,7 @@ def test_awkward_floats_round_trip_exactly():
 
 
 @settings(max_examples=40, deadline=None)
-@given(p=st.floats(min_value=1e3, max_value=1.9e8, allow_nan=False),
+@given(p=st.floats(min_value=1e5, max_value=1.9e8, allow_nan=False),   # relief >= 1 bar
        t=st.floats(min_value=200.0, max_value=500.0, allow_nan=False),
        q=st.floats(min_value=1e-6, max_value=0.09, allow_nan=False),
        f=st.floats(min_value=-1e8, max_value=1e8, allow_nan=False))

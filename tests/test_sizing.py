@@ -298,7 +298,7 @@ def test_coolant_not_colder_than_the_oil_is_refused(press, tmp_path):
     text = text.replace('coolant = "air"', 'coolant = "air"\nwater_inlet_temperature = "90 degC"')
     path = tmp_path / "hot_water.toml"
     path.write_text(text, encoding="utf-8")
-    rc, out, err = _run(["cooler", str(path), "--coolant", "water", "--samples", "1"])
+    rc, out, err = _run(["cooler", str(path), "--coolant", "water", "--samples", "2"])
     assert rc == 2 and out == ""
     line = text.splitlines().index('water_inlet_temperature = "90 degC"') + 1
     assert err.startswith(f"heatload: error: {path}:{line}: cooler.water_inlet_temperature:")
