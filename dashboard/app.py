@@ -35,6 +35,13 @@ SECURITY_HEADERS = {
 }
 
 
+#: What the app serves: Dash's own routes, its scripts and the assets folder.
+SERVED_PREFIXES = ("/_dash-", "/_favicon.ico", "/assets/", "/_reload-hash")
+UPDATE_ROUTE = "/_dash-update-component"
+#: Exceptions a malformed callback request raises inside the framework or a callback.
+_CLIENT_ERRORS = (KeyError, TypeError, ValueError, IndexError, AttributeError)
+
+
 def _harden(server) -> None:
     """Security headers on every answer; a request for a file the app does not
     serve (e.g. a path-traversal attempt) is a 404, not a server error."""
@@ -49,6 +56,35 @@ def _harden(server) -> None:
         return "not found", 404
 
     server.register_error_handler(DependencyException, _not_found)
+
+    from flask import request
+    from werkzeug.exceptions import HTTPException
+
+    @server.before_request
+    def _only_what_the_app_serves():
+        # Dash answers every other path with its page (for page routing, which
+        # this app does not use): a path it does not serve is a 404
+        path = request.path
+        if path == "/" or path.startswith(SERVED_PREFIXES):
+            if path == UPDATE_ROUTE and request.method != "POST":
+                return "method not allowed", 405
+            return None
+        return "not found", 404
+
+    def _bad_request(error):
+        # a callback request the page itself never sends (a body without its
+        # outputs, text where a number belongs, a table row that is no row):
+        # a client error, answered in one line, never a traceback
+        if isinstance(error, HTTPException):
+            return error
+        if request.path == UPDATE_ROUTE and isinstance(error, _CLIENT_ERRORS):
+            server.logger.warning("refused a malformed callback request: %s: %s",
+                                  type(error).__name__, str(error)[:200])
+            return "bad request", 400
+        server.logger.error("internal error: %s: %s", type(error).__name__, str(error)[:200])
+        return "internal error", 500
+
+    server.register_error_handler(Exception, _bad_request)
 
 
 def scenario_choices(scenario_path=None):

@@ -297,8 +297,24 @@ def render_form(data: dict, system: str) -> dict:
     }
 
 
+def _typed(text, kind: str | None, system: str) -> str:
+    """What the user typed, as the error message should show it: a bare number
+    with the unit the form takes it in."""
+    t = str(text).strip()
+    if kind and kind != "dimensionless" and _NUMBER.match(t):
+        unit = units.pretty_unit(units.display_unit(kind, system))
+        return f"{t} {unit}".strip()
+    return t
+
+
+def _remember(typed: dict, value, text, kind, system) -> None:
+    # the loader checks the exact SI text the form made; its messages quote it
+    if isinstance(value, str) and text is not None and value != str(text).strip():
+        typed[value] = _typed(text, kind, system)
+
+
 def _apply_rows(new: dict, old: dict, columns, rows, system: str, section: str,
-                errors: list, kinds: dict) -> None:
+                errors: list, kinds: dict, typed: dict | None = None) -> None:
     old_items = old.get(section, [])
     items = []
     for pos, row in enumerate(rows or []):
@@ -332,6 +348,8 @@ def _apply_rows(new: dict, old: dict, columns, rows, system: str, section: str,
             except HeatloadError as e:
                 errors.append((e.field or field, e.message))
                 continue
+            if typed is not None:
+                _remember(typed, v, row.get(c.key), kind, system)
             _set(item, (c.key,), v)
         items.append(item)
     new[section] = items
@@ -360,12 +378,14 @@ def apply_form(data: dict, phase_rows, actuator_rows, values, system: str,
     """
     new = copy.deepcopy(data)
     errors: list = []
+    typed: dict = {}
     if actuator_rows is not None:
         _apply_rows(new, data, ACTUATOR_COLUMNS, actuator_rows, system, "actuators",
-                    errors, _actuator_kinds(data))
+                    errors, _actuator_kinds(data), typed)
     kinds = _actuator_kinds(new)
     if phase_rows is not None:
-        _apply_rows(new, data, PHASE_COLUMNS, phase_rows, system, "phases", errors, kinds)
+        _apply_rows(new, data, PHASE_COLUMNS, phase_rows, system, "phases", errors, kinds,
+                    typed)
     for f, text in zip(KEY_FIELDS, values or []):
         if f.required and _blank(text):
             errors.append((f.field, REQUIRED))
@@ -375,13 +395,17 @@ def apply_form(data: dict, phase_rows, actuator_rows, values, system: str,
         except HeatloadError as e:
             errors.append((e.field or f.field, e.message))
             continue
+        _remember(typed, v, text, f.kind, system)
         _set(new, f.path, v)
     if errors:
         return None, new, errors
     try:
         scenario = io.scenario_from_dict(new, source=source)
     except HeatloadError as e:
-        return None, new, [(e.field, e.message)]
+        message = e.message
+        for si, shown in typed.items():      # quote what was typed, not its SI form
+            message = message.replace(repr(si), repr(shown))
+        return None, new, [(e.field, message)]
     return scenario, new, []
 
 

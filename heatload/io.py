@@ -1633,7 +1633,9 @@ def dumps_scenario(scenario: m.Scenario) -> str:
     str
         Text that :func:`loads_scenario` turns back into an equal scenario.
     """
-    lines = [f"# heatload duty-cycle file: {scenario.name}".replace("\n", " "),
+    # a comment ends at a line break, and TOML allows no control character in one
+    shown = "".join(ch if ch.isprintable() else " " for ch in scenario.name)
+    lines = [f"# heatload duty-cycle file: {shown}",
              "# Quantities carry their units; see heatload.io.SCHEMA_EXAMPLE for every key."]
     _emit(lines, scenario_to_dict(scenario), "")
     return "\n".join(lines).replace("\n\n\n", "\n\n") + "\n"

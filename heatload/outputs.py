@@ -143,13 +143,14 @@ def check_output_folder(path, field: str | None = None) -> Path:
 
 
 def _check_folder(folder: Path, path, field):
-    """The nearest existing ancestor of *folder* must be a writable folder
-    (missing folders are made when writing)."""
+    """*folder*, or its parent when *folder* itself is missing (a ``--csv`` folder
+    is made when writing, one level only), must be a writable folder: a path
+    with several missing folders is a typing slip, never created."""
     d = folder if str(folder) else Path(".")
-    while not os.path.exists(d):
-        if d.parent == d:
-            break
-        d = d.parent
+    if not os.path.exists(d):
+        d = d.parent if str(d.parent) else Path(".")
+        if not os.path.exists(d):
+            raise _refusal(path, f"cannot be written: the folder {d} does not exist", field)
     if not os.path.isdir(d):
         raise _refusal(path, f"cannot be written: {d} is not a folder", field)
     if not os.access(d, os.W_OK | os.X_OK):
@@ -288,7 +289,7 @@ def write_atomic(target, write, field: str | None = None, *, force: bool = False
     folder = target.parent if str(target.parent) else Path(".")
     tmp = None
     try:
-        folder.mkdir(parents=True, exist_ok=True)
+        folder.mkdir(exist_ok=True)
         remove_stale_temporaries(target)
         tmp = _new_temporary(target)
         write(str(tmp))

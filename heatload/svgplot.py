@@ -22,7 +22,9 @@ RULE = "#d5dbe3"
 
 
 def _e(x):
-    return html.escape(str(x), quote=True)
+    # XML allows no control characters (a name may carry an ESC or a CR)
+    text = "".join(ch if ch.isprintable() else " " for ch in str(x))
+    return html.escape(text, quote=True)
 
 
 def nice_ticks(high, low=0.0, count=5):

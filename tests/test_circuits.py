@@ -770,3 +770,26 @@ def test_ideal_components_from_a_file_book_no_loss():
         for part in ("directional_valve", "check_valve", "lines"):
             assert np.all(r.losses[part] == 0.0), (kind, part)
         assert np.all(np.abs(r.balance_residual) <= 1e-9 * np.maximum(r.electric_power, 1.0))
+
+
+@pytest.mark.parametrize("kind", STRATEGIES)
+def test_a_stalled_actuator_holds_what_the_pump_gives(kind):
+    """A load no circuit here can lift (1e9 N on a 100 mm bore, 1.3e6 bar): the
+    actuator stalls, its inlet holds the pump's stall pressure less the check
+    valve's spring and the outlet is open to tank (no flow, no drop) -- not the
+    load's own pressure, which once gave 10^6 bar and 10^14 W of 'losses'."""
+    stuck = m.Phase("press", "c", "extend", load=1e9, speed=V_EXT, stroke=0.5)
+    sc = _scenario([stuck, m.Phase("wait", None, "idle", duration=5.0)])
+    c = cycle.circuit_inputs(sc, kind)
+    r = circuits.solve_strategy(kind, c)
+    assert r.stalled[0]
+    p_pump = r.pump_pressure[0]
+    assert r.inlet_pressure[0] == pytest.approx(max(p_pump - float(np.ravel(
+        c["check_cracking"])[0]), 0.0), rel=1e-12)
+    assert r.outlet_pressure[0] == 0.0
+    assert p_pump <= 400e5                        # a relief or compensator setting
+    # compression at most V p^2 / (2K) at that pressure (linear bulk modulus)
+    v = A1 * 0.5 + sc.actuators[0].dead_volume
+    bound = v * p_pump**2 / (2 * sc.fluid.bulk_modulus) / r.duration[0]
+    assert r.losses["compression"][0] <= bound * (1 + 1e-9)
+    assert np.all(np.abs(r.balance_residual) <= 1e-9 * np.maximum(r.electric_power, 1.0))

@@ -284,3 +284,41 @@ def test_plain_number_never_uses_exponents():
     assert plain_number(2.5e9) == "2,500,000,000"
     assert plain_number(3.2e-6) == "0.00000320"
     assert plain_number(float("nan")) == "n/a"
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["compare", "--strategy", "METER-IN"], "unknown strategy 'METER-IN'"),
+    (["thermal", "--strategy", "nosuch"], "unknown strategy 'nosuch'"),
+    (["cooler", "--samples", "10", "--seed", "-1"], "whole number >= 0"),
+    (["cooler", "--samples", "1000000000"], "samples"),
+    (["cooler", "--samples", "1"], "samples"),
+    (["cooler", "--samples", "10", "--rated-duty", "10 kW", "--rated-etd", "40 degC"],
+     "that is a temperature"),
+    (["cooler", "--samples", "10", "--rated-duty", "10 kW", "--rated-etd", "1e6 K"],
+     "at most 200 K"),
+    (["sweep", "--strategy", "meter-in", "--vary",
+      "power_unit.pump.displacement=16..40cm^3:100000000"], "rows one sweep evaluates"),
+    (["sweep", "--vary", "power_unit.pump.displacement=16...40cm^3:3"], "two dots"),
+    (["sweep", "--vary", "reservoir.oil_volume=1e-9..1e-6L:2"], "below 0.1 L"),
+    (["report", "--price", "load-sensing=1e308", "-o", "never.html"], "within 0"),
+    (["report", "--price", "load-sensing=nan", "-o", "never.html"], "finite"),
+])
+def test_careless_options_are_one_line_errors(argv, words, tmp_path):
+    """Each of these once ended in 'internal error', ran for hours or was
+    misread; now a one-line refusal naming the option, before any computing."""
+    r = subprocess.run([sys.executable, "-m", "heatload.cli", *argv], capture_output=True,
+                       text=True, cwd=tmp_path, timeout=120)
+    assert r.returncode == 2, r.stderr
+    assert "internal error" not in r.stderr and "Traceback" not in r.stderr
+    assert words in r.stderr
+    assert not (tmp_path / "never.html").exists()
+
+
+def test_a_fifo_or_device_as_the_input_is_refused_at_once(tmp_path):
+    import os
+    fifo = tmp_path / "in.toml"
+    os.mkfifo(fifo)
+    for path in (fifo, Path("/dev/zero")):
+        r = subprocess.run([sys.executable, "-m", "heatload.cli", "check", str(path)],
+                           capture_output=True, text=True, timeout=60)   # hang guard
+        assert r.returncode == 2 and "not a regular file" in r.stderr

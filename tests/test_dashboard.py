@@ -598,3 +598,23 @@ def test_production_server_serves_the_page():
         t.join(timeout=10)
         server.close()
         server.task_dispatcher.shutdown()
+
+
+def test_an_engine_refusal_quotes_what_was_typed(base, examples):
+    """The loader checks the exact SI text the form makes of an entry; its message
+    once quoted '-500000.0 Pa' for a typed -5: it quotes the entry as typed."""
+    keys = list(base["form"]["key_values"])
+    i = [f.field for f in state.KEY_FIELDS].index("reservoir.oil_volume")
+    keys[i] = "1e-9"
+    out = _edit(base, examples, keys=keys)
+    assert out["results"] is no_update
+    msg = out["key_errors"][i]
+    assert "'1e-9 L'" in msg and "m^3" not in msg
+
+
+def test_a_downloaded_scenario_with_a_control_character_in_its_name_loads():
+    import dataclasses
+    sc = io.load_scenario(io.default_scenario_path())
+    sc = dataclasses.replace(sc, name="Press\rX\x1b")
+    again = io.loads_scenario(io.dumps_scenario(sc), source="dl.toml")
+    assert again.name == sc.name

@@ -118,3 +118,14 @@ def test_cost_of_ownership_by_hand():
     d = cmp.decision()
     assert d.saving(d.present) == 0.0
     assert d.sentence().endswith(".")
+
+
+@pytest.mark.parametrize("amount, words", [("nan", "finite"), ("inf", "finite"),
+                                           ("1e999", "finite"), ("-1", "within 0"),
+                                           ("1e308", "within 0"), ("cheap", "a number")])
+def test_prices_are_finite_and_bounded(amount, words):
+    from heatload.decision import price_value
+    from heatload.errors import HeatloadError
+    with pytest.raises(HeatloadError, match=words):
+        price_value(amount, "--price")
+    assert price_value("4200", "--price") == 4200.0

@@ -328,3 +328,16 @@ def test_one_atomic_writer():
         assert "tempfile" not in text and "os.replace(" not in text, p.name
     for p in (ROOT / "dashboard").glob("*.py"):
         assert "os.replace(" not in p.read_text(), p.name
+
+
+def test_several_missing_folders_are_a_slip_not_created(tmp_path):
+    """`-o /nonexistent/dir/s.csv` once made both folders (at the root too): only
+    the last folder of a path may be missing (a --csv folder), never its parent."""
+    from heatload import outputs
+    from heatload.errors import HeatloadError
+    with pytest.raises(HeatloadError, match="does not exist"):
+        outputs.check_output(tmp_path / "a" / "b" / "s.csv", "-o", suffixes=(".csv",))
+    assert not (tmp_path / "a").exists()
+    # one missing level is a folder the command makes
+    outputs.write_atomic(tmp_path / "a" / "s.csv", lambda p: open(p, "w").write("x"), "-o")
+    assert (tmp_path / "a" / "s.csv").read_text() == "x"

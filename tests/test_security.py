@@ -73,3 +73,20 @@ def test_dashboard_sends_security_headers_and_404_for_traversal():
         r = client.get(url)
         assert r.status_code == 404, url
         assert b"root:" not in r.data
+
+
+def test_dashboard_serves_only_its_own_routes_and_refuses_malformed_callbacks():
+    """A path the app does not serve is a 404 (Dash would answer its page), a GET
+    of the callback route a 405, and a callback body the page never sends a 400
+    in one line (it was a 500 with a traceback in the server log)."""
+    from heatload.dashboard.app import make_app
+    client = make_app().server.test_client()
+    for url in ("/nope", "/download", "/%2e%2e/%2e%2e/etc/passwd"):
+        assert client.get(url).status_code == 404, url
+    assert client.get("/_dash-update-component").status_code == 405
+    for body in ("{}", '{"output": "x.y", "inputs": "nope"}', "[1, 2]"):
+        r = client.post("/_dash-update-component", data=body, content_type="application/json")
+        assert r.status_code == 400, body
+        assert b"Traceback" not in r.data
+    for url in ("/", "/_dash-layout", "/_dash-dependencies"):
+        assert client.get(url).status_code == 200, url

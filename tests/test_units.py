@@ -165,3 +165,29 @@ def test_grammar_agrees_with_pint_on_what_it_accepts():
     for (text, si), kind in zip(cases, kinds):
         ref = ureg.Quantity(text).to(si).magnitude
         assert to_si(text, kind) == pytest.approx(ref, rel=1e-12, abs=1e-12)
+
+
+@pytest.mark.parametrize("text, reason", [
+    ("1,000 L", "no commas in numbers: write 1000 L for thousands, or 1.000 L"),
+    ("0x10 L", "unexpected 'x' after the number"),
+    ("1_40 L", "unexpected '_' after the number"),
+    ("5 m10", "unexpected digits '10'"),
+])
+def test_grammar_second_round(text, reason):
+    with pytest.raises(HeatloadError) as e:
+        to_si(text, "volume" if "L" in text else "length", field="f")
+    assert reason in str(e.value)
+
+
+def test_a_temperature_is_no_temperature_difference():
+    """'40 degC' as an ETD was read as 313 K: a temperature where a difference
+    belongs is refused (K, delta_degC and delta_degF are differences: NIST SP 811)."""
+    with pytest.raises(HeatloadError, match="that is a temperature"):
+        to_si("40 degC", "temperature_difference", field="--rated-etd")
+    with pytest.raises(HeatloadError, match="that is a temperature"):
+        to_si("40 °C", "temperature_difference", field="--rated-etd")
+    assert to_si("40 K", "temperature_difference") == 40.0
+    assert to_si("40 delta_degC", "temperature_difference") == pytest.approx(40.0)
+    assert to_si("72 delta_degF", "temperature_difference") == pytest.approx(40.0)
+    # the one-character degree signs are read as degC / degF
+    assert to_si("20 \u2103", "temperature") == pytest.approx(293.15)
