@@ -148,18 +148,23 @@ def air_properties(temperature, pressure=101325.0) -> AirProperties:
                          expansion=1.0 / t, kinematic_viscosity=mu / rho)
 
 
-def _air_from_table(t, p):
-    """rho, c_p, mu, k (4, n) at temperatures *t* (n,) [K] and pressures *p* (n,) [Pa]
-    from the shipped table: the cubic between two temperature nodes from the values
-    and second derivatives there, then the expansion in pressure."""
-    t0, step, p_scale, values, moments = _air_table()
+def _cubic_between_nodes(t, values, moments, t0, step):
+    """Cubic spline rows (k, n) at *t* (n,) [K] from its values and second
+    derivatives (k, nodes) on the uniform grid t0, t0 + step, ..."""
     x = (t - t0) / step
     i = np.minimum(x.astype(np.intp), values.shape[1] - 2)
     b = x - i
     a = 1.0 - b
-    coef = (a * values[:, i] + b * values[:, i + 1]
+    return (a * values[:, i] + b * values[:, i + 1]
             + ((a ** 3 - a) * moments[:, i] + (b ** 3 - b) * moments[:, i + 1])
-            * (step * step / 6.0)).reshape(4, 3, -1)
+            * (step * step / 6.0))
+
+
+def _air_from_table(t, p):
+    """rho, c_p, mu, k (4, n) at temperatures *t* (n,) [K] and pressures *p* (n,) [Pa]
+    from the shipped table: the cubic in temperature, then the expansion in pressure."""
+    t0, step, p_scale, values, moments = _air_table()
+    coef = _cubic_between_nodes(t, values, moments, t0, step).reshape(4, 3, -1)
     s = p / p_scale
     out = coef[:, 0] + s * (coef[:, 1] + s * coef[:, 2])
     out[0] *= p  # rho / p -> rho
@@ -176,9 +181,18 @@ def _air_fine_table(pressure: float) -> np.ndarray:
     """rho, c_p, mu, k (n, 4) at one pressure on a :data:`_FINE_STEP` grid from
     150 K, evaluated from the shipped table once, so each later call is a
     linear interpolation (as fast as a plain lookup)."""
+    t0, step, p_scale, values, moments = _air_table()
+    # the expansion in pressure first: at one pressure each property is one spline
+    # (values and second derivatives combine alike), four rows instead of twelve
+    s = pressure / p_scale
+    weights = np.array([1.0, s, s * s])
+    v = np.einsum("j,pjn->pn", weights, values.reshape(4, 3, -1))
+    m = np.einsum("j,pjn->pn", weights, moments.reshape(4, 3, -1))
     lo, hi = AIR_TEMPERATURE_RANGE
     grid = np.linspace(lo, hi, int(round((hi - lo) / _FINE_STEP)) + 1)
-    return np.ascontiguousarray(_air_from_table(grid, np.full(grid.shape, pressure)).T)
+    fine = _cubic_between_nodes(grid, v, m, t0, step)
+    fine[0] *= pressure
+    return np.ascontiguousarray(fine.T)
 
 
 def grashof(expansion, temperature_difference, length, kinematic_viscosity, gravity=GRAVITY):
