@@ -12,12 +12,43 @@ import sys
 from pathlib import Path
 
 from dash import Dash
+from dash.exceptions import DependencyException
 
-from . import callbacks, layout
+from . import callbacks, layout, logfit_view
 from heatload import io
 from heatload.errors import HeatloadError
 
 LOOPBACK = ("127.0.0.1", "localhost", "::1")
+
+#: Headers on every answer.  The page loads nothing from another origin and may not
+#: be framed (clickjacking); Dash's renderer starts from an inline script and
+#: plotly styles elements inline, hence 'unsafe-inline' for those two only.
+SECURITY_HEADERS = {
+    "Content-Security-Policy": (
+        "default-src 'self'; script-src 'self' 'unsafe-inline' 'unsafe-eval'; "
+        "style-src 'self' 'unsafe-inline'; img-src 'self' data: blob:; "
+        "font-src 'self' data:; connect-src 'self'; object-src 'none'; "
+        "base-uri 'self'; form-action 'self'; frame-ancestors 'none'"),
+    "X-Content-Type-Options": "nosniff",
+    "X-Frame-Options": "DENY",
+    "Referrer-Policy": "no-referrer",
+}
+
+
+def _harden(server) -> None:
+    """Security headers on every answer; a request for a file the app does not
+    serve (e.g. a path-traversal attempt) is a 404, not a server error."""
+
+    @server.after_request
+    def _headers(response):
+        for name, value in SECURITY_HEADERS.items():
+            response.headers.setdefault(name, value)
+        return response
+
+    def _not_found(_error):
+        return "not found", 404
+
+    server.register_error_handler(DependencyException, _not_found)
 
 
 def scenario_choices(scenario_path=None):
@@ -58,9 +89,11 @@ def make_app(scenario_path=None) -> Dash:
                suppress_callback_exceptions=False, serve_locally=True)
     app.index_string = layout.INDEX
     app.server.config["MAX_CONTENT_LENGTH"] = layout.MAX_REQUEST_BYTES
+    _harden(app.server)
     # a function: every page load starts a fresh session from the opened file
     app.layout = lambda: layout.make_layout(initial)
     callbacks.register(app, examples)
+    logfit_view.register(app)
     return app
 
 

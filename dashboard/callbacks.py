@@ -337,6 +337,10 @@ def cooler_view(data: dict, strategy: str, system: str):
         f"shed {figures.fmt(sz.surfaces_heat, 'power', system)} of "
         f"{figures.fmt(sz.design_heat, 'power', system)}.", className="msg"), *notes,
         html.Div(sz.caution, className="caution")])
+    from .datasheet_view import datasheet_block     # coolers listed by datasheet curves
+    listed = datasheet_block(scenario, outcome, system)
+    if listed is not None:
+        head.children.append(listed)
     return head, spec
 
 

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from dash import dash_table, dcc, html
 
-from . import state
+from . import logfit_view, state
 
 #: Shown on every page: what the numbers are and what governs.
 CAUTION = ("Estimates for early design. Component makers' data, the machine-safety "
@@ -220,6 +220,7 @@ def make_layout(initial: dict):
             html.Div(id="pay-summary", className="msg"),
             dcc.Graph(id="pay-graph", config={"displaylogo": False}),
         ], className="panel")),
+        dcc.Tab(label="Temperature log", value="log", children=logfit_view.layout()),
     ])
     return html.Div([
         dcc.Store(id="scenario-store", storage_type="memory",

@@ -118,7 +118,7 @@ TEMPERATURE_GRID = np.linspace(263.15, 523.15, 27)
 
 @lru_cache(maxsize=64)
 def _conductance_table(reservoir, altitude, air_temperature):
-    pressure = 101325.0 * (1.0 - 2.25577e-5 * altitude) ** 5.25588
+    pressure = heat_transfer.barometric_pressure(altitude)
     t = np.linspace(air_temperature - 20.0, 523.15, 160)
     ua = heat_transfer.reservoir_conductance(reservoir, t, air_temperature, pressure)
     return t, np.broadcast_to(np.asarray(ua, float), t.shape).copy()
@@ -165,12 +165,14 @@ def _row(result, i):
     return type(result)(**out)
 
 
-def coupled_temperatures(scenario, strategy, ambients, heat_on_grid, pa):
+def coupled_temperatures(scenario, strategy, ambients, heat_on_grid, pa,
+                         extra_conductance=0.0):
     """Self-consistent steady oil temperatures [K] at each air temperature in *ambients*.
 
-    Solves Q(T) = UA(T) (T - T_a), with Q(T) the strategy's mean heat at oil
-    temperature T: bracketed on :data:`TEMPERATURE_GRID`, then refined by an
-    Illinois regula falsi with exact solves (all ambients in one batched solve
+    Solves Q(T) = (UA(T) + S) (T - T_a), with Q(T) the strategy's mean heat at oil
+    temperature T and S an *extra_conductance* [W/K] per ambient (a cooler's
+    specific cooling power; 0 by default): bracketed on :data:`TEMPERATURE_GRID`,
+    then refined by an Illinois regula falsi with exact solves (all ambients in one batched solve
     per step) until |Q - UA (T - T_a)| < 0.01 K x UA.
     Returns ``(T, iterations, result)`` with *result* solved at those T (one
     row per ambient).
@@ -178,7 +180,10 @@ def coupled_temperatures(scenario, strategy, ambients, heat_on_grid, pa):
     grid = TEMPERATURE_GRID
     n = len(ambients)
     ambients = np.asarray(ambients, float)
+    extra = np.broadcast_to(np.asarray(extra_conductance, float), (n,))
     uas = [conductance_fn(scenario, ta) for ta in ambients]
+    if np.any(extra != 0.0):
+        uas = [(lambda t_oil, f=f, s=s: f(t_oil) + s) for f, s in zip(uas, extra)]
     a = np.empty(n); b = np.empty(n); ga = np.empty(n); gb = np.empty(n)
     t = np.empty(n)
     done = np.zeros(n, dtype=bool)
@@ -276,6 +281,8 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
                                              scenario, pa)
     # the oil's limit is judged on the hottest day, where the cooler is sized
     warns += checks.thermal_warnings(scenario, t_h, t_op, duty)
+    warns += checks.correlation_range_warnings(
+        scenario, t_op, amb.temperature, heat_transfer.barometric_pressure(amb.altitude))
     return StrategyOutcome(strategy=strategy, circuit=res_op,
                            energy=energy.summarize(res_op, scenario.economics),
                            circuit_uncoupled=res_u,

@@ -11,6 +11,8 @@ bad input, never a traceback):
 - ``heatload report [FILE] -o report.html``   a customer report
 - ``heatload sweep [FILE] --vary PATH=LOW..HIGH:N``   design sweeps
 - ``heatload dashboard [FILE]``  the browser dashboard
+- ``heatload logfit LOG.csv``   heat load and tank conductance fitted from a temperature log
+- ``heatload trace TRACE.csv -o draft.toml``   a draft duty cycle from a pressure trace
 
 Heavy packages (pandas, CoolProp, plotly, dash) are imported only by the
 commands that need them, so ``heatload --help`` and ``heatload check`` start fast.
@@ -254,6 +256,16 @@ def cmd_sweep(args):
     return sweep.run_cli(args)
 
 
+def cmd_logfit(args):
+    from heatload import measured
+    return measured.run_logfit(args)
+
+
+def cmd_trace(args):
+    from heatload import trace
+    return trace.run_cli(args)
+
+
 def cmd_dashboard(args):
     # The engine does not import its front end: the dashboard registers itself
     # as an entry point of the group "heatload.frontends" (pyproject.toml).
@@ -355,6 +367,52 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--coupled", action="store_true",
                     help="also solve each variant's self-consistent oil temperature "
                          "(about 5x slower than the default design-point figures)")
+
+    help_ = "fit the heat load and the tank's conductance to a logged oil temperature (CSV)"
+    sp = sub.add_parser("logfit", help=help_, description=help_ + (
+        ". Columns are found by name: a header containing 'time', 'oil', 'ambient' and "
+        "optionally 'running' (0/1), each with its unit in square brackets, e.g. "
+        "'oil temperature [degC]'; time may also be a timestamp."))
+    sp.add_argument("log", metavar="LOG", help="the temperature log (CSV)")
+    group = sp.add_mutually_exclusive_group()
+    group.add_argument("--scenario", metavar="FILE", default=None,
+                       help="duty-cycle file: heat capacity from its oil and steel, the "
+                            "model's heat beside the measured one, the cooler duty from it")
+    group.add_argument("--heat-capacity", metavar="C", default=None,
+                       help="heat capacity of oil and steel, e.g. '650 kJ/K'")
+    sp.add_argument("--column", action="append", default=[], metavar="KEY=NAME",
+                    help="the column for time, oil, ambient or running (repeatable)")
+    sp.add_argument("--unit", action="append", default=[], metavar="KEY=UNIT",
+                    help="unit of a column whose header gives none, e.g. oil=degF (repeatable)")
+    sp.add_argument("--ambient-temperature", metavar="T", default=None,
+                    help="constant air temperature when the log has no ambient column")
+    sp.add_argument("--confidence", type=float, default=0.95,
+                    help="level of the confidence intervals (default 0.95)")
+    sp.add_argument("--json", action="store_true", help="print as JSON (SI units)")
+    sp.add_argument("-o", "--output", default=None, metavar="HTML",
+                    help="also write a page with the log and the fit")
+    sp.add_argument("--force", action="store_true", help="overwrite an existing output")
+    sp.add_argument("--units", choices=("si", "us"), default="si",
+                    help="units of the printed tables (default: si)")
+    sp.set_defaults(func=cmd_logfit)
+
+    help_ = "segment a pressure trace (CSV) into phases and write a draft duty-cycle file"
+    sp = sub.add_parser("trace", help=help_, description=help_ + (
+        ". Columns are found by name: 'time' and 'pressure', optionally 'flow' and "
+        "'position', each with its unit in square brackets, e.g. 'pump pressure [bar]'."))
+    sp.add_argument("trace", metavar="TRACE", help="the pressure trace (CSV)")
+    sp.add_argument("-o", "--output", default=None, metavar="TOML",
+                    help="the draft duty-cycle file to write (printed when omitted)")
+    sp.add_argument("--column", action="append", default=[], metavar="KEY=NAME",
+                    help="the column for time, pressure, flow or position (repeatable)")
+    sp.add_argument("--unit", action="append", default=[], metavar="KEY=UNIT",
+                    help="unit of a column whose header gives none, e.g. pressure=psi")
+    sp.add_argument("--name", default=None, help="the machine's name in the draft")
+    sp.add_argument("--min-phase", default=None, metavar="T",
+                    help="shortest phase, e.g. '0.5 s' (shorter steps are transitions)")
+    sp.add_argument("--json", action="store_true", help="print the phases as JSON (SI units)")
+    sp.add_argument("--force", action="store_true", help="overwrite an existing draft")
+    sp.set_defaults(func=cmd_trace)
 
     sp = add("dashboard", cmd_dashboard, "open the browser dashboard")
     sp.add_argument("--port", type=int, default=8050)

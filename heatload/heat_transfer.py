@@ -663,6 +663,99 @@ def reservoir_heat_transfer(reservoir, oil_temperature, air_temperature, pressur
         effective_area=a_wet + dry_surface_factor * a_dry + top_factor * a_plate + a_bottom)
 
 
+def barometric_pressure(altitude):
+    """Absolute air pressure at a site altitude, standard atmosphere.
+
+    .. math::  p = 101325 \\,(1 - 2.25577 \\times 10^{-5} z)^{5.25588}
+
+    Parameters
+    ----------
+    altitude : array_like
+        Height above sea level z [m] (troposphere, below 11 km).
+
+    Returns
+    -------
+    ndarray or float
+        [Pa].
+
+    References
+    ----------
+    ISO 2533:1975 (standard atmosphere); the same form in ASHRAE Handbook
+    Fundamentals, Ch. 1, eq. 3.
+
+    Examples
+    --------
+    >>> round(barometric_pressure(1500.0))
+    84556
+    """
+    return 101325.0 * (1.0 - 2.25577e-5 * np.asarray(altitude, float)) ** 5.25588
+
+
+#: Rayleigh ranges the natural-convection correlations were fitted over [-]
+#: (Incropera et al., 7th ed., eqs. 9.26-9.27, 9.30-9.32, 9.34): beyond them the
+#: models extrapolate.
+RAYLEIGH_RANGES = {"vertical": (1e-1, 1e12), "horizontal-up": (1e4, 1e11),
+                   "horizontal-down": (1e4, 1e9), "cylinder": (1e-5, 1e12)}
+
+
+def correlations_out_of_range(reservoir, oil_temperature, air_temperature,
+                              pressure=101325.0) -> list:
+    """Surfaces whose natural-convection correlation is used beyond its published
+    Rayleigh range at this oil and air temperature.
+
+    Ra = g beta (T_s - T_a) L^3 / (nu alpha), air at the film temperature, with the
+    lengths and orientations of :func:`reservoir_heat_transfer` (a face colder
+    than the air takes the opposite plate correlation).
+
+    Parameters
+    ----------
+    reservoir : heatload.model.Reservoir
+    oil_temperature, air_temperature : float
+        [K].
+    pressure : float, optional
+        Absolute air pressure [Pa].
+
+    Returns
+    -------
+    list of (str, float, float, float)
+        ``(surface, Ra, low, high)`` for each surface outside its range
+        (:data:`RAYLEIGH_RANGES`); empty when all are inside, when a user
+        coefficient replaces convection, or when oil and air are at one
+        temperature (no natural convection to speak of).
+
+    References
+    ----------
+    Incropera et al., Fundamentals of Heat and Mass Transfer, 7th ed., Sec. 9.6.
+    """
+    ts, ta = float(oil_temperature), float(air_temperature)
+    r = reservoir
+    if ts == ta:
+        return []
+    parts = []
+    if r.heat_transfer_coefficient is None:
+        plate = r.length * r.width / (2.0 * (r.length + r.width))
+        parts.append(("tank walls", "vertical", r.oil_level * r.height))
+        parts.append(("tank lid", "horizontal-up", plate))
+        if r.bottom_exposed:
+            parts.append(("tank bottom", "horizontal-down", plate))
+    for s in r.surfaces:
+        if s.heat_transfer_coefficient is None:
+            parts.append((s.name, s.orientation, s.characteristic_length))
+    swap = {"horizontal-up": "horizontal-down", "horizontal-down": "horizontal-up"}
+    film = 0.5 * (ts + ta)
+    air = air_properties(film, pressure)
+    out = []
+    for name, orientation, length in parts:
+        if ts < ta:                                # a cold face: the stable and unstable cases swap
+            orientation = swap.get(orientation, orientation)
+        ra = float(rayleigh(grashof(air.expansion, abs(ts - ta), length,
+                                    air.kinematic_viscosity), air.prandtl))
+        low, high = RAYLEIGH_RANGES[orientation]
+        if not low <= ra <= high:
+            out.append((name, ra, low, high))
+    return out
+
+
 def reservoir_conductance(reservoir, oil_temperature, air_temperature, pressure=101325.0,
                           dry_surface_factor=DRY_SURFACE_FACTOR):
     """Overall conductance UA [W/K] from the oil to the ambient air.

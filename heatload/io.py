@@ -58,8 +58,8 @@ __all__ = [
 
 SCHEMA_EXAMPLE = '''\
 # A heatload duty-cycle file.  Quantities are strings with a unit ("160 bar",
-# "40 L/min", "35 degC", "1450 rpm"); efficiencies, counts and factors are plain
-# numbers.  Only [scenario], [[actuators]] and [[phases]] are required; every
+# "40 L/min", "35 degC", "1450 rpm"): one number with a decimal point, then the
+# unit; efficiencies, counts and factors are plain numbers.  Only [scenario], [[actuators]] and [[phases]] are required; every
 # other table and key has the default shown here.  Pressures are gauge.
 
 [scenario]
@@ -314,6 +314,17 @@ low = "35 degC"
 high = "45 degC"
 mode = "40 degC"
 relative = false
+
+# Air-oil coolers on offer, by their datasheet curves (any number; `heatload
+# cooler` rates each on the hottest day and picks the smallest that holds).
+# specific_power: specific cooling power at the ETD against oil flow;
+# pressure_drop (optional): oil-side drop against flow at pressure_drop_viscosity.
+[[coolers]]
+name = "AO-2 (invented)"
+specific_power = [["10 L/min", "21 W/K"], ["20 L/min", "29 W/K"], ["40 L/min", "35 W/K"]]
+pressure_drop = [["10 L/min", "0.06 bar"], ["40 L/min", "0.55 bar"]]
+pressure_drop_viscosity = "30 mm^2/s"
+fan_power = "60 W"
 '''
 
 
@@ -415,7 +426,7 @@ _FLUID = {
     "nu100": _F("kinematic_viscosity", "pos"),
     "viscosity_index": _F("dimensionless", low=-100.0, high=500.0),
     "density_15C": _F("density", "pos", low=500.0),
-    "expansion_coefficient": _F("expansion_coefficient", "pos"),
+    "expansion_coefficient": _F("expansion_coefficient", "nonneg"),
     "bulk_modulus": _F("bulk_modulus", "pos", low=1e8),
     "specific_heat": _F("specific_heat", "pos", low=500.0),
     "thermal_conductivity": _F("thermal_conductivity", "pos"),
@@ -482,7 +493,7 @@ _RELIEF = {
 }
 _DIRECTIONAL = {
     "rated_flow": _F("flow", "pos"),
-    "pressure_drop": _F("pressure", "pos"),
+    "pressure_drop": _F("pressure", "nonneg"),      # 0: an ideal valve, for hand checks
     "centre": _F("choice", choices=("open", "tandem", "closed")),
     "centre_pressure_drop": _F("pressure", "nonneg"),
     "max_pressure": _F("pressure", "pos"),
@@ -493,7 +504,7 @@ _CHECK = {
     "pressure_drop": _F("pressure", "nonneg"),
 }
 _LINE = {
-    "length": _F("distance", "pos"),
+    "length": _F("distance", "nonneg"),             # 0: fittings only, or no line
     "inner_diameter": _F("length", "pos", high=0.5),
     "roughness": _F("length", "nonneg"),
     "fittings_k": _F("dimensionless", "nonneg", high=1000.0),
@@ -581,7 +592,7 @@ _UNCERTAINTY = {
 }
 _TOP = ("scenario", "economics", "fluid", "ambient", "reservoir", "power_unit",
         "actuators", "phases", "strategy_defaults", "strategies", "cooler",
-        "uncertainty")
+        "uncertainty", "coolers")
 _ARRAYS = ("actuators", "phases", "strategies", "uncertainty")
 
 
@@ -1232,10 +1243,13 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
              "actuator_kind": {a.name: a.kind for a in actuators}}
     uncertainty = (_uncertainty(data["uncertainty"], parts, source)
                    if "uncertainty" in data else ())
+    # datasheet coolers: their format lives with their physics
+    from heatload.cooler_datasheet import coolers_from_toml
+    coolers = coolers_from_toml(data["coolers"], source) if "coolers" in data else ()
     scenario = m.Scenario(name=head["name"], phases=phases, actuators=actuators,
                           strategies=strategies, fluid=fluid, ambient=ambient,
                           reservoir=reservoir, power_unit=power_unit, economics=economics,
-                          cooler=cooler, uncertainty=uncertainty, **{
+                          cooler=cooler, uncertainty=uncertainty, coolers=coolers, **{
                               k: v for k, v in head.items() if k != "name"})
     _check_phase_durations(scenario, source)
     _check_cooler_design(scenario, "cooler" in data and "oil_temperature_max" in data["cooler"],
@@ -1642,6 +1656,9 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
         unc.append(item)
     if unc:
         d["uncertainty"] = unc
+    if s.coolers:
+        from heatload.cooler_datasheet import coolers_to_toml
+        d["coolers"] = coolers_to_toml(s.coolers)
     return d
 
 

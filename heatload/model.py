@@ -351,6 +351,9 @@ class Scenario:
     shift_duration: float = 8 * 3600.0
     #: uncertain inputs (:class:`UncertainInput` items)
     uncertainty: tuple = ()
+    #: air-oil coolers given by their datasheet curves
+    #: (:class:`heatload.cooler_datasheet.DatasheetCooler` items)
+    coolers: tuple = ()
 
     def actuator(self, name: str):
         """The actuator called *name* (``KeyError`` when there is none)."""

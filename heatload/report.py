@@ -165,8 +165,13 @@ def payback_rows(data, present, prices=None) -> list:
     rows = []
     for r in data["strategies"]:
         saving = base["cost_per_year"] - r["cost_per_year"]
+        # prices are extra prices over the present circuit: the present one's is 0
+        # unless the file gives both on one footing
         p, p0 = price[r["label"]], price[present]
-        extra = (p - p0) if (p is not None and p0 is not None) else None
+        p0 = 0.0 if p0 is None else p0
+        if r["label"] == present:
+            p = p0
+        extra = (p - p0) if p is not None else None
         if extra is None:
             years = None
         elif extra <= 0:

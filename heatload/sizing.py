@@ -535,6 +535,10 @@ def run_cli(args) -> int:
         rec = sizing_record(sz, unc)
         rec["scenario"] = sc.name
         rec["file"] = str(path)
+        if sc.coolers:
+            from heatload import cooler_datasheet
+            rec["datasheet_coolers"] = cooler_datasheet.selection_record(
+                cooler_datasheet.rate_coolers(sc, outcome))
         print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
                          default=lambda v: None))
         return 0
@@ -609,5 +613,8 @@ def run_cli(args) -> int:
         print(unc["note"])
     for n in sz.notes:
         print(f"  note: {n}")
+    if sc.coolers:      # datasheet coolers listed in the file ([[coolers]])
+        from heatload import cooler_datasheet
+        cooler_datasheet.print_selection(cooler_datasheet.rate_coolers(sc, outcome), s)
     print(sz.caution + " Machine-safety standards for hydraulic systems (e.g. ISO 4413) apply.")
     return 0

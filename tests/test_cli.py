@@ -195,6 +195,20 @@ def test_check_shows_a_given_motor_efficiency(tmp_path, capsys):
     assert "IE3" in capsys.readouterr().out
 
 
+def test_check_of_a_power_tower_answers_at_once():
+    """'10**10**8 bar' once kept `heatload check` busy for minutes (pint evaluated
+    the arithmetic); now it is one line naming file, line and field.  The timeout
+    is a hang guard, not a benchmark."""
+    bad = Path(__file__).parent / "data" / "bad" / "quantity_power_tower.toml"
+    r = subprocess.run([sys.executable, "-m", "heatload.cli", "check", str(bad)],
+                       capture_output=True, text=True, timeout=60)
+    assert r.returncode == 2
+    lines = r.stderr.strip().splitlines()
+    assert len(lines) == 1
+    assert "quantity_power_tower.toml:29: power_unit.relief.cracking_pressure" in lines[0]
+    assert "no arithmetic" in lines[0]
+
+
 # --- fits a terminal: 80 columns, plain numbers, counts in English ------------------
 
 def _lines_of(argv, capsys, monkeypatch, columns="80"):

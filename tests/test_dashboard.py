@@ -163,7 +163,8 @@ def test_invalid_value_is_flagged_at_its_cell_and_results_stay(base, examples):
     assert "phase 3 'forming', speed" in text and "12 kg" in text
 
 
-@pytest.mark.parametrize("text", ["fast", "1e999", "--3", "3 mm/s/s"])
+@pytest.mark.parametrize("text", ["fast", "1e999", "--3", "3 mm/s/s", "9**9**9", "10**10**8 m/s",
+                                  "0,5 m/s", "2 3 m/s"])
 def test_unparsable_speeds_are_refused(base, examples, text):
     rows = _rows(base)
     rows[1]["speed"] = text
@@ -178,6 +179,17 @@ def test_validation_errors_from_the_engine_reach_the_field(base, examples):
     out = _edit(base, examples, rows)
     assert out["results"] is no_update
     assert [r for r, _ in _flagged(out["phase_styles"])] == [2]
+
+
+def test_a_power_tower_in_a_key_field_is_refused_at_once(base, examples):
+    """Typing 9**9**9 into a key field once froze the server for every browser."""
+    import time
+    keys = list(base["form"]["key_values"])
+    keys[0] = "9**9**9"
+    t0 = time.perf_counter()
+    out = _edit(base, examples, keys=keys)
+    assert time.perf_counter() - t0 < 10.0     # hang guard, not a benchmark
+    assert out["results"] is no_update and "no arithmetic" in out["key_errors"][0]
 
 
 def test_key_number_error_and_fix(base, examples):

@@ -251,3 +251,37 @@ def test_import_stays_light():
             "print('CoolProp' in sys.modules or 'scipy' in sys.modules)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_barometric_pressure_of_the_standard_atmosphere():
+    # ISO 2533 standard atmosphere: 101.325 kPa at sea level, 89.876 kPa at 1000 m,
+    # 79.501 kPa at 2000 m (tabulated values)
+    from heatload.heat_transfer import barometric_pressure
+    assert barometric_pressure(0.0) == pytest.approx(101325.0, rel=1e-12)
+    assert barometric_pressure(1000.0) == pytest.approx(89876.0, rel=2e-4)
+    assert barometric_pressure(2000.0) == pytest.approx(79501.0, rel=2e-4)
+
+
+def test_a_big_tank_bottom_beyond_its_correlation_is_named():
+    """The hot-face-down plate correlation is published for 1e4 <= Ra <= 1e9
+    (Incropera et al., 7th ed., eq. 9.32).  Ra = g beta dT L^3 / (nu alpha), by hand
+    with the air's properties at the film temperature; a 6 m x 5 m tank bottom
+    (L = A/P = 1.36 m) 40 K above the air is far beyond 1e9 and must be named."""
+    import dataclasses
+
+    from heatload import io
+    from heatload.heat_transfer import air_properties, correlations_out_of_range
+    r = io.load_scenario(io.default_scenario_path()).reservoir
+    big = dataclasses.replace(r, length=6.0, width=5.0, bottom_exposed=True, surfaces=())
+    ts, ta = 338.15, 298.15
+    air = air_properties(0.5 * (ts + ta))
+    L = 30.0 / 22.0
+    ra_hand = 9.80665 * (1 / 318.15) * 40.0 * L**3 / (air.kinematic_viscosity
+                                                       * air.kinematic_viscosity / air.prandtl)
+    found = {name: (ra, lo, hi) for name, ra, lo, hi in correlations_out_of_range(big, ts, ta)}
+    assert set(found) == {"tank bottom"}
+    ra, lo, hi = found["tank bottom"]
+    assert (lo, hi) == (1e4, 1e9)
+    assert ra == pytest.approx(ra_hand, rel=1e-3)     # beta = 1/T_film (ideal gas)
+    # the default tank is inside every range
+    assert correlations_out_of_range(r, ts, ta) == []

@@ -216,6 +216,22 @@ def test_payback_by_hand(built):
     assert report.parse_prices(["load-sensing=4200"], sc) == {"load-sensing": 4200.0}
 
 
+def test_a_price_given_alone_is_the_extra_price_over_the_present(built):
+    """`--price X=...` alone once gave "no price is known": the present circuit's
+    extra price over itself is 0 by definition, so X's price is its extra price."""
+    p = io.default_scenario_path()
+    data = built[p][2]["data"]
+    data = dict(data, strategies=[dict(r, price=None) for r in data["strategies"]])
+    rows = {r["strategy"]: r for r in report.payback_rows(data, "meter-in",
+                                                          {"variable-speed": 6000.0})}
+    assert rows["meter-in"]["extra_price"] == 0.0
+    assert rows["variable-speed"]["extra_price"] == 6000.0
+    saving = rows["variable-speed"]["cost_saving_per_year"]
+    assert saving > 0
+    assert rows["variable-speed"]["payback_years"] == pytest.approx(6000.0 / saving, rel=1e-12)
+    assert rows["load-sensing"]["extra_price"] is None
+
+
 def test_print_stylesheet(built):
     text = next(iter(built.values()))[3]
     css = re.search(r"<style>(.*?)</style>", text, re.S).group(1)

@@ -1,0 +1,74 @@
+"""Time of reading and fitting temperature logs of growing length, and the
+exact solution's closed-form recurrence against a plain Python loop over the
+same samples (the one-step formula), measured side by side.
+
+Synthetic logs (made here, invented values): a shift with a break and a
+cool-down sampled every 60 s, 10 s and 1 s, noise 0.2 K.
+
+    .venv/bin/python benchmarks/bench_logfit.py
+"""
+
+from __future__ import annotations
+
+import math
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+
+import numpy as np  # noqa: E402
+
+from heatload import logfit, measured  # noqa: E402
+
+K0 = 273.15
+C, UA, P = 600e3, 55.0, 4000.0
+
+
+def synthetic(step):
+    rng = np.random.default_rng(1)
+    t = np.arange(0.0, 16 * 3600.0, step)
+    ta = K0 + 18 + 6 * np.sin(np.pi * t / 86400)
+    run = ((t < 4 * 3600) | ((t >= 4.5 * 3600) & (t < 9 * 3600))).astype(float)
+    y = logfit.tank_temperatures(t, ta, run, P / C, UA / C, K0 + 15) + rng.normal(0, 0.2, t.size)
+    return t, y, ta, run
+
+
+def loop(t, ta, run, q, k, t0):
+    out = [t0]
+    for i in range(len(t) - 1):
+        h = t[i + 1] - t[i]
+        inf = q * run[i] / k - (ta[i + 1] - ta[i]) / h / k
+        th = out[-1] - ta[i]
+        out.append(ta[i + 1] + inf + (th - inf) * math.exp(-k * h))
+    return out
+
+
+def main():
+    print(f"{'step':>6} {'rows':>8} {'read [s]':>9} {'fit [s]':>8} {'model [ms]':>11} "
+          f"{'loop [ms]':>10} {'ratio':>6}")
+    with tempfile.TemporaryDirectory() as d:
+        for step in (60.0, 10.0, 1.0):
+            t, y, ta, run = synthetic(step)
+            path = Path(d) / f"log_{int(step)}.csv"
+            lines = ["time [s],oil [degC],ambient [degC],running"]
+            lines += [f"{a:.0f},{b - K0:.3f},{c - K0:.3f},{int(r)}" for a, b, c, r in
+                      zip(t, y, ta, run)]
+            path.write_text("\n".join(lines))
+            t0 = time.perf_counter()
+            log = measured.read_temperature_log(path)
+            t1 = time.perf_counter()
+            measured.fit_log(log, C)
+            t2 = time.perf_counter()
+            logfit.tank_temperatures(t, ta, run, P / C, UA / C, K0 + 15)
+            t3 = time.perf_counter()
+            loop(t, ta, run, P / C, UA / C, K0 + 15)
+            t4 = time.perf_counter()
+            print(f"{step:>6.0f} {t.size:>8} {t1 - t0:>9.2f} {t2 - t1:>8.2f} "
+                  f"{1e3 * (t3 - t2):>11.2f} {1e3 * (t4 - t3):>10.1f} "
+                  f"{(t4 - t3) / (t3 - t2):>6.0f}")
+
+
+if __name__ == "__main__":
+    main()
