@@ -64,11 +64,19 @@ def _num(value, kind, system, digits=3):
     return plain_number(from_si(value, kind, unit) if unit else float(value), digits)
 
 
+#: Width of this run's tables (set by :func:`main`): "terminal", or None with --wide.
+_output_width = "terminal"
+
+
 def _table(headers, rows, width="auto", optional=()):
-    """A text table fitted to *width* columns (the terminal's by default; ``None``
-    for every column): the *optional* headers are left out in that order."""
+    """A text table fitted to *width* columns (by default this run's: the
+    terminal's, or every column with ``--wide``; ``None`` for every column):
+    the *optional* headers are left out in that order."""
     from heatload.tables import format_table, terminal_width
-    return format_table(headers, rows, terminal_width() if width == "auto" else width, optional)
+    if width == "auto":
+        width = _output_width
+    return format_table(headers, rows, terminal_width() if width == "terminal" else width,
+                        optional)
 
 
 CAUTION = ("Estimates for early design. Component makers' data, machine-safety standards "
@@ -471,12 +479,16 @@ def main(argv=None) -> int:
     if not getattr(args, "command", None):
         parser.print_help()
         return 0
+    global _output_width
     json_mode = bool(getattr(args, "json", False))
     if getattr(args, "wide", False) or json_mode:
-        args.width = None
+        args.width = _output_width = None
+    elif not hasattr(args, "wide"):
+        # a command without --wide may print a file (a draft TOML): its lines stay whole
+        args.width, _output_width = None, "terminal"
     else:
         from heatload.tables import terminal_width
-        args.width = terminal_width()
+        args.width = _output_width = terminal_width()
     stdout = sys.stdout
     sys.stdout = _TerminalText(stdout, json_mode=json_mode, width=args.width)
     try:
@@ -503,6 +515,7 @@ def main(argv=None) -> int:
         except BrokenPipeError:
             pass
         sys.stdout = stdout
+        _output_width = "terminal"
 
 
 if __name__ == "__main__":
