@@ -97,18 +97,48 @@ def make_app(scenario_path=None) -> Dash:
     return app
 
 
+#: Bounds of ``--threads``: one is enough for one person; past 64 the two or
+#: four cores of a typical server only queue the work.
+THREADS = (1, 64)
+
+
+def serve(app, host="127.0.0.1", port=8050, threads=8):
+    """Serve *app* with waitress, a production WSGI server in pure Python (no
+    compiler, runs on Windows and Linux alike).  The server holds no session
+    state (every browser keeps its scenario and results in the page), so any
+    number of people share one process; *threads* bounds how many recomputes
+    run at once."""
+    make_server(app, host, port, threads).run()
+
+
+def make_server(app, host="127.0.0.1", port=8050, threads=8):
+    """The waitress server of :func:`serve`, bound but not yet running
+    (``.run()`` serves until stopped, ``.close()`` stops; port 0 picks a free one)."""
+    from waitress import create_server
+    return create_server(app.server, host=host, port=port, threads=threads,
+                         ident="heatload", max_request_body_size=layout.MAX_REQUEST_BYTES)
+
+
 def run_cli(args) -> int:
-    """``heatload dashboard [FILE] [--port N] [--host H] [--debug]``."""
+    """``heatload dashboard [FILE] [--port N] [--host H] [--threads N] [--debug]``."""
     file = getattr(args, "file", None) or getattr(args, "scenario", None)
     host = getattr(args, "host", None) or "127.0.0.1"
     port = int(getattr(args, "port", None) or 8050)
+    threads = getattr(args, "threads", None)
+    threads = 8 if threads is None else int(threads)
     debug = bool(getattr(args, "debug", False))
     if not 0 < port < 65536:
         raise HeatloadError(f"expected a port 1..65535, got {port}", field="--port")
+    if not THREADS[0] <= threads <= THREADS[1]:
+        raise HeatloadError(f"expected {THREADS[0]}..{THREADS[1]} threads, got {threads}",
+                            field="--threads")
     app = make_app(file)
     if host not in LOOPBACK:
         print(f"warning: serving on {host}: the dashboard is reachable from other machines "
               "on that network; it has no login.", file=sys.stderr)
     print(f"heatload dashboard on http://{host}:{port}/  (Ctrl+C stops it)", file=sys.stderr)
-    app.run(host=host, port=port, debug=debug)
+    if debug:
+        app.run(host=host, port=port, debug=True)
+    else:
+        serve(app, host, port, threads)
     return 0

@@ -91,8 +91,14 @@ class Comparison:
         raise KeyError(name)
 
     def ranked(self) -> list:
-        """Outcomes by electric energy per year, lowest first."""
-        return sorted(self.outcomes, key=lambda o: float(o.energy.electric_energy_per_year))
+        """Outcomes in the order of :func:`heatload.decision.decide`: feasible
+        first, then by yearly cost of ownership."""
+        return [self.outcome(n) for n in self.decision().order]
+
+    def decision(self, present=None, prices=None):
+        """The :class:`heatload.decision.Decision` of this comparison."""
+        from heatload import decision
+        return decision.decide(self, present, prices)
 
 
 def design_oil_temperature(scenario: Scenario) -> float:

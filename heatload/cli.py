@@ -112,6 +112,7 @@ def cmd_compare(args):
                f"oil, no\ncooler [{_unit('temperature', s)}]",
                f"cooler\n[{_unit('power', s)}]", peak, eff, "warnings"]
     rows = []
+    dec = cmp.decision()
     for i, o in enumerate(cmp.ranked(), 1):
         e, th = o.energy, o.thermal
         codes = sorted({w.code for w in o.warnings})
@@ -124,6 +125,14 @@ def cmd_compare(args):
                      ", ".join(codes) if codes else "-"])
     # key columns first; the warnings are listed in full below the table
     print(_table(headers, rows, args.width, optional=("warnings", eff, co2, peak)))
+    print()
+    print(dec.sentence())
+    print("Ranked feasible first, then by yearly cost of ownership (energy, cooler fan, "
+          "annualised circuit and cooler price):")
+    for v in dec.verdicts:
+        print(f"  {v.rank}. {v.name}: {v.reason}")
+    for n in dec.notes:
+        print(f"  note: {n}")
     print()
     for o in cmp.ranked():
         for w in o.warnings:
@@ -360,6 +369,12 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--samples", type=int, default=2000,
                     help="Monte Carlo samples for the cooler duty (default 2000)")
     sp.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
+    for opt, what in (("--project", "project"), ("--customer", "customer"),
+                      ("--prepared-by", "who prepared it"), ("--revision", "revision"),
+                      ("--date", "date (default today)")):
+        sp.add_argument(opt, default=None, help=f"the report cover's {what}; default the "
+                        "scenario file's [scenario] key" if opt != "--date" else
+                        f"the report cover's {what}")
 
     sp = add("sweep", cmd_sweep, "evaluate a grid or sample of design variants at array speed")
     sp.add_argument("--vary", action="append", default=[], metavar="PATH=LOW..HIGH:N",
@@ -427,7 +442,12 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--host", default="127.0.0.1",
                     help="interface to bind (default 127.0.0.1; anything else is reachable "
                          "from the network)")
-    sp.add_argument("--debug", action="store_true", help="Dash debug mode (never on a shared machine)")
+    sp.add_argument("--threads", type=int, default=8,
+                    help="worker threads of the production server (default 8: about one per "
+                         "person working at the same time; each recompute takes a few "
+                         "seconds of one core)")
+    sp.add_argument("--debug", action="store_true",
+                    help="Dash's development server in debug mode (never on a shared machine)")
     return p
 
 

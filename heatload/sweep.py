@@ -304,20 +304,25 @@ def run_cli(args) -> int:
              "uncoupled (--coupled for the self-consistent one)"), file=out)
     top = args.top if args.top is not None else 10
     width = getattr(args, "width", None)
-    # Rank by energy per cycle (per part made: a slower variant makes fewer
-    # parts in the same hours, so yearly energy alone would flatter it), and put
-    # variants that stall, miss their speeds, run away or exceed a rating last.
-    bad_cols = [c for c in df.columns if c in (
-        "warnings_stall", "warnings_speed-not-reached", "warnings_runaway",
-        "warnings_pressure-rating", "warnings_motor-overload")]
-    flawed = (df[bad_cols].sum(axis=1).to_numpy() > 0) if bad_cols else np.zeros(len(df), bool)
+    # The decision rule (heatload.decision): feasible first, then yearly cost of
+    # ownership per cycle (per part made: a slower variant makes fewer parts in
+    # the same hours, so a yearly figure alone would flatter it).
+    from heatload import decision
+    flawed = ~decision.feasible_counts(
+        {c[len("warnings_"):]: df[c].to_numpy() for c in df.columns if c.startswith("warnings_")})
     energy = df["electric_energy_per_cycle_J"].to_numpy()
-    ranked = np.lexsort((energy, flawed))
+    price = df["strategy"].map({s.name: s.parameters.price for s in strategies}).to_numpy(float)
+    hours = (df["economics.hours_per_year"].to_numpy() if "economics.hours_per_year" in df
+             else scenario.economics.hours_per_year)
+    cycles = hours * 3600.0 / df["cycle_time_s"].to_numpy()
+    cost = decision.variant_yearly_cost(df["cost_per_year"].to_numpy(),
+                                        df["cooler_duty_W"].to_numpy(), price, scenario)
+    ranked = decision.rank_order(~flawed, cost / np.where(cycles > 0, cycles, np.nan))
     if top:
         order = ranked[:top]
-        print(f"\nbest {len(order)} by electric energy per cycle (variants that stall, miss a "
-              f"speed, run away or exceed a rating last; {int(flawed.sum()):,} of "
-              f"{len(df):,} do):", file=out)
+        print(f"\nbest {len(order)} by yearly cost of ownership per cycle (feasible first: "
+              f"{int(flawed.sum()):,} of {len(df):,} stall, miss a speed, run away, exceed a "
+              f"rating or overload the motor):", file=out)
         _show(df, specs, system, order, out, width)
     clean = np.nonzero(~flawed)[0]
     front = clean[pareto_front(energy[clean], df["cooler_duty_W"].to_numpy()[clean])]

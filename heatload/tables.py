@@ -107,11 +107,23 @@ def strategy_record(outcome, scenario, pa, with_phases=True) -> dict:
     return rec
 
 
-def comparison_dict(cmp, source=None, with_phases=True) -> dict:
-    """The whole comparison as JSON-ready data (``heatload compare --json``)."""
+def comparison_dict(cmp, source=None, with_phases=True, present=None, prices=None) -> dict:
+    """The whole comparison as JSON-ready data (``heatload compare --json``).
+
+    ``recommended``, ``ranking`` and each strategy's ``feasible``, ``rank``,
+    ``reason`` and ``yearly_cost`` come from :func:`heatload.decision.decide`."""
     from heatload.energy import J_PER_KWH
     sc = cmp.scenario
-    ranked = cmp.ranked()
+    dec = cmp.decision(present, prices)
+    ranked = [cmp.outcome(n) for n in dec.order]
+    records = []
+    for o in cmp.outcomes:
+        rec = strategy_record(o, sc, cmp.phase_arrays, with_phases)
+        v = dec.verdict(o.name)
+        rec.update({"feasible": v.feasible, "rank": v.rank, "reason": v.reason,
+                    "yearly_cost": {k: _f(x) for k, x in v.cost.as_dict().items()},
+                    "yearly_cost_total": _f(v.cost.total)})
+        records.append(rec)
     return {
         "scenario": {
             "name": sc.name, "file": str(source) if source else None,
@@ -125,9 +137,10 @@ def comparison_dict(cmp, source=None, with_phases=True) -> dict:
                                          if ranked else None),
             "present_strategy": sc.economics.present_strategy,
         },
+        "recommended": dec.recommended,
+        "decision": {k: v for k, v in dec.as_dict().items() if k != "ranking"},
         "ranking": [o.name for o in ranked],
-        "strategies": [strategy_record(o, sc, cmp.phase_arrays, with_phases)
-                       for o in cmp.outcomes],
+        "strategies": records,
     }
 
 
@@ -136,9 +149,13 @@ def strategy_frame(cmp):
     import pandas as pd
 
     rows = []
+    dec = cmp.decision()
     for o in cmp.outcomes:
         rec = strategy_record(o, cmp.scenario, cmp.phase_arrays, with_phases=False)
         rec.pop("component_energy_per_cycle_J")
+        v = dec.verdict(o.name)
+        rec.update({"rank": v.rank, "feasible": v.feasible,
+                    "yearly_cost_total": v.cost.total, "reason": v.reason})
         # "whole cycle" as the command line says, not "-": a text cell that
         # begins with "-" reads as a formula in a spreadsheet
         rec["warnings"] = "; ".join(f"{w['phase'] or 'whole cycle'}: {w['code']}"
