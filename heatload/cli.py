@@ -156,6 +156,8 @@ def cmd_check(args):
                   f"{_fmt(a.rod, 'length', s)} x {_fmt(a.stroke, 'distance', s)}")
     print(f"  {len(sc.phases)} phases: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
     print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
+    if sc.coolers:
+        print(f"  datasheet coolers: " + ", ".join(c.name for c in sc.coolers))
     return 0
 
 

@@ -32,8 +32,14 @@ from heatload.errors import HeatloadError
 
 K0 = 273.15
 
-#: Columns of a temperature log (README, "Measured logs").
+#: What the given heat capacity does to the results (said with every fit that uses one).
+CAPACITY_NOTE = ("P and UA are proportional to the heat capacity C, which is given, not "
+                 "fitted: a C 10 % high makes both 10 % high; the time constant and P/UA "
+                 "come from the log alone.")
+
+
 def log_columns():
+    """Columns of a temperature log (README, "Measured logs")."""
     from heatload.logs import ColumnSpec
     return {"time": ColumnSpec(("time",), "time", True, "s"),
             "oil": ColumnSpec(("oil",), "temperature", True, "degC"),
@@ -214,6 +220,8 @@ def print_text(log, fit, comparison, system, capacity_source):
              if fit.interval_widening > 1.0 else ""))
     for n in fit.notes:
         print(f"  ! {n}")
+    if fit.capacity is not None:
+        print(CAPACITY_NOTE)
     if comparison is not None:
         c = comparison
         print(f"\nAgainst the scenario ({c['strategy']}, the present circuit), oil at "
@@ -318,7 +326,8 @@ def build_html(log, fit, comparison, system="si", capacity_source="given") -> st
             f"<table><thead><tr><th>quantity</th><th class='num'>fitted</th>"
             f"<th class='num'>{100 * fit.confidence:.0f} % interval</th><th></th></tr></thead>"
             f"<tbody>{rows}</tbody></table>"
-            + (f"<ul>{notes}</ul>" if notes else "") + comp
+            + (f"<ul>{notes}</ul>" if notes else "")
+            + (f"<p>{e(CAPACITY_NOTE)}</p>" if fit.capacity is not None else "") + comp
             + f"<div class='figure'>{div}</div><div class='caution'>{e(CAUTION)}</div>")
     return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
             f"<title>Temperature log fit — {e(log.source)}</title>"
@@ -368,7 +377,8 @@ def run_logfit(args) -> int:
         rec = logfit.fit_record(fit, source)
         rec.update(file=str(args.log), columns=dict(log.headers), units=dict(log.units),
                    start=log.start.isoformat() if log.start else None,
-                   scenario=comparison, caution=CAUTION)
+                   scenario=comparison, caution=CAUTION,
+                   heat_capacity_note=CAPACITY_NOTE if fit.capacity is not None else None)
         print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
                          default=_json_default))
         return 0
