@@ -165,8 +165,10 @@ def _iv(pair, kind, system, digits=3):
     for d in range(digits, 7):
         vals = []
         for v in pair:
-            if v is None or not math.isfinite(v):
-                vals.append("∞" if v is not None and v > 0 else "–")
+            if v is None or math.isnan(v):
+                vals.append("–")
+            elif not math.isfinite(v):
+                vals.append("∞" if v > 0 else "−∞")
             else:
                 vals.append(format_number(float(from_si(v, kind, unit)), d))
         if vals[0] != vals[1]:
@@ -182,7 +184,7 @@ def summary_rows(fit, system="si", capacity_source="given") -> list:
         return "identified" if fit.identified.get(key, True) else "NOT identified"
     rows = [("heat into the oil while running, P", _q(fit.heat, "power", system),
              _iv(fit.intervals.get("heat"), "power", system),
-             status("heat") if fit.heat is not None else "needs the heat capacity"),
+             status("heat") if fit.capacity is not None else "needs the heat capacity"),
             ("conductance to the air, UA", _q(fit.conductance, "thermal_conductance", system, 3),
              _iv(fit.intervals.get("conductance"), "thermal_conductance", system),
              status("conductance") if fit.conductance is not None
