@@ -12,12 +12,43 @@ import sys
 from pathlib import Path
 
 from dash import Dash
+from dash.exceptions import DependencyException
 
 from . import callbacks, layout, logfit_view
 from heatload import io
 from heatload.errors import HeatloadError
 
 LOOPBACK = ("127.0.0.1", "localhost", "::1")
+
+#: Headers on every answer.  The page loads nothing from another origin and may not
+#: be framed (clickjacking); Dash's renderer starts from an inline script and
+#: plotly styles elements inline, hence 'unsafe-inline' for those two only.
+SECURITY_HEADERS = {
+    "Content-Security-Policy": (
+        "default-src 'self'; script-src 'self' 'unsafe-inline' 'unsafe-eval'; "
+        "style-src 'self' 'unsafe-inline'; img-src 'self' data: blob:; "
+        "font-src 'self' data:; connect-src 'self'; object-src 'none'; "
+        "base-uri 'self'; form-action 'self'; frame-ancestors 'none'"),
+    "X-Content-Type-Options": "nosniff",
+    "X-Frame-Options": "DENY",
+    "Referrer-Policy": "no-referrer",
+}
+
+
+def _harden(server) -> None:
+    """Security headers on every answer; a request for a file the app does not
+    serve (e.g. a path-traversal attempt) is a 404, not a server error."""
+
+    @server.after_request
+    def _headers(response):
+        for name, value in SECURITY_HEADERS.items():
+            response.headers.setdefault(name, value)
+        return response
+
+    def _not_found(_error):
+        return "not found", 404
+
+    server.register_error_handler(DependencyException, _not_found)
 
 
 def scenario_choices(scenario_path=None):
@@ -58,6 +89,7 @@ def make_app(scenario_path=None) -> Dash:
                suppress_callback_exceptions=False, serve_locally=True)
     app.index_string = layout.INDEX
     app.server.config["MAX_CONTENT_LENGTH"] = layout.MAX_REQUEST_BYTES
+    _harden(app.server)
     # a function: every page load starts a fresh session from the opened file
     app.layout = lambda: layout.make_layout(initial)
     callbacks.register(app, examples)
@@ -65,18 +97,48 @@ def make_app(scenario_path=None) -> Dash:
     return app
 
 
+#: Bounds of ``--threads``: one is enough for one person; past 64 the two or
+#: four cores of a typical server only queue the work.
+THREADS = (1, 64)
+
+
+def serve(app, host="127.0.0.1", port=8050, threads=8):
+    """Serve *app* with waitress, a production WSGI server in pure Python (no
+    compiler, runs on Windows and Linux alike).  The server holds no session
+    state (every browser keeps its scenario and results in the page), so any
+    number of people share one process; *threads* bounds how many recomputes
+    run at once."""
+    make_server(app, host, port, threads).run()
+
+
+def make_server(app, host="127.0.0.1", port=8050, threads=8):
+    """The waitress server of :func:`serve`, bound but not yet running
+    (``.run()`` serves until stopped, ``.close()`` stops; port 0 picks a free one)."""
+    from waitress import create_server
+    return create_server(app.server, host=host, port=port, threads=threads,
+                         ident="heatload", max_request_body_size=layout.MAX_REQUEST_BYTES)
+
+
 def run_cli(args) -> int:
-    """``heatload dashboard [FILE] [--port N] [--host H] [--debug]``."""
+    """``heatload dashboard [FILE] [--port N] [--host H] [--threads N] [--debug]``."""
     file = getattr(args, "file", None) or getattr(args, "scenario", None)
     host = getattr(args, "host", None) or "127.0.0.1"
     port = int(getattr(args, "port", None) or 8050)
+    threads = getattr(args, "threads", None)
+    threads = 8 if threads is None else int(threads)
     debug = bool(getattr(args, "debug", False))
     if not 0 < port < 65536:
         raise HeatloadError(f"expected a port 1..65535, got {port}", field="--port")
+    if not THREADS[0] <= threads <= THREADS[1]:
+        raise HeatloadError(f"expected {THREADS[0]}..{THREADS[1]} threads, got {threads}",
+                            field="--threads")
     app = make_app(file)
     if host not in LOOPBACK:
         print(f"warning: serving on {host}: the dashboard is reachable from other machines "
               "on that network; it has no login.", file=sys.stderr)
     print(f"heatload dashboard on http://{host}:{port}/  (Ctrl+C stops it)", file=sys.stderr)
-    app.run(host=host, port=port, debug=debug)
+    if debug:
+        app.run(host=host, port=port, debug=True)
+    else:
+        serve(app, host, port, threads)
     return 0

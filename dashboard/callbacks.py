@@ -99,19 +99,26 @@ def error_outputs(errors: list, phase_rows: list, actuator_rows: list) -> dict:
         else:
             items.append(html.Li(f"{field or 'scenario'}: {message}",
                                  **{"data-field": field or ""}))
+    banner = None
     if items:
         items.append(html.Li("The results shown are those of the last valid entry.",
                              className="caution"))
+        n = len(errors)
+        first = errors[0]
+        banner = html.Span([html.B(f"{n} invalid entr{'y' if n == 1 else 'ies'} in the form"),
+                            f" (first: {first[0] or 'scenario'}: {first[1]}). Every number "
+                            "shown is from the last valid entry; fix it in the 'Cycle and "
+                            "machine' tab."], id="error-banner-text")
     return {"phase_styles": list(ACTIVE_CELL) + styles["phases"],
             "phase_tooltips": tips["phases"],
             "actuator_styles": list(ACTIVE_CELL) + styles["actuators"], "actuator_tooltips": tips["actuators"],
-            "key_errors": key_errors, "form_errors": items}
+            "key_errors": key_errors, "form_errors": items, "banner": banner}
 
 
 OUTPUT_KEYS = ("store", "results", "phase_rows", "phase_columns", "actuator_rows",
                "actuator_columns", "phase_styles", "phase_tooltips", "actuator_styles",
                "actuator_tooltips", "key_values", "key_units", "key_errors", "form_errors",
-               "upload_message", "source_label", "upload_contents")
+               "upload_message", "source_label", "upload_contents", "banner")
 
 
 def _blank() -> dict:
@@ -234,9 +241,11 @@ def complete_results(results, tab, strategy, store):
 # views
 # ---------------------------------------------------------------------------
 
-def strategy_choices(store, current):
+def strategy_choices(store, current, results=None):
     """Options of the strategy selector (every strategy of the stored scenario)
-    and the value to keep, else the present circuit, else the first."""
+    and the value to keep, else the recommended one (once the whole comparison
+    of this scenario is known; ``no_update`` until then: the views show the
+    best-ranked strategy meanwhile)."""
     if not store or not store.get("data"):
         raise PreventUpdate
     data = store["data"]
@@ -244,8 +253,12 @@ def strategy_choices(store, current):
     opts = [{"label": n, "value": n} for n in names]
     if current in names:
         return opts, current
-    present = (data.get("economics") or {}).get("present_strategy")
-    return opts, present if present in names else names[0]
+    if results and results.get("complete", True) and compute.matches(results, store):
+        rec = results["comparison"].get("recommended") or (
+            results["comparison"].get("ranking") or [None])[0]
+        if rec in names:
+            return opts, rec
+    return opts, no_update
 
 
 def payback_choices(results, base, candidate):
@@ -264,13 +277,32 @@ def payback_choices(results, base, candidate):
     return opts, base, opts, candidate
 
 
+def _yc(rec, part):
+    return float(((rec or {}).get("yearly_cost") or {}).get(part) or 0.0)
+
+
 def default_extra_price(results, base, candidate):
-    """Price difference of the two circuits from the scenario's strategy prices."""
+    """Extra price of *candidate* over *base*: the circuits' price difference
+    (the scenario's strategy prices) plus the difference of the coolers each
+    needs (:func:`heatload.decision.cooler_price`)."""
     b = figures.strategy_record(results, base)
     c = figures.strategy_record(results, candidate)
     if b is None or c is None:
         return None
-    return float((c.get("price") or 0.0) - (b.get("price") or 0.0))
+    # whole currency units: a price field, not a computed figure
+    return float(round((c.get("price") or 0.0) - (b.get("price") or 0.0)
+                       + _yc(c, "cooler_price") - _yc(b, "cooler_price")))
+
+
+def yearly_saving(results, base, candidate):
+    """Electricity saved a year by *candidate* against *base*, the cooler fans'
+    included [currency/year]."""
+    b = figures.strategy_record(results, base)
+    c = figures.strategy_record(results, candidate)
+    sav = results["savings"].get(base, {}).get(candidate)
+    if sav is None or b is None or c is None:
+        return None
+    return float(sav["cost_saving"]) + _yc(b, "fan") - _yc(c, "fan")
 
 
 def payback_view(results, base, candidate, extra_price, system):
@@ -285,14 +317,14 @@ def payback_view(results, base, candidate, extra_price, system):
     currency = rec.get("currency") or ""
     extra = float(extra_price) if extra_price is not None else (
         default_extra_price(results, base, candidate) or 0.0)
-    yearly = float(sav["cost_saving"])
+    yearly = yearly_saving(results, base, candidate)
     years = float(tables.payback_years(extra, yearly))
     kwh = f"{sav['energy_saving_kWh']:,.0f} kWh"
     if yearly > 0:
         pay = (f"pays back in {years:.1f} years" if np.isfinite(years) else "never pays back")
         text = (f"{candidate} instead of {base} saves {kwh} of electricity and "
-                f"{yearly:,.0f} {currency} a year; an extra price of {extra:,.0f} {currency} "
-                f"{pay}.")
+                f"{yearly:,.0f} {currency} a year (cooler fans included); an extra price of "
+                f"{extra:,.0f} {currency} (circuit and cooler) {pay}.")
     else:
         text = (f"{candidate} does not save energy cost against {base} "
                 f"({-yearly:,.0f} {currency} a year more): no payback.")
@@ -388,13 +420,36 @@ def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
         pct[str(k)] = float(v)
     rows = [compute.plain(dict(s)) if not isinstance(s, dict) else compute.plain(s)
             for s in sens][:8]
+    from heatload import decision
+    _, outcome = compute.strategy_outcome(data, strategy)
+    quote = None
+    line = None
+    if outcome.thermal.cooler_needed:
+        quote, basis, _ = decision.quoted_duty(outcome.thermal.cooler_duty,
+                                               scenario.cooler.margin, pct)
+        line = html.P([html.B(f"Quote this duty: {figures.fmt(quote, 'power', system)}"),
+                       f" — {basis}."], id="mc-quote", className="msg")
     figs = [figures.histogram_figure(_sample_array(mc), pct, system,
-                                     f"{strategy}: cooler duty over {n} samples")]
+                                     f"{strategy}: cooler duty over {n} samples", quote)]
     if rows:
         figs.append(figures.sensitivity_figure(rows, system, "what moves the duty most"))
     from dash import dcc
-    return html.Div([dcc.Graph(figure=f, id=f"mc-graph-{i}") for i, f in enumerate(figs)],
+    return html.Div(([line] if line else [])
+                    + [dcc.Graph(figure=f, id=f"mc-graph-{i}") for i, f in enumerate(figs)],
                     id="mc-result")
+
+
+def mc_stale(store, strategy, mc_key):
+    """A note replacing a Monte Carlo result computed for another scenario or
+    strategy (``PreventUpdate`` while it still matches)."""
+    if not mc_key:
+        raise PreventUpdate
+    key = compute.scenario_key(store["data"]) if store and store.get("data") else None
+    if mc_key.get("key") == key and mc_key.get("strategy") == strategy:
+        raise PreventUpdate
+    return (html.Div(f"The Monte Carlo shown was for {mc_key.get('strategy')} of an earlier "
+                     "entry; it was cleared. Run it again for the scenario and strategy in "
+                     "view.", className="stale", id="mc-stale"), None)
 
 
 def download_scenario(data: dict, name: str | None = None) -> dict:
@@ -409,13 +464,19 @@ def download_scenario(data: dict, name: str | None = None) -> dict:
 REPORT_SAMPLES = 1000
 
 
-def download_report(data: dict, source: str | None = None):
-    """The HTML report (heatload.report.build_report), or ``None`` with a note."""
+def download_report(data: dict, source: str | None = None, system: str = "si"):
+    """The HTML report (heatload.report.build_report), or ``None`` with a note.
+
+    The cover names the scenario as shown (edits included) and its SHA-256 is
+    that of the TOML the page's scenario download gives, not of a file on the
+    server."""
     scenario = compute.scenario_of(data)
     cmp = chain.compare(scenario)
+    label = f"{source or scenario.name} (as shown in the dashboard; download the .toml)"
     try:
-        html_text = _call(report.build_report, scenario, cmp, source=source,
-                          samples=REPORT_SAMPLES)
+        html_text = _call(report.build_report, scenario, cmp, source=None,
+                          samples=REPORT_SAMPLES, cover={"input": label},
+                          system=system if system in ("si", "us") else "si")
     except TypeError:
         # an older signature taking only the comparison
         html_text = report.build_report(cmp)
@@ -444,7 +505,7 @@ def register(app, examples: dict) -> None:
                Output({"type": "key-error", "index": ALL}, "children"),
                Output("form-errors", "children"),
                Output("upload-message", "children"), Output("source-label", "children"),
-               Output("upload", "contents")]
+               Output("upload", "contents"), Output("error-banner", "children")]
 
     @app.callback(outputs,
                   Input("scenario-select", "value"), Input("upload", "contents"),
@@ -468,9 +529,16 @@ def register(app, examples: dict) -> None:
         return [out[k] for k in OUTPUT_KEYS]
 
     @app.callback(Output("strategy-select", "options"), Output("strategy-select", "value"),
-                  Input("scenario-store", "data"), State("strategy-select", "value"))
-    def _strategies(store, current):
-        return strategy_choices(store, current)
+                  Input("scenario-store", "data"), Input("results-store", "data"),
+                  State("strategy-select", "value"))
+    def _strategies(store, results, current):
+        return strategy_choices(store, current, results)
+
+    @app.callback(Output("decision", "children"), Input("results-store", "data"),
+                  Input("units", "value"), State("scenario-store", "data"))
+    def _decision(results, system, store):
+        current(results, store)
+        return figures.decision_view(results, system)
 
     @app.callback(Output("results-store", "data", allow_duplicate=True),
                   Input("results-store", "data"), Input("tabs", "value"),
@@ -529,14 +597,23 @@ def register(app, examples: dict) -> None:
             raise PreventUpdate
         return cooler_view(store["data"], strategy, system)
 
-    @app.callback(Output("mc-out", "children"), Input("mc-run", "n_clicks"),
+    @app.callback(Output("mc-out", "children"), Output("mc-key", "data"),
+                  Input("mc-run", "n_clicks"),
                   State("scenario-store", "data"), State("strategy-select", "value"),
                   State("mc-samples", "value"), State("units", "value"),
                   prevent_initial_call=True)
     def _mc(n, store, strategy, samples, system):
         if not n or not store or not strategy:
             raise PreventUpdate
-        return uncertainty_view(store["data"], strategy, samples, system)
+        return (uncertainty_view(store["data"], strategy, samples, system),
+                {"key": compute.scenario_key(store["data"]), "strategy": strategy})
+
+    @app.callback(Output("mc-out", "children", allow_duplicate=True),
+                  Output("mc-key", "data", allow_duplicate=True),
+                  Input("scenario-store", "data"), Input("strategy-select", "value"),
+                  State("mc-key", "data"), prevent_initial_call=True)
+    def _mc_stale(store, strategy, mc_key):
+        return mc_stale(store, strategy, mc_key)
 
     @app.callback(Output("pay-base", "options"), Output("pay-base", "value"),
                   Output("pay-candidate", "options"), Output("pay-candidate", "value"),
@@ -570,11 +647,11 @@ def register(app, examples: dict) -> None:
     @app.callback(Output("download-report", "data"), Output("upload-message", "children",
                                                             allow_duplicate=True),
                   Input("download-report-btn", "n_clicks"), State("scenario-store", "data"),
-                  prevent_initial_call=True)
-    def _download_report(n, store):
+                  State("units", "value"), prevent_initial_call=True)
+    def _download_report(n, store, system):
         if not n or not store:
             raise PreventUpdate
-        payload, note = download_report(store["data"], store.get("source"))
+        payload, note = download_report(store["data"], store.get("source"), system)
         if payload is None:
             return no_update, html.Span(note, className="err")
         return payload, no_update

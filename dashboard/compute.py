@@ -39,7 +39,7 @@ def plain(x):
 
 
 #: Tabs whose content needs every strategy (the others show one at a time).
-NEEDS_ALL = ("comparison", "payback")
+NEEDS_ALL = ("decision", "comparison", "payback")
 
 
 def strategy_names(data: dict) -> list:

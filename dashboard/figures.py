@@ -13,17 +13,15 @@ from dash import html
 from plotly.subplots import make_subplots
 
 from heatload import units
+from heatload.report_assets import PALETTE, ROLE_COLOURS
 
 K0 = 273.15
 
-#: Okabe-Ito colour-blind-safe palette.
-OKABE_ITO = {
-    "black": "#000000", "orange": "#E69F00", "sky": "#56B4E9", "green": "#009E73",
-    "yellow": "#F0E442", "blue": "#0072B2", "vermillion": "#D55E00",
-    "purple": "#CC79A7", "grey": "#999999",
-}
-SERIES = ("#0072B2", "#E69F00", "#009E73", "#D55E00", "#CC79A7", "#56B4E9", "#000000",
-          "#999999", "#F0E442")
+#: Okabe-Ito colour-blind-safe palette, by name; the colours are those of the one
+#: palette definition, :data:`heatload.report_assets.PALETTE` (report and dashboard).
+OKABE_ITO = dict(zip(("blue", "orange", "green", "vermillion", "sky", "purple", "yellow",
+                      "black"), PALETTE), grey=ROLE_COLOURS["infeasible"])
+SERIES = PALETTE + (ROLE_COLOURS["infeasible"],)
 
 #: Loss components as people call them, with the colour of each (oil heat: warm
 #: colours; room heat of the drive: grey).
@@ -173,28 +171,150 @@ def comparison_table(results: dict, system: str):
     return table
 
 
+def _present_record(results: dict):
+    comp = results["comparison"]
+    name = (comp.get("decision") or {}).get("present") or comp["scenario"].get("present_strategy")
+    for r in comp["strategies"]:
+        if r["label"] == name:
+            return r
+    return None
+
+
+def _delta(value, base, kind, system, money=""):
+    """'−1.2 kW vs present' (None when either is missing or they are equal)."""
+    if value is None or base is None:
+        return None
+    d = value - base
+    if abs(d) <= 1e-9 * max(abs(base), 1.0):
+        return "same as the present circuit"
+    sign = "+" if d > 0 else "−"
+    text = (f"{abs(d):,.0f} {money}".strip() if kind == "money"
+            else fmt(abs(d), kind, system))
+    return f"{sign}{text} vs present"
+
+
 def headline(results: dict, strategy: str | None, system: str):
-    """Key figures of one strategy as tiles (always in view)."""
+    """Key figures of one strategy as tiles (always in view): by default the
+    recommended strategy, each with its difference to the present circuit;
+    a value beyond a limit (oil above the fluid's limit, a circuit ruled out)
+    is flagged."""
     r = strategy_record(results, strategy)
     if r is None:
         return []
+    p = _present_record(results)
+    is_present = p is not None and p["label"] == r["label"]
+    cur = r.get("currency") or ""
+    hot = any(w["code"] == "oil-temperature" for w in r["warnings"])
+    own = r.get("yearly_cost_total")
     tiles = [
-        ("electric energy per cycle", fmt(r["electric_energy_per_cycle_J"], "energy", system)),
-        ("mean heat into oil", fmt(r["heat_to_oil_W"], "power", system)),
+        ("yearly cost of ownership", "–" if own is None else f"{own:,.0f} {cur}",
+         None if is_present or p is None else _delta(own, p.get("yearly_cost_total"),
+                                                     "money", system, cur), False),
+        ("electric energy per cycle", fmt(r["electric_energy_per_cycle_J"], "energy", system),
+         None if is_present or p is None else _delta(r["electric_energy_per_cycle_J"],
+                                                     p["electric_energy_per_cycle_J"],
+                                                     "energy", system), False),
+        ("mean heat into oil", fmt(r["heat_to_oil_W"], "power", system),
+         None if is_present or p is None else _delta(r["heat_to_oil_W"], p["heat_to_oil_W"],
+                                                     "power", system), False),
         ("steady oil temperature, no cooler",
-         fmt(_c_to_k(r["oil_temperature_steady_C"]), "temperature", system)),
+         fmt(_c_to_k(r["oil_temperature_steady_C"]), "temperature", system),
+         "above the fluid's limit on the hottest day" if hot else None, hot),
         ("cooler duty", fmt(r["cooler_duty_W"], "power", system) if r["cooler_needed"]
-         else "none needed"),
-        ("energy cost per year", "–" if r["cost_per_year"] is None else
-         f"{r['cost_per_year']:,.0f} {r.get('currency') or ''}"),
+         else "none needed",
+         None if is_present or p is None else _delta(
+             r["cooler_duty_W"] if r["cooler_needed"] else 0.0,
+             p["cooler_duty_W"] if p["cooler_needed"] else 0.0, "power", system), False),
     ]
+    rec = (results["comparison"].get("recommended"))
+    role = ("recommended" if r["label"] == rec else "present circuit" if is_present
+            else "ruled out" if r.get("feasible") is False else "alternative")
+    out_reason = r.get("reason") if r.get("feasible") is False else None
     name = html.Div([html.Div("strategy shown", className="tile-label"),
-                     html.Div(r["label"], className="tile-value", id="tile-strategy")],
-                    className="tile strategy")
-    return [name] + [html.Div([html.Div(label, className="tile-label"),
-                               html.Div(value, className="tile-value", id=f"tile-{i}")],
-                              className="tile")
-                     for i, (label, value) in enumerate(tiles)]
+                     html.Div(r["label"], className="tile-value", id="tile-strategy"),
+                     html.Div(out_reason or role, className="tile-delta", id="tile-role")],
+                    className="tile strategy" + (" bad" if out_reason else ""))
+    out = [name]
+    for i, (label, value, delta, bad) in enumerate(tiles):
+        kids = [html.Div(label, className="tile-label"),
+                html.Div(value, className="tile-value", id=f"tile-{i}")]
+        if delta:
+            kids.append(html.Div(delta, className="tile-delta", id=f"tile-delta-{i}"))
+        out.append(html.Div(kids, className="tile" + (" bad" if bad else "")))
+    return out
+
+
+# ---------------------------------------------------------------------------
+# the decision (first view)
+# ---------------------------------------------------------------------------
+
+def decision_figure(results: dict):
+    """Yearly cost of ownership of every strategy, ranked: energy, cooler fan,
+    annualised circuit and cooler price stacked, one colour per role
+    (:data:`heatload.report_assets.ROLE_COLOURS`), ruled-out circuits grey."""
+    from heatload.report_assets import role_colour
+
+    comp = results["comparison"]
+    dec = comp.get("decision") or {}
+    recs = {r["label"]: r for r in comp["strategies"]}
+    order = [recs[n] for n in comp.get("ranking") or [] if n in recs]
+    cur = dec.get("currency") or ""
+    names = [f"{r['rank']}. {r['label']}" for r in order]
+    colours = [role_colour(r["label"], dec.get("present"), dec.get("recommended"),
+                           r.get("feasible", True)) for r in order]
+    fig = go.Figure()
+    for part, label, op in (("energy", "energy", 1.0), ("fan", "cooler fan", 0.75),
+                            ("circuit", "circuit price / year", 0.5),
+                            ("cooler", "cooler price / year", 0.3)):
+        fig.add_trace(go.Bar(
+            y=names, x=[(r.get("yearly_cost") or {}).get(part) or 0.0 for r in order],
+            orientation="h", name=label, marker=dict(color=colours, opacity=op),
+            customdata=[r.get("reason") or "" for r in order],
+            hovertemplate="%{y}: %{x:,.0f} " + cur + " (" + label + ")<br>%{customdata}"
+                          "<extra></extra>"))
+    for nm, r in zip(names, order):
+        tot = r.get("yearly_cost_total") or 0.0
+        fig.add_annotation(x=tot, y=nm, text=f" {tot:,.0f}" + ("" if r.get("feasible", True)
+                                                               else "  ruled out"),
+                           showarrow=False, xanchor="left", font=dict(size=12))
+    # the segments share their bar's role colour, lighter from energy to cooler
+    # price: a legend of one colour would mislead, the view's caption says it
+    fig.update_layout(barmode="stack", showlegend=False)
+    fig.update_yaxes(autorange="reversed", title_text="strategy, ranked", automargin=True)
+    fig.update_xaxes(title_text=f"yearly cost of ownership [{cur}/year]")
+    return _layout(fig, "Yearly cost of ownership, ranked (green: recommended, orange: "
+                        "present, grey: ruled out)", height=90 + 42 * max(len(order), 1))
+
+
+def decision_view(results: dict, system: str):
+    """The first view: the decision in a sentence, the ranked chart of yearly cost,
+    the circuits ruled out with their reasons."""
+    from dash import dcc
+
+    if not results:
+        return html.Div("computing …", className="note")
+    if not results.get("complete", True):
+        return html.Div("Only the strategy in view is computed yet; the decision follows "
+                        "when this view opens.", className="note", id="decision-partial")
+    comp = results["comparison"]
+    dec = comp.get("decision") or {}
+    out_rows = [html.Li([html.B(r["label"]), f": {r['reason']}"],
+                        **{"data-strategy": r["label"]})
+                for r in sorted(comp["strategies"], key=lambda r: r.get("rank") or 0)
+                if r.get("feasible") is False]
+    kids = [html.P(dec.get("sentence", ""), className="decision", id="decision-sentence")]
+    kids.append(dcc.Graph(id="decision-graph", figure=decision_figure(results),
+                          config={"displaylogo": False}))
+    kids.append(html.Div("Each bar, from solid to light: electricity of the circuit, "
+                         "electricity of the cooler's fan, the circuit's extra price and the "
+                         "cooler's price spread over the service life.", className="caution"))
+    if out_rows:
+        kids += [html.H3("Ruled out"), html.Ul(out_rows, id="ruled-out", className="ruled-out")]
+    kids += [html.Div(f"Note: {n}.", className="caution") for n in dec.get("notes") or []]
+    kids.append(html.Div("Rule: circuits that can do the job first (no stall, speed reached, "
+                         "within ratings, no runaway without a holding valve, motor not "
+                         "overloaded), then by yearly cost of ownership.", className="caution"))
+    return html.Div(kids, id="decision-view")
 
 
 # ---------------------------------------------------------------------------
@@ -367,8 +487,9 @@ def spec_table(rows: list):
                       className="spec", id="spec-table")
 
 
-def histogram_figure(samples_w, percentiles: dict, system: str, title: str):
-    """Distribution of the cooler duty from the Monte Carlo, with P50/P90/P95."""
+def histogram_figure(samples_w, percentiles: dict, system: str, title: str, quote=None):
+    """Distribution of the cooler duty from the Monte Carlo, with P50/P90/P95 and
+    the duty to quote (*quote* [W], :func:`heatload.decision.quoted_duty`)."""
     pu = _u("power", system)
     fig = go.Figure()
     if samples_w is not None and len(samples_w):
@@ -384,6 +505,11 @@ def histogram_figure(samples_w, percentiles: dict, system: str, title: str):
         fig.add_vline(x=float(conv(v, "power", system)), line=dict(color=color, dash="dash"),
                       annotation_text=f"{k} {fmt(v, 'power', system)}",
                       annotation_position=pos)
+    if quote is not None:
+        fig.add_vline(x=float(conv(quote, "power", system)),
+                      line=dict(color=OKABE_ITO["green"], width=3),
+                      annotation_text=f"quote {fmt(quote, 'power', system)}",
+                      annotation_position="bottom left")
     fig.update_xaxes(title_text=f"cooler duty [{pu}]")
     fig.update_yaxes(title_text="samples [count]")
     return _layout(fig, title, height=360)

@@ -52,6 +52,17 @@ body { margin:0; font-family: Inter, "Segoe UI", Roboto, Helvetica, Arial, sans-
 .tile { background:#fff; border:1px solid var(--line); border-left:4px solid var(--accent);
         border-radius:5px; padding:6px 12px; min-width:170px; flex:1 1 170px; }
 .tile.strategy { border-left-color:#009E73; background:#f3faf7; }
+.tile.bad { border-left-color:var(--bad); background:#fff4ee; }
+.tile-delta { font-size:12px; color:var(--muted); }
+.tile.bad .tile-delta { color:var(--bad); }
+.banner { background:#fde4d3; border:1px solid var(--bad); border-left:6px solid var(--bad);
+          color:#7a2e00; padding:8px 12px; border-radius:4px; margin:6px 0; font-size:14px; }
+.banner:empty { display:none; }
+p.decision { font-size:18px; font-weight:600; border-left:5px solid #009E73;
+             background:#eef8f4; padding:8px 12px; margin:4px 0 10px; }
+ul.ruled-out li { color:var(--muted); margin-bottom:3px; }
+.stale { background:#f3f5f8; border:1px dashed #9aa5b1; padding:8px 10px; border-radius:4px;
+         color:var(--muted); font-size:13px; }
 .tile-label { font-size:11px; color:var(--muted); text-transform:uppercase; }
 .tile-value { font-size:20px; font-weight:600; font-variant-numeric: tabular-nums; }
 .panel { background:#fff; border:1px solid var(--line); border-top:0; padding:12px 14px; }
@@ -176,7 +187,9 @@ def make_layout(initial: dict):
             html.Div([html.H3("power unit, tank, site"), _keys_block(form)]),
         ], className="grid2"),
     ])
-    tabs = dcc.Tabs(id="tabs", value="cycle", parent_className="tabs-row", children=[
+    tabs = dcc.Tabs(id="tabs", value="decision", parent_className="tabs-row", children=[
+        dcc.Tab(label="Decision", value="decision",
+                children=html.Div(html.Div(id="decision"), className="panel")),
         dcc.Tab(label="Cycle and machine", value="cycle",
                 children=html.Div(cycle_tab, className="panel")),
         dcc.Tab(label="Comparison", value="comparison",
@@ -226,8 +239,10 @@ def make_layout(initial: dict):
         dcc.Store(id="scenario-store", storage_type="memory",
                   data={"data": initial["data"], "source": initial["source"]}),
         dcc.Store(id="results-store", storage_type="memory"),
+        dcc.Store(id="mc-key", storage_type="memory"),
         controls, messages,
         html.Div(CAUTION, className="caution", id="caution"),
+        html.Div(id="error-banner", className="banner", role="alert"),
         html.Div(id="headline", className="tiles"),
         tabs,
     ], className="page")

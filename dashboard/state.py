@@ -9,7 +9,10 @@ editing one cell never rounds the others), a changed cell is parsed:
 
 - a bare number is taken in the header's unit;
 - a number with a unit (``"110 kN"``, ``"2300 psi"``) in any unit of the right kind;
-- an empty cell removes an optional key; ``full`` is the whole pump flow (speed).
+- an empty cell removes an optional key; emptying a required one (a key
+  number, a phase's name or motion, a moving phase's load and speed, an
+  actuator's dimensions) is an error at that cell; ``full`` is the whole pump
+  flow (speed).
 
 Parsing goes through :func:`heatload.units.to_si` and the whole scenario
 through :func:`heatload.io.scenario_from_dict`, so every rejection is a
@@ -41,17 +44,20 @@ class Column:
     motor: str | None = None
     choices: tuple = ()
     editable: bool = True
+    #: needed in every row ("all") or in rows of moving phases ("moving")
+    required: str | None = None
 
     def kind(self, actuator_kind: str) -> str | None:
         return self.motor if actuator_kind == "motor" else self.cylinder
 
 
 PHASE_COLUMNS = (
-    Column("name", "phase"),
+    Column("name", "phase", required="all"),
     Column("actuator", "actuator"),
-    Column("motion", "motion", choices=("extend", "retract", "hold", "idle", "run")),
-    Column("load", "load", "force", "torque"),
-    Column("speed", "speed", "velocity", "shaft_speed"),
+    Column("motion", "motion", choices=("extend", "retract", "hold", "idle", "run"),
+           required="all"),
+    Column("load", "load", "force", "torque", required="moving"),
+    Column("speed", "speed", "velocity", "shaft_speed", required="moving"),
     Column("stroke", "stroke", "length", "length"),
     Column("duration", "duration", "time", "time"),
     Column("hold_pressure", "hold pressure", "pressure", "pressure"),
@@ -61,11 +67,11 @@ PHASE_COLUMNS = (
 ACTUATOR_COLUMNS = (
     Column("name", "actuator", editable=False),
     Column("kind", "kind", editable=False),
-    Column("bore", "bore", "length", None),
-    Column("rod", "rod", "length", None),
-    Column("stroke", "stroke", "length", None),
+    Column("bore", "bore", "length", None, required="all"),
+    Column("rod", "rod", "length", None, required="all"),
+    Column("stroke", "stroke", "length", None, required="all"),
     Column("friction_force", "seal friction", "force", None),
-    Column("displacement", "displacement", None, "displacement"),
+    Column("displacement", "displacement", None, "displacement", required="all"),
     Column("max_pressure", "rated pressure", "pressure", "pressure"),
 )
 
@@ -78,6 +84,7 @@ class KeyField:
     label: str
     kind: str
     unit_note: str = ""          # shown for dimensionless values
+    required: bool = True        # emptying it is an error (else: back to the default)
 
     @property
     def field(self) -> str:
@@ -94,7 +101,8 @@ KEY_FIELDS = (
     KeyField(("reservoir", "oil_volume"), "oil volume", "volume"),
     KeyField(("ambient", "temperature"), "ambient, typical", "temperature"),
     KeyField(("ambient", "temperature_max"), "ambient, hottest", "temperature"),
-    KeyField(("cooler", "oil_temperature_max"), "design oil temperature", "temperature"),
+    KeyField(("cooler", "oil_temperature_max"), "design oil temperature", "temperature",
+             required=False),
     KeyField(("economics", "hours_per_year"), "running hours", "dimensionless", "h/year"),
     KeyField(("economics", "electricity_price"), "electricity price",
              "specific_energy_price"),
@@ -141,6 +149,15 @@ def _trim(text: str) -> str:
 
 
 _NUMBER = re.compile(r"^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$")
+
+#: The message of an emptied required cell.
+REQUIRED = "required: enter a value (an empty cell is not allowed here)"
+
+MOVING = ("extend", "retract", "run")
+
+
+def _blank(text) -> bool:
+    return text is None or (isinstance(text, str) and text.strip() == "")
 
 
 def parse_text(text, previous, kind: str | None, system: str, field: str, allow_full=False):
@@ -293,6 +310,12 @@ def _apply_rows(new: dict, old: dict, columns, rows, system: str, section: str,
             if not c.editable:
                 continue
             field = f"{section}[{pos}].{c.key}"
+            need = c.required == "all" or (c.required == "moving"
+                                           and row.get("motion") in MOVING)
+            if need and _blank(row.get(c.key)) and (c.kind(prev_kind) is not None
+                                                    or c.cylinder is None and c.motor is None):
+                errors.append((field, REQUIRED))
+                continue
             if c.cylinder is None and c.motor is None:
                 v = parse_text(row.get(c.key), prev.get(c.key), None, system, field)
                 _set(item, (c.key,), v)
@@ -344,6 +367,9 @@ def apply_form(data: dict, phase_rows, actuator_rows, values, system: str,
     if phase_rows is not None:
         _apply_rows(new, data, PHASE_COLUMNS, phase_rows, system, "phases", errors, kinds)
     for f, text in zip(KEY_FIELDS, values or []):
+        if f.required and _blank(text):
+            errors.append((f.field, REQUIRED))
+            continue
         try:
             v = parse_text(text, _get(data, f.path), f.kind, system, f.field)
         except HeatloadError as e:

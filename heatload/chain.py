@@ -91,8 +91,14 @@ class Comparison:
         raise KeyError(name)
 
     def ranked(self) -> list:
-        """Outcomes by electric energy per year, lowest first."""
-        return sorted(self.outcomes, key=lambda o: float(o.energy.electric_energy_per_year))
+        """Outcomes in the order of :func:`heatload.decision.decide`: feasible
+        first, then by yearly cost of ownership."""
+        return [self.outcome(n) for n in self.decision().order]
+
+    def decision(self, present=None, prices=None):
+        """The :class:`heatload.decision.Decision` of this comparison."""
+        from heatload import decision
+        return decision.decide(self, present, prices)
 
 
 def design_oil_temperature(scenario: Scenario) -> float:
@@ -118,7 +124,7 @@ TEMPERATURE_GRID = np.linspace(263.15, 523.15, 27)
 
 @lru_cache(maxsize=64)
 def _conductance_table(reservoir, altitude, air_temperature):
-    pressure = 101325.0 * (1.0 - 2.25577e-5 * altitude) ** 5.25588
+    pressure = heat_transfer.barometric_pressure(altitude)
     t = np.linspace(air_temperature - 20.0, 523.15, 160)
     ua = heat_transfer.reservoir_conductance(reservoir, t, air_temperature, pressure)
     return t, np.broadcast_to(np.asarray(ua, float), t.shape).copy()
@@ -281,6 +287,8 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
                                              scenario, pa)
     # the oil's limit is judged on the hottest day, where the cooler is sized
     warns += checks.thermal_warnings(scenario, t_h, t_op, duty)
+    warns += checks.correlation_range_warnings(
+        scenario, t_op, amb.temperature, heat_transfer.barometric_pressure(amb.altitude))
     return StrategyOutcome(strategy=strategy, circuit=res_op,
                            energy=energy.summarize(res_op, scenario.economics),
                            circuit_uncoupled=res_u,

@@ -7,7 +7,7 @@ of pint; the edges reformat if asked for US units).
 Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 ``cavitation``, ``relief-passing``, ``speed-not-reached``, ``stall``,
 ``viscosity-window``, ``oil-temperature``, ``hold-pressure``, ``speed-drift``,
-``motor-overload``.
+``motor-overload``, ``correlation-range``.
 """
 
 from __future__ import annotations
@@ -272,4 +272,22 @@ def thermal_warnings(scenario, steady_no_cooler: float, operating: float,
                                 f"({t - 273.15:.0f} °C) outside the pump's window "
                                 f"{pump.viscosity_min * 1e6:.0f}-{pump.viscosity_max * 1e6:.0f} "
                                 f"mm²/s"))
+    return out
+
+
+def correlation_range_warnings(scenario, oil_temperature: float, air_temperature: float,
+                               pressure: float) -> list:
+    """``correlation-range``: a tank surface whose natural-convection correlation
+    is used beyond its published Rayleigh range at the running temperature (see
+    :func:`heatload.heat_transfer.correlations_out_of_range`)."""
+    from heatload import heat_transfer
+
+    out = []
+    for name, ra, low, high in heat_transfer.correlations_out_of_range(
+            scenario.reservoir, oil_temperature, air_temperature, pressure):
+        side = "above" if ra > high else "below"
+        out.append(Warning_("correlation-range", None, ra, high if ra > high else low,
+                            f"{name}: Rayleigh number {ra:.2g} {side} the range of its "
+                            f"natural-convection correlation ({low:.0e} to {high:.0e}); "
+                            "its heat shedding is an extrapolation"))
     return out

@@ -648,9 +648,21 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # compression of the oil in the pressurised chamber, released as heat
     t_actual = _actual_duration(c, speed, stalled)
     prev = c["previous_phase"]
-    p_prev = np.where(prev >= 0, np.take_along_axis(p1, np.maximum(prev, 0), axis=-1), 0.0)
-    e_comp = c["compression_volume"] * (np.maximum(p1, 0.0) ** 2 - np.maximum(p_prev, 0.0) ** 2)
-    e_comp = np.where(c["compress"], np.maximum(e_comp, 0.0) / (2.0 * c["bulk_modulus"]), 0.0)
+    # prev and p1 may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
+    shape = np.broadcast_shapes(np.shape(prev), np.shape(p1))
+    at = np.broadcast_to(np.maximum(prev, 0), shape or (1,))
+    p_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p1, shape or (1,)), at,
+                                                    axis=-1).reshape(shape), 0.0)
+    p2_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p2, shape or (1,)), at,
+                                                     axis=-1).reshape(shape), 0.0)
+    # E = V (p^2 - p_prev^2) / (2 K) in each chamber: the inlet one filled at p1, and
+    # the outlet one, pressed to p2 when the motion starts (a meter-out circuit's
+    # intensified chamber stores as much as the inlet)
+    e_in = c["compression_volume"] * (np.maximum(p1, 0.0) ** 2 - np.maximum(p_prev, 0.0) ** 2)
+    e_out = c["compression_volume_outlet"] * (np.maximum(p2, 0.0) ** 2
+                                              - np.maximum(p2_prev, 0.0) ** 2)
+    e_comp = np.maximum(e_in, 0.0) + np.maximum(e_out, 0.0)
+    e_comp = np.where(c["compress"], e_comp / (2.0 * c["bulk_modulus"]), 0.0)
     losses["compression"] = e_comp / t_actual
     p_shaft = p_shaft_hyd + losses["compression"]
 
@@ -661,8 +673,10 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
                                           speed_fraction if strategy == "variable-speed" else 1.0)
     losses["drive_motor"] = p_motor_in - p_shaft
     if strategy == "variable-speed":
-        p_el = p_motor_in / c["drive_efficiency"]
-        losses["converter"] = p_el - p_motor_in
+        losses["converter"] = motors.converter_losses(
+            p_motor_in, c["motor_rated_power"] / c["motor_rated_efficiency"],
+            c["drive_efficiency"])
+        p_el = p_motor_in + losses["converter"]
     else:
         p_el = p_motor_in
         losses["converter"] = z.copy()

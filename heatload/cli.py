@@ -48,8 +48,8 @@ def _load(path):
 
 
 def _fmt(value, kind, system, digits=3):
-    from heatload.units import format_quantity
-    return format_quantity(value, kind, system, digits)
+    # plain numbers with thousands separators (units.format_quantity has none yet)
+    return f"{_num(value, kind, system, digits)} {_unit(kind, system)}".strip()
 
 
 def _unit(kind, system):
@@ -58,22 +58,17 @@ def _unit(kind, system):
 
 
 def _num(value, kind, system, digits=3):
-    from heatload.units import display_unit, format_number, from_si
-    return format_number(float(from_si(value, kind, display_unit(kind, system))), digits)
+    from heatload.tables import plain_number
+    from heatload.units import display_unit, from_si
+    unit = display_unit(kind, system)
+    return plain_number(from_si(value, kind, unit) if unit else float(value), digits)
 
 
-def _table(headers, rows):
-    widths = [max(len(str(h)), *(len(str(r[i])) for r in rows)) if rows else len(str(h))
-              for i, h in enumerate(headers)]
-    line = "  ".join(str(h).ljust(w) for h, w in zip(headers, widths))
-    out = [line, "  ".join("-" * w for w in widths)]
-    def numeric(c):
-        t = str(c).replace(",", "").replace("..", "").lstrip("-")
-        return bool(t) and (t[0].isdigit() or t in ("none", "never"))
-    for r in rows:
-        out.append("  ".join(str(c).rjust(w) if numeric(c) else str(c).ljust(w)
-                             for c, w in zip(r, widths)).rstrip())
-    return "\n".join(out)
+def _table(headers, rows, width="auto", optional=()):
+    """A text table fitted to *width* columns (the terminal's by default; ``None``
+    for every column): the *optional* headers are left out in that order."""
+    from heatload.tables import format_table, terminal_width
+    return format_table(headers, rows, terminal_width() if width == "auto" else width, optional)
 
 
 CAUTION = ("Estimates for early design. Component makers' data, machine-safety standards "
@@ -97,26 +92,39 @@ def cmd_compare(args):
                          indent=2, ensure_ascii=False))
         return 0
     s = args.units
-    print(f"{sc.name} — {len(sc.phases)} phases, {sc.economics.hours_per_year:.0f} h/year, "
+    from heatload.tables import count
+    print(f"{sc.name} — {count(len(sc.phases), 'phase')}, "
+          f"{sc.economics.hours_per_year:,.0f} h/year, "
           f"ambient {_temperature(sc.ambient.temperature, s)} "
           f"(design {_temperature(sc.ambient.temperature_max, s)})")
     cur = sc.economics.currency
-    headers = ["#", "strategy", f"energy/yr [kWh]", f"cost/yr [{cur}]", "CO2/yr [t]",
-               f"heat to oil [{_unit('power', s)}]", f"oil, no cooler [{_unit('temperature', s)}]",
-               f"cooler [{_unit('power', s)}]", f"peak [{_unit('pressure', s)}]", "eff. [%]",
-               "warnings"]
+    co2, eff, peak = "CO2\n[t/yr]", "eff.\n[%]", f"peak\n[{_unit('pressure', s)}]"
+    headers = ["#", "strategy", "energy\n[kWh/yr]", f"cost\n[{cur}/yr]", co2,
+               f"heat to\noil [{_unit('power', s)}]",
+               f"oil, no\ncooler [{_unit('temperature', s)}]",
+               f"cooler\n[{_unit('power', s)}]", peak, eff, "warnings"]
     rows = []
+    dec = cmp.decision()
     for i, o in enumerate(cmp.ranked(), 1):
         e, th = o.energy, o.thermal
         codes = sorted({w.code for w in o.warnings})
         rows.append([i, o.name, f"{float(e.electric_energy_per_year) / 3.6e6:,.0f}",
-                     f"{float(e.cost_per_year):,.0f}", f"{float(e.co2_per_year) / 1000:.1f}",
+                     f"{float(e.cost_per_year):,.0f}", f"{float(e.co2_per_year) / 1000:,.1f}",
                      _num(e.average_heat_to_oil, "power", s), _num(th.steady_coupled,
                                                                    "temperature", s),
                      _num(th.cooler_duty, "power", s) if th.cooler_needed else "none",
                      _num(e.peak_pressure, "pressure", s), f"{100 * float(e.overall_efficiency):.0f}",
                      ", ".join(codes) if codes else "-"])
-    print(_table(headers, rows))
+    # key columns first; the warnings are listed in full below the table
+    print(_table(headers, rows, args.width, optional=("warnings", eff, co2, peak)))
+    print()
+    print(dec.sentence())
+    print("Ranked feasible first, then by yearly cost of ownership (energy, cooler fan, "
+          "annualised circuit and cooler price):")
+    for v in dec.verdicts:
+        print(f"  {v.rank}. {v.name}: {v.reason}")
+    for n in dec.notes:
+        print(f"  note: {n}")
     print()
     for o in cmp.ranked():
         for w in o.warnings:
@@ -143,7 +151,7 @@ def cmd_check(args):
     eff = (f"efficiency {100 * motor.efficiency:.1f} % (given)" if motor.efficiency is not None
            else f"{motor.efficiency_class}")
     print(f"  pump: {pu.pump.kind} {pu.pump.type}, {pu.pump.displacement * 1e6:.1f} cm³/rev at "
-          f"{pu.pump.shaft_speed * 60:.0f} rpm = {_fmt(q, 'flow', s)}; relief "
+          f"{pu.pump.shaft_speed * 60:,.0f} rpm = {_fmt(q, 'flow', s)}; relief "
           f"{_fmt(pu.relief.cracking_pressure, 'pressure', s)}; motor "
           f"{_fmt(motor.rated_power, 'power', s)} {eff}")
     print(f"  reservoir: {_fmt(sc.reservoir.oil_volume, 'volume', s)} oil, "
@@ -154,7 +162,8 @@ def cmd_check(args):
         else:
             print(f"  actuator {a.name}: cylinder {_fmt(a.bore, 'length', s)} / "
                   f"{_fmt(a.rod, 'length', s)} x {_fmt(a.stroke, 'distance', s)}")
-    print(f"  {len(sc.phases)} phases: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
+    from heatload.tables import count
+    print(f"  {count(len(sc.phases), 'phase')}: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
     print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
     if sc.coolers:
         print(f"  datasheet coolers: " + ", ".join(c.name for c in sc.coolers))
@@ -177,11 +186,10 @@ def cmd_phases(args):
         return 0
     s = args.units
     print(f"{sc.name} — {o.name}, oil at {_temperature(o.thermal.operating_temperature, s)}")
-    headers = ["phase", "motion", "t [s]", f"p pump [{_unit('pressure', s)}]",
-               f"p cap [{_unit('pressure', s)}]", f"p rod [{_unit('pressure', s)}]",
-               f"Q pump [{_unit('flow', s)}]", f"Q relief [{_unit('flow', s)}]",
-               "speed/target [%]", f"electric [{_unit('power', s)}]",
-               f"heat [{_unit('power', s)}]", "largest loss"]
+    p, q, w = _unit("pressure", s), _unit("flow", s), _unit("power", s)
+    headers = ["phase", "motion", "t\n[s]", f"p pump\n[{p}]", f"p cap\n[{p}]", f"p rod\n[{p}]",
+               f"Q pump\n[{q}]", f"Q relief\n[{q}]", "speed/\ntarget [%]",
+               f"electric\n[{w}]", f"heat\n[{w}]", "largest loss"]
     rows = []
     for r in recs:
         losses = {k: v for k, v in r["losses_W"].items() if k not in ("drive_motor", "converter")}
@@ -195,7 +203,8 @@ def cmd_phases(args):
                      f"{pct:.0f}" if pct is not None else "-",
                      _num(r["electric_power_W"], "power", s), _num(r["heat_to_oil_W"], "power", s),
                      f"{top} {_fmt(losses[top], 'power', s)}" if (losses[top] or 0) > 0 else "-"])
-    print(_table(headers, rows))
+    print(_table(headers, rows, args.width,
+                 optional=("largest loss", headers[4], headers[5], headers[9], headers[7])))
     for w in o.warnings:
         print(f"  ! {w.phase or 'whole cycle'}: {w.message}")
     return 0
@@ -218,9 +227,10 @@ def cmd_thermal(args):
           f"{_temperature(sc.ambient.temperature_max, s)}, cold start "
           f"{_temperature(sc.ambient.cold_start_temperature, s)}")
     t = _unit("temperature", s)
-    headers = ["strategy", f"heat [{_unit('power', s)}]", f"steady uncoupled [{t}]",
-               f"steady coupled [{t}]", f"cycle min..max [{t}]", f"hot day [{t}]",
-               "UA [W/K]", "to oil limit", "cooler"]
+    uncoupled, cycle_range, ua = f"steady\nuncoupled [{t}]", f"cycle\nmin..max [{t}]", "UA\n[W/K]"
+    headers = ["strategy", f"heat\n[{_unit('power', s)}]", uncoupled,
+               f"steady\ncoupled [{t}]", cycle_range, f"hot day\n[{t}]",
+               ua, "to oil\nlimit", "cooler"]
     rows = []
     for o in cmp.outcomes:
         th = o.thermal
@@ -231,7 +241,7 @@ def cmd_thermal(args):
                      f"{_num(th.cycle_minimum, 'temperature', s)}..{_num(th.cycle_maximum, 'temperature', s)}",
                      _num(th.steady_hot, "temperature", s), f"{th.conductance:.1f}", ttl,
                      _fmt(th.cooler_duty, "power", s) if th.cooler_needed else "not needed"])
-    print(_table(headers, rows))
+    print(_table(headers, rows, args.width, optional=(cycle_range, ua, uncoupled)))
     for o in cmp.outcomes:
         for w in o.warnings:
             if w.code in ("oil-temperature", "viscosity-window"):
@@ -306,6 +316,9 @@ def build_parser() -> argparse.ArgumentParser:
                             help="duty-cycle file (TOML); the bundled forming press if omitted")
         sp.add_argument("--units", choices=("si", "us"), default="si",
                         help="units of the printed tables (default: si)")
+        sp.add_argument("--wide", action="store_true",
+                        help="every column of the tables, long lines unwrapped (default: "
+                             "fit the terminal, 80 columns in a pipe)")
         sp.set_defaults(func=func)
         return sp
 
@@ -350,6 +363,12 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--samples", type=int, default=2000,
                     help="Monte Carlo samples for the cooler duty (default 2000)")
     sp.add_argument("--seed", type=int, default=1, help="random seed (default 1)")
+    for opt, what in (("--project", "project"), ("--customer", "customer"),
+                      ("--prepared-by", "who prepared it"), ("--revision", "revision"),
+                      ("--date", "date (default today)")):
+        sp.add_argument(opt, default=None, help=f"the report cover's {what}; default the "
+                        "scenario file's [scenario] key" if opt != "--date" else
+                        f"the report cover's {what}")
 
     sp = add("sweep", cmd_sweep, "evaluate a grid or sample of design variants at array speed")
     sp.add_argument("--vary", action="append", default=[], metavar="PATH=LOW..HIGH:N",
@@ -359,7 +378,9 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--seed", type=int, default=1)
     sp.add_argument("-o", "--output", default=None, metavar="FILE", help="CSV or Parquet file")
     sp.add_argument("--force", action="store_true", help="overwrite an existing output")
-    sp.add_argument("--top", type=int, default=10, help="best variants to print")
+    sp.add_argument("--top", type=int, default=10,
+                    help="rows of each printed list: the best variants and each Pareto front "
+                         "(default 10; 0 prints none)")
     sp.add_argument("--coupled", action="store_true",
                     help="also solve each variant's self-consistent oil temperature "
                          "(about 5x slower than the default design-point figures)")
@@ -415,19 +436,41 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--host", default="127.0.0.1",
                     help="interface to bind (default 127.0.0.1; anything else is reachable "
                          "from the network)")
-    sp.add_argument("--debug", action="store_true", help="Dash debug mode (never on a shared machine)")
+    sp.add_argument("--threads", type=int, default=8,
+                    help="worker threads of the production server (default 8: about one per "
+                         "person working at the same time; each recompute takes a few "
+                         "seconds of one core)")
+    sp.add_argument("--debug", action="store_true",
+                    help="Dash's development server in debug mode (never on a shared machine)")
     return p
 
 
 class _TerminalText:
-    """A text stream that shows control characters escaped (line ends pass)."""
+    """A text stream that shows control characters escaped (line ends pass)
+    and breaks lines longer than *width* (None: as they are)."""
 
-    def __init__(self, stream, json_mode=False):
+    def __init__(self, stream, json_mode=False, width=None):
         self._stream = stream
         self._json = json_mode
+        self._width = width
+        self._pending = ""
 
     def write(self, text):
-        return self._stream.write(printable(text, keep="\n", json=self._json))
+        text = printable(text, keep="\n", json=self._json)
+        if self._width is None:
+            return self._stream.write(text)
+        from heatload.tables import wrap_line
+        *lines, self._pending = (self._pending + text).split("\n")
+        for line in lines:
+            self._stream.write("\n".join(wrap_line(line, self._width)) + "\n")
+        return len(text)
+
+    def flush(self):
+        if self._pending:
+            from heatload.tables import wrap_line
+            self._stream.write("\n".join(wrap_line(self._pending, self._width)))
+            self._pending = ""
+        return self._stream.flush()
 
     def __getattr__(self, name):
         return getattr(self._stream, name)
@@ -450,8 +493,14 @@ def main(argv=None) -> int:
     if not getattr(args, "command", None):
         parser.print_help()
         return 0
+    json_mode = bool(getattr(args, "json", False))
+    if getattr(args, "wide", False) or json_mode:
+        args.width = None
+    else:
+        from heatload.tables import terminal_width
+        args.width = terminal_width()
     stdout = sys.stdout
-    sys.stdout = _TerminalText(stdout, json_mode=bool(getattr(args, "json", False)))
+    sys.stdout = _TerminalText(stdout, json_mode=json_mode, width=args.width)
     try:
         with warnings.catch_warnings():
             warnings.showwarning = _one_line_warning(set())
@@ -471,6 +520,10 @@ def main(argv=None) -> int:
               f"(set HEATLOAD_DEBUG=1 for the traceback)", file=sys.stderr)
         return 3
     finally:
+        try:
+            sys.stdout.flush()
+        except BrokenPipeError:
+            pass
         sys.stdout = stdout
 
 

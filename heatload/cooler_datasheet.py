@@ -448,8 +448,11 @@ def print_selection(sel: DatasheetSelection, system="si") -> None:
                      fq(r.duty_at_design, "power", system), txt["verdict"], txt["drop"],
                      fq(r.fan_power, "power", system) if r.fan_power is not None else "-",
                      txt["shift"]])
+    # on a narrow terminal the less decisive columns go first, so names stay whole
     print(_table(["cooler", "S over the cycle", "settles at", "duty at design", "limit",
-                  "drop at peak flow", "fan", "shift: max, fan on"], rows))
+                  "drop at peak flow", "fan", "shift: max, fan on"], rows,
+                 optional=("shift: max, fan on", "fan", "duty at design", "S over the cycle",
+                           "drop at peak flow")))
     print(f"  chosen: {sel.chosen}" if sel.chosen else "  chosen: none")
     for n in sel.notes:
         print(f"  ! {n}")

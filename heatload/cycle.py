@@ -57,7 +57,8 @@ def phase_arrays(scenario: Scenario) -> dict:
     q_pump_nominal = pump.displacement * pump.shaft_speed
     out = {k: np.zeros(n) for k in (
         "a_in", "a_out", "q_ratio", "speed_per_flow", "force", "load", "q_target",
-        "hold_pressure", "stroke", "duration", "compression_volume", "work_per_load_speed",
+        "hold_pressure", "stroke", "duration", "compression_volume",
+        "compression_volume_outlet", "work_per_load_speed",
         "max_pressure_inlet", "max_pressure_outlet")}
     out["moving"] = np.zeros(n, dtype=bool)
     out["by_stroke"] = np.zeros(n, dtype=bool)
@@ -92,6 +93,7 @@ def phase_arrays(scenario: Scenario) -> dict:
             out["force"][i] = TWO_PI * t / eta if t >= 0 else TWO_PI * t * eta
             out["work_per_load_speed"][i] = TWO_PI
             out["compression_volume"][i] = d + act.dead_volume if hasattr(act, "dead_volume") else d
+            out["compression_volume_outlet"][i] = out["compression_volume"][i]
             out["max_pressure_inlet"][i] = out["max_pressure_outlet"][i] = act.max_pressure
             chamber[i] = (act.name, "motor")
         else:
@@ -108,6 +110,8 @@ def phase_arrays(scenario: Scenario) -> dict:
             friction = act.friction_force if moving else 0.0
             out["force"][i] = ph.load + friction
             out["compression_volume"][i] = a_in * act.stroke + act.dead_volume
+            # the outlet chamber, full at the phase's start, is pressed to p2 too
+            out["compression_volume_outlet"][i] = a_out * act.stroke + act.dead_volume
             out["max_pressure_inlet"][i] = out["max_pressure_outlet"][i] = act.max_pressure
         # speed target as inlet flow
         if moving and act is not None:

@@ -2,9 +2,10 @@
 air, and thermal radiation.
 
 One correlation per function, vectorized over numpy arrays, SI inside
-(K, m, W, Pa).  Air properties come from CoolProp (imported lazily, calls
-cached on a 0.05 K grid and interpolated linearly so the result stays
-continuous in temperature for the root finders of :mod:`heatload.thermal`).
+(K, m, W, Pa).  Air properties come from a table shipped with the package
+(``heatload/data/air_properties.npz``, made from CoolProp by
+``scripts/make_air_table.py``): smooth in temperature for the root finders of
+:mod:`heatload.thermal`, and no CoolProp import on the way.
 
 The public entry point for the thermal model is :func:`reservoir_conductance`,
 the overall conductance UA [W/K] of a :class:`heatload.model.Reservoir` and its
@@ -36,8 +37,6 @@ ORIENTATIONS = ("vertical", "horizontal-up", "horizontal-down", "cylinder")
 #: half of a wetted surface's dissipation is taken (from memory, a round estimate).
 DRY_SURFACE_FACTOR = 0.5
 
-#: Temperature grid of the cached air property calls [K].
-
 AirProperties = namedtuple(
     "AirProperties",
     ["density", "specific_heat", "dynamic_viscosity", "thermal_conductivity",
@@ -49,24 +48,34 @@ thermal_conductivity [W/(m K)], prandtl [-], expansion (1/T, ideal gas) [1/K],
 kinematic_viscosity [m^2/s]."""
 
 
-#: Temperature table of air properties: 150 K .. 1000 K in 0.25 K steps.
-_TABLE_T = np.arange(150.0, 1000.0 + 0.125, 0.25)
+#: Range of the shipped air table (heatload/data/air_properties.npz, written by
+#: scripts/make_air_table.py): temperature [K], absolute pressure [Pa].
+AIR_TEMPERATURE_RANGE = (150.0, 1000.0)
+AIR_PRESSURE_RANGE = (20.0e3, 120.0e3)
 
 
-@lru_cache(maxsize=64)
-def _air_table(pressure: float) -> np.ndarray:
-    """Density, c_p, viscosity, conductivity of air on :data:`_TABLE_T` at one
-    pressure (one vectorized CoolProp call per property, cached)."""
-    from CoolProp.CoolProp import PropsSI
+@lru_cache(maxsize=1)
+def _air_table():
+    """(t_low [K], t_step [K], p_scale [Pa], values (12, n), moments (12, n)) of the
+    shipped table: rows rho/p, c_p, mu, k, each as (a0, a1, a2) of
+    a0 + a1 s + a2 s^2, s = p / p_scale; columns a uniform temperature grid."""
+    from importlib.resources import files
 
-    return np.stack([PropsSI(k, "T", _TABLE_T, "P", pressure, "Air")
-                     for k in ("D", "C", "V", "L")])
+    with files("heatload").joinpath("data", "air_properties.npz").open("rb") as fh:
+        d = np.load(fh, allow_pickle=False)
+        (t_low, t_high, t_step), (p_low, p_high, p_scale) = d["temperature"], d["pressure"]
+        if (t_low, t_high) != AIR_TEMPERATURE_RANGE or (p_low, p_high) != AIR_PRESSURE_RANGE:
+            raise HeatloadError("the shipped air property table does not match this version; "
+                                "regenerate it with scripts/make_air_table.py", field="air table")
+        return float(t_low), float(t_step), float(p_scale), d["values"], d["moments"]
 
 
 def air_properties(temperature, pressure=101325.0) -> AirProperties:
-    """Properties of dry air from CoolProp's 'Air' (Lemmon et al. pseudo-pure fluid).
+    """Properties of dry air after CoolProp's 'Air' (Lemmon et al. pseudo-pure
+    fluid), from a table shipped with the package.
 
-    ``expansion`` = 1/T (ideal gas), ``prandtl`` = c_p mu / k,
+    f(T, p) = a0(T) + a1(T) s + a2(T) s^2, s = p / 1e5 Pa, for f = rho / p, c_p,
+    mu, k; ``expansion`` = 1/T (ideal gas), ``prandtl`` = c_p mu / k,
     ``kinematic_viscosity`` = mu / rho.
 
     Parameters
@@ -74,7 +83,8 @@ def air_properties(temperature, pressure=101325.0) -> AirProperties:
     temperature : array_like
         Air temperature [K], 150 K .. 1000 K.
     pressure : array_like, optional
-        Absolute pressure [Pa] (default 101325 Pa, sea level).
+        Absolute pressure [Pa], 20 kPa .. 120 kPa (default 101325 Pa, sea level;
+        altitude -500 m .. 9000 m is 107.5 .. 30.8 kPa).
 
     Returns
     -------
@@ -83,34 +93,92 @@ def air_properties(temperature, pressure=101325.0) -> AirProperties:
 
     Notes
     -----
-    CoolProp is slow per call, so values are tabulated once per pressure on a
-    0.25 K grid (cached) and interpolated linearly (relative error below
-    1e-6, far below the uncertainty of any convection correlation).
+    The pressure dependence is the virial expansion about the ideal gas to
+    second order (rho = p M / (Z R T) with 1/Z = 1 - B' p + C' p^2; density
+    corrections of the dilute-gas viscosity and conductivity), each coefficient
+    a cubic spline in T on a 2 K grid.  The table is made from CoolProp by
+    ``scripts/make_air_table.py`` and reproduces it within 1e-7 relative over the
+    whole range (a test checks 1e-6), far below the uncertainty of any
+    convection correlation.  CoolProp itself is not imported: sizing a tank or
+    an air cooler starts in well under a second.
 
     References
     ----------
     Lemmon, Jacobsen, Penoncello, Friend, J. Phys. Chem. Ref. Data 29 (2000) 331;
+    Lemmon and Jacobsen, Int. J. Thermophys. 25 (2004) 21 (viscosity, conductivity);
     Bell et al., Ind. Eng. Chem. Res. 53 (2014) 2498 (CoolProp).
+
+    Examples
+    --------
+    Air at 300 K and 1 atm: the ideal gas p M / (R T) with M = 28.965 g/mol
+    (ISO 2533) gives 1.1767 kg/m^3; c_p 1007 J/(kg K) in Incropera et al.,
+    6th ed., Table A.4.
+
+    >>> a = air_properties(300.0)
+    >>> round(float(a.density), 3), round(float(a.specific_heat))
+    (1.177, 1006)
     """
     t, p = np.broadcast_arrays(np.asarray(temperature, dtype=float),
                                np.asarray(pressure, dtype=float))
-    if not np.all(np.isfinite(t)) or np.any(t < 150.0) or np.any(t > 1000.0):
+    t_lo, t_hi = AIR_TEMPERATURE_RANGE
+    if not np.all(np.isfinite(t)) or np.any(t < t_lo) or np.any(t > t_hi):
         raise HeatloadError("air temperature must be within 150 K .. 1000 K", field="temperature")
-    if not np.all(np.isfinite(p)) or np.any(p <= 0.0):
-        raise HeatloadError("air pressure must be a positive absolute pressure [Pa]", field="pressure")
-    tf = t.ravel()
-    pr = np.round(p, 0).ravel()
-    flat = np.empty((4, tf.size))
-    for pv in np.unique(pr):  # one table per distinct pressure (altitude)
-        sel = pr == pv
-        table = _air_table(float(pv))
-        for j in range(4):
-            flat[j, sel] = np.interp(tf[sel], _TABLE_T, table[j])
-    out = flat.reshape((4,) + t.shape)
-    rho, cp, mu, k = out
+    p_lo, p_hi = AIR_PRESSURE_RANGE
+    if not np.all(np.isfinite(p)) or np.any(p < p_lo) or np.any(p > p_hi):
+        raise HeatloadError("air pressure must be an absolute pressure within 20 kPa .. 120 kPa "
+                            "[Pa] (altitude -500 m .. 9000 m)", field="pressure")
+    tf, pf = t.ravel(), p.ravel()
+    pu, inverse = np.unique(pf, return_inverse=True)
+    if len(pu) <= 8:  # one altitude (the model's case): linear in a fine table per pressure
+        flat = np.empty((tf.size, 4))
+        for j, pv in enumerate(pu):
+            sel = slice(None) if len(pu) == 1 else inverse.reshape(-1) == j
+            table = _air_fine_table(float(pv))
+            # uniform grid: the node index by arithmetic, no search
+            x = (tf[sel] - AIR_TEMPERATURE_RANGE[0]) * (1.0 / _FINE_STEP)
+            i = np.minimum(x.astype(np.intp), len(table) - 2)
+            lo = table[i]
+            flat[sel] = lo + (x - i)[:, None] * (table[i + 1] - lo)
+        flat = flat.T
+    else:
+        flat = _air_from_table(tf, pf)
+    rho, cp, mu, k = flat.reshape((4,) + t.shape)
     return AirProperties(density=rho, specific_heat=cp, dynamic_viscosity=mu,
                          thermal_conductivity=k, prandtl=cp * mu / k,
                          expansion=1.0 / t, kinematic_viscosity=mu / rho)
+
+
+def _air_from_table(t, p):
+    """rho, c_p, mu, k (4, n) at temperatures *t* (n,) [K] and pressures *p* (n,) [Pa]
+    from the shipped table: the cubic between two temperature nodes from the values
+    and second derivatives there, then the expansion in pressure."""
+    t0, step, p_scale, values, moments = _air_table()
+    x = (t - t0) / step
+    i = np.minimum(x.astype(np.intp), values.shape[1] - 2)
+    b = x - i
+    a = 1.0 - b
+    coef = (a * values[:, i] + b * values[:, i + 1]
+            + ((a ** 3 - a) * moments[:, i] + (b ** 3 - b) * moments[:, i + 1])
+            * (step * step / 6.0)).reshape(4, 3, -1)
+    s = p / p_scale
+    out = coef[:, 0] + s * (coef[:, 1] + s * coef[:, 2])
+    out[0] *= p  # rho / p -> rho
+    return out
+
+
+#: Step of the per-pressure fine table [K]: linear interpolation on it adds at most
+#: h^2/8 |f''/f| = 3e-8 (density ~ 1/T at 150 K), so it keeps the table's accuracy.
+_FINE_STEP = 0.05
+
+
+@lru_cache(maxsize=16)
+def _air_fine_table(pressure: float) -> np.ndarray:
+    """rho, c_p, mu, k (n, 4) at one pressure on a :data:`_FINE_STEP` grid from
+    150 K, evaluated from the shipped table once, so each later call is a
+    linear interpolation (as fast as a plain lookup)."""
+    lo, hi = AIR_TEMPERATURE_RANGE
+    grid = np.linspace(lo, hi, int(round((hi - lo) / _FINE_STEP)) + 1)
+    return np.ascontiguousarray(_air_from_table(grid, np.full(grid.shape, pressure)).T)
 
 
 def grashof(expansion, temperature_difference, length, kinematic_viscosity, gravity=GRAVITY):
@@ -591,6 +659,99 @@ def reservoir_heat_transfer(reservoir, oil_temperature, air_temperature, pressur
         conductance=total, walls_wetted=ua_wet, walls_dry=ua_dry, top=ua_top,
         bottom=ua_bottom, surfaces=ua_surf, wetted_wall_area=a_wet, wall_coefficient=h_wall,
         effective_area=a_wet + dry_surface_factor * a_dry + top_factor * a_plate + a_bottom)
+
+
+def barometric_pressure(altitude):
+    """Absolute air pressure at a site altitude, standard atmosphere.
+
+    .. math::  p = 101325 \\,(1 - 2.25577 \\times 10^{-5} z)^{5.25588}
+
+    Parameters
+    ----------
+    altitude : array_like
+        Height above sea level z [m] (troposphere, below 11 km).
+
+    Returns
+    -------
+    ndarray or float
+        [Pa].
+
+    References
+    ----------
+    ISO 2533:1975 (standard atmosphere); the same form in ASHRAE Handbook
+    Fundamentals, Ch. 1, eq. 3.
+
+    Examples
+    --------
+    >>> round(barometric_pressure(1500.0))
+    84556
+    """
+    return 101325.0 * (1.0 - 2.25577e-5 * np.asarray(altitude, float)) ** 5.25588
+
+
+#: Rayleigh ranges the natural-convection correlations were fitted over [-]
+#: (Incropera et al., 7th ed., eqs. 9.26-9.27, 9.30-9.32, 9.34): beyond them the
+#: models extrapolate.
+RAYLEIGH_RANGES = {"vertical": (1e-1, 1e12), "horizontal-up": (1e4, 1e11),
+                   "horizontal-down": (1e4, 1e9), "cylinder": (1e-5, 1e12)}
+
+
+def correlations_out_of_range(reservoir, oil_temperature, air_temperature,
+                              pressure=101325.0) -> list:
+    """Surfaces whose natural-convection correlation is used beyond its published
+    Rayleigh range at this oil and air temperature.
+
+    Ra = g beta (T_s - T_a) L^3 / (nu alpha), air at the film temperature, with the
+    lengths and orientations of :func:`reservoir_heat_transfer` (a face colder
+    than the air takes the opposite plate correlation).
+
+    Parameters
+    ----------
+    reservoir : heatload.model.Reservoir
+    oil_temperature, air_temperature : float
+        [K].
+    pressure : float, optional
+        Absolute air pressure [Pa].
+
+    Returns
+    -------
+    list of (str, float, float, float)
+        ``(surface, Ra, low, high)`` for each surface outside its range
+        (:data:`RAYLEIGH_RANGES`); empty when all are inside, when a user
+        coefficient replaces convection, or when oil and air are at one
+        temperature (no natural convection to speak of).
+
+    References
+    ----------
+    Incropera et al., Fundamentals of Heat and Mass Transfer, 7th ed., Sec. 9.6.
+    """
+    ts, ta = float(oil_temperature), float(air_temperature)
+    r = reservoir
+    if ts == ta:
+        return []
+    parts = []
+    if r.heat_transfer_coefficient is None:
+        plate = r.length * r.width / (2.0 * (r.length + r.width))
+        parts.append(("tank walls", "vertical", r.oil_level * r.height))
+        parts.append(("tank lid", "horizontal-up", plate))
+        if r.bottom_exposed:
+            parts.append(("tank bottom", "horizontal-down", plate))
+    for s in r.surfaces:
+        if s.heat_transfer_coefficient is None:
+            parts.append((s.name, s.orientation, s.characteristic_length))
+    swap = {"horizontal-up": "horizontal-down", "horizontal-down": "horizontal-up"}
+    film = 0.5 * (ts + ta)
+    air = air_properties(film, pressure)
+    out = []
+    for name, orientation, length in parts:
+        if ts < ta:                                # a cold face: the stable and unstable cases swap
+            orientation = swap.get(orientation, orientation)
+        ra = float(rayleigh(grashof(air.expansion, abs(ts - ta), length,
+                                    air.kinematic_viscosity), air.prandtl))
+        low, high = RAYLEIGH_RANGES[orientation]
+        if not low <= ra <= high:
+            out.append((name, ra, low, high))
+    return out
 
 
 def reservoir_conductance(reservoir, oil_temperature, air_temperature, pressure=101325.0,

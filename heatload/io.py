@@ -58,14 +58,18 @@ __all__ = [
 
 SCHEMA_EXAMPLE = '''\
 # A heatload duty-cycle file.  Quantities are strings with a unit ("160 bar",
-# "40 L/min", "35 degC", "1450 rpm"); efficiencies, counts and factors are plain
-# numbers.  Only [scenario], [[actuators]] and [[phases]] are required; every
+# "40 L/min", "35 degC", "1450 rpm"): one number with a decimal point, then the
+# unit; efficiencies, counts and factors are plain numbers.  Only [scenario], [[actuators]] and [[phases]] are required; every
 # other table and key has the default shown here.  Pressures are gauge.
 
 [scenario]
 name = "Example press"                 # required, shown in every report
 description = "A small press to show every key of the file format."
 shift_duration = "8 h"                 # length of a shift, for the warm-up from cold
+project = "P-1234 press line"          # cover of the report (or heatload report --project ...)
+customer = "Example Works Ltd."
+prepared_by = "A. Designer"
+revision = "A"
 
 [economics]
 hours_per_year = 4000                  # running hours of the machine [h/year]
@@ -73,6 +77,8 @@ electricity_price = "0.20 /kWh"        # price of bought electrical energy, in `
 currency = "EUR"
 grid_co2_factor = "0.35 kg/kWh"        # CO2 emitted per kWh bought
 present_strategy = "meter-in"          # the circuit the machine has now (a strategy below)
+service_life = 10                      # years over which circuit and cooler prices are annualised
+interest_rate = 0.05                   # per year, for the annualised prices
 
 [fluid]
 name = "ISO VG 46 mineral oil"
@@ -295,6 +301,9 @@ air_temperature_rise = "10 K"
 oil_pressure_drop_max = "1 bar"
 thermostat_on = "45 degC"              # leave out for a cooler that always runs
 thermostat_hysteresis = "5 K"
+# price_fixed = 500                    # cooler price, fixed part, in currency; leave out for
+# price_per_kW = 100                   # ... the defaults (common practice) of heatload.decision
+# fan_power_fraction = 0.04            # fan electric power / cooler duty (air-oil)
 
 # Inputs you are unsure of, for the Monte Carlo and the sensitivity ranking.
 # path names a numeric key as above; phases[*] means every phase.  With
@@ -411,6 +420,10 @@ _SCENARIO = {
     "name": _F("str", "nonempty", required=True),
     "description": _F("str"),
     "shift_duration": _F("time", "pos"),
+    "project": _F("str"),
+    "customer": _F("str"),
+    "prepared_by": _F("str"),
+    "revision": _F("str"),
 }
 _ECONOMICS = {
     "hours_per_year": _F("dimensionless", "pos", high=8784.0),
@@ -418,6 +431,8 @@ _ECONOMICS = {
     "currency": _F("str", "nonempty"),
     "grid_co2_factor": _F("emission_factor", "nonneg"),
     "present_strategy": _F("str", "nonempty"),
+    "service_life": _F("dimensionless", "pos", high=100.0),
+    "interest_rate": _F("dimensionless", "nonneg", high=1.0),
 }
 _FLUID = {
     "name": _F("str", "nonempty"),
@@ -426,7 +441,7 @@ _FLUID = {
     "nu100": _F("kinematic_viscosity", "pos"),
     "viscosity_index": _F("dimensionless", low=-100.0, high=500.0),
     "density_15C": _F("density", "pos", low=500.0),
-    "expansion_coefficient": _F("expansion_coefficient", "pos"),
+    "expansion_coefficient": _F("expansion_coefficient", "nonneg"),
     "bulk_modulus": _F("bulk_modulus", "pos", low=1e8),
     "specific_heat": _F("specific_heat", "pos", low=500.0),
     "thermal_conductivity": _F("thermal_conductivity", "pos"),
@@ -493,7 +508,7 @@ _RELIEF = {
 }
 _DIRECTIONAL = {
     "rated_flow": _F("flow", "pos"),
-    "pressure_drop": _F("pressure", "pos"),
+    "pressure_drop": _F("pressure", "nonneg"),      # 0: an ideal valve, for hand checks
     "centre": _F("choice", choices=("open", "tandem", "closed")),
     "centre_pressure_drop": _F("pressure", "nonneg"),
     "max_pressure": _F("pressure", "pos"),
@@ -504,7 +519,7 @@ _CHECK = {
     "pressure_drop": _F("pressure", "nonneg"),
 }
 _LINE = {
-    "length": _F("distance", "pos"),
+    "length": _F("distance", "nonneg"),             # 0: fittings only, or no line
     "inner_diameter": _F("length", "pos", high=0.5),
     "roughness": _F("length", "nonneg"),
     "fittings_k": _F("dimensionless", "nonneg", high=1000.0),
@@ -581,6 +596,9 @@ _COOLER = {
     "oil_pressure_drop_max": _F("pressure", "pos"),
     "thermostat_on": _F("temperature", "pos"),
     "thermostat_hysteresis": _F("temperature_difference", "nonneg"),
+    "price_fixed": _F("dimensionless", "nonneg"),
+    "price_per_kW": _F("dimensionless", "nonneg"),
+    "fan_power_fraction": _F("dimensionless", "frac"),
 }
 _UNCERTAINTY = {
     "path": _F("str", "nonempty", required=True),
@@ -1590,6 +1608,9 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
     s = scenario
     d: dict = {"scenario": {"name": s.name, "description": s.description,
                             "shift_duration": _format(s.shift_duration, "time")}}
+    for k in ("project", "customer", "prepared_by", "revision"):
+        if getattr(s, k):
+            d["scenario"][k] = getattr(s, k)
     d["economics"] = _dump_fields(s.economics, _ECONOMICS)
     fluid = _dump_fields(s.fluid, _FLUID, skip=("viscosity_points",))
     if s.fluid.viscosity_points:

@@ -279,6 +279,8 @@ class Economics:
     currency: str = "EUR"
     grid_co2_factor: float = 0.35 / 3.6e6  #: [kg/J]
     present_strategy: Optional[str] = None  #: the circuit the machine has now
+    service_life: float = 10.0             #: years over which prices are annualised [year]
+    interest_rate: float = 0.05            #: for the annualised prices [-/year]
 
 
 @dataclass(frozen=True)
@@ -296,6 +298,9 @@ class CoolerDesign:
     oil_pressure_drop_max: float = 1.0e5   #: allowed oil-side drop [Pa]
     thermostat_on: Optional[float] = None  #: switch-on oil temperature [K]
     thermostat_hysteresis: float = 5.0     #: [K]
+    price_fixed: Optional[float] = None    #: cooler price, fixed part [currency]; None -> heatload.decision default
+    price_per_kW: Optional[float] = None   #: cooler price per kW of duty [currency/kW]; None -> default
+    fan_power_fraction: Optional[float] = None  #: fan electric power / duty [-]; None -> default
 
 
 #: The design oil temperature lies this far below the fluid's limit when the
@@ -354,6 +359,11 @@ class Scenario:
     #: air-oil coolers given by their datasheet curves
     #: (:class:`heatload.cooler_datasheet.DatasheetCooler` items)
     coolers: tuple = ()
+    #: the report's cover: project, customer, who prepared it, revision
+    project: str = ""
+    customer: str = ""
+    prepared_by: str = ""
+    revision: str = ""
 
     def actuator(self, name: str):
         """The actuator called *name* (``KeyError`` when there is none)."""

@@ -65,6 +65,17 @@ IE_COEFFICIENTS_SMALL = {
 #: memory (common practice: 25-35 %).
 CONSTANT_LOSS_SHARE = 0.3
 
+#: Share of those constant losses that does not fall with speed when a converter
+#: lowers frequency and voltage together: the stator I^2 R of the magnetizing
+#: current stays with the flux, while iron, friction and windage losses fall
+#: with the frequency [-]; typical, from memory.
+SPEED_INDEPENDENT_SHARE = 0.3
+
+#: Share of a frequency converter's rated losses drawn at no load (control
+#: electronics, fans, DC-link, switching at magnetizing current) [-]; typical of
+#: converters of 1-100 kW, from memory (common practice: 20-35 %).
+CONVERTER_NO_LOAD_SHARE = 0.25
+
 _P_SMALL_MIN, _P_SMALL_MAX, _P_MIN, _P_MAX = 0.12e3, 0.55e3, 0.75e3, 200e3
 
 
@@ -162,9 +173,10 @@ def motor_losses(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,
 
     .. math::
         L_r = P_r (1/\\eta_r - 1), \\qquad
-        L = c\\,L_r\\,s + (1 - c)\\,L_r \\left(\\frac{P}{P_r\\,s}\\right)^2
+        L = c\\,L_r\\,(k + (1 - k)\\,s) + (1 - c)\\,L_r \\left(\\frac{P}{P_r\\,s}\\right)^2
 
-    with c the constant share and s the speed fraction.
+    with c the constant share, k its speed-independent part
+    (:data:`SPEED_INDEPENDENT_SHARE`) and s the speed fraction.
 
     Parameters
     ----------
@@ -188,7 +200,8 @@ def motor_losses(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,
     -----
     The constant part (iron, friction, windage) falls about in proportion
     to the speed when a converter lowers frequency and voltage together
-    (constant flux).  The load part (stator and rotor I^2 R) follows the
+    (constant flux), except the copper loss of the magnetizing current, which
+    stays with the flux (share k).  The load part (stator and rotor I^2 R) follows the
     torque squared, T/T_r = P/(P_r s); on the grid (s = 1) that is
     (P/P_r)^2.  Converter losses are not included.
 
@@ -208,7 +221,8 @@ def motor_losses(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,
     if np.any((c < 0) | (c > 1)):
         raise HeatloadError("must be a fraction in [0, 1]", field="constant_loss_share")
     lr = pr * (1.0 / er - 1.0)
-    return _out(c * lr * s + (1.0 - c) * lr * (p / (pr * s)) ** 2)
+    k = SPEED_INDEPENDENT_SHARE
+    return _out(c * lr * (k + (1.0 - k) * s) + (1.0 - c) * lr * (p / (pr * s)) ** 2)
 
 
 def motor_input_power(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,
@@ -241,6 +255,56 @@ def motor_input_power(shaft_power, rated_power, rated_efficiency, speed_fraction
     p = _arr(shaft_power, "shaft_power")
     return _out(p + motor_losses(p, rated_power, rated_efficiency, speed_fraction,
                                  constant_loss_share))
+
+
+def converter_losses(input_power, rated_input_power, drive_efficiency,
+                     no_load_share=CONVERTER_NO_LOAD_SHARE):
+    """Losses of a frequency converter feeding a motor.
+
+    .. math::
+        L_r = P_{in,r} (1/\\eta_d - 1), \\qquad
+        L = L_r \\left(k_0 + (1 - k_0)\\,\\frac{P_{in}}{P_{in,r}}\\right)
+
+    Parameters
+    ----------
+    input_power : numeric
+        Power the converter delivers to the motor [W], >= 0.
+    rated_input_power : numeric
+        The motor's input at its rated point, P_r / eta_r [W], > 0.
+    drive_efficiency : numeric
+        The converter's efficiency at that rated point [-], in (0, 1].
+    no_load_share : numeric
+        k0 [-]: share of the rated losses drawn at no load (standby).
+
+    Returns
+    -------
+    numeric
+        Converter losses [W], >= 0: the stated efficiency at the rated point,
+        the standby loss k0 L_r at rest.
+
+    Notes
+    -----
+    A converter's losses are a constant part (control, fans, DC link) and parts
+    that rise with the current it switches; a line through the no-load and the
+    rated point keeps the datasheet efficiency where it is given and does not
+    let the loss vanish when the pump idles.
+
+    References
+    ----------
+    IEC 61800-9-2 (energy efficiency of power drive systems: converter losses
+    at stated operating points, the no-load point among them).
+
+    Examples
+    --------
+    >>> round(converter_losses(12035.0, 12035.0, 0.97), 1)
+    372.2
+    """
+    p = _arr(input_power, "input_power")
+    pr = _positive(rated_input_power, "rated_input_power")
+    ed = _efficiency(drive_efficiency, "drive_efficiency")
+    k0 = _arr(no_load_share, "no_load_share")
+    lr = pr * (1.0 / ed - 1.0)
+    return _out(lr * (k0 + (1.0 - k0) * np.maximum(p, 0.0) / pr))
 
 
 def motor_efficiency(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,

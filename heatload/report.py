@@ -1,6 +1,13 @@
-"""A customer report: one self-contained HTML file (plotly.js inline, no
-request to any server when opened), plus the same tables as a spreadsheet
-and as CSV files.
+"""A customer report: one self-contained HTML file (charts as inline SVG, no
+script library and no request to any server when opened), plus the same
+tables as a spreadsheet and as CSV files.
+
+It reads as a deliverable: a cover block (project, customer, prepared by,
+date, revision, tool version, the input file's SHA-256), the decision first,
+sections that flow in print with page numbers "x of y" (CSS paged media), one
+colour per role (present / recommended / others, :mod:`heatload.report_assets`,
+shared with the dashboard), and an appendix of assumptions in the customer's
+units.
 
 Every number comes from :mod:`heatload.tables` records (and, for the cooler,
 :func:`heatload.sizing.sizing_record`), so the report, the spreadsheet and
@@ -11,12 +18,8 @@ only when asked to (``--force``), a folder, pipe or device never.  Text cells
 of the exports that a spreadsheet would run as a formula are neutralised
 (:mod:`heatload.outputs`).
 
-The recommendation is the strategy with the lowest yearly electric energy
-among those without safety-critical warnings (an overrunning load the circuit
-cannot hold, a pressure above a component's rating, a stalled actuator, an
-intensified chamber above its rating, a drive motor asked for more than 160 %
-of its rating).  Oil-temperature warnings are not
-disqualifying: the cooler sized here takes care of them.
+The recommendation and the rank order are :func:`heatload.decision.decide`'s:
+feasible first, then by yearly cost of ownership.
 """
 
 from __future__ import annotations
@@ -30,14 +33,10 @@ from pathlib import Path
 
 import numpy as np
 
-from heatload import outputs
-from heatload.checks import MOTOR_EXCESS_TORQUE
+from heatload import outputs, tables
 from heatload.errors import HeatloadError
 
 K0 = 273.15
-
-#: Warning codes that rule a strategy out of the recommendation.
-SAFETY_CRITICAL = ("overrunning-load", "pressure-rating", "stall")
 
 CAUTION = ("This report is an estimate for early design. Component makers' data, "
            "machine-safety standards for hydraulic systems (e.g. ISO 4413), local codes and "
@@ -85,48 +84,6 @@ METHODS = (
 # selection: recommendation, prices, payback
 # ---------------------------------------------------------------------------
 
-def critical_warnings(record, scenario) -> list:
-    """Safety-critical warnings of one strategy record (``tables.strategy_record``)."""
-    out = []
-    for w in record["warnings"]:
-        if w["code"] in SAFETY_CRITICAL:
-            out.append(w)
-        elif w["code"] == "intensification" and _above_rating(w, scenario):
-            out.append(w)
-        elif w["code"] == "motor-overload" and w["value"] > w["limit"] * MOTOR_EXCESS_TORQUE:
-            out.append(w)   # more torque than a motor is built to give even briefly
-    return out
-
-
-def _above_rating(w, scenario):
-    for ph in scenario.phases:
-        if ph.name == w["phase"] and ph.actuator:
-            return float(w["value"]) > scenario.actuator(ph.actuator).max_pressure
-    return False
-
-
-def recommend(data, scenario):
-    """(recommended record, reason text, excluded {label: [codes]}) from a
-    :func:`heatload.tables.comparison_dict`: lowest yearly electric energy among
-    strategies without safety-critical warnings."""
-    recs = data["strategies"]
-    excluded = {}
-    for r in recs:
-        crit = critical_warnings(r, scenario)
-        if crit:
-            excluded[r["label"]] = sorted({w["code"] for w in crit})
-    ok = [r for r in recs if r["label"] not in excluded]
-    pool = ok or recs
-    best = min(pool, key=lambda r: r["electric_energy_per_year_kWh"])
-    if ok:
-        why = (f"lowest yearly electric energy among the {len(ok)} of {len(recs)} strategies "
-               "without safety-critical warnings")
-    else:
-        why = ("every strategy has a safety-critical warning; this one has the lowest yearly "
-               "energy but needs the warnings resolved first")
-    return best, why, excluded
-
-
 def parse_prices(items, scenario) -> dict:
     """``["load-sensing=4200", ...]`` -> {strategy name: amount}."""
     out = {}
@@ -164,8 +121,13 @@ def payback_rows(data, present, prices=None) -> list:
     rows = []
     for r in data["strategies"]:
         saving = base["cost_per_year"] - r["cost_per_year"]
+        # prices are extra prices over the present circuit: the present one's is 0
+        # unless the file gives both on one footing
         p, p0 = price[r["label"]], price[present]
-        extra = (p - p0) if (p is not None and p0 is not None) else None
+        p0 = 0.0 if p0 is None else p0
+        if r["label"] == present:
+            p = p0
+        extra = (p - p0) if p is not None else None
         if extra is None:
             years = None
         elif extra <= 0:
@@ -179,106 +141,63 @@ def payback_rows(data, present, prices=None) -> list:
 
 
 # ---------------------------------------------------------------------------
-# figures
+# figures: inline SVG (heatload.svgplot), one colour per role
 # ---------------------------------------------------------------------------
 
-def _layout(fig, title, height=360, **kw):
-    from heatload.report_assets import FIGURE_WIDTH, PALETTE
-    fig.update_layout(
-        title=dict(text=title, x=0.0, xanchor="left", font=dict(size=14)),
-        width=FIGURE_WIDTH, height=height, autosize=False, template="plotly_white",
-        colorway=list(PALETTE), margin=dict(l=64, r=20, t=46, b=50),
-        font=dict(family="system-ui, -apple-system, Segoe UI, Roboto, Arial, sans-serif",
-                  size=12, color="#1d2430"),
-        legend=dict(orientation="h", yanchor="bottom", y=1.0, xanchor="right", x=1.0), **kw)
-    return fig
+#: Where each loss of the energy flow ends up: the room (drive motor, converter)
+#: or the oil (every other loss).
+FLOW_ORDER = ("drive_motor", "converter", "pump", "relief", "flow_control", "bleed",
+              "directional_valve", "check_valve", "lines", "counterbalance", "actuator",
+              "compression")
 
 
-def sankey_figure(record, title):
-    """Energy per cycle from electric input to useful work and every loss [kJ]."""
-    import plotly.graph_objects as go
-    from heatload.report_assets import PALETTE
-
+def energy_flow_rows(record) -> list:
+    """Where the electric energy of one cycle goes: [(label, kJ, "useful" | "room" |
+    "oil")], useful work first, then each loss (first law: the sum equals the
+    electric input plus any work an overrunning load puts in)."""
     ce = {k: max(0.0, v or 0.0) / 1e3 for k, v in record["component_energy_per_cycle_J"].items()}
-    electric = record["electric_energy_per_cycle_J"] / 1e3
-    useful = record["useful_energy_per_cycle_J"] / 1e3
-    motor = ce.get("drive_motor", 0.0) + ce.get("converter", 0.0)
-    shaft = max(electric - motor, 0.0)
-    hydraulic = max(shaft - ce.get("pump", 0.0), 0.0)
-    nodes = ["electric input", "pump shaft", "hydraulic power"]
-    colors = [PALETTE[0], PALETTE[4], PALETTE[2]]
-    src, dst, val, lcol = [], [], [], []
-
-    def node(label, color):
-        nodes.append(label)
-        colors.append(color)
-        return len(nodes) - 1
-
-    def link(a, b, v, c="rgba(0,114,178,0.30)"):
-        if v > 1e-9:
-            src.append(a), dst.append(b), val.append(v), lcol.append(c)
-
-    loss_c, loss_l = PALETTE[3], "rgba(213,94,0,0.30)"
-    link(0, 1, shaft)
-    if motor > 0:
-        link(0, node("drive motor" + (" + converter" if ce.get("converter", 0) > 0 else ""),
-                     loss_c), motor, loss_l)
-    link(1, 2, hydraulic)
-    if ce.get("pump", 0.0) > 0:
-        link(1, node("pump", loss_c), ce["pump"], loss_l)
-    if useful < 0:
-        link(node("work from overrunning load", PALETTE[5]), 2, -useful,
-             "rgba(204,121,167,0.35)")
-    for k in ("relief", "flow_control", "bleed", "directional_valve", "check_valve", "lines",
-              "counterbalance", "actuator", "compression"):
-        if ce.get(k, 0.0) > 0:
-            link(2, node(LOSS_LABELS[k], loss_c), ce[k], loss_l)
-    if useful > 0:
-        link(2, node("useful work", PALETTE[2]), useful, "rgba(0,158,115,0.35)")
-    fig = go.Figure(go.Sankey(
-        arrangement="snap", valueformat=".1f", valuesuffix=" kJ",
-        node=dict(label=nodes, color=colors, pad=14, thickness=14,
-                  line=dict(color="#ffffff", width=0.5)),
-        link=dict(source=src, target=dst, value=val, color=lcol)))
-    return _layout(fig, title, height=380)
+    rows = [("useful work", max(record["useful_energy_per_cycle_J"], 0.0) / 1e3, "useful")]
+    for k in FLOW_ORDER:
+        if k in ce:
+            where = "room" if k in ("drive_motor", "converter") else "oil"
+            rows.append((LOSS_LABELS[k] + (" (room)" if where == "room" else ""), ce[k], where))
+    return rows
 
 
-def _steps(durations, values):
-    t = np.concatenate([[0.0], np.cumsum(durations)])
-    v = list(values) + [values[-1]]
-    return t, v
+def energy_flow_chart(records, names, colours):
+    """Electric input, useful work and every loss per cycle [kJ] of the strategies
+    *names*, grouped bars drawn to one scale with their numbers."""
+    from heatload.svgplot import grouped_bars
+
+    flows = [energy_flow_rows(r) for r in records]
+    keep = [i for i, row in enumerate(flows[0])
+            if any(f[i][1] > 1e-6 for f in flows) or row[0] == "useful work"]
+    cats = ["electric input"] + [flows[0][i][0] for i in keep]
+    series = []
+    for name, colour, r, f in zip(names, colours, records, flows):
+        series.append((name, colour, [r["electric_energy_per_cycle_J"] / 1e3]
+                       + [f[i][1] for i in keep]))
+    return grouped_bars(cats, series, "energy per cycle [kJ]",
+                        "Where the energy of one cycle goes (one scale)")
 
 
-def cycle_figure(records, names):
-    """Heat into the oil [kW] and pump pressure [bar] over one cycle (steps per phase)."""
-    import plotly.graph_objects as go
-    from plotly.subplots import make_subplots
-    from heatload.report_assets import PALETTE
+def cycle_chart(records, names, colours, dashes=None):
+    """Heat into the oil [kW] and pump pressure [bar] over one cycle, phase by phase,
+    with the phase names."""
+    from heatload.svgplot import step_chart
 
-    fig = make_subplots(rows=2, cols=1, shared_xaxes=True, vertical_spacing=0.08)
-    for i, (rec, name) in enumerate(zip(records, names)):
-        ph = rec["phases"]
-        d = [p["duration_s"] for p in ph]
-        c = PALETTE[i % len(PALETTE)]
-        t, q = _steps(d, [p["heat_to_oil_W"] / 1e3 for p in ph])
-        hover = [p["phase"] for p in ph] + [ph[-1]["phase"]]
-        fig.add_trace(go.Scatter(x=t, y=q, mode="lines", line=dict(shape="hv", color=c),
-                                 name=f"{name}", legendgroup=name, text=hover,
-                                 hovertemplate="%{text}: %{y:.2f} kW<extra>" + name + "</extra>"),
-                      row=1, col=1)
-        t, p = _steps(d, [p["pump_pressure_Pa"] / 1e5 for p in ph])
-        fig.add_trace(go.Scatter(x=t, y=p, mode="lines",
-                                 line=dict(shape="hv", color=c, dash="solid" if i == 0 else "dash"),
-                                 name=name, legendgroup=name, showlegend=False, text=hover,
-                                 hovertemplate="%{text}: %{y:.1f} bar<extra>" + name + "</extra>"),
-                      row=2, col=1)
-    fig.update_yaxes(title_text="heat into oil [kW]", rangemode="tozero", row=1, col=1)
-    fig.update_yaxes(title_text="pump pressure [bar]", rangemode="tozero", row=2, col=1)
-    fig.update_xaxes(title_text="time in the cycle [s]", row=2, col=1)
-    return _layout(fig, "Heat and pressure over one cycle", height=460)
+    dashes = dashes or [False] * len(names)
+    ph = records[0]["phases"]
+    heat = [(n, c, d, [p["heat_to_oil_W"] / 1e3 for p in r["phases"]])
+            for n, c, d, r in zip(names, colours, dashes, records)]
+    pres = [(n, c, d, [p["pump_pressure_Pa"] / 1e5 for p in r["phases"]])
+            for n, c, d, r in zip(names, colours, dashes, records)]
+    return step_chart([p["duration_s"] for p in ph], [p["phase"] for p in ph],
+                      [("heat into oil [kW]", heat), ("pump pressure [bar]", pres)],
+                      "Heat and pressure over one cycle")
 
 
-def _thin(times, temps, limit=700):
+def _thin(times, temps, limit=400):
     t = np.asarray(times, float).ravel()
     y = np.asarray(temps, float).ravel()
     if t.size <= limit:
@@ -288,74 +207,48 @@ def _thin(times, temps, limit=700):
     return t[idx], y[idx]
 
 
-def shift_figure(curves, limit_C, design_C):
-    """Oil temperature [°C] over a shift [h]; *curves* = [(label, times, temps K, dash)]."""
-    import plotly.graph_objects as go
-    from heatload.report_assets import PALETTE
+def shift_chart(curves, limit_C, design_C):
+    """Oil temperature [°C] over a shift [h]; *curves* = [(label, times s, temps K,
+    colour, dashed)]."""
+    from heatload.report_assets import PALETTE, ROLE_COLOURS
+    from heatload.svgplot import line_chart
 
-    fig = go.Figure()
-    for i, (label, t, y, dash) in enumerate(curves):
+    lines = []
+    for label, t, y, colour, dash in curves:
         t, y = _thin(t, y)
-        fig.add_trace(go.Scatter(x=np.round(t / 3600.0, 4), y=np.round(y - K0, 2), mode="lines",
-                                 name=label, line=dict(color=PALETTE[i % len(PALETTE)], dash=dash),
-                                 hovertemplate="%{x:.2f} h: %{y:.1f} °C<extra>" + label
-                                 + "</extra>"))
-    fig.add_hline(y=limit_C, line=dict(color=PALETTE[3], dash="dot", width=1),
-                  annotation_text=f"fluid limit {limit_C:.0f} °C", annotation_position="top left")
-    fig.add_hline(y=design_C, line=dict(color=PALETTE[7], dash="dot", width=1),
-                  annotation_text=f"design {design_C:.0f} °C", annotation_position="bottom left")
-    fig.update_xaxes(title_text="time from cold start [h]")
-    fig.update_yaxes(title_text="oil temperature [°C]")
-    return _layout(fig, "Oil temperature over a shift", height=380)
+        lines.append((label, colour, dash, t / 3600.0, y - K0))
+    return line_chart(lines, "time from cold start [h]", "oil temperature [°C]",
+                      "Oil temperature over a shift",
+                      hlines=[(limit_C, f"fluid limit {limit_C:.0f} °C", PALETTE[3]),
+                              (design_C, f"design {design_C:.0f} °C", PALETTE[7])])
 
 
-def energy_bar_figure(data, recommended, present):
-    """Yearly electric energy [MWh] and heat into the oil [kW] per strategy."""
-    import plotly.graph_objects as go
-    from plotly.subplots import make_subplots
-    from heatload.report_assets import PALETTE
+def cost_chart(data, decision):
+    """Yearly cost of ownership of every strategy in rank order, split into
+    energy, cooler fan, circuit and cooler; ruled-out strategies greyed with
+    the reason."""
+    from heatload.report_assets import role_colour
+    from heatload.svgplot import bar_chart
 
-    recs = data["strategies"]
-    names = [r["label"] for r in recs]
-    col = [PALETTE[2] if n == recommended else PALETTE[1] if n == present else PALETTE[0]
-           for n in names]
-    fig = make_subplots(rows=1, cols=2, horizontal_spacing=0.16)
-    fig.add_trace(go.Bar(y=names, x=[r["electric_energy_per_year_kWh"] / 1e3 for r in recs],
-                         orientation="h", marker_color=col, showlegend=False,
-                         hovertemplate="%{y}: %{x:.2f} MWh/year<extra></extra>"), row=1, col=1)
-    fig.add_trace(go.Bar(y=names, x=[r["heat_to_oil_W"] / 1e3 for r in recs], orientation="h",
-                         marker_color=col, showlegend=False,
-                         hovertemplate="%{y}: %{x:.2f} kW<extra></extra>"), row=1, col=2)
-    fig.update_xaxes(title_text="electric energy [MWh/year]", row=1, col=1)
-    fig.update_xaxes(title_text="heat into oil [kW]", row=1, col=2)
-    fig.update_yaxes(autorange="reversed", title_text="strategy", row=1, col=1)
-    fig.update_yaxes(autorange="reversed", showticklabels=False, row=1, col=2)
-    fig = _layout(fig, "Energy and heat by strategy (green: recommended, orange: present)",
-                  height=330)
-    fig.update_layout(margin=dict(l=170, r=20, t=46, b=50))
-    return fig
+    cur = data["scenario"]["currency"]
+    rows = []
+    for v in decision.verdicts:
+        c = role_colour(v.name, decision.present, decision.recommended, v.feasible)
+        parts = (v.cost.energy, v.cost.fan, v.cost.circuit, v.cost.cooler)
+        rows.append({"label": f"{v.rank}. {v.name}", "bold": v.name == decision.recommended,
+                     "grey": not v.feasible,
+                     "segments": [(x, c, op) for x, op in zip(parts, (1.0, 0.75, 0.5, 0.3))],
+                     "note": "" if v.feasible else "ruled out"})
+    legend = [("energy", "#5b6675", 1.0), ("cooler fan", "#5b6675", 0.75),
+              ("circuit price / year", "#5b6675", 0.5), ("cooler price / year", "#5b6675", 0.3)]
+    return bar_chart(rows, f"yearly cost of ownership [{cur}/year]",
+                     "Yearly cost of ownership, ranked (green: recommended, orange: present, "
+                     "grey: ruled out)", legend=legend, note_width=100)
 
 
-class _Figures:
-    """Turns plotly figures into HTML divs: plotly.js inline once, then none."""
-
-    def __init__(self):
-        self.first = True
-        self.count = 0
-
-    def __call__(self, fig, caption=""):
-        import plotly.io as pio
-
-        self.count += 1
-        div = pio.to_html(fig, include_plotlyjs=self.first, full_html=False,
-                          div_id=f"figure-{self.count}",
-                          config={"displaylogo": False, "responsive": False,
-                                  "showSendToCloud": False,
-                                  "modeBarButtonsToRemove": ["sendDataToCloud", "lasso2d",
-                                                             "select2d"]})
-        self.first = False
-        cap = f'<div class="caption">{html.escape(caption)}</div>' if caption else ""
-        return f'<div class="figure">{div}{cap}</div>'
+def _figure(svg, caption=""):
+    cap = f'<div class="caption">{html.escape(caption)}</div>' if caption else ""
+    return f'<div class="figure">{svg}{cap}</div>'
 
 
 # ---------------------------------------------------------------------------
@@ -402,9 +295,10 @@ def _table(headers, rows, cls=""):
 # sections
 # ---------------------------------------------------------------------------
 
-def comparison_section(data, recommended, present):
+def comparison_section(data, recommended, present, decision=None):
     cur = data["scenario"]["currency"]
-    headers = [("strategy", ""), ("energy [kWh/yr]", "num"), (f"cost [{cur}/yr]", "num"),
+    headers = [("strategy", ""), (f"ownership [{cur}/yr]", "num"), ("energy [kWh/yr]", "num"),
+               (f"electricity [{cur}/yr]", "num"),
                ("CO₂ [t/yr]", "num"), ("heat to oil [kW]", "num"),
                ("oil, no cooler [°C]", "num"), ("oil, running [°C]", "num"),
                ("cooler [kW]", "num"), ("peak [bar]", "num"), ("eff. [%]", "num"),
@@ -412,12 +306,15 @@ def comparison_section(data, recommended, present):
     rows = []
     for rank, name in enumerate(data["ranking"], 1):
         r = next(x for x in data["strategies"] if x["label"] == name)
+        ok = r.get("feasible", True)
         cls = " ".join(c for c, on in (("recommended", name == recommended),
-                                       ("present", name == present)) if on)
+                                       ("present", name == present), ("out", not ok)) if on)
         codes = sorted({w["code"] for w in r["warnings"]})
         s = r["label"]
+        own = r.get("yearly_cost_total")
         rows.append(
             f'<tr class="{cls}" data-strategy="{_e(s)}"><td>{rank}. {_e(s)}</td>'
+            + _cell(own, _grouped(own), s, "yearly_cost_total")
             + _cell(r["electric_energy_per_year_kWh"],
                     _grouped(r["electric_energy_per_year_kWh"]), s, "electric_energy_per_year_kWh")
             + _cell(r["cost_per_year"], _grouped(r["cost_per_year"]), s, "cost_per_year")
@@ -433,7 +330,9 @@ def comparison_section(data, recommended, present):
                     "peak_pressure_Pa")
             + _cell(r["overall_efficiency"], f"{100 * r['overall_efficiency']:.0f}", s,
                     "overall_efficiency")
-            + f'<td class="small {"warn" if codes else ""}">{_e(", ".join(codes) or "–")}</td></tr>')
+            + f'<td class="small {"warn" if codes else ""}">{_e(", ".join(codes) or "–")}</td></tr>'
+            + ("" if ok else f'<tr class="out reason-row"><td colspan="{len(headers)}">'
+               f'<span class="reason">{_e(s)} is {_e(r["reason"])}</span></td></tr>'))
     return _table(headers, rows, "compare")
 
 
@@ -442,14 +341,14 @@ def _assumption(item, value, source, kind=None, si=None):
             "value_si": None if si is None else float(si)}
 
 
-def assumptions(scenario, data=None) -> list:
+def assumptions(scenario, data=None, system="si") -> list:
     """Every input and model assumption with its value and source (list of dicts:
-    item, value (text), source, kind, value_si)."""
-    from heatload import chain, oil
+    item, value (text in *system*'s units: "si" or "us"), source, kind, value_si)."""
+    from heatload import chain, decision, oil
     from heatload.units import format_quantity as fq
 
     def q(v, kind, digits=3):
-        return fq(v, kind, "si", digits)
+        return fq(v, kind, system, digits)
     sc = scenario
     f, a, r, pu, ec, cd = (sc.fluid, sc.ambient, sc.reservoir, sc.power_unit, sc.economics,
                            sc.cooler)
@@ -488,8 +387,8 @@ def assumptions(scenario, data=None) -> list:
     A(_assumption("site altitude", q(a.altitude, "distance"), "scenario; barometric formula",
                   "distance", a.altitude))
     A(_assumption("oil volume", q(r.oil_volume, "volume"), "scenario", "volume", r.oil_volume))
-    A(_assumption("reservoir outside dimensions", f"{r.length:.2f} x {r.width:.2f} x "
-                  f"{r.height:.2f} m, oil level {100 * r.oil_level:.0f} %", "scenario"))
+    A(_assumption("reservoir outside dimensions", f"{q(r.length, 'distance')} x {q(r.width, 'distance')} x "
+                  f"{q(r.height, 'distance')}, oil level {100 * r.oil_level:.0f} %", "scenario"))
     A(_assumption("heat transfer of the walls",
                   q(r.heat_transfer_coefficient, "heat_transfer_coefficient")
                   if r.heat_transfer_coefficient else
@@ -503,8 +402,8 @@ def assumptions(scenario, data=None) -> list:
         A(_assumption("further surfaces", ", ".join(f"{s.name} {s.area:.2f} m²"
                                                      for s in r.surfaces), "scenario"))
     p = pu.pump
-    A(_assumption("pump", f"{p.kind} {p.type}, {p.displacement * 1e6:.1f} cm³/rev at "
-                  f"{p.shaft_speed * 60:.0f} rpm", "scenario"))
+    A(_assumption("pump", f"{p.kind} {p.type}, {q(p.displacement, 'displacement')} at "
+                  f"{q(p.shaft_speed, 'shaft_speed')}", "scenario"))
     A(_assumption("pump datasheet point", f"eta_v {p.volumetric_efficiency:.2f}, eta_hm "
                   f"{p.hydromechanical_efficiency:.2f} at {q(p.rated_pressure, 'pressure')} and "
                   f"{q(p.rated_viscosity, 'kinematic_viscosity')}",
@@ -522,7 +421,7 @@ def assumptions(scenario, data=None) -> list:
     A(_assumption("directional valve", f"{q(dv.pressure_drop, 'pressure')} at "
                   f"{q(dv.rated_flow, 'flow')}, {dv.centre} centre", "scenario; Δp ~ Q²"))
     for label, ln in (("pressure line", pu.pressure_line), ("return line", pu.return_line)):
-        A(_assumption(label, f"{ln.length:.1f} m, ID {ln.inner_diameter * 1e3:.0f} mm, "
+        A(_assumption(label, f"{q(ln.length, 'distance')}, ID {q(ln.inner_diameter, 'length')}, "
                       f"K {ln.fittings_k:.1f}", "scenario; Darcy-Weisbach, Colebrook"))
     for st in sc.strategies:
         sp = st.parameters
@@ -545,6 +444,18 @@ def assumptions(scenario, data=None) -> list:
     A(_assumption("electricity price", f"{ec.electricity_price * 3.6e6:.3f} {ec.currency}/kWh",
                   "scenario"))
     A(_assumption("grid CO₂ factor", f"{ec.grid_co2_factor * 3.6e6:.3f} kg/kWh", "scenario"))
+    A(_assumption("service life and interest (prices annualised)",
+                  f"{ec.service_life:g} years at {100 * ec.interest_rate:g} %/year, capital "
+                  f"recovery factor "
+                  f"{float(decision.capital_recovery_factor(ec.interest_rate, ec.service_life)):.4f}",
+                  "scenario or default; annuity method"))
+    fixed, per_kw = decision.cooler_prices(cd)
+    A(_assumption("cooler price", f"{fixed:,.0f} {ec.currency} + {per_kw:,.0f} {ec.currency}/kW "
+                  "of duty", "scenario" if cd.price_fixed is not None and cd.price_per_kW
+                  is not None else "default (common practice)"))
+    A(_assumption("cooler fan power", f"{100 * (cd.fan_power_fraction if cd.fan_power_fraction is not None else decision.DEFAULT_FAN_POWER_FRACTION):.1f} % of the duty, on "
+                  "for the share of the time the load needs it", "scenario" if
+                  cd.fan_power_fraction is not None else "default (common practice)"))
     A(_assumption("cooler duty margin", f"{100 * cd.margin:.0f} %",
                   "scenario; margin common practice", "dimensionless", cd.margin))
     A(_assumption("cooler coolant", cd.coolant, "scenario"))
@@ -628,7 +539,7 @@ def _cooler_html(rec, sz, unc):
     t = rec.get("thermostat")
     if t and rec["cooler_needed"]:
         parts.append(f"<p>With a thermostat (on at {t['on_temperature_C']:.1f} °C, hysteresis "
-                     f"{t['hysteresis_K']:.0f} K) the cooler switches on {t['switch_count']} times "
+                     f"{t['hysteresis_K']:.0f} K) the cooler switches on {tables.times(t['switch_count'])} "
                      f"in a {t['shift_duration_s'] / 3600:.1f} h shift and runs "
                      f"{100 * t['on_fraction']:.0f} % of the time; the oil peaks at "
                      f"{t['max_temperature_C']:.1f} °C.</p>")
@@ -681,29 +592,95 @@ def _present_name(cmp, present):
                             field="--present") from None
 
 
+def input_fingerprint(source=None, scenario=None):
+    """SHA-256 of the input: the bytes of the scenario file, or, for a scenario
+    made in memory (the dashboard), of its canonical TOML text."""
+    import hashlib
+
+    if source and Path(source).is_file():
+        return hashlib.sha256(Path(source).read_bytes()).hexdigest()
+    if scenario is not None:
+        from heatload import io
+        return hashlib.sha256(io.dumps_scenario(scenario).encode("utf-8")).hexdigest()
+    return None
+
+
+def tool_version():
+    """The installed heatload version."""
+    try:
+        from importlib.metadata import version
+        return version("heatload")
+    except Exception:  # noqa: BLE001  (a source checkout without metadata)
+        import heatload
+        return getattr(heatload, "__version__", "unknown")
+
+
+def cover_data(scenario, source=None, cover=None) -> dict:
+    """The cover block: project, customer, prepared by, date, revision (the
+    scenario's ``[scenario]`` keys, overridden by *cover*), tool version, input
+    file name and SHA-256."""
+    import datetime
+
+    c = {"project": scenario.project or scenario.name, "customer": scenario.customer,
+         "prepared_by": scenario.prepared_by, "revision": scenario.revision or "A",
+         "date": datetime.date.today().isoformat()}
+    c["tool"] = f"heatload {tool_version()}"
+    c["input"] = Path(source).name if source else "(made in the dashboard)"
+    c["sha256"] = input_fingerprint(source, scenario)
+    for k, v in (cover or {}).items():
+        if v and k != "sha256":
+            c[k] = str(v)
+    return c
+
+
 def report_data(scenario, comparison, present=None, prices=None, source=None,
-                samples=None, seed=1) -> dict:
-    """Everything the report shows, as plain data (also used by the exports)."""
+                samples=None, seed=1, cover=None, system="si") -> dict:
+    """Everything the report shows, as plain data (also used by the exports).
+
+    The recommendation and the rank order are :func:`heatload.decision.decide`'s."""
+    from heatload import decision as decision_mod
     from heatload import sizing, tables
 
-    data = tables.comparison_dict(comparison, source, with_phases=True)
     present = _present_name(comparison, present)
-    best, why, excluded = recommend(data, scenario)
-    rec_name = best["label"]
+    dec = comparison.decision(present, prices)
+    data = tables.comparison_dict(comparison, source, with_phases=True, present=present,
+                                  prices=prices)
+    rec_name = dec.best.name
     savings = tables.savings_against(comparison, present)
     pay = payback_rows(data, present, prices)
     o_rec = comparison.outcome(rec_name)
     sz = sizing.size_cooler(scenario, o_rec)
     unc = sizing.cooler_uncertainty(scenario, o_rec.strategy,
                                     samples=samples or sizing.REPORT_SAMPLES, seed=seed)
-    return {"data": data, "present": present, "recommended": rec_name, "why": why,
-            "excluded": excluded, "savings": savings, "payback": pay, "sizing": sz,
-            "cooler": sizing.sizing_record(sz, unc), "uncertainty": unc,
-            "assumptions": assumptions(scenario, data)}
+    rec = sizing.sizing_record(sz, unc)
+    quote = None
+    if rec["cooler_needed"]:
+        q, basis, covered = decision_mod.quoted_duty(
+            rec["duty_W"], rec["margin"], unc.get("cooler_duty_W") if unc.get("available")
+            else None)
+        quote = {"duty_W": q, "basis": basis, "margin_covers": covered}
+    excluded = {v.name: sorted({c for c, _ in v.blocking}) for v in dec.verdicts
+                if not v.feasible}
+    return {"data": data, "present": present, "recommended": rec_name,
+            "feasible": dec.recommended is not None, "decision": dec,
+            "why": dec.best.reason, "excluded": excluded, "savings": savings,
+            "payback": pay, "sizing": sz, "cooler": rec, "uncertainty": unc,
+            "quote": quote, "cover": cover_data(scenario, source, cover), "system": system,
+            "assumptions": assumptions(scenario, data, system)}
+
+
+def _cover_html(c):
+    rows = [("project", c["project"]), ("customer", c["customer"] or "–"),
+            ("prepared by", c["prepared_by"] or "–"), ("date", c["date"]),
+            ("revision", c["revision"]), ("tool", c["tool"]), ("input file", c["input"]),
+            ("input SHA-256", c["sha256"] or "–")]
+    cells = "".join(f'<tr><th>{_e(k)}</th><td{" class=sha" if k == "input SHA-256" else ""}>'
+                    f"{_e(v)}</td></tr>" for k, v in rows)
+    return f'<table class="cover" id="cover">{cells}</table>'
 
 
 def build_report(scenario, comparison, present=None, prices=None, source=None,
-                 samples=None, seed=1, prepared=None) -> str:
+                 samples=None, seed=1, prepared=None, cover=None, system="si") -> str:
     """The report as one self-contained HTML document (str).
 
     Parameters
@@ -716,44 +693,48 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
     prices : dict, optional
         {strategy name: extra price} overriding the scenario's prices.
     source : str, optional
-        File name shown in the report.
+        The scenario file (name and SHA-256 on the cover).
     samples, seed : int, optional
         Monte Carlo of the cooler duty (default :data:`heatload.sizing.REPORT_SAMPLES`).
     prepared : dict, optional
         A :func:`report_data` result to reuse.
+    cover : dict, optional
+        project, customer, prepared_by, date, revision overriding the scenario's.
+    system : str, optional
+        "si" or "us": units of the assumptions appendix.
 
     Returns
     -------
     str
-        HTML; plotly.js inline once, no reference to any server.
+        HTML with its charts as inline SVG: no script library, no reference to
+        any server.
     """
     from heatload import chain
-    from heatload.report_assets import STYLESHEET
+    from heatload.report_assets import ROLE_COLOURS, STYLESHEET, role_colour
 
-    rd = prepared or report_data(scenario, comparison, present, prices, source, samples, seed)
+    rd = prepared or report_data(scenario, comparison, present, prices, source, samples, seed,
+                                 cover, system)
     data, present, rec_name = rd["data"], rd["present"], rd["recommended"]
+    dec = rd["decision"]
     recs = {r["label"]: r for r in data["strategies"]}
     best, base = recs[rec_name], recs[present]
     sav = rd["savings"][rec_name]
     cur = data["scenario"]["currency"]
     cooler = rd["cooler"]
-    fig = _Figures()
 
     # --- summary -----------------------------------------------------------------
-    if rec_name == present:
-        lead = (f"<p>The present circuit, <b>{_e(present)}</b>, is already the best choice for "
-                f"this cycle: {_e(rd['why'])}.</p>")
-    else:
-        lead = (f"<p>For this duty cycle we recommend <b>{_e(rec_name)}</b>: "
-                f"{_e(rd['why'])}. Against the present <b>{_e(present)}</b> circuit it saves "
-                f"<b>{_grouped(sav['energy_saving_kWh'])} kWh</b> and "
-                f"<b>{_grouped(sav['cost_saving'])} {_e(cur)}</b> a year "
-                f"({sav['co2_saving_kg'] / 1e3:.2f} t CO₂), and puts "
-                f"{_num((base['heat_to_oil_W'] - best['heat_to_oil_W']) / 1e3)} kW less heat "
-                f"into the oil.</p>")
+    lead = f'<p class="decision" id="decision-sentence"><b>{_e(dec.sentence())}</b></p>'
+    if rec_name != present:
+        lead += (f"<p>Against the present <b>{_e(present)}</b> circuit, {_e(rec_name)} saves "
+                 f"<b>{_grouped(sav['energy_saving_kWh'])} kWh</b> of electricity a year "
+                 f"({_grouped(sav['cost_saving'])} {_e(cur)}, "
+                 f"{sav['co2_saving_kg'] / 1e3:.2f} t CO₂) and puts "
+                 f"{_num((base['heat_to_oil_W'] - best['heat_to_oil_W']) / 1e3)} kW less heat "
+                 f"into the oil.</p>")
     if rd["excluded"]:
-        lead += ("<p>Not recommended because of safety-critical warnings: " + "; ".join(
-            f"{_e(k)} ({_e(', '.join(v))})" for k, v in rd["excluded"].items()) + ".</p>")
+        lead += ("<p>Ruled out: " + "; ".join(
+            f"<b>{_e(v.name)}</b> — {_e(v.reason[5:] if v.reason.startswith('out: ') else v.reason)}"
+            for v in dec.verdicts if not v.feasible) + ".</p>")
     if cooler["cooler_needed"]:
         spec = cooler["spec"]
         size = ""
@@ -766,6 +747,7 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
         lead += (f"<p>A cooler <b>is needed</b> with {_e(rec_name)}: "
                  f"<b>{_num(cooler['duty_W'] / 1e3)} kW</b> including the "
                  f"{100 * cooler['margin']:.0f} % margin{size}.</p>")
+        lead += _quote_html(rd)
     else:
         lead += (f"<p><b>No cooler is needed</b> with {_e(rec_name)}: the reservoir sheds the "
                  "heat at the design point.</p>")
@@ -776,15 +758,19 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
                      f"<code>--price {_e(rec_name)}=AMOUNT</code>).</p>")
         elif pay["payback_years"] is not None:
             lead += (f"<p>Its extra price of {_grouped(pay['extra_price'])} {_e(cur)} pays back in "
-                     f"<b>{_num(pay['payback_years'], 2)} years</b>.</p>")
+                     f"<b>{_num(pay['payback_years'], 2)} years</b> from the electricity "
+                     "saved.</p>")
     keyfig = (
         '<div class="keyfigures">'
         f'<div class="keyfigure"><div class="label">recommended</div><div class="value">'
         f'{_e(rec_name)}</div></div>'
+        f'<div class="keyfigure"><div class="label">cost of ownership saved per year</div>'
+        f'<div class="value" data-key="ownership_saving" data-value="{dec.saving()!r}">'
+        f'{_grouped(dec.saving())} {_e(cur)}</div></div>'
         f'<div class="keyfigure"><div class="label">energy saving per year</div>'
         f'<div class="value" data-key="energy_saving_kWh" data-value="{sav["energy_saving_kWh"]!r}">'
         f'{_grouped(sav["energy_saving_kWh"])} kWh</div></div>'
-        f'<div class="keyfigure"><div class="label">cost saving per year</div>'
+        f'<div class="keyfigure"><div class="label">electricity cost saving per year</div>'
         f'<div class="value" data-key="cost_saving" data-value="{sav["cost_saving"]!r}">'
         f'{_grouped(sav["cost_saving"])} {_e(cur)}</div></div>'
         f'<div class="keyfigure"><div class="label">cooler duty</div>'
@@ -795,87 +781,125 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
 
     # --- figures -----------------------------------------------------------------
     show = [present] if rec_name == present else [present, rec_name]
-    energy_fig = fig(energy_bar_figure(data, rec_name, present),
-                     "Yearly electric energy bought and mean heat into the oil, at the operating "
-                     "oil temperature.")
-    sankeys = "".join(fig(sankey_figure(recs[n], f"Where the energy goes: {n} (kJ per cycle)"),
-                          "Electric input to useful work and each loss, per cycle. Drive motor "
-                          "losses heat the room; all others heat the oil.") for n in show)
-    cyc = fig(cycle_figure([recs[n] for n in show], show),
-              "Steps per phase, at the operating oil temperature.")
+    colours = [role_colour(n, present, rec_name) for n in show]
+    cost_fig = _figure(cost_chart(data, dec),
+                       "Electricity of the circuit and of the cooler's fan, and the extra "
+                       "price of the circuit and of its cooler spread over the service life "
+                       "(capital recovery). Ruled-out circuits are grey.")
+    flow = _figure(energy_flow_chart([recs[n] for n in show], show, colours),
+                   "Electric input, useful work and each loss per cycle, every bar on one "
+                   "scale. Drive motor and converter losses heat the room; all others heat "
+                   "the oil.")
+    cyc = _figure(cycle_chart([recs[n] for n in show], show, colours,
+                              [n == present and n != rec_name for n in show]),
+                  "Steps per phase, at the operating oil temperature; phases numbered in "
+                  "cycle order.")
     curves = []
     o_rec = comparison.outcome(rec_name)
+    c_rec, c_pre = ROLE_COLOURS["recommended"], ROLE_COLOURS["present"]
     w = chain.shift_profile(scenario, o_rec, cooler_on=False)
-    curves.append((f"{rec_name}, no cooler", w.times, w.temperatures, "solid"))
+    curves.append((f"{rec_name}, no cooler", w.times, w.temperatures, c_rec,
+                   bool(o_rec.thermal.cooler_needed)))
     if o_rec.thermal.cooler_needed:
         wc = chain.shift_profile(scenario, o_rec, cooler_on=True)
-        curves.append((f"{rec_name}, with cooler", wc.times, wc.temperatures, "solid"))
+        curves.append((f"{rec_name}, with cooler", wc.times, wc.temperatures, c_rec, False))
     if rec_name != present:
         wp = chain.shift_profile(scenario, comparison.outcome(present), cooler_on=False)
-        curves.append((f"{present}, no cooler", wp.times, wp.temperatures, "dash"))
-    shift = fig(shift_figure(curves, scenario.fluid.temperature_max - K0,
-                             o_rec.thermal.design_oil_temperature - K0),
-                f"From a cold start at {scenario.ambient.cold_start_temperature - K0:.0f} °C, "
-                f"typical ambient {scenario.ambient.temperature - K0:.0f} °C; the cooler is "
-                "switched by its thermostat.")
+        curves.append((f"{present}, no cooler", wp.times, wp.temperatures, c_pre, True))
+    shift = _figure(shift_chart(curves, scenario.fluid.temperature_max - K0,
+                                o_rec.thermal.design_oil_temperature - K0),
+                    f"From a cold start at {scenario.ambient.cold_start_temperature - K0:.0f} °C, "
+                    f"typical ambient {scenario.ambient.temperature - K0:.0f} °C; the cooler is "
+                    "switched by its thermostat.")
 
-    # --- payback table -----------------------------------------------------------
+    # --- payback and cost of ownership ---------------------------------------------
     prow = []
     for p in rd["payback"]:
-        cls = "recommended" if p["strategy"] == rec_name else ""
+        v = dec.verdict(p["strategy"])
+        cls = "recommended" if p["strategy"] == rec_name else ("out" if not v.feasible else "")
         prow.append(f'<tr class="{cls}"><td>{_e(p["strategy"])}</td>'
                     + _cell(p["price"], _grouped(p["price"]), p["strategy"], "price")
-                    + _cell(p["extra_price"], _grouped(p["extra_price"]), p["strategy"],
-                            "extra_price")
+                    + _cell(v.cost.cooler_price, _grouped(v.cost.cooler_price), p["strategy"],
+                            "cooler_price")
+                    + _cell(v.cost.total, _grouped(v.cost.total), p["strategy"],
+                            "yearly_cost_total")
                     + _cell(p["cost_saving_per_year"], _grouped(p["cost_saving_per_year"]),
                             p["strategy"], "cost_saving_per_year")
                     + _cell(p["payback_years"], _num(p["payback_years"], 2)
                             if p["payback_years"] is not None else "–", p["strategy"],
                             "payback_years") + "</tr>")
-    payback = _table([("strategy", ""), (f"price [{cur}]", "num"),
-                      (f"extra over {present} [{cur}]", "num"),
-                      (f"cost saving [{cur}/year]", "num"), ("payback [years]", "num")], prow)
+    payback = _table([("strategy", ""), (f"circuit price [{cur}]", "num"),
+                      (f"cooler price [{cur}]", "num"),
+                      (f"cost of ownership [{cur}/year]", "num"),
+                      (f"electricity saved vs {present} [{cur}/year]", "num"),
+                      ("simple payback [years]", "num")], prow)
+    notes = "".join(f'<p class="note">Note: {_e(n)}.</p>' for n in dec.notes)
 
+    inputs = [a for a in rd["assumptions"] if not a["item"].startswith("method: ")]
+    methods = [a for a in rd["assumptions"] if a["item"].startswith("method: ")]
     arow = "".join(f"<tr><td>{_e(a['item'])}</td><td>{_e(a['value'])}</td>"
-                   f"<td class=\"note\">{_e(a['source'])}</td></tr>" for a in rd["assumptions"])
-    assum = _table([("item", ""), ("value", ""), ("source", "")], [arow])
+                   f"<td class=\"note\">{_e(a['source'])}</td></tr>" for a in inputs)
+    mrow = "".join(f"<tr><td>{_e(a['item'][len('method: '):])}</td>"
+                   f"<td>{_e(a['source'])}</td></tr>" for a in methods)
+    assum = (_table([("item", ""), ("value", ""), ("source", "")], [arow])
+             + "<h3>Methods</h3>" + _table([("step", ""), ("method, standard or source", "")],
+                                           [mrow], "methods"))
 
     sc = data["scenario"]
-    meta = (f"{sc['phases']} phases, {sc['hours_per_year']:.0f} h/year, ambient "
+    meta = (f"{sc['phases']} phases, {sc['hours_per_year']:,.0f} h/year, ambient "
             f"{sc['ambient_C']:.0f} °C (design {sc['ambient_max_C']:.0f} °C), electricity "
-            f"{sc['electricity_price_per_kWh']:.3f} {_e(cur)}/kWh"
-            + (f" — file {_e(Path(sc['file']).name)}" if sc["file"] else ""))
+            f"{sc['electricity_price_per_kWh']:.3f} {_e(cur)}/kWh")
     payload = json.dumps({"comparison": _jsonable(data), "cooler": _jsonable(cooler),
-                          "present": present, "recommended": rec_name},
+                          "present": present, "recommended": rec_name,
+                          "cover": rd["cover"], "quote": rd["quote"]},
                          ensure_ascii=True, allow_nan=False).replace("</", "<\\/")
     desc = f"<p>{_e(scenario.description)}</p>" if scenario.description else ""
+    unit_word = "US customary" if rd.get("system") == "us" else "SI"
     body = f"""
 <header class="title"><h1>{_e(scenario.name)} — heat load and control strategies</h1>
-<div class="meta">{meta}</div></header>
-<section class="page" id="summary"><h2>Summary</h2>{desc}{keyfig}{lead}
+<div class="meta">{meta}</div>{_cover_html(rd['cover'])}</header>
+<section id="summary"><h2>1 Decision</h2>{lead}{keyfig}{desc}
 <div class="caution">{_e(CAUTION)}</div></section>
-<section class="page" id="comparison"><h2>Strategies compared</h2>
-<p>Ranked by yearly electric energy at the operating oil temperature (with the cooler where one is
-needed). The recommended row is highlighted.</p>
-{comparison_section(data, rec_name, present)}{energy_fig}</section>
-<section class="page" id="energy"><h2>Where the energy goes</h2>{sankeys}</section>
-<section class="page" id="cycle"><h2>Heat and pressure over the cycle</h2>{cyc}</section>
-<section class="page" id="shift"><h2>Oil temperature over a shift</h2>{shift}</section>
-<section class="page" id="cooler"><h2>Cooler</h2>{_cooler_html(cooler, rd['sizing'], rd['uncertainty'])}</section>
-<section class="page" id="payback"><h2>Payback</h2>
-<p>Simple payback = extra price over the present circuit / yearly cost saving. Prices are the
-scenario's or given on the command line.</p>{payback}</section>
-<section class="page" id="warnings"><h2>Warnings</h2>{_warnings_html(data)}</section>
-<section class="page" id="assumptions"><h2>Assumptions and methods</h2>{assum}
+<section id="comparison"><h2>2 Strategies compared</h2>
+<p>Ranked by the decision rule: circuits that can do the job first, then by yearly cost of
+ownership. The recommended row is highlighted; ruled-out rows are grey.</p>
+{comparison_section(data, rec_name, present, dec)}{cost_fig}</section>
+<section id="energy"><h2>3 Where the energy goes</h2>{flow}</section>
+<section id="cycle"><h2>4 Heat and pressure over the cycle</h2>{cyc}</section>
+<section id="shift"><h2>5 Oil temperature over a shift</h2>{shift}</section>
+<section id="cooler"><h2>6 Cooler</h2>{_cooler_html(cooler, rd['sizing'], rd['uncertainty'])}</section>
+<section id="payback"><h2>7 Cost of ownership and payback</h2>
+<p>Yearly cost of ownership = electricity of the circuit and of the cooler's fan + (circuit price
++ cooler price) x the capital recovery factor over the service life. Simple payback = extra price
+over the present circuit / yearly electricity saving. Prices are the scenario's or given on the
+command line.</p>{payback}{notes}</section>
+<section id="warnings"><h2>8 Warnings</h2>{_warnings_html(data)}</section>
+<section id="assumptions" class="appendix"><h2>Appendix: assumptions and methods ({unit_word}
+units)</h2>{assum}
 <div class="caution">{_e(CAUTION)}</div></section>
-<footer>Made with heatload. Figures are estimates from the scenario's inputs and the methods
-listed above.</footer>
+<footer>Made with {_e(rd['cover']['tool'])}. Figures are estimates from the scenario's inputs
+and the methods listed above.</footer>
 <script type="application/json" id="heatload-data">{payload}</script>
 """
     return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
             "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">"
             f"<title>{_e(scenario.name)} — heatload report</title>"
             f"<style>{STYLESHEET}</style></head><body><main>{body}</main></body></html>\n")
+
+
+def _quote_html(rd):
+    q = rd["quote"]
+    unc = rd["uncertainty"] or {}
+    spec = rd["cooler"].get("spec") or {}
+    line = (f'<p class="quote" id="quote-duty"><b>Quote this duty: {_num(q["duty_W"] / 1e3)} '
+            f'kW</b> — {_e(q["basis"])}.')
+    kwk = unc.get("specific_cooling_power_W_K") if unc.get("available") else None
+    if spec.get("coolant") == "air" and kwk:
+        line += (f" Specific cooling power at the ETD: {spec['specific_cooling_power_W_K'] / 1e3:.3f}"
+                 f" kW/K nominal; over the uncertain inputs (the hottest day among them) "
+                 f"P50 {kwk['P50'] / 1e3:.3f}, P90 {kwk['P90'] / 1e3:.3f}, "
+                 f"P95 {kwk['P95'] / 1e3:.3f} kW/K.")
+    return line + "</p>"
 
 
 def _jsonable(obj):
@@ -1050,8 +1074,11 @@ def run_cli(args) -> int:
     check_outputs(out, args.xlsx, args.csv, export_names(st.name for st in sc.strategies),
                   args.force)
     cmp = chain.compare(sc)
+    cover = {k: getattr(args, k, None) for k in ("project", "customer", "prepared_by",
+                                                 "revision", "date")}
     rd = report_data(sc, cmp, args.present, prices, str(path),
-                     samples=getattr(args, "samples", None), seed=getattr(args, "seed", 1))
+                     samples=getattr(args, "samples", None), seed=getattr(args, "seed", 1),
+                     cover=cover, system=getattr(args, "units", None) or "si")
     text = build_report(sc, cmp, prepared=rd)
     write_html(text, out, args.force)
     if args.xlsx or args.csv:

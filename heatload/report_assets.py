@@ -9,6 +9,25 @@ server: system fonts only, no images, no external stylesheets.
 PALETTE = ("#0072B2", "#E69F00", "#009E73", "#D55E00", "#56B4E9", "#CC79A7", "#F0E442",
            "#000000")
 
+#: One colour per role, the same in every chart of the report and the dashboard:
+#: the machine's present circuit, the recommended one, any other, one ruled out.
+ROLE_COLOURS = {"present": PALETTE[1], "recommended": PALETTE[2], "other": PALETTE[0],
+                "infeasible": "#9AA3AD"}
+
+#: Colours of where the energy goes (energy-flow chart): work done, heat into the
+#: room (drive motor and converter), heat into the oil.
+FLOW_COLOURS = {"useful": PALETTE[4], "room": "#7F7F7F", "oil": PALETTE[3]}
+
+
+def role_colour(name, present, recommended, feasible=True):
+    """Colour of strategy *name* by its role (:data:`ROLE_COLOURS`)."""
+    if name == recommended:
+        return ROLE_COLOURS["recommended"]
+    if name == present:
+        return ROLE_COLOURS["present"]
+    return ROLE_COLOURS["other"] if feasible else ROLE_COLOURS["infeasible"]
+
+
 #: Printable width of a chart [px at 96 dpi]: A4 (210 mm) and Letter (215.9 mm)
 #: less 2 x 15 mm margins leave >= 180 mm = 680 px.
 FIGURE_WIDTH = 680
@@ -56,17 +75,40 @@ code { font-family: ui-monospace, "SFMono-Regular", Menlo, Consolas, "Liberation
 footer { margin-top: 36px; color: var(--muted); font-size: 12px; border-top: 1px solid var(--rule);
          padding-top: 8px; }
 
-@page { size: auto; margin: 15mm 15mm 16mm 15mm; }
+table.cover { width: auto; margin: 10px 0 0; font-size: 12.5px; }
+table.cover th { background: none; color: var(--muted); font-weight: 400; padding: 1px 12px 1px 0; }
+table.cover td { padding: 1px 0; }
+table.cover td.sha { font-family: ui-monospace, Menlo, Consolas, "Liberation Mono", monospace;
+                     font-size: 10.5px; word-break: break-all; }
+p.decision { font-size: 17px; border-left: 5px solid var(--ok); padding: 6px 12px; background: #eef8f4; }
+p.quote { border-left: 4px solid var(--accent); padding: 4px 10px; background: var(--band); }
+tr.out td { color: var(--muted); background: #f6f6f6; }
+td .reason { font-size: 11px; font-weight: 400; color: var(--muted); }
+svg.chart { display: block; max-width: 100%; height: auto; }
+section.appendix table { table-layout: fixed; }
+section.appendix td:nth-child(1), section.appendix th:nth-child(1) { width: 32%; }
+section.appendix td:nth-child(2), section.appendix th:nth-child(2) { width: 43%; }
+section.appendix td:nth-child(3), section.appendix th:nth-child(3) { width: 25%; }
+section.appendix table.methods td:nth-child(1), section.appendix table.methods th:nth-child(1) { width: 32%; }
+section.appendix table.methods td:nth-child(2), section.appendix table.methods th:nth-child(2) { width: 68%; }
+
+/* Paged media: sections flow (no forced page per section); page numbers "x of y" */
+@page { size: auto; margin: 15mm 15mm 18mm 15mm;
+        @bottom-right { content: "page " counter(page) " of " counter(pages);
+                        font: 9pt system-ui, Arial, sans-serif; color: #5b6675; }
+        @bottom-left { content: "heatload report"; font: 9pt system-ui, Arial, sans-serif;
+                       color: #5b6675; } }
 @media print {
   body { font-size: 10.5pt; }
   main { max-width: none; padding: 0; }
-  section.page { break-before: page; page-break-before: always; }
-  section.page:first-of-type { break-before: auto; page-break-before: auto; }
-  h2 { break-after: avoid; page-break-after: avoid; margin-top: 0; }
+  section.appendix { break-before: page; page-break-before: always; }
+  h2 { break-after: avoid; page-break-after: avoid; margin-top: 14pt; }
   h3 { break-after: avoid; page-break-after: avoid; }
   table { font-size: 8.5pt; }
   table.compare { font-size: 7.5pt; }
   table.compare td.small { font-size: 7pt; }
+  section.appendix table { font-size: 7.5pt; }
+  section.appendix td { padding: 2px 5px; }
   thead { display: table-header-group; }
   tr, td, th { break-inside: avoid; page-break-inside: avoid; }
   table.keep { break-inside: avoid; page-break-inside: avoid; }

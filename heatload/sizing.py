@@ -38,6 +38,7 @@ from typing import Optional
 import numpy as np
 
 from heatload import cooler
+from heatload.model import design_oil_temperature
 from heatload.errors import HeatloadError
 
 K0 = 273.15
@@ -371,7 +372,21 @@ def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5,
         # one name for the duty's swing whichever key the ranking uses
         row.setdefault("swing", row.get("cooler_duty_swing_W"))
         rows.append(row)
+    # specific cooling power [W/K] each sample's cooler must give: duty / ETD,
+    # ETD = design oil T - the sample's hottest ambient (what an air-oil cooler
+    # is bought by; the ambient alone moves it)
+    ov = uncertainty._overrides(scenario, mc.inputs, mc.samples, mc.defaults_used)
+    t_amb = np.asarray(ov.get("ambient.temperature_max", scenario.ambient.temperature_max),
+                       float)
+    t_oil = np.asarray(ov.get("cooler.oil_temperature_max",
+                              design_oil_temperature(scenario.fluid, scenario.cooler)), float)
+    etd = t_oil - t_amb
+    kwk = np.where(etd > 0, mc.cooler_duty / np.where(etd > 0, etd, 1.0), np.nan)
+    kwk_pct = {k: float(v) for k, v in zip(("P50", "P90", "P95"),
+                                            np.nanpercentile(kwk, [50.0, 90.0, 95.0]))} \
+        if np.isfinite(kwk).any() else None
     return {"available": True, "note": "", "samples": int(samples), "seed": int(seed),
+            "specific_cooling_power_W_K": kwk_pct,
             "cooler_duty_W": clean(pct["cooler_duty_W"]),
             "oil_temperature_C": clean(pct["oil_temperature_C"]),
             "sensitivity": rows}
@@ -586,8 +601,9 @@ def run_cli(args) -> int:
               f"(needs {fq(r['required_W'], 'power', s)})")
     if sz.thermostat is not None and sz.cooler_needed:
         t = sz.thermostat
+        from heatload.tables import times
         print(f"\nThermostat over a {t['shift_duration_s'] / 3600:.1f} h shift: on at "
-              f"{fq(t['on_temperature_K'], 'temperature', s)}, {t['switch_count']} switch-ons, "
+              f"{fq(t['on_temperature_K'], 'temperature', s)}, switched on {times(t['switch_count'])}, "
               f"on {100 * t['on_fraction']:.0f} % of the time, max "
               f"{fq(t['max_temperature_K'], 'temperature', s)}")
     print()

@@ -216,33 +216,52 @@ def write_table(df, path, force=False) -> Path:
     return outputs.write_atomic(p, write, "--output", force=force)
 
 
-def _show(df, specs, system, rows, out):
-    from heatload.units import format_quantity
-    head = ["strategy"] + [s.path for s in specs] + ["energy/cycle", "cycle", "energy/yr",
-                                                      "cooler duty", "oil T steady",
-                                                     "warnings"]
-    lines = [head]
+def _show(df, specs, system, rows, out, width=None):
+    """Print the variants *rows* of *df* as a table fitted to *width* columns
+    (None: every column): varied values and figures as plain numbers, units in
+    the headers."""
+    from heatload.tables import format_table, plain_number
+    from heatload.units import display_unit, from_si, pretty_unit
+
+    def column(kind, name):
+        unit = display_unit(kind, system)
+        return f"{name}\n[{pretty_unit(unit)}]" if unit else name, unit
+
+    def value(v, kind, unit, digits=3):
+        return plain_number(from_si(v, kind, unit) if unit else v, digits)
+
+    # a varied field by its last name, the full path where two share it
+    last = [s.path.rsplit(".", 1)[-1] for s in specs]
+    varied = [column(s.kind, s.path if last.count(n) > 1 else n) for s, n in zip(specs, last)]
+    cooler = column("power", "cooler")
+    oil = column("temperature", "oil T,\nsteady")
+    head = (["strategy"] + [h for h, _ in varied]
+            + ["energy/\ncycle [kJ]", "cycle\n[s]", "energy/\nyr [kWh]", cooler[0], oil[0],
+               "warn-\nings"])
     wcols = [c for c in df.columns if c.startswith("warnings_")]
+    lines = []
     for _, r in df.iloc[rows].iterrows():
-        lines.append([r["strategy"]] + [format_quantity(r[s.path], s.kind, system, 3)
-                                        for s in specs]
-                     + [f"{r['electric_energy_per_cycle_J'] / 1e3:.4g} kJ",
-                        f"{r['cycle_time_s']:.1f} s",
-                        f"{r['electric_energy_per_year_kWh']:.4g} kWh",
-                        format_quantity(r["cooler_duty_W"], "power", system, 3),
-                        format_quantity(r["oil_temperature_steady_K"]
-                                        if np.isfinite(r["oil_temperature_steady_K"])
-                                        else r["oil_temperature_uncoupled_K"],
-                                        "temperature", system, 3),
+        t_oil = (r["oil_temperature_steady_K"] if np.isfinite(r["oil_temperature_steady_K"])
+                 else r["oil_temperature_uncoupled_K"])
+        lines.append([r["strategy"]] + [value(r[s.path], s.kind, u) for s, (_, u) in zip(specs, varied)]
+                     + [plain_number(r["electric_energy_per_cycle_J"] / 1e3, 4),
+                        plain_number(r["cycle_time_s"], 3),
+                        plain_number(r["electric_energy_per_year_kWh"], 4),
+                        value(r["cooler_duty_W"], "power", cooler[1]),
+                        value(t_oil, "temperature", oil[1]),
                         str(int(sum(r[c] for c in wcols)))])
-    widths = [max(len(str(x[i])) for x in lines) for i in range(len(head))]
-    for row in lines:
-        print("  ".join(str(v).ljust(w) for v, w in zip(row, widths)), file=out)
+    print(format_table(head, lines, width, optional=(head[-1], head[-5], head[-4])), file=out)
+
+
+def _shown(top, n):
+    """", the first 5 shown" when --top cuts a list of *n* rows."""
+    return f", the first {top:,} shown" if top < n else ""
 
 
 def run_cli(args) -> int:
     """``heatload sweep``: parse, evaluate, write, print (exit code 0)."""
     from heatload import io
+    from heatload.tables import count
 
     path = args.file or io.default_scenario_path()
     scenario = io.load_scenario(path)
@@ -276,38 +295,46 @@ def run_cli(args) -> int:
         written = write_table(df, args.output, force=args.force)
         print(f"wrote {len(df)} rows to {written}", file=out)
     system = getattr(args, "units", "si") or "si"
-    print(f"{scenario.name}: {n} variants x {len(strategies)} strategies "
+    print(f"{scenario.name}: {count(n, 'variant')} x {count(len(strategies), 'strategy')} "
           f"({'sample, seed ' + str(args.seed) if sampling else 'grid'}); "
           + ("coupled oil temperature" if coupled else
              "figures at the design oil temperature, steady temperature without a cooler "
              "uncoupled (--coupled for the self-consistent one)"), file=out)
     top = args.top if args.top is not None else 10
-    # Rank by energy per cycle (per part made: a slower variant makes fewer
-    # parts in the same hours, so yearly energy alone would flatter it), and put
-    # variants that stall, miss their speeds, run away or exceed a rating last.
-    bad_cols = [c for c in df.columns if c in (
-        "warnings_stall", "warnings_speed-not-reached", "warnings_runaway",
-        "warnings_pressure-rating", "warnings_motor-overload")]
-    flawed = (df[bad_cols].sum(axis=1).to_numpy() > 0) if bad_cols else np.zeros(len(df), bool)
+    width = getattr(args, "width", None)
+    # The decision rule (heatload.decision): feasible first, then yearly cost of
+    # ownership per cycle (per part made: a slower variant makes fewer parts in
+    # the same hours, so a yearly figure alone would flatter it).
+    from heatload import decision
+    flawed = ~decision.feasible_counts(
+        {c[len("warnings_"):]: df[c].to_numpy() for c in df.columns if c.startswith("warnings_")})
     energy = df["electric_energy_per_cycle_J"].to_numpy()
-    ranked = np.lexsort((energy, flawed))
+    price = df["strategy"].map({s.name: s.parameters.price for s in strategies}).to_numpy(float)
+    hours = (df["economics.hours_per_year"].to_numpy() if "economics.hours_per_year" in df
+             else scenario.economics.hours_per_year)
+    cycles = hours * 3600.0 / df["cycle_time_s"].to_numpy()
+    cost = decision.variant_yearly_cost(df["cost_per_year"].to_numpy(),
+                                        df["cooler_duty_W"].to_numpy(), price, scenario)
+    ranked = decision.rank_order(~flawed, cost / np.where(cycles > 0, cycles, np.nan))
     if top:
         order = ranked[:top]
-        print(f"\nbest {len(order)} by electric energy per cycle (variants that stall, miss a "
-              f"speed, run away or exceed a rating last; {int(flawed.sum())} of {len(df)} do):",
-              file=out)
-        _show(df, specs, system, order, out)
+        print(f"\nbest {len(order)} by yearly cost of ownership per cycle (feasible first: "
+              f"{int(flawed.sum()):,} of {len(df):,} stall, miss a speed, run away, exceed a "
+              f"rating or overload the motor):", file=out)
+        _show(df, specs, system, order, out, width)
     clean = np.nonzero(~flawed)[0]
     front = clean[pareto_front(energy[clean], df["cooler_duty_W"].to_numpy()[clean])]
     front = front[np.argsort(energy[front], kind="stable")]
-    print(f"\nPareto front, energy per cycle vs cooler duty ({front.size} variants, "
-          f"without those warnings):", file=out)
-    _show(df, specs, system, front[:max(top, 10)], out)
+    print(f"\nPareto front, energy per cycle vs cooler duty ({count(front.size, 'variant')} "
+          f"without those warnings{_shown(top, front.size)}):", file=out)
+    if top:
+        _show(df, specs, system, front[:top], out, width)
     disp = "power_unit.pump.displacement"
     if any(s.path == disp for s in specs):
         front = clean[pareto_front(energy[clean], df[disp].to_numpy()[clean])]
         front = front[np.argsort(df[disp].to_numpy()[front], kind="stable")]
-        print(f"\nPareto front, energy per cycle vs pump displacement ({front.size} variants):",
-              file=out)
-        _show(df, specs, system, front[:max(top, 10)], out)
+        print(f"\nPareto front, energy per cycle vs pump displacement "
+              f"({count(front.size, 'variant')}{_shown(top, front.size)}):", file=out)
+        if top:
+            _show(df, specs, system, front[:top], out, width)
     return 0

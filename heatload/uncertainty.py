@@ -65,7 +65,11 @@ def inputs_of(scenario: Scenario):
     """The scenario's uncertain inputs, or :data:`DEFAULT_INPUTS` (flag)."""
     if scenario.uncertainty:
         return list(scenario.uncertainty), False
-    return list(DEFAULT_INPUTS), True
+    # a default that has nothing to act on is left out (a cycle of timed-by-stroke
+    # phases has no duration to vary; a cycle of idles has no load)
+    has = {"phases[*].duration": any(p.duration is not None for p in scenario.phases),
+           "phases[*].load": any(p.load for p in scenario.phases)}
+    return [u for u in DEFAULT_INPUTS if has.get(u.path, True)], True
 
 
 def _bounds(u: UncertainInput, default: bool):

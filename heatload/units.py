@@ -20,6 +20,7 @@ Conventions (SI inside)
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -129,6 +130,183 @@ def _clean(text: str) -> str:
     return t
 
 
+# ---------------------------------------------------------------------------
+# A strict grammar for quantity text, checked before pint sees anything.
+#
+# pint's own parser evaluates arithmetic ("10**10**8 bar" runs for minutes),
+# reads "140,5 bar" as 1405 bar and "2 3 bar" as 6 bar.  Here a quantity is
+# one number and a unit expression; the expression holds unit names, "*",
+# "/", parentheses and small integer powers only, so evaluating it is bounded.
+
+#: Longest quantity text accepted (a few times the longest unit we print).
+MAX_QUANTITY_CHARS = 120
+#: Largest power a unit may carry ("m^3", "s^-2"): no unit of the trade needs more.
+MAX_UNIT_POWER = 4
+#: Deepest nesting of parentheses in a unit ("W/(m^2*K)" is 1).
+MAX_UNIT_DEPTH = 3
+
+_NUMBER_TEXT = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?")
+_COMMA_NUMBER = re.compile(r"[+-]?\d*(?:,\d+)+")
+_UNIT_TOKEN = re.compile(
+    r"\s*(?:(?P<name>[A-Za-z_%\u00b5\u03bc\u03a9][A-Za-z_\u00b5\u03bc\u03a9]*)(?P<suffix>\d*)"
+    r"|(?P<power>\*\*|\^)|(?P<op>[*/])|(?P<open>\()|(?P<close>\))|(?P<int>[+-]?\d+))")
+
+
+class _UnknownUnit(Exception):
+    """A unit name pint does not know."""
+
+
+class _UnitSyntax(Exception):
+    """The unit part of a quantity text breaks the grammar (message: why)."""
+
+
+def _unit_tokens(text: str) -> list[tuple[str, str]]:
+    out, pos = [], 0
+    while pos < len(text):
+        m = _UNIT_TOKEN.match(text, pos)
+        if m is None or m.end() == pos:
+            rest = text[pos:].strip()
+            if not rest:
+                break
+            raise _UnitSyntax(f"unexpected {rest[0]!r} in the unit")
+        kind = m.lastgroup if m.lastgroup != "suffix" else "name"
+        if m.group("name") is not None:
+            out.append(("name", m.group("name")))
+            if m.group("suffix"):            # "mm2" is mm^2, as people write it
+                out.append(("power", "^"))
+                out.append(("int", m.group("suffix")))
+        else:
+            out.append((kind, m.group(kind)))
+        pos = m.end()
+    return out
+
+
+def _unit_expression(tokens: list[tuple[str, str]]) -> str:
+    """Check the unit tokens against the grammar and return pint's spelling.
+
+    expr := term (("*" | "/" | juxtaposition) term)* ;
+    term := ("(" expr ")" | name | "1" before "/") [("^" | "**") small integer]
+    """
+    pos, depth = 0, 0
+
+    def term() -> str:
+        nonlocal pos, depth
+        if pos >= len(tokens):
+            raise _UnitSyntax("the unit ends early")
+        kind, text = tokens[pos]
+        if kind == "open":
+            depth += 1
+            if depth > MAX_UNIT_DEPTH:
+                raise _UnitSyntax("parentheses nested too deep in the unit")
+            pos += 1
+            inner = expr()
+            if pos >= len(tokens) or tokens[pos][0] != "close":
+                raise _UnitSyntax("a '(' in the unit is not closed")
+            pos += 1
+            depth -= 1
+            atom = f"({inner})"
+        elif kind == "name":
+            pos += 1
+            atom = text
+        elif kind == "int" and text == "1" and pos + 1 < len(tokens) \
+                and tokens[pos + 1] == ("op", "/"):
+            pos += 1
+            atom = "1"
+        elif kind == "int":
+            raise _UnitSyntax("a second number where a unit was expected; "
+                              "write one number and its unit")
+        elif kind == "power" or pos == 0:
+            raise _UnitSyntax("no arithmetic on numbers; write one number and its unit")
+        else:
+            raise _UnitSyntax(f"unexpected {text!r} in the unit")
+        if pos < len(tokens) and tokens[pos][0] == "power":
+            pos += 1
+            if pos >= len(tokens) or tokens[pos][0] != "int":
+                raise _UnitSyntax("a power of a unit must be a whole number")
+            n = int(tokens[pos][1])
+            if abs(n) > MAX_UNIT_POWER:
+                raise _UnitSyntax(f"a power of a unit must lie within ±{MAX_UNIT_POWER}")
+            pos += 1
+            atom = f"{atom}**{n}"
+        return atom
+
+    def expr() -> str:
+        nonlocal pos
+        out = term()
+        while pos < len(tokens) and tokens[pos][0] != "close":
+            kind, text = tokens[pos]
+            if kind == "op":
+                pos += 1
+                out = f"{out}{text}{term()}"
+            else:                          # juxtaposition: "N m" is N*m
+                out = f"{out}*{term()}"
+        return out
+
+    text = expr()
+    if pos != len(tokens):
+        raise _UnitSyntax("a ')' in the unit has no '('")
+    return text
+
+
+def split_quantity(text: str) -> tuple[float, str]:
+    """Split quantity text into its number and a checked unit expression.
+
+    The text must be one number (optional sign, decimal point, exponent) and a
+    unit expression of unit names, ``*``, ``/``, parentheses and integer
+    powers up to :data:`MAX_UNIT_POWER`.  Nothing is evaluated but the number.
+
+    Returns
+    -------
+    (float, str)
+        The number and the unit in pint's spelling (``""`` for a bare number).
+
+    Raises
+    ------
+    ValueError
+        With a short reason: a decimal comma, two numbers, arithmetic, a number
+        out of the floating-point range, text too long.
+
+    Examples
+    --------
+    >>> split_quantity("140.5 bar")
+    (140.5, 'bar')
+    >>> split_quantity("0.2 bar/(L/min)")
+    (0.2, 'bar/(L/min)')
+    """
+    t = text.strip()
+    if len(t) > MAX_QUANTITY_CHARS:
+        raise ValueError(f"longer than {MAX_QUANTITY_CHARS} characters")
+    comma = _COMMA_NUMBER.match(t)
+    if comma:
+        number = comma.group(0)
+        if number.count(",") > 1 or t[comma.end():comma.end() + 1] == ".":
+            raise ValueError("write the number without thousands separators")
+        raise ValueError(f"use a decimal point: {number.replace(',', '.')}{t[comma.end():]}")
+    m = _NUMBER_TEXT.match(t)
+    if m is None:
+        raise ValueError("it does not start with a number")
+    number_text = m.group(0)
+    rest = t[m.end():]
+    if rest[:1] and rest[:1] in ".,+-0123456789eE":
+        raise ValueError(f"unexpected {rest[:1]!r} after the number")
+    if "e" in number_text.lower() and len(number_text.lower().split("e")[1].lstrip("+-")) > 3:
+        raise ValueError("the number's exponent is too long")
+    value = float(number_text)
+    if not math.isfinite(value):
+        raise ValueError("the number is beyond the floating-point range")
+    mantissa = number_text.lower().split("e")[0]
+    if value == 0.0 and any(c in "123456789" for c in mantissa):
+        raise ValueError("the number is too small to represent; it would read as 0")
+    rest = rest.strip()
+    if rest.startswith("/"):               # a price "0.2 /kWh": per kWh
+        rest = "1" + rest
+    try:
+        unit = _unit_expression(_unit_tokens(rest)) if rest else ""
+    except _UnitSyntax as e:
+        raise ValueError(str(e)) from None
+    return value, unit
+
+
 def to_si(value, kind: str, field: str | None = None, file: str | None = None) -> float:
     """Parse *value* (a quantity string, or a plain number for dimensionless
     kinds) and return it as an SI float.
@@ -177,27 +355,43 @@ def to_si(value, kind: str, field: str | None = None, file: str | None = None) -
                             field=field, file=file)
     if not isinstance(value, str):
         raise HeatloadError(f"{expect}, got {value!r}", field=field, file=file)
-    ureg = registry()
     try:
-        q = ureg.Quantity(_clean(value))
-    except Exception:  # pint's parser can fail in many ways on arbitrary text
-        # (even AssertionError); any of them means the text is not a quantity
+        number, unit = split_quantity(_clean(value))
+    except ValueError as e:
+        raise HeatloadError(f"{expect}, got {value!r} ({e})", field=field, file=file) from None
+    try:
+        offset, factor = _conversion(unit, kind)
+    except _UnknownUnit:
         raise HeatloadError(f"{expect}, got {value!r} (not a number with a known unit)",
                             field=field, file=file) from None
-    if not isinstance(q, ureg.Quantity):
-        q = ureg.Quantity(q, "")
-    target = k.si
-    if kind == "displacement":
-        # Accept "28 cm^3/rev" and "28 cm^3" alike: rev is a count.
-        target = "m^3"
-    try:
-        v = float(q.to(target).magnitude) if target else float(q.to("").magnitude)
-    except Exception:  # wrong dimension, complex or otherwise unconvertible
+    except Exception:  # wrong dimension, or pint failing otherwise
         raise HeatloadError(f"{expect}, got {value!r}", field=field, file=file) from None
+    v = offset + factor * number
     if not math.isfinite(v):
         raise HeatloadError(f"{expect}, got {value!r} (not a finite number)",
                             field=field, file=file)
     return v
+
+
+@lru_cache(maxsize=1024)
+def _conversion(unit: str, kind: str) -> tuple[float, float]:
+    """``(offset, factor)`` so that SI = offset + factor * number for *unit*.
+
+    Every conversion pint makes is affine (temperatures have an offset), so two
+    points fix it; the unit text has passed :func:`split_quantity`'s grammar,
+    which bounds what pint evaluates.
+    """
+    ureg = registry()
+    target = "m^3" if kind == "displacement" else KINDS[kind].si  # rev is a count
+    try:
+        u = ureg.parse_units(unit) if unit else ureg.dimensionless
+    except Exception:  # pint fails in many ways (even AssertionError) on odd names
+        raise _UnknownUnit(unit) from None
+    zero = float(ureg.Quantity(0.0, u).to(target or "").magnitude)
+    one = float(ureg.Quantity(1.0, u).to(target or "").magnitude)
+    if not (math.isfinite(zero) and math.isfinite(one)):
+        raise ValueError(unit)
+    return zero, one - zero
 
 
 def from_si(value, kind: str, unit: str):

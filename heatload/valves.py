@@ -318,9 +318,11 @@ def laminar_throttle_flow(pressure_drop, diameter, length, dynamic_viscosity, de
     return _out(np.sign(dp) * q)
 
 
-def _power_law_args(rated_flow, rated_drop, exponent):
-    return (_positive(rated_flow, "rated_flow"), _positive(rated_drop, "rated_drop"),
-            _positive(exponent, "exponent"))
+def _power_law_args(rated_flow, rated_drop, exponent, ideal_allowed=False):
+    # an ideal path (rated drop 0) has no drop at any flow; only the inverse,
+    # flow from drop, needs a positive rated drop
+    drop = (_non_negative if ideal_allowed else _positive)(rated_drop, "rated_drop")
+    return _positive(rated_flow, "rated_flow"), drop, _positive(exponent, "exponent")
 
 
 def power_law_pressure_drop(flow, rated_flow, rated_drop, exponent=2.0):
@@ -335,7 +337,7 @@ def power_law_pressure_drop(flow, rated_flow, rated_drop, exponent=2.0):
     rated_flow : numeric
         Flow of the catalogue point [m^3/s], > 0.
     rated_drop : numeric
-        Drop at the catalogue point [Pa], > 0.
+        Drop at the catalogue point [Pa], >= 0 (0: an ideal path).
     exponent : numeric
         n [-], > 0: 2 for a turbulent (orifice-like) path, 1 for laminar.
 
@@ -360,7 +362,7 @@ def power_law_pressure_drop(flow, rated_flow, rated_drop, exponent=2.0):
     100000.0
     """
     q = _arr(flow, "flow")
-    qr, dpr, n = _power_law_args(rated_flow, rated_drop, exponent)
+    qr, dpr, n = _power_law_args(rated_flow, rated_drop, exponent, ideal_allowed=True)
     return _out(np.sign(q) * dpr * (np.abs(q) / qr) ** n)
 
 
@@ -403,7 +405,7 @@ def valve_path_pressure_drop(flow, rated_flow, rated_drop):
     rated_flow : numeric
         Catalogue flow [m^3/s], > 0.
     rated_drop : numeric
-        Catalogue drop of the path at that flow [Pa], > 0.
+        Catalogue drop of the path at that flow [Pa], >= 0 (0: ideal).
 
     Returns
     -------
@@ -557,7 +559,8 @@ def check_valve_pressure_drop(flow, cracking_pressure, rated_flow, rated_drop):
     rated_flow : numeric
         [m^3/s], > 0.
     rated_drop : numeric
-        Total drop at rated flow, cracking included [Pa], >= cracking.
+        Total drop at rated flow, cracking included [Pa], >= cracking
+        (both 0: an ideal check valve).
 
     Returns
     -------
@@ -577,7 +580,7 @@ def check_valve_pressure_drop(flow, cracking_pressure, rated_flow, rated_drop):
     q = _arr(flow, "flow")
     pc = _non_negative(cracking_pressure, "cracking_pressure")
     qr = _positive(rated_flow, "rated_flow")
-    dpr = _positive(rated_drop, "rated_drop")
+    dpr = _non_negative(rated_drop, "rated_drop")
     if np.any(dpr < pc):
         raise HeatloadError("must be >= the cracking pressure (it includes it)",
                             field="rated_drop")

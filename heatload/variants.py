@@ -335,7 +335,8 @@ def _phase_arrays(sc: Scenario, val: _Values) -> dict:
     q_pump_nominal = g(("pump", "displacement"), pump.displacement) * g(("pump", "shaft_speed"),
                                                                           pump.shaft_speed)
     keys = ("a_in", "a_out", "q_ratio", "speed_per_flow", "force", "load", "q_target",
-            "hold_pressure", "stroke", "duration", "compression_volume", "work_per_load_speed",
+            "hold_pressure", "stroke", "duration", "compression_volume",
+            "compression_volume_outlet", "work_per_load_speed",
             "max_pressure_inlet", "max_pressure_outlet")
     cols = {k: [] for k in keys}
     flags = {k: [] for k in ("moving", "by_stroke", "compress", "extending", "unloading",
@@ -350,7 +351,7 @@ def _phase_arrays(sc: Scenario, val: _Values) -> dict:
         load = pget("load", ph.load)
         moving = ph.motion in ("extend", "retract", "run") and act is not None
         row = dict(load=load, work_per_load_speed=1.0, force=0.0, compression_volume=0.0,
-                   q_target=0.0, hold_pressure=0.0, duration=0.0)
+                   compression_volume_outlet=0.0, q_target=0.0, hold_pressure=0.0, duration=0.0)
         if act is None:
             row.update(a_in=1.0, a_out=1.0, q_ratio=1.0, speed_per_flow=1.0,
                        max_pressure_inlet=np.inf, max_pressure_outlet=np.inf)
@@ -370,6 +371,7 @@ def _phase_arrays(sc: Scenario, val: _Values) -> dict:
                            work_per_load_speed=TWO_PI,
                            compression_volume=(d + act.dead_volume
                                                if hasattr(act, "dead_volume") else d))
+                row["compression_volume_outlet"] = row["compression_volume"]
                 chamber.append((act.name, "motor"))
             else:
                 cap, ann = cylinder_areas(aget("bore", act.bore), aget("rod", act.rod))
@@ -383,6 +385,8 @@ def _phase_arrays(sc: Scenario, val: _Values) -> dict:
                 row.update(a_in=a_in, a_out=a_out, q_ratio=a_out / a_in,
                            speed_per_flow=1.0 / a_in, force=load + friction,
                            compression_volume=a_in * aget("stroke", act.stroke)
+                           + aget("dead_volume", act.dead_volume),
+                           compression_volume_outlet=a_out * aget("stroke", act.stroke)
                            + aget("dead_volume", act.dead_volume))
         spf = row["speed_per_flow"]
         if moving:
@@ -735,11 +739,20 @@ def _figures(r, c, sc, val, idx=None):
         price = price[idx] if np.ndim(price) else price
     cycles = hours * 3600.0 / s.cycle_time
     e_year = s.electric_energy_per_cycle * cycles
-    return {"cycle_time": s.cycle_time, "heat": s.average_heat_to_oil,
-            "e_cycle": s.electric_energy_per_cycle, "e_year": e_year,
-            "cost": e_year * price, "peak": s.peak_pressure,
-            "phase_heat": r.heat_to_oil, "durations": r.duration,
-            "warnings": warning_counts(r, c, sc, val, idx)}
+    # a figure that no variant changes comes back unbroadcast (a 0-d cycle time when
+    # the only phase is timed by its stroke): give every figure the batch's shape
+    phase_heat = np.asarray(r.heat_to_oil)
+    batch = phase_heat.shape[:-1] if phase_heat.ndim else ()
+    out = {"cycle_time": s.cycle_time, "heat": s.average_heat_to_oil,
+           "e_cycle": s.electric_energy_per_cycle, "e_year": e_year,
+           "cost": e_year * price, "peak": s.peak_pressure}
+    out = {k: np.broadcast_to(v, np.broadcast_shapes(np.shape(v), batch)).copy()
+           for k, v in out.items()}
+    out.update(phase_heat=phase_heat,
+               durations=np.broadcast_to(r.duration, np.broadcast_shapes(
+                   np.shape(r.duration), phase_heat.shape)).copy(),
+               warnings=warning_counts(r, c, sc, val, idx))
+    return out
 
 
 def warning_counts(result, c, sc, val=None, idx=None) -> dict:

@@ -111,3 +111,22 @@ def test_time_to_temperature_by_hand():
     assert got == pytest.approx(expect, rel=1e-4)
     # never reached when the steady temperature Ta + Q/UA = 348 K is below the target
     assert chain.time_to_temperature(q, c, fn, ta, t0, 360.0) is None
+
+
+def test_a_correlation_used_beyond_its_range_is_a_warning():
+    """A surface shedding heat by a correlation beyond its published Rayleigh
+    range (Incropera et al., 7th ed., eq. 9.32: 1e4..1e9 for a hot face down) is
+    said in the results, not used without a word."""
+    import dataclasses
+    sc = io.load_scenario(io.default_scenario_path())
+    big = dataclasses.replace(sc.reservoir, length=6.0, width=5.0, bottom_exposed=True)
+    cmp = chain.compare(dataclasses.replace(sc, reservoir=big))
+    hot = [o for o in cmp.outcomes
+           if o.thermal.operating_temperature - sc.ambient.temperature > 20.0]
+    assert hot                                   # the throttling circuits run warm
+    for o in hot:                                # Ra ~ dT: about 8e9 at 40 K here
+        w = [x for x in o.warnings if x.code == "correlation-range"]
+        assert len(w) == 1 and "tank bottom" in w[0].message and w[0].limit == 1e9
+        assert w[0].value > 1e9
+    assert not any(x.code == "correlation-range" for o in chain.compare(sc).outcomes
+                   for x in o.warnings)

@@ -222,9 +222,11 @@ def test_motor_overload_in_sweep_counts_and_recommendation():
     assert ws
     v = variants.evaluate_variants(sc, "meter-in")
     assert int(v.warnings["motor-overload"][0]) == len(ws)
-    rec = tables.strategy_record(o, sc, cycle.phase_arrays(sc), False)
-    crit = report.critical_warnings(rec, sc)
-    assert {w["code"] for w in crit} >= {"motor-overload"}
+    from heatload import decision
+    blocking = decision.blocking_warnings(o, sc)
+    assert {w.code for w in blocking} >= {"motor-overload"}
+    dec = chain.compare(sc, ["meter-in"]).decision()
+    assert dec.recommended is None and not dec.verdict("meter-in").feasible
 
 
 # ---------------------------------------------------------------------------

@@ -26,7 +26,6 @@ A2 = math.pi / 4 * (BORE**2 - ROD**2)         # annulus, pi (D^2 - d^2)/4 (geome
 D_PUMP, N_PUMP = 28e-6, 1450 / 60             # model.Pump defaults [m^3/rev], [rev/s]
 Q_TH = D_PUMP * N_PUMP                        # ideal pump flow D n [m^3/s] = 40.6 L/min
 P_RELIEF = 180e5                              # model.ReliefValve default cracking [Pa]
-TINY = 1e-9                                   # "zero" rated drop [Pa] (valves need > 0)
 
 
 def _scenario(phases, actuators=None, **strategy_params):
@@ -43,7 +42,7 @@ def _ideal(sc, strategy, **over):
               "pline_l", "rline_l", "pline_k", "rline_k", "relief_override"):
         c[k] = 0.0
     for k in ("dv_rated_drop", "check_rated_drop", "dv_centre_drop"):
-        c[k] = TINY
+        c[k] = 0.0                            # ideal valves (a zero drop is allowed)
     c["compress"] = np.zeros(len(sc.phases), dtype=bool)
     c.update(over)
     return cycle.finalize(c)
@@ -743,3 +742,30 @@ def test_bleed_off_speed_follows_the_load():
     qb0 = Q_TH - Q1_EXT
     expected = qb0 * (1 - math.sqrt(1.1)) / Q1_EXT
     assert change[0] == pytest.approx(expected, rel=1e-6)
+
+
+def test_ideal_components_from_a_file_book_no_loss():
+    """Zero drops are allowed wherever the physics allows them (an ideal
+    directional valve, check valve, no pipe length, no fittings, no thermal
+    expansion), so a circuit can be checked by hand from a file; such a
+    component books exactly no loss and the balance still closes."""
+    import re
+
+    from heatload import io
+    text = io.default_scenario_path().read_text()
+    for pat, rep in [(r'pressure_drop = "[^"]*"', 'pressure_drop = "0 bar"'),
+                     (r'cracking_pressure = "0.5 bar"', 'cracking_pressure = "0 bar"'),
+                     (r'centre_pressure_drop = "[^"]*"', 'centre_pressure_drop = "0 bar"'),
+                     (r'(?m)^length = "4 m".*$', 'length = "0 m"'),
+                     (r'fittings_k = [0-9.]+', 'fittings_k = 0'),
+                     (r'expansion_coefficient = "[^"]*"', 'expansion_coefficient = "0 1/K"')]:
+        text, n = re.subn(pat, rep, text)
+        assert n, pat
+    sc = io.loads_scenario(text, source="ideal.toml")
+    assert sc.power_unit.directional_valve.pressure_drop == 0.0
+    assert sc.power_unit.pressure_line.length == 0.0 and sc.fluid.expansion_coefficient == 0.0
+    for kind in STRATEGIES:
+        r = circuits.solve_strategy(kind, cycle.circuit_inputs(sc, kind))
+        for part in ("directional_valve", "check_valve", "lines"):
+            assert np.all(r.losses[part] == 0.0), (kind, part)
+        assert np.all(np.abs(r.balance_residual) <= 1e-9 * np.maximum(r.electric_power, 1.0))

@@ -36,6 +36,19 @@ def test_help_and_check_import_no_ui_or_coolprop(argv):
     assert not [m for m in HEAVY if m in mods]
 
 
+@pytest.mark.parametrize("argv", [
+    ["compare"], ["thermal"],
+    ["sweep", "--vary", "power_unit.pump.displacement=16..40cm^3:3", "--top", "2"]],
+    ids=lambda a: a[0])
+def test_air_cooled_commands_never_import_coolprop(argv):
+    """Air properties come from the shipped table; CoolProp (a multi-second import)
+    is left to water and glycol coolers."""
+    code = ("import contextlib, io as _io\nfrom heatload.cli import main\n"
+            "with contextlib.redirect_stdout(_io.StringIO()):\n"
+            f"    assert main({argv!r}) == 0")
+    assert "CoolProp" not in _modules_after(code)
+
+
 def test_compare_json_lists_all_strategies(capsys):
     assert main(["compare", "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
@@ -174,8 +187,100 @@ def test_phases_are_numbered_from_one_in_messages(tmp_path):
 def test_check_shows_a_given_motor_efficiency(tmp_path, capsys):
     p = _write(tmp_path, _press_text(('efficiency_class = "IE3"',
                                       'efficiency_class = "IE3"\nefficiency = 0.915')))
-    assert main(["check", str(p)]) == 0
+    assert main(["check", str(p), "--wide"]) == 0  # one line per item, unwrapped
     motor = [ln for ln in capsys.readouterr().out.splitlines() if "pump:" in ln][0]
     assert "efficiency 91.5 % (given)" in motor and "IE3" not in motor
     assert main(["check", str(io.default_scenario_path())]) == 0
     assert "IE3" in capsys.readouterr().out
+
+
+def test_check_of_a_power_tower_answers_at_once():
+    """'10**10**8 bar' once kept `heatload check` busy for minutes (pint evaluated
+    the arithmetic); now it is one line naming file, line and field.  The timeout
+    is a hang guard, not a benchmark."""
+    bad = Path(__file__).parent / "data" / "bad" / "quantity_power_tower.toml"
+    r = subprocess.run([sys.executable, "-m", "heatload.cli", "check", str(bad)],
+                       capture_output=True, text=True, timeout=60)
+    assert r.returncode == 2
+    lines = r.stderr.strip().splitlines()
+    assert len(lines) == 1
+    assert "quantity_power_tower.toml:29: power_unit.relief.cracking_pressure" in lines[0]
+    assert "no arithmetic" in lines[0]
+
+
+# --- fits a terminal: 80 columns, plain numbers, counts in English ------------------
+
+def _lines_of(argv, capsys, monkeypatch, columns="80"):
+    monkeypatch.setenv("COLUMNS", columns)
+    assert main(argv) == 0
+    return capsys.readouterr().out.splitlines()
+
+
+SWEEP = ["sweep", "--vary", "power_unit.pump.displacement=16..40cm^3:5",
+         "--vary", "power_unit.pump.shaft_speed=1000..1800rpm:3"]
+
+
+@pytest.mark.parametrize("path", io.example_paths(), ids=lambda p: p.name)
+@pytest.mark.parametrize("command", [["compare"], ["thermal"], ["cooler", "--samples", "200"],
+                                     ["phases", "--strategy", "meter-in"], SWEEP],
+                         ids=lambda c: c[0])
+def test_output_fits_80_columns(path, command, capsys, monkeypatch):
+    # 80 columns: the classic terminal width (common practice)
+    lines = _lines_of(command + [str(path)], capsys, monkeypatch)
+    too_long = [x for x in lines if len(x) > 80]
+    assert lines and too_long == []
+
+
+def test_compare_keeps_key_columns_and_wide_shows_all(capsys, monkeypatch):
+    narrow = "\n".join(_lines_of(["compare"], capsys, monkeypatch))
+    for key in ("strategy", "[kWh/yr]", "cooler", "meter-in", "variable-speed"):
+        assert key in narrow
+    assert "--wide shows every column" in " ".join(narrow.split())
+    # the warnings stay, as lines below the table
+    assert "  ! meter-out / slow-down:" in narrow
+    wide = _lines_of(["compare", "--wide"], capsys, monkeypatch)
+    header = " ".join(wide[1:3])
+    for every in ("CO2", "eff.", "peak", "warnings"):
+        assert every in header
+    assert max(len(x) for x in wide) > 80
+    # a wide terminal gets more columns without --wide
+    assert "CO2" in " ".join(_lines_of(["compare"], capsys, monkeypatch, columns="200")[1:3])
+
+
+def test_sweep_prints_plain_numbers_and_honours_top(capsys, monkeypatch):
+    out = _lines_of(SWEEP + ["--strategy", "meter-in", "--top", "2"], capsys, monkeypatch)
+    text = "\n".join(out)
+    assert not re.search(r"\de[+-]\d", text)          # no exponent form
+    assert re.search(r"\d,\d{3}", text)               # thousands separated (kWh/yr)
+    # every list (best variants, each Pareto front) holds at most --top rows
+    blocks, rows = [], None
+    for line in out:
+        if line.startswith("--"):
+            rows = 0
+            blocks.append(rows)
+        elif rows is not None and line.startswith("meter-in"):
+            blocks[-1] += 1
+        elif not line.strip():
+            rows = None
+    assert len(blocks) >= 2 and max(blocks) <= 2 and blocks[0] == 2
+
+
+def test_counts_read_as_english(capsys, monkeypatch):
+    from heatload.tables import count, times
+    # English number agreement (common usage)
+    assert count(1, "strategy") == "1 strategy" and count(2, "strategy") == "2 strategies"
+    assert count(1, "variant") == "1 variant" and count(1_000, "variant") == "1,000 variants"
+    assert count(3, "day") == "3 days"
+    assert [times(n) for n in (0, 1, 2, 5)] == ["never", "once", "twice", "5 times"]
+    text = "\n".join(_lines_of(SWEEP + ["--strategy", "meter-in", "--top", "1"], capsys,
+                               monkeypatch))
+    assert "x 1 strategy " in text and "1 strategies" not in text
+    assert not re.search(r"\b1 (variants|strategies|phases|times)\b", text)
+
+
+def test_plain_number_never_uses_exponents():
+    from heatload.tables import plain_number
+    assert plain_number(4.904e4) == "49,040"
+    assert plain_number(2.5e9) == "2,500,000,000"
+    assert plain_number(3.2e-6) == "0.00000320"
+    assert plain_number(float("nan")) == "n/a"

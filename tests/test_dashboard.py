@@ -16,6 +16,7 @@ from dash import no_update
 from heatload.dashboard import app as dash_app
 from heatload.dashboard import callbacks, compute, figures, state
 from heatload import chain, io, tables
+from heatload.errors import HeatloadError
 
 LBF = 4.4482216152605        # N per lbf, NIST SP 811 (exact by definition of lbm and g_n)
 PSI = 6894.757293168         # Pa per psi, NIST SP 811
@@ -163,7 +164,8 @@ def test_invalid_value_is_flagged_at_its_cell_and_results_stay(base, examples):
     assert "phase 3 'forming', speed" in text and "12 kg" in text
 
 
-@pytest.mark.parametrize("text", ["fast", "1e999", "--3", "3 mm/s/s"])
+@pytest.mark.parametrize("text", ["fast", "1e999", "--3", "3 mm/s/s", "9**9**9", "10**10**8 m/s",
+                                  "0,5 m/s", "2 3 m/s"])
 def test_unparsable_speeds_are_refused(base, examples, text):
     rows = _rows(base)
     rows[1]["speed"] = text
@@ -178,6 +180,17 @@ def test_validation_errors_from_the_engine_reach_the_field(base, examples):
     out = _edit(base, examples, rows)
     assert out["results"] is no_update
     assert [r for r, _ in _flagged(out["phase_styles"])] == [2]
+
+
+def test_a_power_tower_in_a_key_field_is_refused_at_once(base, examples):
+    """Typing 9**9**9 into a key field once froze the server for every browser."""
+    import time
+    keys = list(base["form"]["key_values"])
+    keys[0] = "9**9**9"
+    t0 = time.perf_counter()
+    out = _edit(base, examples, keys=keys)
+    assert time.perf_counter() - t0 < 10.0     # hang guard, not a benchmark
+    assert out["results"] is no_update and "no arithmetic" in out["key_errors"][0]
 
 
 def test_key_number_error_and_fix(base, examples):
@@ -221,7 +234,7 @@ def test_units_toggle_changes_headers_and_values(base, examples):
     assert "°F" in figures.comparison_rows(base["results"], "us")[0]["steady"]
     tiles = figures.headline(base["results"], "meter-in", "us")
     assert tiles[0].children[1].children == "meter-in"
-    assert "Btu" in tiles[1].children[1].children
+    assert "Btu" in tiles[2].children[1].children      # energy per cycle
 
 
 # ---------------------------------------------------------------------------
@@ -340,7 +353,17 @@ def test_uncertainty_view(base):
     from heatload import uncertainty as unc
     out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
     assert out.id == "mc-result"
-    hist, tornado = (g.figure for g in out.children)
+    hist, tornado = (g.figure for g in out.children if hasattr(g, "figure"))
+    # the duty to quote is named and marked on the histogram
+    from heatload import decision
+    quote = next(g for g in out.children if getattr(g, "id", None) == "mc-quote")
+    assert "Quote this duty" in str(quote.children)
+    shapes = [sh.x0 for sh in hist.layout.shapes]
+    o = chain.evaluate_strategy(base["scenario"], base["scenario"].strategy("load-sensing"))
+    pct = {k: float(v) for k, v in unc.monte_carlo(base["scenario"], base["scenario"].strategy(
+        "load-sensing"), samples=200, seed=1).percentiles["cooler_duty_W"].items()}
+    q = decision.quoted_duty(o.thermal.cooler_duty, base["scenario"].cooler.margin, pct)[0]
+    assert any(x == pytest.approx(q / 1e3) for x in shapes)
     sc = base["scenario"]
     mc = unc.monte_carlo(sc, sc.strategy("load-sensing"), samples=200, seed=1)
     assert len(hist.data[0].x) == 200
@@ -352,7 +375,11 @@ def test_uncertainty_view(base):
 def test_payback_arithmetic(base):
     res = base["results"]
     text, fig = callbacks.payback_view(res, "meter-in", "load-sensing", 3000.0, "si")
-    saving = res["savings"]["meter-in"]["load-sensing"]["cost_saving"]
+    recs = {r["label"]: r for r in res["comparison"]["strategies"]}
+    mi, ls = recs["meter-in"]["yearly_cost"], recs["load-sensing"]["yearly_cost"]
+    # electricity saved, the cooler fans' included
+    saving = (res["savings"]["meter-in"]["load-sensing"]["cost_saving"]
+              + mi["fan"] - ls["fan"])
     assert saving > 0
     years = 3000.0 / saving                       # simple payback: price / yearly saving
     assert f"{years:.1f} years" in text.children
@@ -360,13 +387,70 @@ def test_payback_arithmetic(base):
     assert y[0] == -3000.0
     assert y == pytest.approx(saving * x - 3000.0)
     assert np.interp(0.0, y, x) == pytest.approx(years, rel=1e-9)   # crosses zero at payback
-    assert callbacks.default_extra_price(res, "meter-in", "load-sensing") == 2800.0
+    # the circuits' price difference plus the cooler each needs (a smaller one saves)
+    assert callbacks.default_extra_price(res, "meter-in", "load-sensing") == pytest.approx(
+        2800.0 + ls["cooler_price"] - mi["cooler_price"], abs=0.5)
 
 
-def test_strategy_choice_defaults_to_the_present_circuit(base):
-    opts, value = callbacks.strategy_choices(base["store"], None)
-    assert len(opts) == 7 and value == "meter-in"
+def test_strategy_choice_defaults_to_the_recommended_one(base):
+    opts, value = callbacks.strategy_choices(base["store"], None, base["results"])
+    assert len(opts) == 7 and value == base["results"]["comparison"]["recommended"]
     assert callbacks.strategy_choices(base["store"], "bleed-off")[1] == "bleed-off"
+    # before the comparison is known the value is left alone (views show the best ranked)
+    assert callbacks.strategy_choices(base["store"], None)[1] is no_update
+    tiles = figures.headline(base["results"], None, "si")
+    assert tiles[0].children[1].children == value
+    assert tiles[0].children[2].children == "recommended"
+    # each tile says its difference to the present circuit
+    assert "vs present" in tiles[1].children[2].children
+
+
+def test_decision_view_says_the_same_as_compare_json(base):
+    from heatload import decision
+    res = base["results"]
+    view = figures.decision_view(res, "si")
+    sentence = next(c for c in view.children if getattr(c, "id", None) == "decision-sentence")
+    dec = decision.decide(chain.compare(base["scenario"]))
+    assert sentence.children == dec.sentence()
+    fig = next(c for c in view.children if getattr(c, "id", None) == "decision-graph").figure
+    assert list(fig.data[0].y) == [f"{v.rank}. {v.name}" for v in dec.verdicts]
+    total = np.sum([np.asarray(t.x, float) for t in fig.data], axis=0)
+    assert total == pytest.approx([v.cost.total for v in dec.verdicts])
+
+
+def test_required_cell_cleared_is_an_error(base, examples):
+    f = base["form"]
+    rows = _rows(base)
+    rows[2]["load"] = ""                          # a moving phase without its load
+    keys = list(f["key_values"])
+    keys[0] = " "                                 # the pump displacement emptied
+    out = callbacks.update_scenario("phase-table", None, None, None, "si", rows,
+                                    f["actuator_rows"], keys, base["store"],
+                                    base["results"], examples)
+    assert out["results"] is no_update and out["store"] is no_update
+    fields = [li.to_plotly_json()["props"].get("data-field") for li in out["form_errors"]]
+    assert "phases[2].load" in fields and "power_unit.pump.displacement" in fields
+    assert out["banner"] is not None and "2 invalid entries" in str(out["banner"])
+    # the optional design temperature may be emptied (back to its default)
+    keys = list(f["key_values"])
+    keys[8] = ""
+    ok = callbacks.update_scenario("key", None, None, None, "si", _rows(base),
+                                   f["actuator_rows"], keys, base["store"], base["results"],
+                                   examples)
+    assert ok["banner"] is None
+
+
+def test_monte_carlo_cleared_when_scenario_or_strategy_changes(base):
+    from dash.exceptions import PreventUpdate
+    from heatload.dashboard import compute as comp
+    key = {"key": comp.scenario_key(base["store"]["data"]), "strategy": "load-sensing"}
+    with pytest.raises(PreventUpdate):
+        callbacks.mc_stale(base["store"], "load-sensing", key)
+    note, cleared = callbacks.mc_stale(base["store"], "meter-in", key)
+    assert note.id == "mc-stale" and cleared is None
+    other = {"data": {**base["store"]["data"], "scenario": {"name": "changed"}}}
+    note, _ = callbacks.mc_stale(other, "load-sensing", key)
+    assert "earlier" in note.children
 
 
 def test_edit_on_a_one_strategy_tab_computes_that_strategy_first(base, examples):
@@ -469,13 +553,17 @@ class _Args:
 def test_run_cli_binds_loopback_and_warns_otherwise(monkeypatch, capsys, host, warned):
     seen = {}
 
-    def fake_run(self, host=None, port=None, debug=None, **kw):
-        seen.update(host=host, port=port, debug=debug)
-    monkeypatch.setattr("dash.Dash.run", fake_run)
+    def fake_serve(app, host=None, port=None, threads=None):
+        seen.update(host=host, port=port, threads=threads)
+    monkeypatch.setattr(dash_app, "serve", fake_serve)
+    monkeypatch.setattr("dash.Dash.run", lambda self, **kw: pytest.fail("development server"))
     assert dash_app.run_cli(_Args(host=host, port=8123)) == 0
-    assert seen == {"host": host, "port": 8123, "debug": False}
+    assert seen == {"host": host, "port": 8123, "threads": 8}
     err = capsys.readouterr().err
     assert ("warning" in err) == warned
+    with pytest.raises(HeatloadError) as e:
+        dash_app.run_cli(_Args(threads=0))
+    assert e.value.field == "--threads"
 
 
 def test_run_cli_debug_only_when_asked(monkeypatch):
@@ -483,3 +571,30 @@ def test_run_cli_debug_only_when_asked(monkeypatch):
     monkeypatch.setattr("dash.Dash.run", lambda self, **kw: seen.update(kw))
     dash_app.run_cli(_Args(debug=True))
     assert seen["debug"] is True and seen["host"] == "127.0.0.1"
+
+
+def test_production_server_serves_the_page():
+    """waitress (the production WSGI server) serves the page and its callbacks' list."""
+    import threading
+    import urllib.request
+
+    app = dash_app.make_app()
+    server = dash_app.make_server(app, host="127.0.0.1", port=0, threads=2)
+    port = server.effective_port
+    stop = threading.Event()
+
+    def loop():          # server.run() until asked to stop, then the socket is closed
+        while not stop.is_set():
+            server.asyncore.loop(timeout=0.05, map=server._map, count=1)
+    t = threading.Thread(target=loop, daemon=True)
+    t.start()
+    try:
+        for path in ("/", "/_dash-layout", "/_dash-dependencies"):
+            with urllib.request.urlopen(f"http://127.0.0.1:{port}{path}", timeout=20) as r:
+                assert r.status == 200
+                assert r.headers.get("Server") == "heatload"
+    finally:
+        stop.set()
+        t.join(timeout=10)
+        server.close()
+        server.task_dispatcher.shutdown()

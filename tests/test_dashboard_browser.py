@@ -76,6 +76,109 @@ def _wait_text_change(dash_duo, selector, old, timeout=30):
     raise AssertionError(f"{selector} stayed {old!r}")
 
 
+def _decision_of(path):
+    from heatload import chain, decision, io
+    return decision.decide(chain.compare(io.load_scenario(path)))
+
+
+def test_first_view_is_the_decision(dash_duo):
+    from heatload import io
+
+    _start(dash_duo)
+    dash_duo.wait_for_element("#decision-sentence", timeout=60)
+    dec = _decision_of(io.default_scenario_path())
+    # the sentence names the recommended strategy, its saving against the present and why
+    assert _text(dash_duo, "#decision-sentence") == dec.sentence()
+    dash_duo.wait_for_element("#decision-graph .main-svg", timeout=20)
+    # the tiles show the recommended strategy, with the difference to the present circuit
+    dash_duo.wait_for_text_to_equal("#tile-strategy", dec.recommended, timeout=20)
+    assert "vs present" in _text(dash_duo, "#tile-delta-0")
+    _shot(dash_duo, "browser_decision")
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
+def test_decision_rules_out_stalled_circuits(dash_duo, tmp_path):
+    """The forming press with 140 kN of forming load: circuits that stall are ruled out
+    with their reason and a feasible one is recommended, as ``compare --json`` says."""
+    import re
+
+    from heatload import io
+
+    text = io.default_scenario_path().read_text(encoding="utf-8")
+    text = re.sub(r'load = "120 kN"', 'load = "140 kN"', text)
+    f = tmp_path / "press140.toml"
+    f.write_text(text, encoding="utf-8")
+    dec = _decision_of(f)
+    out = [v for v in dec.verdicts if not v.feasible]
+    assert any("stalls" in v.reason for v in out)
+    _start(dash_duo)
+    dash_duo.find_element("#upload input[type=file]").send_keys(str(f))
+    dash_duo.wait_for_contains_text("#source-label", "press140.toml", timeout=30)
+    dash_duo.wait_for_text_to_equal("#decision-sentence", dec.sentence(), timeout=60)
+    dash_duo.wait_for_element("#ruled-out", timeout=20)
+    ruled = _text(dash_duo, "#ruled-out")
+    for v in out:
+        assert f"{v.name}: {v.reason}" in ruled
+    assert dec.recommended not in [v.name for v in out]
+    _shot(dash_duo, "browser_decision_140kN")
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
+def test_error_banner_on_every_tab_and_required_cell(dash_duo):
+    from selenium.webdriver.common.action_chains import ActionChains
+    from selenium.webdriver.common.keys import Keys
+
+    _start(dash_duo)
+    _tab(dash_duo, "Cycle and machine")
+    assert _text(dash_duo, "#error-banner") == ""
+    # clearing a required key number (the pump displacement) is an error
+    box = dash_duo.find_element("input[name='power_unit.pump.displacement']")
+    box.click()
+    ActionChains(dash_duo.driver).key_down(Keys.CONTROL).send_keys("a").key_up(Keys.CONTROL) \
+        .send_keys(Keys.BACKSPACE).send_keys(Keys.ENTER).perform()
+    dash_duo.wait_for_contains_text("#error-banner", "invalid entr", timeout=20)
+    dash_duo.wait_for_contains_text("#form-errors", "required", timeout=20)
+    for label in ("Decision", "Comparison", "Payback"):
+        _tab(dash_duo, label)
+        banner = dash_duo.find_element("#error-banner")
+        assert banner.is_displayed() and "last valid entry" in banner.text, label
+    _shot(dash_duo, "browser_banner")
+    # a valid value clears the banner
+    _tab(dash_duo, "Cycle and machine")
+    box = dash_duo.find_element("input[name='power_unit.pump.displacement']")
+    box.click()
+    ActionChains(dash_duo.driver).send_keys("40").send_keys(Keys.ENTER).perform()
+    end = time.time() + 20
+    while _text(dash_duo, "#error-banner") and time.time() < end:
+        time.sleep(0.2)
+    assert _text(dash_duo, "#error-banner") == ""
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
+def test_monte_carlo_cleared_when_the_strategy_changes(dash_duo):
+    _start(dash_duo)
+    dash_duo.wait_for_element("#decision-sentence", timeout=60)
+    _tab(dash_duo, "Cooler sizing")
+    n = dash_duo.find_element("#mc-samples")
+    n.clear()
+    n.send_keys("200")
+    dash_duo.find_element("#mc-run").click()
+    dash_duo.wait_for_element("#mc-result", timeout=60)
+    # another strategy: the Monte Carlo of the previous one is cleared, not kept beside it
+    shown = _text(dash_duo, "#tile-strategy")
+    other = "meter-in" if shown != "meter-in" else "meter-out"
+    dash_duo.find_element("#strategy-select").click()
+    option = next(o for o in dash_duo.find_elements(".dash-dropdown-option")
+                  if o.text.strip() == other)
+    dash_duo.driver.execute_script("arguments[0].scrollIntoView({block: 'center'});", option)
+    dash_duo.driver.execute_script("arguments[0].click();", option)
+    dash_duo.wait_for_text_to_equal("#tile-strategy", other, timeout=20)
+    dash_duo.wait_for_element("#mc-stale", timeout=20)
+    assert not dash_duo.find_elements("#mc-result")
+    _shot(dash_duo, "browser_mc_stale")
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
 def test_default_scenario_shows_the_comparison(dash_duo):
     _start(dash_duo)
     _tab(dash_duo, "Comparison")
@@ -106,16 +209,17 @@ def test_default_scenario_shows_the_comparison(dash_duo):
 
 def test_edit_invalid_entry_and_units(dash_duo):
     _start(dash_duo)
-    before = _text(dash_duo, "#tile-4")
+    _tab(dash_duo, "Cycle and machine")
+    before = _text(dash_duo, "#tile-1")
     # forming load 100 kN -> 130 kN: more work per cycle, the numbers change
     _edit_cell(dash_duo, "phase-table", 2, "load", "130")
-    after = _wait_text_change(dash_duo, "#tile-4", before)
+    after = _wait_text_change(dash_duo, "#tile-1", before)
     assert after != before
     # a mass where a speed belongs: flagged with the reason, results kept
     _edit_cell(dash_duo, "phase-table", 2, "speed", "12 kg")
     dash_duo.wait_for_contains_text("#form-errors", "expected a velocity", timeout=20)
     assert "12 kg" in _text(dash_duo, "#form-errors")
-    assert _text(dash_duo, "#tile-4") == after
+    assert _text(dash_duo, "#tile-1") == after
     _shot(dash_duo, "browser_invalid")
     # the app stays alive: a valid value clears the error and recomputes
     _edit_cell(dash_duo, "phase-table", 2, "speed", "25")
@@ -123,12 +227,12 @@ def test_edit_invalid_entry_and_units(dash_duo):
     while _text(dash_duo, "#form-errors") and time.time() < end:
         time.sleep(0.2)
     assert _text(dash_duo, "#form-errors") == ""
-    _wait_text_change(dash_duo, "#tile-4", after)
+    _wait_text_change(dash_duo, "#tile-1", after)
     # units: SI -> US customary changes the headers and the figures' units
     assert "kN" in dash_duo.find_element("#phase-table").text
     dash_duo.find_element("#units input[value='us']").click()
     dash_duo.wait_for_contains_text("#phase-table", "lbf", timeout=20)
-    dash_duo.wait_for_contains_text("#tile-0", "Btu", timeout=20)
+    dash_duo.wait_for_contains_text("#tile-1", "Btu", timeout=20)
     dash_duo.wait_for_contains_text("#headline", "°F", timeout=20)
     _shot(dash_duo, "browser_us_units")
     assert dash_duo.get_logs() == [], dash_duo.get_logs()
@@ -138,7 +242,8 @@ def test_bad_upload_refused_and_download_loads_back(dash_duo, tmp_path):
     from heatload import io
 
     _start(dash_duo)
-    before = _text(dash_duo, "#tile-4")
+    _tab(dash_duo, "Cycle and machine")
+    before = _text(dash_duo, "#tile-1")
     bad = tmp_path / "broken.toml"
     bad.write_text('[scenario]\nname = "x"\n[[phases]]\nname = "a"\nmotion = "fly"\n',
                    encoding="utf-8")
@@ -146,13 +251,13 @@ def test_bad_upload_refused_and_download_loads_back(dash_duo, tmp_path):
     dash_duo.wait_for_element("#upload-error", timeout=20)
     msg = dash_duo.find_element("#upload-error").text
     assert "Upload refused" in msg and "broken.toml" in msg
-    assert _text(dash_duo, "#tile-4") == before
+    assert _text(dash_duo, "#tile-1") == before
     assert "forming_press.toml" in dash_duo.find_element("#source-label").text
     _shot(dash_duo, "browser_bad_upload")
 
     # download the scenario (after an edit) and load it back
     _edit_cell(dash_duo, "phase-table", 3, "load", "125")
-    _wait_text_change(dash_duo, "#tile-4", before)
+    _wait_text_change(dash_duo, "#tile-1", before)
     dash_duo.driver.execute_cdp_cmd("Page.setDownloadBehavior",
                                     {"behavior": "allow",
                                      "downloadPath": dash_duo.download_path})
@@ -176,6 +281,7 @@ def test_example_choice_and_report_download(dash_duo):
                   if o.text.strip().lower() == "platform lift (example)")
     option.click()
     dash_duo.wait_for_contains_text("#source-label", "platform_lift.toml", timeout=30)
+    _tab(dash_duo, "Cycle and machine")
     from heatload import io
 
     lift = io.load_scenario(io.default_scenario_path().parent / "platform_lift.toml")

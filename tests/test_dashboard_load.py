@@ -543,8 +543,16 @@ def _wrong_unit_file() -> bytes:
     return text.replace('load = "100 kN"', 'load = "100 kg"', 1).encode()
 
 
+def _power_tower_file() -> bytes:
+    from heatload import io
+    text = open(io.default_scenario_path(), encoding="utf-8").read()
+    assert 'load = "100 kN"' in text
+    return text.replace('load = "100 kN"', 'load = "10**10**8 kN"', 1).encode()
+
+
 MB = 1_000_000
 BAD_UPLOADS = {
+    "a power tower as a load": (lambda: _data_url(_power_tower_file()), "no arithmetic"),
     # name: (contents as the browser sends them, words the refusal must contain)
     "over the size cap": (lambda: _data_url(b"# comment line\n" * (MB // 15 + 1000)),
                           "larger than"),
@@ -584,6 +592,37 @@ def test_bad_upload_is_refused_over_http_and_the_server_keeps_serving(server, na
     rows[PHASE]["load"] = "91.25"
     ok = b.post(main, ["phase-table.data"], {("phase-table", "data"): rows})
     assert check_edit(ok, 91.25e3) == []
+    assert server.alive
+
+
+def test_hostile_text_in_one_session_does_not_hold_up_another(server):
+    """One browser posts power towers into a cell again and again; another edits
+    at the same time and gets its own answers (the text was once evaluated by
+    the unit parser for minutes, freezing the server for every browser)."""
+    import threading
+    hostile, other = Browser(server.url), Browser(server.url)
+    h_main, o_main = hostile.start_session(), other.start_session()
+    stop, refused = threading.Event(), []
+
+    def attack():
+        while not stop.is_set():
+            rows = copy.deepcopy(hostile.value("phase-table", "data"))
+            rows[PHASE]["load"] = "9**9**9**9**9"
+            ans = hostile.post(h_main, ["phase-table.data"], {("phase-table", "data"): rows})
+            refused.append(ans.status == 200 and not ans.has("results-store", "data"))
+
+    t = threading.Thread(target=attack, daemon=True)
+    t.start()
+    try:
+        for k in range(5):
+            rows = copy.deepcopy(other.value("phase-table", "data"))
+            rows[PHASE]["load"] = f"{70 + k}.5"
+            ans = other.post(o_main, ["phase-table.data"], {("phase-table", "data"): rows})
+            assert check_edit(ans, (70 + k + 0.5) * 1e3) == []
+    finally:
+        stop.set()
+        t.join(timeout=sum(REQUEST_TIMEOUT))
+    assert refused and all(refused)
     assert server.alive
 
 

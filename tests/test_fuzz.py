@@ -99,3 +99,41 @@ def test_accepted_scenarios_solve_without_nan(data, oil_temperature):
         assert _finite(r), kind
         assert invariants.circuit_violations(r, kind) == []
         assert math.isfinite(float(np.sum(r.heat_to_oil * r.duration)))
+
+
+# --- quantity text: operators, commas, run-together numbers, exponent towers ------------
+from heatload.units import KINDS, MAX_QUANTITY_CHARS, to_si  # noqa: E402
+
+_PIECES = ["1", "9", "10", "0", "2.5", "e", "E", "e-400", "e999", ",", ".", "..", " ", "*", "**",
+           "^", "/", "(", ")", "-", "+", "bar", "m", "L/min", "kN", "degC", "%", "1/", "mm2",
+           "9**9**9", "10**10**8", "\u00b2", "\u00b0C", "\t", "_", "x", "(((("]
+quantity_texts = st.one_of(
+    st.lists(st.sampled_from(_PIECES), max_size=25).map("".join),
+    st.text(alphabet="0123456789.,eE+-*/^() barmLin%", max_size=60),
+    st.builds(lambda n, u: f"{n} {u}", st.text("0123456789,.", min_size=1, max_size=8),
+              st.sampled_from(UNITS)),
+    st.integers(1, 60).map(lambda n: "9" + "**9" * n + " bar"),
+)
+
+
+@settings(max_examples=20000 if LONG else 3000, deadline=None,
+          suppress_health_check=list(HealthCheck))
+@given(quantity_texts, st.sampled_from(sorted(KINDS)))
+def test_quantity_text_is_read_or_refused_at_once(text, kind):
+    """Any text: a finite SI value or the project's error naming the field, and
+    never the time to evaluate arithmetic (a hang guard, not a benchmark)."""
+    import time
+
+    from heatload.units import registry
+    registry()                          # pint's one-time load is not the text's cost
+    t0 = time.perf_counter()
+    try:
+        v = to_si(text, kind, field="f", file="fuzz.toml")
+        assert math.isfinite(v)
+        assert len(text.strip()) <= MAX_QUANTITY_CHARS
+        assert "**9" not in text and ",5" not in text
+    except HeatloadError as e:
+        assert e.field == "f" and "\n" not in e.one_line()
+    # a field is parsed in well under a millisecond (a new unit takes pint a few),
+    # so a second is only a guard against evaluating a power tower
+    assert time.perf_counter() - t0 < 1.0

@@ -95,20 +95,62 @@ def test_radiation_coefficient_equals_exact_exchange():
 
 def test_air_properties_against_coolprop_direct():
     from CoolProp.CoolProp import PropsSI
-    t = 313.17  # off the 0.05 K grid: interpolation must stay within 1e-5 relative
+    t = 313.17  # between the table's nodes
     air = H.air_properties(t)
-    assert air.density == pytest.approx(PropsSI("D", "T", t, "P", 101325, "Air"), rel=1e-5)
-    assert air.thermal_conductivity == pytest.approx(PropsSI("L", "T", t, "P", 101325, "Air"), rel=1e-5)
-    assert air.prandtl == pytest.approx(PropsSI("PRANDTL", "T", t, "P", 101325, "Air"), rel=1e-4)
+    assert air.density == pytest.approx(PropsSI("D", "T", t, "P", 101325, "Air"), rel=1e-6)
+    assert air.thermal_conductivity == pytest.approx(PropsSI("L", "T", t, "P", 101325, "Air"), rel=1e-6)
+    assert air.prandtl == pytest.approx(PropsSI("PRANDTL", "T", t, "P", 101325, "Air"), rel=1e-6)
     assert air.expansion == pytest.approx(1 / t)
     # ideal-gas check: rho = p M / (R T), M = 28.965 g/mol (dry air, ISO 2533), within 0.1 %
     assert air.density == pytest.approx(101325 * 0.028965 / (8.314462618 * t), rel=1e-3)
+
+
+@pytest.mark.parametrize("t_range, p_range", [
+    # what the model uses: film temperatures of tanks and coolers (ambient -60 .. +70 degC,
+    # oil up to 250 degC), barometric pressures of altitude -500 m .. 9000 m
+    ((190.0, 450.0), (30.0e3, 108.0e3)),
+    # the whole table
+    (H.AIR_TEMPERATURE_RANGE, H.AIR_PRESSURE_RANGE),
+])
+def test_air_table_matches_coolprop_within_1e_6(t_range, p_range):
+    """The shipped table against CoolProp's 'Air' (Lemmon et al. 2000) off its nodes."""
+    from CoolProp.CoolProp import PropsSI
+    rng = np.random.default_rng(13)
+    t = np.concatenate([rng.uniform(*t_range, 3000), t_range])
+    p = np.concatenate([rng.uniform(*p_range, 3000), p_range])
+    air = H.air_properties(t, p)
+    for key, got in (("D", air.density), ("C", air.specific_heat), ("V", air.dynamic_viscosity),
+                     ("L", air.thermal_conductivity), ("PRANDTL", air.prandtl)):
+        ref = PropsSI(key, "T", t, "P", p, "Air")
+        assert np.max(np.abs(got / ref - 1.0)) <= 1e-6, key
+
+
+@pytest.mark.parametrize("pressure", [101325.0, 30.8e3, 107.5e3])
+def test_air_table_at_one_altitude_matches_coolprop_within_1e_6(pressure):
+    """One pressure for all temperatures (the model's case, its own fast path)."""
+    from CoolProp.CoolProp import PropsSI
+    t = np.concatenate([np.random.default_rng(15).uniform(150.0, 1000.0, 3000), [150.0, 1000.0]])
+    air = H.air_properties(t, pressure)
+    for key, got in (("D", air.density), ("C", air.specific_heat), ("V", air.dynamic_viscosity),
+                     ("L", air.thermal_conductivity)):
+        ref = PropsSI(key, "T", t, "P", pressure, "Air")
+        assert np.max(np.abs(got / ref - 1.0)) <= 1e-6, key
+
+
+def test_air_properties_broadcast_temperature_and_pressure():
+    air = H.air_properties(np.array([[300.0, 320.0]]), np.array([[101325.0], [70.0e3]]))
+    assert air.density.shape == (2, 2)
+    # ideal gas at one temperature: density proportional to pressure (within 0.1 %)
+    assert air.density[1, 0] / air.density[0, 0] == pytest.approx(70.0e3 / 101325.0, rel=1e-3)
 
 
 def test_air_properties_rejects_bad_input():
     with pytest.raises(HeatloadError) as err:
         H.air_properties(-5.0)
     assert err.value.field == "temperature"
+    with pytest.raises(HeatloadError) as err:
+        H.air_properties(300.0, 5.0e3)  # beyond the table (an altitude above 9000 m)
+    assert err.value.field == "pressure"
 
 
 # --- natural convection coefficient -------------------------------------------
@@ -209,3 +251,37 @@ def test_import_stays_light():
             "print('CoolProp' in sys.modules or 'scipy' in sys.modules)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_barometric_pressure_of_the_standard_atmosphere():
+    # ISO 2533 standard atmosphere: 101.325 kPa at sea level, 89.876 kPa at 1000 m,
+    # 79.501 kPa at 2000 m (tabulated values)
+    from heatload.heat_transfer import barometric_pressure
+    assert barometric_pressure(0.0) == pytest.approx(101325.0, rel=1e-12)
+    assert barometric_pressure(1000.0) == pytest.approx(89876.0, rel=2e-4)
+    assert barometric_pressure(2000.0) == pytest.approx(79501.0, rel=2e-4)
+
+
+def test_a_big_tank_bottom_beyond_its_correlation_is_named():
+    """The hot-face-down plate correlation is published for 1e4 <= Ra <= 1e9
+    (Incropera et al., 7th ed., eq. 9.32).  Ra = g beta dT L^3 / (nu alpha), by hand
+    with the air's properties at the film temperature; a 6 m x 5 m tank bottom
+    (L = A/P = 1.36 m) 40 K above the air is far beyond 1e9 and must be named."""
+    import dataclasses
+
+    from heatload import io
+    from heatload.heat_transfer import air_properties, correlations_out_of_range
+    r = io.load_scenario(io.default_scenario_path()).reservoir
+    big = dataclasses.replace(r, length=6.0, width=5.0, bottom_exposed=True, surfaces=())
+    ts, ta = 338.15, 298.15
+    air = air_properties(0.5 * (ts + ta))
+    L = 30.0 / 22.0
+    ra_hand = 9.80665 * (1 / 318.15) * 40.0 * L**3 / (air.kinematic_viscosity
+                                                       * air.kinematic_viscosity / air.prandtl)
+    found = {name: (ra, lo, hi) for name, ra, lo, hi in correlations_out_of_range(big, ts, ta)}
+    assert set(found) == {"tank bottom"}
+    ra, lo, hi = found["tank bottom"]
+    assert (lo, hi) == (1e4, 1e9)
+    assert ra == pytest.approx(ra_hand, rel=1e-3)     # beta = 1/T_film (ideal gas)
+    # the default tank is inside every range
+    assert correlations_out_of_range(r, ts, ta) == []

@@ -71,9 +71,29 @@ def test_efficiency_peaks_below_rated_load():
     assert loads[np.argmax(eta)] / 11e3 == pytest.approx(np.sqrt(0.3 / 0.7), abs=0.01)
 
 
-def test_converter_fed_constant_losses_scale_with_speed():
+def test_converter_fed_constant_losses_scale_with_speed_but_the_magnetizing_part():
+    # constant losses 0.3 L_r (loss split, IEC 60034-2-1); at half speed and constant
+    # flux iron, friction and windage fall with the speed (about), while the
+    # magnetizing current's copper loss, k = 0.3 of them (from memory), stays:
+    # 0.3 L_r (0.3 + 0.7 x 0.5) = 0.195 L_r
     lr = 11e3 * (1 / 0.914 - 1)
-    assert m.motor_input_power(0.0, 11e3, 0.914, speed_fraction=0.5) == pytest.approx(0.15 * lr)
+    assert m.motor_input_power(0.0, 11e3, 0.914, speed_fraction=0.5) == pytest.approx(
+        0.3 * lr * (0.3 + 0.7 * 0.5), rel=1e-12)
+    # at rest the motor still draws the magnetizing part: not zero
+    assert m.motor_input_power(0.0, 11e3, 0.914, speed_fraction=1e-6) == pytest.approx(
+        0.3 * lr * 0.3, rel=1e-5)
+
+
+def test_converter_losses_keep_the_rated_efficiency_and_a_standby_loss():
+    pr_in = 11e3 / 0.914                          # motor input at its rated point
+    # at the rated point the converter's loss is P_in (1/eta_d - 1): eta_d as stated
+    rated = m.converter_losses(pr_in, pr_in, 0.97)
+    assert pr_in / (pr_in + rated) == pytest.approx(0.97, rel=1e-12)
+    # at rest the standby share k0 of the rated loss remains (from memory, 25 %)
+    assert m.converter_losses(0.0, pr_in, 0.97) == pytest.approx(0.25 * rated, rel=1e-12)
+    # linear in between: half input, k0 + (1 - k0)/2 of the rated loss
+    assert m.converter_losses(pr_in / 2, pr_in, 0.97) == pytest.approx(
+        (0.25 + 0.75 / 2) * rated, rel=1e-12)
 
 
 def test_rated_efficiency_of_a_motor():

@@ -7,6 +7,7 @@ package of that name.
 """
 
 import ast
+import re
 import os
 import subprocess
 import sys
@@ -75,3 +76,35 @@ def test_engine_docstring_examples_are_collected():
                                          else "heatload")
         examples += sum(len(t.examples) > 0 for t in finder.find(module))
     assert examples >= 30
+
+
+def test_air_table_ships_as_package_data():
+    """heat_transfer reads heatload/data/air_properties.npz: the wheel must carry it."""
+    import fnmatch
+    import tomllib
+    config = tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["setuptools"]
+    patterns = config["package-data"]["heatload"]
+    assert any(fnmatch.fnmatch("data/air_properties.npz", p) for p in patterns)
+    assert (ROOT / "heatload" / "data" / "air_properties.npz").is_file()
+
+
+def _make_recipe(target: str) -> str:
+    """The recipe lines of a Makefile target (tabs stripped)."""
+    text = (ROOT / "Makefile").read_text()
+    block = re.search(rf"^{re.escape(target)}:.*?\n((?:\t.*\n)+)", text, re.M)
+    assert block, target
+    return block.group(1)
+
+
+def test_make_run_installs_only_what_running_needs():
+    """`make run` installs the package without its test extras, with pip's
+    progress visible; `make test` adds the extras."""
+    text = (ROOT / "Makefile").read_text()
+    run_deps = re.search(r"^run:(.*)$", text, re.M).group(1).split()
+    test_deps = re.search(r"^test:(.*)$", text, re.M).group(1).split()
+    (run_stamp,) = run_deps
+    run_install = _make_recipe(run_stamp)
+    assert "-e ." in run_install and "[test]" not in run_install
+    assert "--quiet" not in text and " -q " not in run_install
+    (test_stamp,) = test_deps
+    assert "[test]" in _make_recipe(test_stamp)

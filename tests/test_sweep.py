@@ -95,3 +95,28 @@ def test_cli_writes_and_refuses_overwrite(tmp_path, capsys):
     assert sweep.run_cli(_args(tmp_path, output=str(tmp_path / "o.parquet"), samples=4,
                                vary=["actuators.main.bore=95..105mm"])) == 0
     assert len(pd.read_parquet(tmp_path / "o.parquet")) == 4
+
+
+def _single_phase_scenario():
+    import tomllib
+    data = tomllib.loads(io.default_scenario_path().read_text())
+    data["phases"] = [p for p in data["phases"] if p.get("motion") == "extend"][:1]
+    data.pop("uncertainty", None)
+    return io.scenario_from_dict(data, "single.toml")
+
+
+@pytest.mark.parametrize("coupled", [False, True])
+def test_a_single_phase_cycle_sweeps(coupled):
+    """A cycle of one phase once crashed every sweep ('indices and arr must have the
+    same number of dimensions'); a variant equal to the scenario gives the figures
+    of the single-scenario evaluation (N = 1)."""
+    sc = _single_phase_scenario()
+    spec = [sweep.parse_vary("power_unit.relief.cracking_pressure=170..190bar:3", sc)]
+    values = sweep.grid_values(spec)
+    thermal = True if coupled else "design"
+    df = sweep.run_sweep(sc, values, [sc.strategy("meter-in")], thermal=thermal)
+    assert len(df) == 3 and np.all(np.isfinite(df["cooler_duty_W"]))
+    one = variants.evaluate_variants(
+        variants.replaced_scenario(sc, {k: v[1] for k, v in values.items()}), "meter-in",
+        thermal=thermal)
+    np.testing.assert_allclose(df["cooler_duty_W"][1], one.cooler_duty[0], rtol=1e-12)

@@ -94,3 +94,74 @@ def test_round_trip_every_kind():
 def test_unknown_system():
     with pytest.raises(HeatloadError):
         display_unit("pressure", "imperial")
+
+
+# --- the strict quantity grammar -------------------------------------------------
+# One number and a unit expression; nothing else is evaluated (pint alone would compute
+# "10**10**8 bar" for minutes and read "140,5 bar" as 1405 bar).
+
+@pytest.mark.parametrize("text, kind, expected", [
+    ("46 mm2/s", "kinematic_viscosity", 46e-6),           # "mm2" written for mm^2
+    ("3 N m", "torque", 3.0),                              # juxtaposition is a product
+    ("10 W/m^2/K", "heat_transfer_coefficient", 10.0),
+    ("0.2 bar/(L/min)", "pressure_per_flow", 0.2e5 / (1e-3 / 60)),
+    ("7e-4 1/K", "expansion_coefficient", 7e-4),
+    (".5 bar", "pressure", 0.5e5),
+    ("5. bar", "pressure", 5e5),
+    ("+5 bar", "pressure", 5e5),
+    ("1E+05 Pa", "pressure", 1e5),
+    ("1450 1/min", "shaft_speed", 1450 / 60),
+    ("5 kW·h", "energy", 5 * 3.6e6),                      # 1 kWh = 3.6 MJ (definition)
+    ("1.2 m²", "area", 1.2),
+    ("-10 degF", "temperature", (-10 - 32) * 5 / 9 + 273.15),   # NIST SP 811
+    ("50 %", "dimensionless", 0.5),
+])
+def test_grammar_accepts_what_people_write(text, kind, expected):
+    assert to_si(text, kind) == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize("text, reason", [
+    ("140,5 bar", "use a decimal point: 140.5 bar"),
+    ("0,5 bar", "use a decimal point: 0.5 bar"),
+    ("1,000,000 bar", "without thousands separators"),
+    ("1,000.5 bar", "without thousands separators"),
+    ("2 3 bar", "write one number and its unit"),
+    ("6..3 bar", "unexpected '.' after the number"),
+    ("1e-400 bar", "too small to represent"),
+    ("1e999 bar", "beyond the floating-point range"),
+    ("1e4000 bar", "exponent is too long"),
+    ("10**10**8 bar", "no arithmetic"),
+    ("9**9**9 bar", "no arithmetic"),
+    ("9**9**9", "no arithmetic"),
+    ("2*3 bar", "no arithmetic"),
+    ("2/3 bar", "write one number and its unit"),
+    ("5 bar^0.5", "unexpected '.'"),
+    ("5 bar^9", "within ±4"),
+    ("5 ((((bar))))", "nested too deep"),
+    ("5 (bar", "not closed"),
+    ("5 bar)", "has no '('"),
+    ("bar", "does not start with a number"),
+    ("5 " + "bar*" * 40 + "bar", "longer than"),
+    ("5 blorps", "not a number with a known unit"),
+])
+def test_grammar_refuses_with_its_reason(text, reason):
+    with pytest.raises(HeatloadError) as e:
+        to_si(text, "pressure", field="power_unit.relief.cracking_pressure", file="m.toml")
+    msg = str(e.value)
+    assert reason in msg and "power_unit.relief.cracking_pressure" in msg and "m.toml" in msg
+    assert "\n" not in msg
+
+
+def test_grammar_agrees_with_pint_on_what_it_accepts():
+    """Outside check: for text the grammar accepts, the value equals pint's own
+    Quantity conversion (the reference library) to rounding."""
+    from heatload.units import registry
+    ureg = registry()
+    cases = [("160 bar", "Pa"), ("12 gal/min", "m^3/s"), ("95 degF", "K"), ("35 degC", "K"),
+             ("0.2 bar/(L/min)", "Pa*s/m^3"), ("1.9 kJ/(kg*K)", "J/(kg*K)"),
+             ("10 Btu/(h*ft^2*delta_degF)", "W/(m^2*K)")]
+    kinds = ["pressure", "flow", "temperature", "temperature", "pressure_per_flow",
+             "specific_heat", "heat_transfer_coefficient"]
+    for (text, si), kind in zip(cases, kinds):
+        ref = ureg.Quantity(text).to(si).magnitude
+        assert to_si(text, kind) == pytest.approx(ref, rel=1e-12, abs=1e-12)
