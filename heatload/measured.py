@@ -85,13 +85,14 @@ def logged_oil_temperature(log, fit) -> float:
     return float(np.sum(w * y) / np.sum(w))
 
 
-def scenario_comparison(scenario, log, fit) -> dict:
+def scenario_comparison(scenario, log, fit, strategy=None) -> dict:
     """The measured heat and conductance beside the scenario's model, the
     calibration factors and the cooler duty at the design point from the
-    measurement (see the module notes).  SI values, unit-suffixed keys."""
+    measurement (see the module notes).  SI values, unit-suffixed keys.
+    *strategy*: the machine's circuit by name; default the scenario's present one."""
     from heatload import chain, cooler, sizing
 
-    strat = sizing._design_strategy(scenario)
+    strat = sizing._design_strategy(scenario, strategy)
     t_log = logged_oil_temperature(log, fit)
     ta_log = float(np.mean(log.values["ambient"]))
     q_model = float(chain._mean_heat(chain.solve_at(scenario, strat, t_log)))
@@ -369,7 +370,8 @@ def run_logfit(args) -> int:
             raise HeatloadError("must be positive", field="--heat-capacity")
         source = "given"
     fit = fit_log(log, capacity, args.confidence)
-    comparison = scenario_comparison(scenario, log, fit) if scenario is not None else None
+    comparison = (scenario_comparison(scenario, log, fit, getattr(args, "strategy", None))
+                  if scenario is not None else None)
     if out:
         text = build_html(log, fit, comparison, args.units, source)
         from heatload.report import write_html

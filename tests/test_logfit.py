@@ -244,3 +244,12 @@ def test_scenario_gives_capacity_calibration_and_duty(capsys):
     q, ua = c["measured_design_heat_W"], c["measured_design_conductance_W_K"]
     expect = max(0.0, q - ua * (c["design_oil_temperature_C"] - c["design_ambient_C"]))
     assert c["measured_cooler_duty_W"] == pytest.approx(expect * (1 + c["margin"]), rel=1e-9)
+    assert c["strategy"] == "meter-out"                 # the lift's present circuit
+    assert main(["logfit", str(log), "--scenario", str(scen), "--strategy", "load-sensing",
+                 "--json"]) == 0
+    other = json.loads(capsys.readouterr().out)["scenario"]
+    assert other["strategy"] == "load-sensing"
+    assert other["heat_calibration_factor"] == pytest.approx(
+        other["measured_heat_W"] / other["model_heat_W"])
+    assert main(["logfit", str(log), "--scenario", str(scen), "--strategy", "nozzle"]) == 2
+    assert "unknown strategy" in capsys.readouterr().err
