@@ -173,6 +173,8 @@ def cmd_check(args):
     from heatload.tables import count
     print(f"  {count(len(sc.phases), 'phase')}: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
     print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
+    if sc.coolers:
+        print(f"  datasheet coolers: " + ", ".join(c.name for c in sc.coolers))
     return 0
 
 
@@ -409,6 +411,9 @@ def build_parser() -> argparse.ArgumentParser:
                     help="unit of a column whose header gives none, e.g. oil=degF (repeatable)")
     sp.add_argument("--ambient-temperature", metavar="T", default=None,
                     help="constant air temperature when the log has no ambient column")
+    sp.add_argument("--strategy", metavar="NAME", default=None,
+                    help="with --scenario: the machine's circuit (default: the scenario's "
+                         "present_strategy)")
     sp.add_argument("--confidence", type=float, default=0.95,
                     help="level of the confidence intervals (default 0.95)")
     sp.add_argument("--json", action="store_true", help="print as JSON (SI units)")
