@@ -17,7 +17,7 @@ $(BIN)/python:
 
 $(RUN_STAMP): pyproject.toml | $(BIN)/python
 	@echo "== installing heatload and what it needs to run (numpy, scipy, pandas, pint,"
-	@echo "   CoolProp, plotly, dash ...); the first time takes a minute or two"
+	@echo "   CoolProp, plotly, dash ...); the first time takes a few minutes"
 	$(PIP) -e .
 	touch $@
 

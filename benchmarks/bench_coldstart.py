@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import resource
 import statistics
 import subprocess
 import sys
@@ -37,15 +38,21 @@ def commands(out_dir: Path):
     }
 
 
-def _run(tree: Path, argv, cwd: Path) -> float:
+def _cpu():
+    r = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return r.ru_utime + r.ru_stime
+
+
+def _run(tree: Path, argv, cwd: Path):
+    """(wall, CPU) seconds of one fresh ``python -m heatload.cli ARGV`` process."""
     env = dict(os.environ, PYTHONPATH=str(tree), COLUMNS="80")
-    t0 = time.perf_counter()
+    c0, t0 = _cpu(), time.perf_counter()
     r = subprocess.run([sys.executable, "-m", "heatload.cli", *argv], cwd=cwd, env=env,
                        stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
-    wall = time.perf_counter() - t0
+    wall, cpu = time.perf_counter() - t0, _cpu() - c0
     if r.returncode != 0:
         raise SystemExit(f"heatload {' '.join(argv)} failed in {tree}: {r.stderr.strip()}")
-    return wall
+    return wall, cpu
 
 
 def _export(ref: str, dest: Path) -> Path:
@@ -74,16 +81,24 @@ def main(argv=None) -> int:
             for _ in range(args.runs):
                 for tree_name, tree in trees.items():
                     times[tree_name].append(_run(tree, argv_, cwd=tree))
-            rows.append((name, {k: statistics.median(v) for k, v in times.items()}))
-    heads = ["command"] + [f"{k} [s]" for k in trees] + (["this / base"] if args.baseline else [])
-    print(f"cold starts, median of {args.runs} runs (python {sys.version.split()[0]}, "
-          f"load {os.getloadavg()[0]:.1f} on {os.cpu_count()} cores)")
-    print("  ".join(f"{h:>12}" for h in heads))
+            rows.append((name, {k: [statistics.median(x[j] for x in v) for j in (0, 1)]
+                                for k, v in times.items()}))
+    heads = ["command"]
+    for k in trees:
+        heads += [f"{k} wall", f"{k} CPU"]
+    if args.baseline:
+        heads += ["wall ratio", "CPU ratio"]
+    print(f"cold starts [s], median of {args.runs} runs (python {sys.version.split()[0]}, "
+          f"load {os.getloadavg()[0]:.1f} on {os.cpu_count()} cores); CPU = user + system "
+          "time of the process, less sensitive to other load than wall")
+    print("  ".join(f"{h:>11}" for h in heads))
     for name, med in rows:
-        cells = [name] + [f"{med[k]:.2f}" for k in trees]
+        cells = [name]
+        for k in trees:
+            cells += [f"{med[k][0]:.2f}", f"{med[k][1]:.2f}"]
         if args.baseline:
-            cells.append(f"{med['this'] / med[args.baseline]:.2f}")
-        print("  ".join(f"{c:>12}" for c in cells))
+            cells += [f"{med['this'][j] / med[args.baseline][j]:.2f}" for j in (0, 1)]
+        print("  ".join(f"{c:>11}" for c in cells))
     return 0
 
 

@@ -38,5 +38,6 @@ def datasheet_block(scenario, outcome, system: str):
                  f"{fq(sel.peak_return_flow, 'flow', system)} (allowed drop "
                  f"{fq(sel.allowed_pressure_drop, 'pressure', system)}). Chosen: "
                  f"{sel.chosen or 'none'}.", className="msg"),
-        html.Table([html.Thead(head), html.Tbody(rows)], id="datasheet-table"), *notes],
+        html.Table([html.Thead(head), html.Tbody(rows)], id="datasheet-table",
+                   className="comparison"), *notes],
         id="datasheet-coolers")

@@ -68,7 +68,8 @@ def _table(rows):
     head = html.Tr([html.Th(h) for h in ("quantity", "fitted", rows[0][4] + " interval", "")])
     body = [html.Tr([html.Td(a), html.Td(b, className="num"), html.Td(c, className="num"),
                      html.Td(d)]) for a, b, c, d, _ in rows]
-    return html.Table([html.Thead(head), html.Tbody(body)], id="log-fit-table")
+    return html.Table([html.Thead(head), html.Tbody(body)], id="log-fit-table",
+                      className="comparison")
 
 
 def _comparison(c, system):
@@ -128,7 +129,7 @@ def log_view(contents, filename, capacity_text, store, system):
         comparison = (measured.scenario_comparison(scenario, log, fit)
                       if scenario is not None and fit.heat is not None else None)
     except HeatloadError as exc:
-        return (html.Div(exc.one_line(), className="error"),) + empty[1:]
+        return (html.Div(exc.one_line(), className="err", id="log-error"),) + empty[1:]
     notes = [html.Div(n, className="note") for n in fit.notes]
     message = html.Div([html.Div(
         f"{name}: {fit.samples} samples over {fit.duration / 3600:.3g} h; residual RMS "

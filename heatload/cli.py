@@ -94,11 +94,19 @@ def _samples(text, low=2):
     return v
 
 
+#: Width of this run's tables (set by :func:`main`): "terminal", or None with --wide.
+_output_width = "terminal"
+
+
 def _table(headers, rows, width="auto", optional=()):
-    """A text table fitted to *width* columns (the terminal's by default; ``None``
-    for every column): the *optional* headers are left out in that order."""
+    """A text table fitted to *width* columns (by default this run's: the
+    terminal's, or every column with ``--wide``; ``None`` for every column):
+    the *optional* headers are left out in that order."""
     from heatload.tables import format_table, terminal_width
-    return format_table(headers, rows, terminal_width() if width == "auto" else width, optional)
+    if width == "auto":
+        width = _output_width
+    return format_table(headers, rows, terminal_width() if width == "terminal" else width,
+                        optional)
 
 
 CAUTION = ("Estimates for early design. Component makers' data, machine-safety standards "
@@ -195,6 +203,8 @@ def cmd_check(args):
     from heatload.tables import count
     print(f"  {count(len(sc.phases), 'phase')}: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
     print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
+    if sc.coolers:
+        print(f"  datasheet coolers: " + ", ".join(c.name for c in sc.coolers))
     return 0
 
 
@@ -434,6 +444,9 @@ def build_parser() -> argparse.ArgumentParser:
                     help="unit of a column whose header gives none, e.g. oil=degF (repeatable)")
     sp.add_argument("--ambient-temperature", metavar="T", default=None,
                     help="constant air temperature when the log has no ambient column")
+    sp.add_argument("--strategy", metavar="NAME", default=None,
+                    help="with --scenario: the machine's circuit (default: the scenario's "
+                         "present_strategy)")
     sp.add_argument("--confidence", type=float, default=0.95,
                     help="level of the confidence intervals (default 0.95)")
     sp.add_argument("--json", action="store_true", help="print as JSON (SI units)")
@@ -524,12 +537,16 @@ def main(argv=None) -> int:
     if not getattr(args, "command", None):
         parser.print_help()
         return 0
+    global _output_width
     json_mode = bool(getattr(args, "json", False))
     if getattr(args, "wide", False) or json_mode:
-        args.width = None
+        args.width = _output_width = None
+    elif not hasattr(args, "wide"):
+        # a command without --wide may print a file (a draft TOML): its lines stay whole
+        args.width, _output_width = None, "terminal"
     else:
         from heatload.tables import terminal_width
-        args.width = terminal_width()
+        args.width = _output_width = terminal_width()
     stdout = sys.stdout
     sys.stdout = _TerminalText(stdout, json_mode=json_mode, width=args.width)
     try:
@@ -556,6 +573,7 @@ def main(argv=None) -> int:
         except BrokenPipeError:
             pass
         sys.stdout = stdout
+        _output_width = "terminal"
 
 
 if __name__ == "__main__":

@@ -405,7 +405,8 @@ def decide(comparison, present=None, prices=None) -> Decision:
         if b:
             reason = _out_reason(b)
         elif i == best_i:
-            parts = [f"energy {_money(c.energy + c.fan, cur)}"]
+            parts = [f"electricity {_money(c.energy + c.fan, cur)}"
+                     + (" with the cooler fan" if c.fan > 0 else "")]
             if c.cooler_price > 0:
                 parts.append(f"cooler {_money(c.cooler, cur)}")
             else:
@@ -418,7 +419,7 @@ def decide(comparison, present=None, prices=None) -> Decision:
                       + ", ".join(parts) + ")")
         else:
             ref = costs[best_i]
-            d = {"energy": (c.energy + c.fan) - (ref.energy + ref.fan),
+            d = {"electricity": (c.energy + c.fan) - (ref.energy + ref.fan),
                  "cooler": c.cooler - ref.cooler, "circuit price": c.circuit - ref.circuit}
             main = max(d, key=lambda k: d[k])
             reason = (f"{_money(c.total - ref.total, cur)}/year more than "

@@ -4,8 +4,9 @@ air, and thermal radiation.
 One correlation per function, vectorized over numpy arrays, SI inside
 (K, m, W, Pa).  Air properties come from a table shipped with the package
 (``heatload/data/air_properties.npz``, made from CoolProp by
-``scripts/make_air_table.py``): smooth in temperature for the root finders of
-:mod:`heatload.thermal`, and no CoolProp import on the way.
+``scripts/make_property_tables.py``; see :mod:`heatload.property_tables`):
+smooth in temperature for the root finders of :mod:`heatload.thermal`, and no
+CoolProp import on the way.
 
 The public entry point for the thermal model is :func:`reservoir_conductance`,
 the overall conductance UA [W/K] of a :class:`heatload.model.Reservoir` and its
@@ -20,6 +21,7 @@ from functools import lru_cache
 
 import numpy as np
 
+from heatload import property_tables
 from heatload.errors import HeatloadError
 
 #: Stefan-Boltzmann constant [W/(m^2 K^4)] (CODATA 2018, exact in SI).
@@ -49,7 +51,7 @@ kinematic_viscosity [m^2/s]."""
 
 
 #: Range of the shipped air table (heatload/data/air_properties.npz, written by
-#: scripts/make_air_table.py): temperature [K], absolute pressure [Pa].
+#: scripts/make_property_tables.py): temperature [K], absolute pressure [Pa].
 AIR_TEMPERATURE_RANGE = (150.0, 1000.0)
 AIR_PRESSURE_RANGE = (20.0e3, 120.0e3)
 
@@ -59,15 +61,13 @@ def _air_table():
     """(t_low [K], t_step [K], p_scale [Pa], values (12, n), moments (12, n)) of the
     shipped table: rows rho/p, c_p, mu, k, each as (a0, a1, a2) of
     a0 + a1 s + a2 s^2, s = p / p_scale; columns a uniform temperature grid."""
-    from importlib.resources import files
-
-    with files("heatload").joinpath("data", "air_properties.npz").open("rb") as fh:
-        d = np.load(fh, allow_pickle=False)
-        (t_low, t_high, t_step), (p_low, p_high, p_scale) = d["temperature"], d["pressure"]
-        if (t_low, t_high) != AIR_TEMPERATURE_RANGE or (p_low, p_high) != AIR_PRESSURE_RANGE:
-            raise HeatloadError("the shipped air property table does not match this version; "
-                                "regenerate it with scripts/make_air_table.py", field="air table")
-        return float(t_low), float(t_step), float(p_scale), d["values"], d["moments"]
+    d = property_tables.load("air_properties")
+    (t_low, t_high, t_step), (p_low, p_high, p_scale) = d["temperature"], d["pressure"]
+    if (t_low, t_high) != AIR_TEMPERATURE_RANGE or (p_low, p_high) != AIR_PRESSURE_RANGE:
+        raise HeatloadError("the shipped air property table does not match this version; "
+                            "regenerate it with scripts/make_property_tables.py",
+                            field="data")
+    return float(t_low), float(t_step), float(p_scale), d["values"], d["moments"]
 
 
 def air_properties(temperature, pressure=101325.0) -> AirProperties:
@@ -97,7 +97,7 @@ def air_properties(temperature, pressure=101325.0) -> AirProperties:
     second order (rho = p M / (Z R T) with 1/Z = 1 - B' p + C' p^2; density
     corrections of the dilute-gas viscosity and conductivity), each coefficient
     a cubic spline in T on a 2 K grid.  The table is made from CoolProp by
-    ``scripts/make_air_table.py`` and reproduces it within 1e-7 relative over the
+    ``scripts/make_property_tables.py`` and reproduces it within 1e-7 relative over the
     whole range (a test checks 1e-6), far below the uncertainty of any
     convection correlation.  CoolProp itself is not imported: sizing a tank or
     an air cooler starts in well under a second.
@@ -150,16 +150,9 @@ def air_properties(temperature, pressure=101325.0) -> AirProperties:
 
 def _air_from_table(t, p):
     """rho, c_p, mu, k (4, n) at temperatures *t* (n,) [K] and pressures *p* (n,) [Pa]
-    from the shipped table: the cubic between two temperature nodes from the values
-    and second derivatives there, then the expansion in pressure."""
+    from the shipped table: the cubic in temperature, then the expansion in pressure."""
     t0, step, p_scale, values, moments = _air_table()
-    x = (t - t0) / step
-    i = np.minimum(x.astype(np.intp), values.shape[1] - 2)
-    b = x - i
-    a = 1.0 - b
-    coef = (a * values[:, i] + b * values[:, i + 1]
-            + ((a ** 3 - a) * moments[:, i] + (b ** 3 - b) * moments[:, i + 1])
-            * (step * step / 6.0)).reshape(4, 3, -1)
+    coef = property_tables.cubic_spline(t, values, moments, t0, step).reshape(4, 3, -1)
     s = p / p_scale
     out = coef[:, 0] + s * (coef[:, 1] + s * coef[:, 2])
     out[0] *= p  # rho / p -> rho
@@ -176,9 +169,18 @@ def _air_fine_table(pressure: float) -> np.ndarray:
     """rho, c_p, mu, k (n, 4) at one pressure on a :data:`_FINE_STEP` grid from
     150 K, evaluated from the shipped table once, so each later call is a
     linear interpolation (as fast as a plain lookup)."""
+    t0, step, p_scale, values, moments = _air_table()
+    # the expansion in pressure first: at one pressure each property is one spline
+    # (values and second derivatives combine alike), four rows instead of twelve
+    s = pressure / p_scale
+    weights = np.array([1.0, s, s * s])
+    v = np.einsum("j,pjn->pn", weights, values.reshape(4, 3, -1))
+    m = np.einsum("j,pjn->pn", weights, moments.reshape(4, 3, -1))
     lo, hi = AIR_TEMPERATURE_RANGE
     grid = np.linspace(lo, hi, int(round((hi - lo) / _FINE_STEP)) + 1)
-    return np.ascontiguousarray(_air_from_table(grid, np.full(grid.shape, pressure)).T)
+    fine = property_tables.cubic_spline(grid, v, m, t0, step)
+    fine[0] *= pressure
+    return np.ascontiguousarray(fine.T)
 
 
 def grashof(expansion, temperature_difference, length, kinematic_viscosity, gravity=GRAVITY):

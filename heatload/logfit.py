@@ -157,7 +157,8 @@ class TankFit:
     J/K, s, K).  Values that need C are None when no heat capacity was given;
     intervals are (low, high) at :attr:`confidence`."""
 
-    heat: float | None                 #: heat into the oil while running, P [W]
+    heat: float | None                 #: heat into the oil while running, P [W]; None
+                                       #: without C or when the machine never runs
     conductance: float | None          #: UA to the air [W/K]
     capacity: float | None             #: C used (given, not fitted) [J/K]
     time_constant: float               #: tau = C / UA [s]
@@ -352,8 +353,9 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
                                               and tq * sd_t0 < 0.5 * scale_t + 1.0)}
     heat = conductance = None
     if capacity is not None:
-        heat, conductance = capacity * q, capacity * k
-        intervals["heat"] = tuple(capacity * v for v in intervals["heat_rate"])
+        heat, conductance = (capacity * q if fit_heat else None), capacity * k
+        if fit_heat:
+            intervals["heat"] = tuple(capacity * v for v in intervals["heat_rate"])
         intervals["conductance"] = tuple(capacity * v for v in intervals["loss_rate"])
         intervals["capacity"] = (capacity, capacity)
     corr = (cov_qk / (sd_q * sd_k) if fit_heat and sd_q > 0 and math.isfinite(sd_k)

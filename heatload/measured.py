@@ -32,8 +32,14 @@ from heatload.errors import HeatloadError
 
 K0 = 273.15
 
-#: Columns of a temperature log (README, "Measured logs").
+#: What the given heat capacity does to the results (said with every fit that uses one).
+CAPACITY_NOTE = ("P and UA are proportional to the heat capacity C, which is given, not "
+                 "fitted: a C 10 % high makes both 10 % high; the time constant and P/UA "
+                 "come from the log alone.")
+
+
 def log_columns():
+    """Columns of a temperature log (README, "Measured logs")."""
     from heatload.logs import ColumnSpec
     return {"time": ColumnSpec(("time",), "time", True, "s"),
             "oil": ColumnSpec(("oil",), "temperature", True, "degC"),
@@ -79,13 +85,14 @@ def logged_oil_temperature(log, fit) -> float:
     return float(np.sum(w * y) / np.sum(w))
 
 
-def scenario_comparison(scenario, log, fit) -> dict:
+def scenario_comparison(scenario, log, fit, strategy=None) -> dict:
     """The measured heat and conductance beside the scenario's model, the
     calibration factors and the cooler duty at the design point from the
-    measurement (see the module notes).  SI values, unit-suffixed keys."""
+    measurement (see the module notes).  SI values, unit-suffixed keys.
+    *strategy*: the machine's circuit by name; default the scenario's present one."""
     from heatload import chain, cooler, evaluation, sizing
 
-    strat = sizing._design_strategy(scenario)
+    strat = sizing._design_strategy(scenario, strategy)
     t_log = logged_oil_temperature(log, fit)
     ta_log = float(np.mean(log.values["ambient"]))
     q_model = float(evaluation.mean_heat(chain.solve_at(scenario, strat, t_log)))
@@ -159,8 +166,10 @@ def _iv(pair, kind, system, digits=3):
     for d in range(digits, 7):
         vals = []
         for v in pair:
-            if v is None or not math.isfinite(v):
-                vals.append("∞" if v is not None and v > 0 else "–")
+            if v is None or math.isnan(v):
+                vals.append("–")
+            elif not math.isfinite(v):
+                vals.append("∞" if v > 0 else "−∞")
             else:
                 vals.append(format_number(float(from_si(v, kind, unit)), d))
         if vals[0] != vals[1]:
@@ -176,7 +185,7 @@ def summary_rows(fit, system="si", capacity_source="given") -> list:
         return "identified" if fit.identified.get(key, True) else "NOT identified"
     rows = [("heat into the oil while running, P", _q(fit.heat, "power", system),
              _iv(fit.intervals.get("heat"), "power", system),
-             status("heat") if fit.heat is not None else "needs the heat capacity"),
+             status("heat") if fit.capacity is not None else "needs the heat capacity"),
             ("conductance to the air, UA", _q(fit.conductance, "thermal_conductance", system, 3),
              _iv(fit.intervals.get("conductance"), "thermal_conductance", system),
              status("conductance") if fit.conductance is not None
@@ -214,6 +223,8 @@ def print_text(log, fit, comparison, system, capacity_source):
              if fit.interval_widening > 1.0 else ""))
     for n in fit.notes:
         print(f"  ! {n}")
+    if fit.capacity is not None:
+        print(CAPACITY_NOTE)
     if comparison is not None:
         c = comparison
         print(f"\nAgainst the scenario ({c['strategy']}, the present circuit), oil at "
@@ -318,7 +329,8 @@ def build_html(log, fit, comparison, system="si", capacity_source="given") -> st
             f"<table><thead><tr><th>quantity</th><th class='num'>fitted</th>"
             f"<th class='num'>{100 * fit.confidence:.0f} % interval</th><th></th></tr></thead>"
             f"<tbody>{rows}</tbody></table>"
-            + (f"<ul>{notes}</ul>" if notes else "") + comp
+            + (f"<ul>{notes}</ul>" if notes else "")
+            + (f"<p>{e(CAPACITY_NOTE)}</p>" if fit.capacity is not None else "") + comp
             + f"<div class='figure'>{div}</div><div class='caution'>{e(CAUTION)}</div>")
     return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
             f"<title>Temperature log fit — {e(log.source)}</title>"
@@ -358,7 +370,8 @@ def run_logfit(args) -> int:
             raise HeatloadError("must be positive", field="--heat-capacity")
         source = "given"
     fit = fit_log(log, capacity, args.confidence)
-    comparison = scenario_comparison(scenario, log, fit) if scenario is not None else None
+    comparison = (scenario_comparison(scenario, log, fit, getattr(args, "strategy", None))
+                  if scenario is not None else None)
     if out:
         text = build_html(log, fit, comparison, args.units, source)
         from heatload.report import write_html
@@ -368,7 +381,8 @@ def run_logfit(args) -> int:
         rec = logfit.fit_record(fit, source)
         rec.update(file=str(args.log), columns=dict(log.headers), units=dict(log.units),
                    start=log.start.isoformat() if log.start else None,
-                   scenario=comparison, caution=CAUTION)
+                   scenario=comparison, caution=CAUTION,
+                   heat_capacity_note=CAPACITY_NOTE if fit.capacity is not None else None)
         print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
                          default=_json_default))
         return 0

@@ -308,7 +308,9 @@ def _show(df, specs, system, rows, out, width=None):
 
 def _shown(top, n):
     """", the first 5 shown" when --top cuts a list of *n* rows."""
-    return f", the first {top:,} shown" if top < n else ""
+    if top >= n:
+        return ""
+    return ", none shown (--top 0)" if top == 0 else f", the first {top:,} shown"
 
 
 def run_cli(args) -> int:

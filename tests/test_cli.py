@@ -37,12 +37,13 @@ def test_help_and_check_import_no_ui_or_coolprop(argv):
 
 
 @pytest.mark.parametrize("argv", [
-    ["compare"], ["thermal"],
+    ["compare"], ["thermal"], ["cooler", "--samples", "100"],
+    ["cooler", "duty_cycles/conveyor_winch.toml", "--samples", "100"],
     ["sweep", "--vary", "power_unit.pump.displacement=16..40cm^3:3", "--top", "2"]],
-    ids=lambda a: a[0])
-def test_air_cooled_commands_never_import_coolprop(argv):
-    """Air properties come from the shipped table; CoolProp (a multi-second import)
-    is left to water and glycol coolers."""
+    ids=lambda a: " ".join(a[:2]))
+def test_air_and_water_cooled_commands_never_import_coolprop(argv):
+    """Air and water properties come from the shipped tables; CoolProp (a
+    multi-second import) is left to glycol-water coolers."""
     code = ("import contextlib, io as _io\nfrom heatload.cli import main\n"
             "with contextlib.redirect_stdout(_io.StringIO()):\n"
             f"    assert main({argv!r}) == 0")

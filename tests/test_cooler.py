@@ -80,6 +80,20 @@ def test_water_properties_iapws():
     assert p.dynamic_viscosity == pytest.approx(0.890e-3, rel=2e-3)
 
 
+def test_water_table_matches_coolprop_within_1e_6():
+    """The shipped water table against CoolProp's IAPWS-95 'Water' at 1 atm,
+    off its nodes, over the whole liquid range the sizing accepts."""
+    from CoolProp.CoolProp import PropsSI
+    t = np.concatenate([np.random.default_rng(6).uniform(273.16, 372.5, 2000), [273.16, 372.5]])
+    p = K.coolant_properties(t)
+    for key, got in (("D", p.density), ("C", p.specific_heat), ("V", p.dynamic_viscosity),
+                     ("L", p.thermal_conductivity), ("PRANDTL", p.prandtl)):
+        ref = PropsSI(key, "T", t, "P", 101325.0, "Water")
+        assert np.max(np.abs(got / ref - 1.0)) <= 1e-6, key
+    assert p.density.shape == t.shape
+    assert K.coolant_properties(np.full((2, 3), 300.0)).density.shape == (2, 3)
+
+
 def test_glycol_water_properties():
     # 30 % ethylene glycol by mass: denser than water, lower cp and more viscous
     # (ASHRAE Handbook Fundamentals ch. 31 tables, from memory: rho ~1.04 g/cm^3, cp ~3.7 kJ/(kg K))

@@ -101,14 +101,23 @@ def test_warm_up_and_cool_down_recovered_within_3_percent_and_own_interval():
     assert fit.residual_rms == pytest.approx(0.2, rel=0.15)   # the noise put in
 
 
-def test_intervals_cover_the_truth_about_as_often_as_they_claim():
+@pytest.mark.parametrize("rho", [0.0, 0.8])
+def test_intervals_cover_the_truth_about_as_often_as_they_claim(rho):
     # 95 % intervals over 40 independent noisy logs: the truth is inside in
     # about 38 of 40; fewer than 33 would mean the intervals are too narrow
-    # (binomial, n = 40, p = 0.95: P(X <= 32) < 0.1 %)
+    # (binomial, n = 40, p = 0.95: P(X <= 32) < 0.1 %).  rho = 0.8: the noise
+    # is AR(1) with that lag-1 correlation (a slow sensor, drift), which the
+    # widening of the intervals must cover too
     hits = {"heat": 0, "conductance": 0}
     for seed in range(40):
-        t, y, ta, run = _warm_up_cool_down(seed, noise=0.5, step=120.0)
-        fit = logfit.fit_tank_log(t, y, ta, run, capacity=C)
+        t, y, ta, run = _warm_up_cool_down(seed, noise=0.0, step=120.0)
+        rng = np.random.default_rng(1000 + seed)
+        noise = np.empty(t.size)
+        noise[0] = rng.normal(0.0, 0.5)
+        shocks = rng.normal(0.0, 0.5 * math.sqrt(1 - rho ** 2), t.size)
+        for i in range(1, t.size):
+            noise[i] = rho * noise[i - 1] + shocks[i]
+        fit = logfit.fit_tank_log(t, y + noise, ta, run, capacity=C)
         for name, true in (("heat", P), ("conductance", UA)):
             lo, hi = fit.intervals[name]
             hits[name] += lo <= true <= hi
@@ -235,3 +244,12 @@ def test_scenario_gives_capacity_calibration_and_duty(capsys):
     q, ua = c["measured_design_heat_W"], c["measured_design_conductance_W_K"]
     expect = max(0.0, q - ua * (c["design_oil_temperature_C"] - c["design_ambient_C"]))
     assert c["measured_cooler_duty_W"] == pytest.approx(expect * (1 + c["margin"]), rel=1e-9)
+    assert c["strategy"] == "meter-out"                 # the lift's present circuit
+    assert main(["logfit", str(log), "--scenario", str(scen), "--strategy", "load-sensing",
+                 "--json"]) == 0
+    other = json.loads(capsys.readouterr().out)["scenario"]
+    assert other["strategy"] == "load-sensing"
+    assert other["heat_calibration_factor"] == pytest.approx(
+        other["measured_heat_W"] / other["model_heat_W"])
+    assert main(["logfit", str(log), "--scenario", str(scen), "--strategy", "nozzle"]) == 2
+    assert "unknown strategy" in capsys.readouterr().err

@@ -79,13 +79,15 @@ def test_engine_docstring_examples_are_collected():
 
 
 def test_air_table_ships_as_package_data():
-    """heat_transfer reads heatload/data/air_properties.npz: the wheel must carry it."""
+    """heat_transfer and cooler read the tables in heatload/data/: the wheel must carry them."""
     import fnmatch
     import tomllib
     config = tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["setuptools"]
     patterns = config["package-data"]["heatload"]
     assert any(fnmatch.fnmatch("data/air_properties.npz", p) for p in patterns)
-    assert (ROOT / "heatload" / "data" / "air_properties.npz").is_file()
+    for name in ("air_properties", "water_properties"):
+        assert (ROOT / "heatload" / "data" / f"{name}.npz").is_file()
+        assert fnmatch.fnmatch(f"data/{name}.npz", patterns[0])
 
 
 def _make_recipe(target: str) -> str:
