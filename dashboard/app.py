@@ -174,7 +174,11 @@ def run_cli(args) -> int:
               "on that network; it has no login.", file=sys.stderr)
     print(f"heatload dashboard on http://{host}:{port}/  (Ctrl+C stops it)", file=sys.stderr)
     if debug:
-        app.run(host=host, port=port, debug=True)
+        # the framework's debugger runs code sent to it: never beyond this machine
+        if host not in LOOPBACK:
+            raise HeatloadError("--debug serves the framework's debugger, which runs code "
+                                "sent to it: only on 127.0.0.1", field="--debug")
+        app.run(host=host, port=port, debug=debug)
     else:
         serve(app, host, port, threads)
     return 0
