@@ -215,31 +215,7 @@ class ConductanceTable:
         return ua
 
 
-def steady_temperature(q0, t0, slope, ambient, conductance: ConductanceTable, rows=None):
-    """Oil temperature T [K] with ``q0 + slope (T - t0) = UA(T) (T - T_a)``.
-
-    The steady first law of the lumped oil with the heat linear in T (slope 0:
-    a fixed heat).  Newton's method on the piecewise-linear UA to machine
-    precision (a few steps); vectorized over rows.
-
-    References
-    ----------
-    Incropera et al., 6th ed., eq. 1.3a (Newton's law of cooling).
-    """
-    q0, t0, slope, ta = (np.asarray(x, float) for x in (q0, t0, slope, ambient))
-    ua, _ = conductance(ta, rows)
-    t = ta + np.maximum(q0, 0.0) / ua
-    for _ in range(60):
-        ua, dua = conductance(t, rows)
-        g = ua * (t - ta) - q0 - slope * (t - t0)
-        dg = ua + dua * (t - ta) - slope
-        step = g / np.where(dg > 0, dg, 1.0)
-        t_new = np.maximum(t - step, ta - 19.0)
-        done = np.abs(t_new - t) <= 1e-11 * np.abs(t)
-        t = t_new
-        if np.all(done):
-            break
-    return t
+steady_temperature = lumped.steady_temperature
 
 
 def mean_heat(result) -> np.ndarray:

@@ -39,6 +39,15 @@ def _as_conductance_fn(conductance) -> Callable:
     return lambda t: np.broadcast_to(value, np.shape(t)) if value.ndim == 0 else value
 
 
+def _with_slope(fn, step=1e-3):
+    """A UA(T) function as ``(T, rows) -> (UA, dUA/dT)`` for :func:`steady_temperature`
+    (central difference over +-1 mK: UA varies slowly with T)."""
+    def both(t, rows=None):
+        t = np.asarray(t, float)
+        return _eval_ua(fn, t), (_eval_ua(fn, t + step) - _eval_ua(fn, t - step)) / (2 * step)
+    return both
+
+
 def _eval_ua(fn, temperature):
     ua = np.asarray(fn(temperature), float)
     if np.any(~np.isfinite(ua)) or np.any(ua <= 0.0):
@@ -93,72 +102,57 @@ def heat_capacity(oil_volume, oil_density, oil_specific_heat, steel_mass=0.0,
     return c
 
 
-def steady_state_temperature(heat, conductance_fn, ambient, xtol=1e-7, max_iter=200):
-    """Oil temperature at which the surfaces shed the heat: Q = UA(T) (T - T_a).
+def steady_temperature(q0, t0, slope, ambient, conductance, rows=None):
+    """Oil temperature T [K] with ``q0 + slope (T - t0) = UA(T) (T - T_a)``.
+
+    The steady first law of the lumped oil with the heat linear in T (slope 0:
+    a fixed heat).  Newton's method to machine precision (a few steps on a
+    piecewise-linear UA); vectorized over rows.
 
     Parameters
     ----------
-    heat : array_like
-        Heat into the oil [W]; negative (net cooling) gives T below ambient.
-    conductance_fn : callable or float
-        UA(T) [W/K] as a vectorized function of the oil temperature [K], or a constant.
+    q0 : array_like
+        Heat into the oil at *t0* [W].
+    t0 : array_like
+        Oil temperature of *q0* [K].
+    slope : array_like
+        dQ/dT of the heat's linear model [W/K] (0: a fixed heat).
     ambient : array_like
-        Ambient air temperature T_a [K].
-    xtol : float, optional
-        Absolute tolerance on T [K].
-    max_iter : int, optional
-        Bisection steps allowed.
+        Air temperature [K].
+    conductance : callable
+        ``conductance(T, rows) -> (UA [W/K], dUA/dT [W/K^2])``, e.g.
+        :class:`heatload.evaluation.ConductanceTable`.
+    rows : array_like, optional
+        Rows of *conductance* the arrays stand for (default all).
 
     Returns
     -------
     ndarray
-        T [K], shaped like the broadcast of *heat* and *ambient*; exactly T_a where Q = 0.
+        T [K]; never below ``T_a - 19 K``.
 
     Notes
     -----
-    Vectorized bisection on f(T) = UA(T)(T - T_a) - Q, bracket grown from
-    T_a by doubling steps until f changes sign; the root is unique while
-    UA(T)(T - T_a) increases with T (true for convection + radiation).
+    One root while UA(T)(T - T_a) - Q(T) increases with T (convection +
+    radiation with a heat that does not grow faster than the surfaces shed it).
 
     References
     ----------
     Incropera et al., 6th ed., eq. 1.3a (Newton's law of cooling).
     """
-    fn = _as_conductance_fn(conductance_fn)
-    q, ta = np.broadcast_arrays(np.asarray(heat, float), np.asarray(ambient, float))
-    q = q.astype(float)
-    ta = ta.astype(float)
-    if np.any(~np.isfinite(q)):
-        raise HeatloadError("heat must be finite [W]", field="heat")
-    if np.any(~np.isfinite(ta)) or np.any(ta <= 0.0):
-        raise HeatloadError("ambient must be an absolute temperature [K]", field="ambient")
-    sign = np.sign(q)
-    # first guess of the span from UA at ambient, grown until f changes sign
-    step = np.abs(q) / _eval_ua(fn, ta) + 1e-3
-    lo = ta.copy()
-    hi = ta + sign * step
+    q0, t0, slope, ta = (np.asarray(x, float) for x in (q0, t0, slope, ambient))
+    ua, _ = conductance(ta, rows)
+    t = ta + np.maximum(q0, 0.0) / ua
     for _ in range(60):
-        f_hi = _eval_ua(fn, hi) * (hi - ta) - q
-        bad = (sign * f_hi < 0.0)
-        if not np.any(bad):
+        ua, dua = conductance(t, rows)
+        g = ua * (t - ta) - q0 - slope * (t - t0)
+        dg = ua + dua * (t - ta) - slope
+        step = g / np.where(dg > 0, dg, 1.0)
+        t_new = np.maximum(t - step, ta - 19.0)
+        done = np.abs(t_new - t) <= 1e-11 * np.abs(t)
+        t = t_new
+        if np.all(done):
             break
-        lo = np.where(bad, hi, lo)
-        step = np.where(bad, 2.0 * step, step)
-        hi = np.where(bad, ta + sign * step, hi)
-    else:
-        raise HeatloadError("no steady temperature found: UA(T)(T - Ta) does not reach the heat",
-                            field="heat")
-    a, b = np.minimum(lo, hi), np.maximum(lo, hi)
-    for _ in range(max_iter):
-        if np.all(b - a <= xtol):
-            break
-        mid = 0.5 * (a + b)
-        f_mid = _eval_ua(fn, mid) * (mid - ta) - q
-        upper = f_mid > 0.0
-        b = np.where(upper, mid, b)
-        a = np.where(upper, a, mid)
-    t = 0.5 * (a + b)
-    return np.where(q == 0.0, ta, t)
+    return t
 
 
 @dataclass(frozen=True)
@@ -235,7 +229,7 @@ def periodic_steady_state(heat_per_phase, durations, capacity, conductance,
     -----
     * A callable UA is linearized at the cycle-mean temperature: the mean of
       a periodic first-order response is exactly T_a + Q_mean / UA, so T_mean
-      solves Q_mean = UA(T_mean)(T_mean - T_a) (:func:`steady_state_temperature`)
+      solves Q_mean = UA(T_mean)(T_mean - T_a) (:func:`steady_temperature`)
       and UA(T_mean) is then held over the cycle.  The ripple is usually a few
       kelvin, over which UA changes by a few per cent.
     * Within a phase T moves monotonically towards its T_inf, so the extremes
@@ -254,7 +248,7 @@ def periodic_steady_state(heat_per_phase, durations, capacity, conductance,
     period = np.sum(d, axis=-1)
     q_mean = np.sum(q * d, axis=-1) / period
     if callable(conductance):
-        t_mean = steady_state_temperature(q_mean, conductance, ta)
+        t_mean = steady_temperature(q_mean, ta, 0.0, ta, _with_slope(conductance))
         ua = _eval_ua(conductance, t_mean)
     else:
         ua = _eval_ua(_as_conductance_fn(conductance), np.broadcast_to(ta, lead))

@@ -44,27 +44,41 @@ def test_heat_capacity_formula():
         T.heat_capacity(-0.1, 870.0, 1900.0)
 
 
+def _constant(ua):
+    return lambda t, rows=None: (np.full(np.shape(t), ua), np.zeros(np.shape(t)))
+
+
 def test_steady_state_constant_ua_closed_form():
     # Q = UA (T - Ta) -> T = Ta + Q / UA (Newton's law of cooling)
-    assert T.steady_state_temperature(2000.0, 40.0, TA) == pytest.approx(TA + 50.0, abs=1e-6)
-    assert T.steady_state_temperature(0.0, 40.0, TA) == TA
+    assert T.steady_temperature(2000.0, TA, 0.0, TA, _constant(40.0)) == pytest.approx(
+        TA + 50.0, abs=1e-9)
+    assert T.steady_temperature(0.0, TA, 0.0, TA, _constant(40.0)) == pytest.approx(TA)
+    # a heat falling with T: Q = 2000 - 10 (T - Ta) -> T = Ta + 2000 / (40 + 10)
+    assert T.steady_temperature(2000.0, TA, -10.0, TA, _constant(40.0)) == pytest.approx(
+        TA + 40.0, abs=1e-9)
 
 
 def test_steady_state_against_brentq():
-    tank = Reservoir()
-    fn = lambda t: reservoir_conductance(tank, t, TA)  # noqa: E731
+    from heatload import model
+    from heatload.evaluation import ConductanceTable
+
+    sc = model.Scenario("tank", (), (), (), reservoir=Reservoir())
+    table = ConductanceTable(sc, [TA])
+    fn = table.fn()
     heats = np.array([200.0, 800.0, 1500.0])
-    got = T.steady_state_temperature(heats, fn, TA)
+    got = T.steady_temperature(heats, TA, 0.0, np.full(3, TA), table, np.zeros(3, int))
     for q, tg in zip(heats, got):
-        ref = scipy_optimize.brentq(lambda x: fn(x) * (x - TA) - q, TA, TA + 300.0, xtol=1e-10)
-        assert tg == pytest.approx(ref, abs=1e-5)
+        ref = scipy_optimize.brentq(lambda x: fn(x) * (x - TA) - q, TA, TA + 300.0, xtol=1e-12)
+        assert tg == pytest.approx(ref, abs=1e-8)
 
 
 @settings(max_examples=40, deadline=None)
 @given(q1=st.floats(0.0, 5e4), dq=st.floats(1.0, 5e4), ta=st.floats(250.0, 320.0))
 def test_steady_state_monotone_and_above_ambient(q1, dq, ta):
-    fn = lambda t: 20.0 + 0.1 * np.abs(np.asarray(t) - ta)  # noqa: E731
-    t1, t2 = T.steady_state_temperature(np.array([q1, q1 + dq]), fn, ta)
+    def fn(t, rows=None):
+        t = np.asarray(t, float)
+        return 20.0 + 0.1 * np.abs(t - ta), 0.1 * np.sign(t - ta)
+    t1, t2 = T.steady_temperature(np.array([q1, q1 + dq]), ta, 0.0, ta, fn)
     assert t1 >= ta
     assert t2 > t1
 
