@@ -93,7 +93,7 @@ def area_ratio(bore, rod, field=None):
 
     Notes
     -----
-    Under meter-out with no load, the rod-side pressure is the supply
+    With the speed set in the outlet line and no load, the rod-side pressure is the supply
     pressure times this ratio (intensification).
 
     References

@@ -145,9 +145,8 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
         cooler_duty=duty, cooler_duty_without_margin=duty0, time_to_limit=ttl,
         phase_heat=res_c.heat_to_oil, phase_durations=res_c.duration,
         operating_temperature=t_op)
-    warns = checks.phase_warnings(ev.conditions, scenario, row=0)
-    # the oil's limit is judged on the hottest day, where the cooler is sized
-    warns += checks.thermal_warnings(scenario, t_h, t_op, duty)
+    warns = (checks.phase_warnings(ev.conditions, scenario, row=0)
+             + checks.cycle_warnings(ev.cycle_conditions, row=0))
     warns += checks.correlation_range_warnings(
         scenario, t_op, amb.temperature, heat_transfer.barometric_pressure(amb.altitude))
     return StrategyOutcome(strategy=ev.strategy, circuit=res_op,

@@ -130,10 +130,11 @@ class Condition:
     limit: np.ndarray | None
     text: object
     listed_last: bool = False   #: listed after every phase's other warnings
+    per_phase: bool = True      #: masks (N, phases); False: of the whole cycle, (N,)
 
     def counts(self) -> np.ndarray:
-        """Phases per variant where the condition holds (N,)."""
-        return self.mask.sum(axis=-1)
+        """Phases (or cycles) per variant where the condition holds (N,)."""
+        return self.mask.sum(axis=-1) if self.per_phase else self.mask.astype(int)
 
 
 def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> list:
@@ -244,11 +245,17 @@ PHASE_CODES = ("motor-overload", "pressure-rating", "hold-pressure", "relief-pas
                "speed-not-reached", "speed-drift")
 
 
+#: Codes of the whole cycle every evaluation judges (the oil's limit needs the
+#: hottest day's steady temperature, which sweeps do not solve)
+CYCLE_CODES = ("viscosity-window",)
+
+
 def condition_counts(conditions) -> dict:
-    """Code -> phases per variant that carry it, (N,) ints (every code of
-    :data:`PHASE_CODES`, zero where it was not checked)."""
+    """Code -> phases (or cycles) per variant that carry it, (N,) ints (every
+    code of :data:`PHASE_CODES` and :data:`CYCLE_CODES`, zero where it was not
+    checked)."""
     lead = np.shape(conditions[0].mask)[:-1] if conditions else ()
-    out = {code: np.zeros(lead, int) for code in PHASE_CODES}
+    out = {code: np.zeros(lead, int) for code in PHASE_CODES + CYCLE_CODES}
     for cd in conditions:
         n = cd.counts()
         out[cd.code] = out[cd.code] + n if cd.code in out else n
@@ -272,66 +279,70 @@ def phase_warnings(conditions, scenario, row=None) -> list:
     return out
 
 
-def temperature_warnings(scenario, oil_temperature: float, label: str = "steady") -> list:
-    """Oil above its limit and viscosity outside the pump's window at *oil_temperature*."""
+def thermal_conditions(scenario, steady_no_cooler, operating, cooler_duty,
+                       values=None) -> list:
+    """The temperature conditions of a strategy over N variants, vectorized
+    (masks of shape (N,); a condition of the whole cycle, not of a phase).
+
+    - ``oil-temperature``: without a cooler the oil would settle above the
+      fluid's limit on the hottest day (*steady_no_cooler* [K]: the steady
+      temperature at ``ambient.temperature_max``, the cooler's design point; a
+      limit kept only at the typical ambient is exceeded every hot day), with
+      the sized cooler's duty [W] when one is needed; None: not judged;
+    - ``viscosity-window``: the viscosity at the *operating* temperature [K]
+      (the coupled one, or the design temperature the sized cooler holds), or
+      at the cold start, lies outside the pump's allowed window.
+    """
     from heatload import oil
 
-    out = []
+    g = values.get if values is not None else (lambda k, d: d)
     fluid = scenario.fluid
     pump = scenario.power_unit.pump
-    if oil_temperature > fluid.temperature_max:
-        out.append(Warning_("oil-temperature", None, oil_temperature, fluid.temperature_max,
-                            f"{label} oil temperature {oil_temperature - 273.15:.0f} °C above "
-                            f"the fluid's limit {fluid.temperature_max - 273.15:.0f} °C"))
-    nu = float(oil.kinematic_viscosity(fluid, oil_temperature))
-    if nu < pump.viscosity_min or nu > pump.viscosity_max:
-        out.append(Warning_("viscosity-window", None, nu, pump.viscosity_min
-                            if nu < pump.viscosity_min else pump.viscosity_max,
-                            f"viscosity {nu * 1e6:.1f} mm²/s at {label} "
-                            f"{oil_temperature - 273.15:.0f} °C outside the pump's window "
-                            f"{pump.viscosity_min * 1e6:.0f}-{pump.viscosity_max * 1e6:.0f} mm²/s"))
+    limit = fluid.temperature_max
+    t_op = np.atleast_1d(np.asarray(operating, float))
+    n = t_op.shape
+    out = []
+    if steady_no_cooler is not None:
+        t_hot = np.broadcast_to(np.asarray(steady_no_cooler, float), n)
+        duty = np.broadcast_to(np.asarray(cooler_duty, float), n)
+        amb_max = np.broadcast_to(np.asarray(g(("ambient", "temperature_max"),
+                                               scenario.ambient.temperature_max), float), n)
+
+        def hot_text(i):
+            tail = (f": a cooler is needed ({duty[i] / 1e3:.2f} kW sized)" if duty[i] > 0
+                    else "")
+            return (f"on the hottest day ({amb_max[i] - 273.15:.0f} °C ambient) without a "
+                    f"cooler the oil would settle at {t_hot[i] - 273.15:.0f} °C, above the "
+                    f"fluid's limit {limit - 273.15:.0f} °C{tail}")
+        out.append(Condition("oil-temperature", t_hot > limit, t_hot, np.full(n, limit),
+                             hot_text, per_phase=False))
+    for t, label in ((t_op, "running"),
+                     (np.full(n, scenario.ambient.cold_start_temperature), "cold start")):
+        nu = np.asarray(oil.kinematic_viscosity(fluid, t), float)
+        low = nu < pump.viscosity_min
+        edge = np.where(low, pump.viscosity_min, pump.viscosity_max)
+
+        def visc_text(i, t=t, nu=nu, label=label):
+            return (f"viscosity {nu[i] * 1e6:.1f} mm²/s at {label} ({t[i] - 273.15:.0f} °C) "
+                    f"outside the pump's window {pump.viscosity_min * 1e6:.0f}-"
+                    f"{pump.viscosity_max * 1e6:.0f} mm²/s")
+        out.append(Condition("viscosity-window", low | (nu > pump.viscosity_max), nu, edge,
+                             visc_text, per_phase=False))
     return out
+
+
+def cycle_warnings(conditions, row=0) -> list:
+    """The warnings of one variant from conditions of the whole cycle (masks (N,))."""
+    return [Warning_(cd.code, None, float(cd.value[row]),
+                     None if cd.limit is None else float(cd.limit[row]), cd.text(row))
+            for cd in conditions if cd.mask[row]]
 
 
 def thermal_warnings(scenario, steady_no_cooler: float, operating: float,
                      cooler_duty: float) -> list:
-    """The temperature warnings of one strategy.
-
-    - ``oil-temperature``: without a cooler the oil would settle above the
-      fluid's limit on the hottest day (*steady_no_cooler*: the steady
-      temperature at ``ambient.temperature_max``, the cooler's design point;
-      a limit kept only at the typical ambient is exceeded every hot day),
-      with the sized cooler's duty when one is needed;
-    - ``viscosity-window``: the viscosity at the *operating* temperature (the
-      coupled one, or the design temperature the sized cooler holds), or at the
-      cold start, lies outside the pump's allowed window.
-    """
-    from heatload import oil
-
-    out = []
-    fluid = scenario.fluid
-    pump = scenario.power_unit.pump
-    limit = fluid.temperature_max
-    if steady_no_cooler > limit:
-        tail = (f": a cooler is needed ({cooler_duty / 1e3:.2f} kW sized)" if cooler_duty > 0
-                else "")
-        out.append(Warning_("oil-temperature", None, steady_no_cooler, limit,
-                            f"on the hottest day "
-                            f"({scenario.ambient.temperature_max - 273.15:.0f} °C ambient) "
-                            f"without a cooler the oil would settle at "
-                            f"{steady_no_cooler - 273.15:.0f} °C, above the fluid's limit "
-                            f"{limit - 273.15:.0f} °C{tail}"))
-    for t, label in ((operating, "running"),
-                     (scenario.ambient.cold_start_temperature, "cold start")):
-        nu = float(oil.kinematic_viscosity(fluid, t))
-        if nu < pump.viscosity_min or nu > pump.viscosity_max:
-            edge = pump.viscosity_min if nu < pump.viscosity_min else pump.viscosity_max
-            out.append(Warning_("viscosity-window", None, nu, edge,
-                                f"viscosity {nu * 1e6:.1f} mm²/s at {label} "
-                                f"({t - 273.15:.0f} °C) outside the pump's window "
-                                f"{pump.viscosity_min * 1e6:.0f}-{pump.viscosity_max * 1e6:.0f} "
-                                f"mm²/s"))
-    return out
+    """The temperature warnings of one strategy (:func:`thermal_conditions`)."""
+    return cycle_warnings(thermal_conditions(scenario, steady_no_cooler, operating,
+                                             cooler_duty))
 
 
 def correlation_range_warnings(scenario, oil_temperature: float, air_temperature: float,

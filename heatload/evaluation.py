@@ -414,7 +414,8 @@ class Evaluation:
     operating: circuits.CircuitResult = None      #: where the machine runs
     operating_inputs: dict = None
     operating_temperature: np.ndarray = None
-    conditions: list = None                       #: heatload.checks.Condition at operating
+    conditions: list = None                       #: heatload.checks.Condition per phase
+    cycle_conditions: list = None                 #: ... of the whole cycle (temperatures)
     typical_conductance: ConductanceTable = None  #: UA(T) at the typical ambient
 
     @property
@@ -484,6 +485,8 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
             ev.operating, ev.operating_inputs = res_u, c_u
             ev.operating_temperature = np.full(n, t_ref)
             ev.conditions = _conditions(st, res_u, c_u, sc, val)
+            ev.cycle_conditions = checks.thermal_conditions(sc, None, ev.operating_temperature,
+                                                            None, val)
             return ev
 
     # design point: oil at the design temperature, hottest ambient
@@ -503,6 +506,7 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
         ev.steady_uncoupled = steady_temperature(q_d, t_d, 0.0, amb_t, ua_typ)
         ev.operating, ev.operating_inputs, ev.operating_temperature = res_d, c_d, t_d
         ev.conditions = _conditions(st, res_d, c_d, sc, val)
+        ev.cycle_conditions = checks.thermal_conditions(sc, None, t_d, ev.cooler_duty, val)
         return ev
 
     # coupled steady temperature at the typical (and the hottest) ambient
@@ -540,6 +544,10 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
         ev.operating = select(at_design, res_d, res_c)
         ev.operating_inputs = build.inputs(ev.operating_temperature)
     ev.conditions = _conditions(st, ev.operating, ev.operating_inputs, sc, val)
+    # the oil's limit is judged on the hottest day, where the cooler is sized
+    ev.cycle_conditions = checks.thermal_conditions(sc, ev.steady_hot,
+                                                    ev.operating_temperature, ev.cooler_duty,
+                                                    val)
     return ev
 
 

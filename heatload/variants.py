@@ -154,7 +154,9 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
         electric_energy_per_year=fig["e_year"], cost_per_year=fig["cost"],
         peak_pressure=fig["peak"],
         warnings={k: evaluation._col(v, n).astype(int)
-                  for k, v in checks.condition_counts(ev.conditions).items()},
+                  for k, v in checks.condition_counts(
+                      ev.conditions + [cd for cd in ev.cycle_conditions
+                                       if cd.code in checks.CYCLE_CODES]).items()},
         heat_to_oil_uncoupled=arr(ev.heat_uncoupled),
         oil_temperature_uncoupled=arr(ev.steady_uncoupled),
         oil_temperature_steady=arr(ev.steady_coupled),

@@ -101,12 +101,14 @@ def test_temperature_warnings():
     # VG46 (model.Fluid default, nu100 = 6.8 mm^2/s, a typical VI ~100 oil, common
     # practice) at 100 degC is below the pump's 10 mm^2/s minimum and above the
     # fluid's 80 degC limit
-    codes = _codes(checks.temperature_warnings(sc, 373.15))
-    assert codes == {"oil-temperature", "viscosity-window"}
-    assert checks.temperature_warnings(sc, 323.15) == []
+    ws = checks.thermal_warnings(sc, 373.15, 373.15, 0.0)
+    assert {"oil-temperature", "viscosity-window"} <= _codes(ws)
+    assert any("running" in w.message for w in ws if w.code == "viscosity-window")
+    ws = checks.thermal_warnings(sc, 323.15, 323.15, 0.0)
+    assert not [w for w in ws if w.code == "oil-temperature" or "running" in w.message]
     # a thick oil when cold: above a 500 mm^2/s cold-start limit at -10 degC
     sc_cold = _sc([EXT], pump=m.Pump(viscosity_max=500e-6))
-    ws = checks.temperature_warnings(sc_cold, 263.15)
+    ws = checks.thermal_warnings(sc_cold, 263.15, 263.15, 0.0)
     assert _codes(ws) == {"viscosity-window"} and ws[0].limit == 500e-6
 
 

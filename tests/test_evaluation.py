@@ -57,9 +57,8 @@ def _agree(sc, o, v, rtol):
     # the sweep counts the conditions the report lists
     listed = {}
     for w in o.warnings:
-        if w.phase is not None:
-            listed[w.code] = listed.get(w.code, 0) + 1
-    for code in checks.PHASE_CODES:
+        listed[w.code] = listed.get(w.code, 0) + 1
+    for code in checks.PHASE_CODES + checks.CYCLE_CODES:
         assert int(v.warnings[code][0]) == listed.get(code, 0), (o.name, code)
 
 
