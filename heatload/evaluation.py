@@ -476,8 +476,18 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
     ua_typ = ConductanceTable(sc, amb_t, h_user, factor)
     ev.typical_conductance = ua_typ
 
+    t_d_given = design_temperature(sc, val)
+    both = None
+    if thermal is True and n == 1:
+        # one scenario: the reference and design-point solves in one call (each
+        # row is solved on its own, so the figures equal two separate calls)
+        both, _ = build.solve(np.array([t_ref, float(np.ravel(t_d_given)[0])]),
+                              np.zeros(2, int))
     if thermal != "design":
-        res_u, c_u = build.solve(t_ref)
+        if both is not None:
+            res_u, c_u = result_row(both, slice(0, 1)), None
+        else:
+            res_u, c_u = build.solve(t_ref)
         q_u = mean_heat(res_u)
         ev.uncoupled, ev.heat_uncoupled = res_u, q_u
         ev.steady_uncoupled = steady_temperature(q_u, t_ref, 0.0, amb_t, ua_typ)
@@ -490,9 +500,11 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
             return ev
 
     # design point: oil at the design temperature, hottest ambient
-    t_d_given = design_temperature(sc, val)
     t_d = _col(t_d_given, n)
-    res_d, c_d = build.solve(t_d if np.ndim(t_d_given) else float(t_d_given))
+    if both is not None:
+        res_d, c_d = result_row(both, slice(1, 2)), None
+    else:
+        res_d, c_d = build.solve(t_d if np.ndim(t_d_given) else float(t_d_given))
     q_d = mean_heat(res_d)
     ua_hot = ConductanceTable(sc, amb_hot, h_user, factor)
     ua_d, _ = ua_hot(t_d)
@@ -537,7 +549,8 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
     at_design = (duty0 > 0.0) & (t_d < t_c)
     ev.operating_temperature = np.where(at_design, t_d, t_c)
     if np.all(at_design):
-        ev.operating, ev.operating_inputs = res_d, c_d
+        ev.operating = res_d
+        ev.operating_inputs = c_d if c_d is not None else build.inputs(t_d)
     elif not np.any(at_design):
         ev.operating, ev.operating_inputs = res_c, build.inputs(t_c)
     else:
