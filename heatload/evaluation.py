@@ -331,7 +331,8 @@ def coupled_temperature(builder: Builder, rows, ambient, conductance: Conductanc
             break
         dt = tb_[todo] - ta_[todo]
         slope = np.where(dt != 0, (qb[todo] - qa[todo]) / np.where(dt != 0, dt, 1.0), 0.0)
-        t_new = steady_temperature(qa[todo], ta_[todo], slope, ambient[todo], conductance, todo)
+        t_new = steady_temperature(qa[todo], ta_[todo], slope, ambient[todo], conductance, todo,
+                                   start=tb_[todo])
         r, c = builder.solve(t_new, rows[todo])
         q_new = mean_heat(r)
         ua_new, _ = conductance(t_new, todo)

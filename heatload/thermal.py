@@ -102,7 +102,7 @@ def heat_capacity(oil_volume, oil_density, oil_specific_heat, steel_mass=0.0,
     return c
 
 
-def steady_temperature(q0, t0, slope, ambient, conductance, rows=None):
+def steady_temperature(q0, t0, slope, ambient, conductance, rows=None, start=None):
     """Oil temperature T [K] with ``q0 + slope (T - t0) = UA(T) (T - T_a)``.
 
     The steady first law of the lumped oil with the heat linear in T (slope 0:
@@ -124,6 +124,8 @@ def steady_temperature(q0, t0, slope, ambient, conductance, rows=None):
         :class:`heatload.evaluation.ConductanceTable`.
     rows : array_like, optional
         Rows of *conductance* the arrays stand for (default all).
+    start : array_like, optional
+        First guess of T [K] (default T_a + max(Q, 0) / UA(T_a)).
 
     Returns
     -------
@@ -140,8 +142,11 @@ def steady_temperature(q0, t0, slope, ambient, conductance, rows=None):
     Incropera et al., 6th ed., eq. 1.3a (Newton's law of cooling).
     """
     q0, t0, slope, ta = (np.asarray(x, float) for x in (q0, t0, slope, ambient))
-    ua, _ = conductance(ta, rows)
-    t = ta + np.maximum(q0, 0.0) / ua
+    if start is None:
+        ua, _ = conductance(ta, rows)
+        t = ta + np.maximum(q0, 0.0) / ua
+    else:
+        t = np.maximum(np.asarray(start, float), ta - 19.0)
     for _ in range(60):
         ua, dua = conductance(t, rows)
         g = ua * (t - ta) - q0 - slope * (t - t0)
