@@ -390,8 +390,29 @@ def to_si(value, kind: str, field: str | None = None, file: str | None = None) -
     return v
 
 
+@lru_cache(maxsize=1)
+def _shipped_conversions() -> dict:
+    """``"kind|unit" -> (offset, factor)`` of the common units, made from pint by
+    ``scripts/make_unit_table.py`` and checked against pint by the tests: a
+    command whose files use common units never imports pint (about 0.6 s)."""
+    import json
+    from pathlib import Path
+    path = Path(__file__).parent / "data" / "unit_conversions.json"
+    try:
+        return {k: tuple(v) for k, v in json.loads(path.read_text(encoding="utf-8")).items()}
+    except OSError:          # a checkout without the table converts through pint
+        return {}
+
+
 @lru_cache(maxsize=1024)
 def _conversion(unit: str, kind: str) -> tuple[float, float]:
+    """``(offset, factor)`` so that SI = offset + factor * number for *unit*
+    (in :func:`split_quantity`'s spelling): the shipped table, else pint."""
+    hit = _shipped_conversions().get(f"{kind}|{unit}")
+    return hit if hit is not None else _pint_conversion(unit, kind)
+
+
+def _pint_conversion(unit: str, kind: str) -> tuple[float, float]:
     """``(offset, factor)`` so that SI = offset + factor * number for *unit*.
 
     Every conversion pint makes is affine (temperatures have an offset), so two
@@ -412,19 +433,19 @@ def _conversion(unit: str, kind: str) -> tuple[float, float]:
 
 
 def from_si(value, kind: str, unit: str):
-    """Convert an SI float or array of *kind* to *unit* (returns a float/array)."""
+    """Convert an SI float or array of *kind* to *unit* (returns a float/array):
+    the inverse of :func:`to_si`'s conversion, x = (SI - offset) / factor."""
     import numpy as np
 
-    k = KINDS[kind]
-    ureg = registry()
-    si = "m^3" if kind == "displacement" else k.si
-    if kind in ("temperature",):
-        q = ureg.Quantity(np.asarray(value, dtype=float), "K")
-        out = q.to(unit).magnitude
-    else:
-        factor = ureg.Quantity(1.0, si or "").to(unit).magnitude
-        out = np.asarray(value, dtype=float) * factor
+    offset, factor = _conversion(_spelling(unit), kind)
+    out = (np.asarray(value, dtype=float) - offset) / factor
     return out if np.ndim(out) else float(out)
+
+
+@lru_cache(maxsize=256)
+def _spelling(unit: str) -> str:
+    """A unit as :func:`split_quantity` spells it (``"bar/(L/min)"``, ``""``)."""
+    return split_quantity(f"1 {unit}".strip())[1]
 
 
 def display_unit(kind: str, system: str = "si") -> str:

@@ -191,3 +191,38 @@ def test_a_temperature_is_no_temperature_difference():
     assert to_si("72 delta_degF", "temperature_difference") == pytest.approx(40.0)
     # the one-character degree signs are read as degC / degF
     assert to_si("20 \u2103", "temperature") == pytest.approx(293.15)
+
+
+def test_the_shipped_unit_table_is_pint():
+    """The common units' conversions ship as a table (scripts/make_unit_table.py) so
+    that a command never imports pint for them; every entry equals pint's own
+    conversion (the reference library) and covers every unit the outputs print."""
+    from heatload import units
+    table = units._shipped_conversions()
+    assert len(table) > 100
+    for key, (offset, factor) in table.items():
+        kind, unit = key.split("|", 1)
+        ref = units._pint_conversion(unit, kind)
+        assert offset == pytest.approx(ref[0], rel=1e-15, abs=1e-300), key
+        assert factor == pytest.approx(ref[1], rel=1e-15), key
+    for kind, k in KINDS.items():
+        for shown in (k.show_si, k.show_us):
+            assert f"{kind}|{units._spelling(shown)}" in table, (kind, shown)
+
+
+def test_compare_of_the_examples_imports_no_pint():
+    """Cold start: the bundled examples use units of the shipped table, so
+    `heatload compare` loads neither pint (about 0.6 s) nor CoolProp."""
+    import subprocess
+    import sys
+    from heatload import io
+    for path in io.example_paths():
+        code = ("import sys, io, contextlib\nfrom heatload.cli import main\n"
+                "with contextlib.redirect_stdout(io.StringIO()):\n"
+                f"    assert main(['compare', {str(path)!r}]) == 0\n"
+                "print(sorted(m for m in ('pint', 'CoolProp', 'dash', 'plotly') "
+                "if m in sys.modules))")
+        out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                             timeout=300)
+        assert out.returncode == 0, out.stderr
+        assert out.stdout.strip() == "[]", (path.name, out.stdout)
