@@ -12,31 +12,71 @@ Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass
 
 import numpy as np
 
 from heatload.circuits import CAVITATION_THRESHOLD, UNLOAD_CENTRE, CircuitResult
+from heatload.units import mark
+
+
+#: The kind of quantity (:data:`heatload.units.KINDS`) of each code's value and
+#: limit; "speed" is the actuator's speed (m/s of a cylinder, rev/s of a motor).
+CODE_KINDS = {"motor-overload": "power", "pressure-rating": "pressure",
+              "hold-pressure": "pressure", "relief-passing": "flow",
+              "intensification": "pressure", "overrunning-load": "force",
+              "cavitation": "pressure", "stall": "speed", "speed-not-reached": "speed",
+              "speed-drift": "dimensionless", "oil-temperature": "temperature",
+              "viscosity-window": "kinematic_viscosity",
+              "correlation-range": "dimensionless"}
 
 
 @dataclass(frozen=True)
 class Warning_:
+    """One warning as data: its code, phase (None: the whole cycle), value and
+    limit [SI, of :attr:`kind`] and its text, whose figures are marked
+    (:func:`heatload.units.mark`) so that every edge writes them in its reader's
+    units (:meth:`text`); :attr:`message` is the text in SI units."""
+
     code: str
     phase: str | None
     value: float
     limit: float | None
-    message: str
+    template: str
+    kind: str | None = None
+
+    def __post_init__(self):
+        if self.kind is None:
+            object.__setattr__(self, "kind", CODE_KINDS.get(self.code))
+
+    @property
+    def message(self) -> str:
+        """The one-line message in SI units."""
+        return self.text("si")
+
+    def text(self, system: str = "si") -> str:
+        """The one-line message in *system*'s units ("si" or "us")."""
+        from heatload.units import render
+        return render(self.template, system)
 
     def as_dict(self) -> dict:
-        d = asdict(self)
-        for k in ("value", "limit"):  # plain floats: JSON-ready
-            if d[k] is not None:
-                d[k] = float(d[k])
-        return d
+        """JSON-ready: code, phase, value, limit [SI], message (SI text), kind,
+        and the text as ``template`` with its ``quantities`` [SI] that the edges
+        write in the reader's units (:func:`heatload.wording.warning_text`)."""
+        from heatload.units import split_marks
+        template, quantities = split_marks(self.template)
+        return {"code": self.code, "phase": self.phase, "value": float(self.value),
+                "limit": None if self.limit is None else float(self.limit),
+                "message": self.message, "kind": self.kind, "template": template,
+                "quantities": quantities}
 
 
 def _bar(p):
-    return f"{p / 1e5:.0f} bar"
+    return mark(p, "pressure", 0)
+
+
+def _deg(t):
+    return mark(t, "temperature", 0)
 
 
 #: Continuous load an IEC motor may carry, as a multiple of its rating [-]: IEC
@@ -91,7 +131,7 @@ def motor_overloaded(shaft_power, rated_power, speed_fraction=1.0):
 
 
 def _kw(p):
-    return f"{p / 1e3:.3g} kW" if abs(p) >= 1e3 else f"{p:.3g} W"
+    return mark(p, "power")
 
 
 def _motor_overload_text(shaft_power, rated_power, speed_fraction, duration):
@@ -210,7 +250,7 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
              lambda i: f"the pressure to hold {_bar(hold[i])} is more than the pump "
                        f"supplies here ({_bar(pp[i])})"),
         cond("relief-passing", still & (relief > 1e-9) & (pump_flow > 0), relief, None,
-             lambda i: f"the relief valve passes {relief[i] * 6e4:.1f} L/min at "
+             lambda i: f"the relief valve passes {mark(relief[i], 'flow', 1)} at "
                        f"{_bar(pp[i])} for the whole phase"),
         cond("intensification", moving & (p2 > pp * (1 + 1e-6)) & (p2 > 1e5)
              & ~result.counterbalance_active, p2, pp,
@@ -218,13 +258,13 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
                        + (f" (x{p2[i] / pp[i]:.2f})" if pp[i] >= 1e5 else "")
                        + ": the cylinder intensifies"),
         cond("overrunning-load", moving & result.runaway, load, zero,
-             lambda i: f"overrunning load {load[i]:.0f} this circuit cannot hold: the "
+             lambda i: f"overrunning load {mark(load[i], 'force')} this circuit cannot hold: the "
                        f"actuator runs away; figures assume a counterbalance valve at "
                        f"{_bar(result.counterbalance_setting[i])} (fit one, or throttle "
                        f"the outlet)"),
         cond("cavitation", moving & (chamber_lo < CAVITATION_THRESHOLD), chamber_lo,
              np.full(shape, CAVITATION_THRESHOLD),
-             lambda i: f"a chamber would fall to {chamber_lo[i] / 1e5:.2f} bar gauge: "
+             lambda i: f"a chamber would fall to {mark(chamber_lo[i], 'pressure', 2)} gauge: "
                        f"cavitation risk"),
         cond("stall", moving & stalled, zero, result.speed_target,
              lambda i: "the load needs more pressure than the supply allows: the actuator "
@@ -281,14 +321,14 @@ def temperature_warnings(scenario, oil_temperature: float, label: str = "steady"
     pump = scenario.power_unit.pump
     if oil_temperature > fluid.temperature_max:
         out.append(Warning_("oil-temperature", None, oil_temperature, fluid.temperature_max,
-                            f"{label} oil temperature {oil_temperature - 273.15:.0f} °C above "
-                            f"the fluid's limit {fluid.temperature_max - 273.15:.0f} °C"))
+                            f"{label} oil temperature {_deg(oil_temperature)} above "
+                            f"the fluid's limit {_deg(fluid.temperature_max)}"))
     nu = float(oil.kinematic_viscosity(fluid, oil_temperature))
     if nu < pump.viscosity_min or nu > pump.viscosity_max:
         out.append(Warning_("viscosity-window", None, nu, pump.viscosity_min
                             if nu < pump.viscosity_min else pump.viscosity_max,
                             f"viscosity {nu * 1e6:.1f} mm²/s at {label} "
-                            f"{oil_temperature - 273.15:.0f} °C outside the pump's window "
+                            f"{_deg(oil_temperature)} outside the pump's window "
                             f"{pump.viscosity_min * 1e6:.0f}-{pump.viscosity_max * 1e6:.0f} mm²/s"))
     return out
 
@@ -313,14 +353,14 @@ def thermal_warnings(scenario, steady_no_cooler: float, operating: float,
     pump = scenario.power_unit.pump
     limit = fluid.temperature_max
     if steady_no_cooler > limit:
-        tail = (f": a cooler is needed ({cooler_duty / 1e3:.2f} kW sized)" if cooler_duty > 0
+        tail = (f": a cooler is needed ({mark(cooler_duty, 'power')} sized)" if cooler_duty > 0
                 else "")
         out.append(Warning_("oil-temperature", None, steady_no_cooler, limit,
                             f"on the hottest day "
-                            f"({scenario.ambient.temperature_max - 273.15:.0f} °C ambient) "
+                            f"({_deg(scenario.ambient.temperature_max)} ambient) "
                             f"without a cooler the oil would settle at "
-                            f"{steady_no_cooler - 273.15:.0f} °C, above the fluid's limit "
-                            f"{limit - 273.15:.0f} °C{tail}"))
+                            f"{_deg(steady_no_cooler)}, above the fluid's limit "
+                            f"{_deg(limit)}{tail}"))
     for t, label in ((operating, "running"),
                      (scenario.ambient.cold_start_temperature, "cold start")):
         nu = float(oil.kinematic_viscosity(fluid, t))
@@ -328,7 +368,7 @@ def thermal_warnings(scenario, steady_no_cooler: float, operating: float,
             edge = pump.viscosity_min if nu < pump.viscosity_min else pump.viscosity_max
             out.append(Warning_("viscosity-window", None, nu, edge,
                                 f"viscosity {nu * 1e6:.1f} mm²/s at {label} "
-                                f"({t - 273.15:.0f} °C) outside the pump's window "
+                                f"({_deg(t)}) outside the pump's window "
                                 f"{pump.viscosity_min * 1e6:.0f}-{pump.viscosity_max * 1e6:.0f} "
                                 f"mm²/s"))
     return out

@@ -48,8 +48,8 @@ def _load(path):
 
 
 def _fmt(value, kind, system, digits=3):
-    # plain numbers with thousands separators (units.format_quantity has none yet)
-    return f"{_num(value, kind, system, digits)} {_unit(kind, system)}".strip()
+    from heatload.units import format_quantity
+    return format_quantity(value, kind, system, digits)
 
 
 def _unit(kind, system):
@@ -84,6 +84,7 @@ def _temperature(t_kelvin, system):
 # ---------------------------------------------------------------------------
 
 def cmd_compare(args):
+    from heatload.wording import warning_text
     from heatload import chain, tables
     sc, path = _load(args.file)
     cmp = chain.compare(sc, args.strategy or None)
@@ -128,7 +129,7 @@ def cmd_compare(args):
     print()
     for o in cmp.ranked():
         for w in o.warnings:
-            print(f"  ! {o.name} / {w.phase or 'whole cycle'}: {w.message}")
+            print(f"  ! {o.name} / {warning_text(w, s, with_phase=True)}")
     print(f"\nCooler duty at the design point: oil at "
           f"{_temperature(cmp.outcomes[0].thermal.design_oil_temperature, s)}, ambient "
           f"{_temperature(sc.ambient.temperature_max, s)}, margin {100 * sc.cooler.margin:.0f} %.")
@@ -169,6 +170,7 @@ def cmd_check(args):
 
 
 def cmd_phases(args):
+    from heatload.wording import warning_text
     from heatload import chain, tables
     sc, path = _load(args.file)
     try:
@@ -204,11 +206,12 @@ def cmd_phases(args):
     print(_table(headers, rows, args.width,
                  optional=("largest loss", headers[4], headers[5], headers[9], headers[7])))
     for w in o.warnings:
-        print(f"  ! {w.phase or 'whole cycle'}: {w.message}")
+        print(f"  ! {warning_text(w, s, with_phase=True)}")
     return 0
 
 
 def cmd_thermal(args):
+    from heatload.wording import warning_text
     from heatload import chain
     sc, path = _load(args.file)
     cmp = chain.compare(sc, args.strategy or None)
@@ -243,7 +246,7 @@ def cmd_thermal(args):
     for o in cmp.outcomes:
         for w in o.warnings:
             if w.code in ("oil-temperature", "viscosity-window"):
-                print(f"  ! {o.name}: {w.message}")
+                print(f"  ! {o.name}: {warning_text(w, s)}")
     print("Steady temperatures are without a cooler; 'coupled' lets the oil's viscosity "
           "change pump leakage and line losses at that temperature.")
     print(CAUTION)
