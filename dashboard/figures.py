@@ -14,7 +14,7 @@ from plotly.subplots import make_subplots
 
 from heatload import units
 from heatload.report_assets import PALETTE, ROLE_COLOURS
-from heatload.wording import customer_warnings, warning_text
+from heatload.wording import customer_warnings, plain_path, warning_text
 
 K0 = 273.15
 
@@ -536,7 +536,7 @@ def sensitivity_figure(rows: list, system: str, title: str):
     duty with the input at its low and at its high bound (the others nominal)."""
     pu = _u("power", system)
     rows = rows[::-1]                       # largest swing on top
-    names, base, width = [], [], []
+    names, paths, base, width = [], [], [], []
     for r in rows:
         lo, hi = r.get("cooler_duty_low_W"), r.get("cooler_duty_high_W")
         if lo is None or hi is None:
@@ -545,12 +545,15 @@ def sensitivity_figure(rows: list, system: str, title: str):
                 continue
             lo, hi = 0.0, abs(sw)
         a, b = sorted((float(conv(lo, "power", system)), float(conv(hi, "power", system))))
-        names.append(str(r.get("path", "?")))
+        path = str(r.get("path", "?"))
+        names.append(plain_path(path))       # plain words; the file's path on hover
+        paths.append(path)
         base.append(a)
         width.append(max(b - a, 1e-9))
-    fig = go.Figure(go.Bar(x=width, base=base, y=names, orientation="h",
+    fig = go.Figure(go.Bar(x=width, base=base, y=names, orientation="h", customdata=paths,
                            marker_color=OKABE_ITO["orange"],
-                           hovertemplate="%{base:.4g} to %{x:.4g} wide<extra></extra>"))
+                           hovertemplate="%{y} (%{customdata}): from %{base:,.3r} over "
+                                         f"%{{x:,.3r}} {pu}<extra></extra>"))
     fig.update_xaxes(title_text=f"cooler duty, input at its low and high bound [{pu}]")
     fig.update_yaxes(title_text="uncertain input", automargin=True)
     return _layout(fig, title, height=320)

@@ -35,6 +35,7 @@ import numpy as np
 
 from heatload import outputs, tables
 from heatload.errors import HeatloadError
+from heatload.wording import plain_path, severity_counts
 
 K0 = 273.15
 
@@ -309,7 +310,7 @@ def comparison_section(data, recommended, present, decision=None):
         ok = r.get("feasible", True)
         cls = " ".join(c for c, on in (("recommended", name == recommended),
                                        ("present", name == present), ("out", not ok)) if on)
-        codes = sorted({w["code"] for w in r["warnings"]})
+        codes = severity_counts(r["warnings"])
         s = r["label"]
         own = r.get("yearly_cost_total")
         rows.append(
@@ -330,7 +331,7 @@ def comparison_section(data, recommended, present, decision=None):
                     "peak_pressure_Pa")
             + _cell(r["overall_efficiency"], f"{100 * r['overall_efficiency']:.0f}", s,
                     "overall_efficiency")
-            + f'<td class="small {"warn" if codes else ""}">{_e(", ".join(codes) or "–")}</td></tr>'
+            + f'<td class="small {"warn" if codes else ""}">{_e(codes or "–")}</td></tr>'
             + ("" if ok else f'<tr class="out reason-row"><td colspan="{len(headers)}">'
                f'<span class="reason">{_e(s)} is {_e(r["reason"])}</span></td></tr>'))
     return _table(headers, rows, "compare")
@@ -468,22 +469,37 @@ def assumptions(scenario, data=None, system="si") -> list:
     A(_assumption("shift length", f"{sc.shift_duration / 3600:.1f} h", "scenario", "time",
                   sc.shift_duration))
     for u in sc.uncertainty:
-        A(_assumption(f"uncertain: {u.path}", f"{u.distribution} {u.low:g} .. {u.high:g}"
+        A(_assumption(f"uncertain: {plain_path(u.path, sc)} ({u.path})",
+                      f"{u.distribution} {u.low:g} .. {u.high:g}"
                       + (" (factors)" if u.relative else " (SI)"), "scenario"))
     for name, src in METHODS:
         A(_assumption(f"method: {name}", "", src))
     return out
 
 
-def _warnings_html(data):
-    items = []
-    for r in data["strategies"]:
-        for w in r["warnings"]:
-            items.append(f"<li><b>{_e(r['label'])}</b> / {_e(w['phase'] or 'whole cycle')}: "
-                         f"{_e(w['message'])} <span class=\"note\">({_e(w['code'])})</span></li>")
-    if not items:
-        return "<p>No warnings.</p>"
-    return '<ul class="warnings">' + "".join(items) + "</ul>"
+def _warnings_html(data, system="si"):
+    """Per strategy in rank order: its warnings in plain sentences grouped by
+    severity, then each one with its figures in *system*'s units (the code
+    only as a data attribute, never as text)."""
+    from heatload.wording import customer_warnings, warning_text
+
+    order = {n: i for i, n in enumerate(data.get("ranking") or [])}
+    parts = []
+    for r in sorted(data["strategies"], key=lambda r: order.get(r["label"], len(order))):
+        if not r["warnings"]:
+            continue
+        groups = "".join(
+            f"<p class=\"severity\"><b>{_e(head)}</b></p><ul>" + "".join(
+                f"<li>{_e(text)} <span class=\"note\">({_e(', '.join(ph))})</span></li>"
+                for text, ph in items) + "</ul>"
+            for head, items in customer_warnings(r["warnings"]))
+        detail = "".join(
+            f'<li data-code="{_e(w["code"])}" data-severity="{_e(w.get("severity", ""))}">'
+            f"{_e(warning_text(w, system, with_phase=True))}</li>" for w in r["warnings"])
+        parts.append(f'<div class="warnings keep" data-strategy="{_e(r["label"])}">'
+                     f"<h3>{_e(r['label'])}</h3>{groups}"
+                     f'<p class="note">In detail:</p><ul class="warnings small">{detail}</ul></div>')
+    return "".join(parts) or "<p>No warnings.</p>"
 
 
 def _cooler_html(rec, sz, unc):
@@ -553,7 +569,9 @@ def _cooler_html(rec, sz, unc):
             srows = []
             for s in unc["sensitivity"]:
                 sw = s.get("swing")
-                srows.append(f"<tr><td><code>{_e(s.get('path'))}</code></td>"
+                path = str(s.get("path"))
+                srows.append(f'<tr><td title="{_e(path)}">{_e(plain_path(path))} '
+                             f'<span class="note">({_e(path)})</span></td>'
                              + _cell(sw if isinstance(sw, (int, float)) else None,
                                      _num(sw / 1e3) if isinstance(sw, (int, float)) else str(sw))
                              + "</tr>")
@@ -861,7 +879,7 @@ ownership. The recommended row is highlighted; ruled-out rows are grey.</p>
 + cooler price) x the capital recovery factor over the service life. Simple payback = extra price
 over the present circuit / yearly electricity saving. Prices are the scenario's or given on the
 command line.</p>{payback}{notes}</section>
-<section id="warnings"><h2>8 Warnings</h2>{_warnings_html(data)}</section>
+<section id="warnings"><h2>8 Warnings</h2>{_warnings_html(data, rd.get("system", "si"))}</section>
 <section id="assumptions" class="appendix"><h2>Appendix: assumptions and methods ({unit_word}
 units)</h2>{assum}
 <div class="caution">{_e(CAUTION)}</div></section>

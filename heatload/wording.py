@@ -120,6 +120,28 @@ def customer_warnings(records) -> list:
     return out
 
 
+#: How a count of one severity reads in a table cell (singular, plural).
+_COUNT_WORDS = {"blocking": ("rules it out", "rule it out"),
+                "attention": ("needs attention", "need attention"),
+                "information": ("for information", "for information")}
+
+
+def severity_counts(records) -> str:
+    """A table cell for a strategy's warnings: how many of each severity, in
+    words ("" for none).
+
+    >>> severity_counts([{"code": "stall", "severity": "blocking"},
+    ...                  {"code": "cavitation", "severity": "attention"},
+    ...                  {"code": "relief-passing", "severity": "attention"}])
+    '1 rules it out, 2 need attention'
+    """
+    n = {}
+    for w in records:
+        k = w.get("severity", severity(w["code"]))
+        n[k] = n.get(k, 0) + 1
+    return ", ".join(f"{n[k]} {_COUNT_WORDS[k][n[k] != 1]}" for k, _ in SEVERITIES if k in n)
+
+
 # ---------------------------------------------------------------------------
 # field paths in plain words
 
