@@ -92,6 +92,64 @@ KINDS: dict[str, Kind] = {
 
 UNIT_SYSTEMS = ("si", "us")
 
+#: The one convention of every output file (JSON keys, CSV, Parquet and
+#: spreadsheet columns): a number's name ends in its unit -- SI, except
+#: absolute temperatures in degC (``_C``); temperature differences in ``_K``.
+#: Plain numbers (efficiencies, fractions, factors, counts, money in the
+#: scenario's ``currency``) carry a name that says so (:data:`PLAIN_NAMES`).
+SUFFIXES = {"pressure": "Pa", "flow": "m3_s", "length": "m", "distance": "m", "area": "m2",
+            "volume": "m3", "displacement": "m3_rev", "velocity": "m_s",
+            "shaft_speed": "rev_s", "force": "N", "torque": "N_m", "power": "W",
+            "energy": "J", "time": "s", "temperature": "C", "temperature_difference": "K",
+            "mass": "kg", "mass_flow": "kg_s", "density": "kg_m3",
+            "kinematic_viscosity": "m2_s", "dynamic_viscosity": "Pa_s", "bulk_modulus": "Pa",
+            "heat_transfer_coefficient": "W_m2K", "thermal_conductance": "W_K",
+            "heat_capacity": "J_K", "specific_heat": "J_kgK", "thermal_conductivity": "W_mK",
+            "expansion_coefficient": "per_K", "flow_per_pressure": "m3_sPa",
+            "pressure_per_flow": "Pa_s_m3", "specific_energy_price": "per_J",
+            "emission_factor": "kg_J"}
+#: Suffixes of derived figures that are not a kind's SI unit (energy per year).
+EXTRA_SUFFIXES = ("kWh", "per_kWh", "kg_per_kWh", "h")
+#: Endings of names of plain numbers: no unit, the name says what they are.
+PLAIN_NAMES = ("efficiency", "fraction", "factor", "margin", "ratio", "effectiveness",
+               "ntu", "count", "iterations", "rank", "seed", "samples", "variant", "passes",
+               "phases", "cost", "price", "cost_total", "hours_per_year", "P50", "P90",
+               "P95", "quantile", "percentile")
+
+
+def file_name(name: str, kind: str | None) -> str:
+    """*name* of a number in an output file with its unit suffix
+    (:data:`SUFFIXES`); a plain number keeps a name of :data:`PLAIN_NAMES`
+    and gets ``_factor`` otherwise; a path whose items mix kinds (cylinders
+    and motors) gets ``_SI``.
+
+    >>> file_name("power_unit.pump.displacement", "displacement")
+    'power_unit.pump.displacement_m3_rev'
+    >>> file_name("ambient.temperature_max", "temperature")
+    'ambient.temperature_max_C'
+    >>> file_name("economics.hours_per_year", "dimensionless")
+    'economics.hours_per_year'
+    """
+    if kind is None:
+        return f"{name}_SI"
+    if kind == "dimensionless":
+        return name if name.endswith(PLAIN_NAMES) else f"{name}_factor"
+    return f"{name}_{SUFFIXES[kind]}"
+
+
+def file_value(value, kind: str | None):
+    """An SI value (float or array) as an output file holds it: unchanged,
+    except absolute temperatures in degC."""
+    return value - _ZERO_CELSIUS if kind == "temperature" else value
+
+
+def from_file(value, kind: str | None):
+    """A value as an output file holds it (:func:`file_value`) back in SI."""
+    return value + _ZERO_CELSIUS if kind == "temperature" else value
+
+
+_ZERO_CELSIUS = 273.15   # K
+
 
 @lru_cache(maxsize=1)
 def registry():
