@@ -103,7 +103,7 @@ def strategy_record(results: dict, name: str | None) -> dict | None:
 COMPARISON_COLUMNS = (
     ("strategy", "strategy"),
     ("energy", "electric energy per cycle"),
-    ("heat", "mean heat into oil"),
+    ("heat", "heat into oil, running"),
     ("peak", "peak pressure"),
     ("steady", "oil temperature, steady, no cooler"),
     ("operating", "oil temperature, operating"),
@@ -540,7 +540,7 @@ def sensitivity_figure(rows: list, system: str, title: str):
     for r in rows:
         lo, hi = r.get("cooler_duty_low_W"), r.get("cooler_duty_high_W")
         if lo is None or hi is None:
-            sw = r.get("cooler_duty_swing_W", r.get("swing_W", r.get("swing")))
+            sw = r.get("cooler_duty_swing_W")
             if not isinstance(sw, (int, float)):
                 continue
             lo, hi = 0.0, abs(sw)

@@ -101,7 +101,7 @@ def cmd_compare(args):
     cur = sc.economics.currency
     co2, eff, peak = "CO2\n[t/yr]", "eff.\n[%]", f"peak\n[{_unit('pressure', s)}]"
     headers = ["#", "strategy", "energy\n[kWh/yr]", f"cost\n[{cur}/yr]", co2,
-               f"heat to\noil [{_unit('power', s)}]",
+               f"heat,\nrunning [{_unit('power', s)}]",
                f"oil, no\ncooler [{_unit('temperature', s)}]",
                f"cooler\n[{_unit('power', s)}]", peak, eff, "warnings"]
     rows = []
@@ -229,7 +229,7 @@ def cmd_thermal(args):
           f"{_temperature(sc.ambient.cold_start_temperature, s)}")
     t = _unit("temperature", s)
     uncoupled, cycle_range, ua = f"steady\nuncoupled [{t}]", f"cycle\nmin..max [{t}]", "UA\n[W/K]"
-    headers = ["strategy", f"heat\n[{_unit('power', s)}]", uncoupled,
+    headers = ["strategy", f"heat, no\ncooler [{_unit('power', s)}]", uncoupled,
                f"steady\ncoupled [{t}]", cycle_range, f"hot day\n[{t}]",
                ua, "to oil\nlimit", "cooler"]
     rows = []

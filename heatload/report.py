@@ -300,7 +300,7 @@ def comparison_section(data, recommended, present, decision=None):
     cur = data["scenario"]["currency"]
     headers = [("strategy", ""), (f"ownership [{cur}/yr]", "num"), ("energy [kWh/yr]", "num"),
                (f"electricity [{cur}/yr]", "num"),
-               ("CO₂ [t/yr]", "num"), ("heat to oil [kW]", "num"),
+               ("CO₂ [t/yr]", "num"), ("heat to oil, running [kW]", "num"),
                ("oil, no cooler [°C]", "num"), ("oil, running [°C]", "num"),
                ("cooler [kW]", "num"), ("peak [bar]", "num"), ("eff. [%]", "num"),
                ("warnings", "")]
@@ -568,7 +568,7 @@ def _cooler_html(rec, sz, unc):
         if unc.get("sensitivity"):
             srows = []
             for s in unc["sensitivity"]:
-                sw = s.get("swing")
+                sw = s.get("cooler_duty_swing_W")
                 path = str(s.get("path"))
                 srows.append(f'<tr><td title="{_e(path)}">{_e(plain_path(path))} '
                              f'<span class="note">({_e(path)})</span></td>'

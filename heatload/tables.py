@@ -104,6 +104,9 @@ def strategy_record(outcome, scenario, pa, with_phases=True) -> dict:
         "oil_temperature_operating_C": _f(th.operating_temperature - K0),
         "oil_temperature_cycle_min_C": _f(th.cycle_minimum - K0),
         "oil_temperature_cycle_max_C": _f(th.cycle_maximum - K0),
+        # heat_to_oil_W: running (held by the sized cooler where one is needed);
+        # heat_to_oil_steady_W: at the steady temperature without a cooler
+        "heat_to_oil_steady_W": _f(th.heat_coupled),
         "heat_to_oil_uncoupled_W": _f(th.heat_uncoupled),
         "heat_to_oil_design_W": _f(th.design_heat),
         "cooler_needed": bool(th.cooler_needed),

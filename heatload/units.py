@@ -97,9 +97,12 @@ UNIT_SYSTEMS = ("si", "us")
 #: absolute temperatures in degC (``_C``); temperature differences in ``_K``.
 #: Plain numbers (efficiencies, fractions, factors, counts, money in the
 #: scenario's ``currency``) carry a name that says so (:data:`PLAIN_NAMES`).
+#: A record that names its unit beside the number is the one exception: a
+#: warning's ``value``/``limit`` (SI of its ``kind``), a phase's ``speed``
+#: (``speed_unit``: m/s or rev/s as the actuator is a cylinder or a motor).
 SUFFIXES = {"pressure": "Pa", "flow": "m3_s", "length": "m", "distance": "m", "area": "m2",
             "volume": "m3", "displacement": "m3_rev", "velocity": "m_s",
-            "shaft_speed": "rev_s", "force": "N", "torque": "N_m", "power": "W",
+            "shaft_speed": "rps", "force": "N", "torque": "N_m", "power": "W",
             "energy": "J", "time": "s", "temperature": "C", "temperature_difference": "K",
             "mass": "kg", "mass_flow": "kg_s", "density": "kg_m3",
             "kinematic_viscosity": "m2_s", "dynamic_viscosity": "Pa_s", "bulk_modulus": "Pa",
@@ -108,13 +111,15 @@ SUFFIXES = {"pressure": "Pa", "flow": "m3_s", "length": "m", "distance": "m", "a
             "expansion_coefficient": "per_K", "flow_per_pressure": "m3_sPa",
             "pressure_per_flow": "Pa_s_m3", "specific_energy_price": "per_J",
             "emission_factor": "kg_J"}
-#: Suffixes of derived figures that are not a kind's SI unit (energy per year).
-EXTRA_SUFFIXES = ("kWh", "per_kWh", "kg_per_kWh", "h")
+#: Suffixes of figures that are not a kind's SI unit (energy per year, payback time).
+EXTRA_SUFFIXES = ("kWh", "per_kWh", "kg_per_kWh", "h", "years")
 #: Endings of names of plain numbers: no unit, the name says what they are.
 PLAIN_NAMES = ("efficiency", "fraction", "factor", "margin", "ratio", "effectiveness",
                "ntu", "count", "iterations", "rank", "seed", "samples", "variant", "passes",
-               "phases", "cost", "price", "cost_total", "hours_per_year", "P50", "P90",
-               "P95", "quantile", "percentile")
+               "phases", "decimals", "cost", "price", "cost_total", "cost_per_year",
+               "saving_per_year", "hours_per_year", "P50", "P90", "P95")
+#: Beginnings of names of counts: ``warnings_<code>`` counts the phases with that warning.
+PLAIN_PREFIXES = ("warnings_",)
 
 
 def file_name(name: str, kind: str | None) -> str:
