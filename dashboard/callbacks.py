@@ -430,7 +430,7 @@ def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
         line = html.P([html.B(f"Quote this duty: {figures.fmt(quote, 'power', system)}"),
                        f" — {basis}."], id="mc-quote", className="msg")
     figs = [figures.histogram_figure(_sample_array(mc), pct, system,
-                                     f"{strategy}: cooler duty over {n} samples", quote)]
+                                     f"{strategy}: cooler duty over {n:,} samples", quote)]
     if rows:
         figs.append(figures.sensitivity_figure(rows, system, "what moves the duty most"))
     from dash import dcc

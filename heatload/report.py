@@ -346,6 +346,7 @@ def assumptions(scenario, data=None, system="si") -> list:
     """Every input and model assumption with its value and source (list of dicts:
     item, value (text in *system*'s units: "si" or "us"), source, kind, value_si)."""
     from heatload import chain, decision, evaluation, oil
+    from heatload.paths import resolve_path
     from heatload.strategies import circuit
     from heatload.units import format_quantity as fq
 
@@ -469,9 +470,12 @@ def assumptions(scenario, data=None, system="si") -> list:
     A(_assumption("shift length", f"{sc.shift_duration / 3600:.1f} h", "scenario", "time",
                   sc.shift_duration))
     for u in sc.uncertainty:
+        kind = None if u.relative else resolve_path(sc, u.path).kind
+        span = (f"x {u.low:g} .. {u.high:g} of the nominal" if u.relative
+                else f"{u.low:g} .. {u.high:g} (SI)" if kind is None   # cylinders and motors
+                else f"{q(u.low, kind)} .. {q(u.high, kind)}")
         A(_assumption(f"uncertain: {plain_path(u.path, sc)} ({u.path})",
-                      f"{u.distribution} {u.low:g} .. {u.high:g}"
-                      + (" (factors)" if u.relative else " (SI)"), "scenario"))
+                      f"{u.distribution}, {span}", "scenario"))
     for name, src in METHODS:
         A(_assumption(f"method: {name}", "", src))
     return out
@@ -561,7 +565,7 @@ def _cooler_html(rec, sz, unc):
             + "".join(
                 _cell(tt[k], f"{tt[k]:.1f}", None, f"uncertainty_oil_{k}")
                 for k in ("P50", "P90", "P95")) + "</tr>"]
-        parts.append(f"<p class=\"note\">Monte Carlo, {unc['samples']} samples (seed "
+        parts.append(f"<p class=\"note\">Monte Carlo, {unc['samples']:,} samples (seed "
                      f"{unc['seed']}), over the scenario's uncertain inputs.</p>")
         parts.append(_table([("", ""), ("P50", "num"), ("P90", "num"), ("P95", "num")], urows,
                             "keep"))

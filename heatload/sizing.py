@@ -569,7 +569,7 @@ def run_cli(args) -> int:
     print()
     if unc["available"]:
         d, tt = unc["cooler_duty_W"], unc["oil_temperature_C"]
-        print(f"Uncertainty ({unc['samples']} samples, seed {unc['seed']}):")
+        print(f"Uncertainty ({unc['samples']:,} samples, seed {unc['seed']}):")
         print("  cooler duty      " + ", ".join(f"{k} {fq(d[k], 'power', s)}"
                                                for k in ("P50", "P90", "P95")))
         print("  oil temperature (steady, no cooler, typical ambient)\n                   " + ", ".join(f"{k} {fq(tt[k] + K0, 'temperature', s)}"
