@@ -296,14 +296,28 @@ def _table(headers, rows, cls=""):
 # sections
 # ---------------------------------------------------------------------------
 
-def comparison_section(data, recommended, present, decision=None):
+def comparison_section(data, recommended, present, decision=None, system="si"):
+    """The ranked comparison table, figures in *system*'s units (each cell's
+    ``data-value`` stays the SI figure of ``compare --json``)."""
+    from heatload.units import display_unit, from_file, from_si, pretty_unit
+
+    def unit(kind):
+        return pretty_unit(display_unit(kind, system))
+
+    def shown(v, kind, digits=3, file_kind=None):
+        """*v* (SI, or as the JSON holds it for *file_kind*) as a number in *system*."""
+        if v is None:
+            return "–"
+        return _num(from_si(from_file(v, file_kind), kind, display_unit(kind, system)), digits)
     cur = data["scenario"]["currency"]
+    co2 = "t" if system == "si" else unit("mass")
     headers = [("strategy", ""), (f"ownership [{cur}/yr]", "num"), ("energy [kWh/yr]", "num"),
                (f"electricity [{cur}/yr]", "num"),
-               ("CO₂ [t/yr]", "num"), ("heat to oil, running [kW]", "num"),
-               ("oil, no cooler [°C]", "num"), ("oil, running [°C]", "num"),
-               ("cooler [kW]", "num"), ("peak [bar]", "num"), ("eff. [%]", "num"),
-               ("warnings", "")]
+               (f"CO₂ [{co2}/yr]", "num"), (f"heat to oil, running [{unit('power')}]", "num"),
+               (f"oil, no cooler [{unit('temperature')}]", "num"),
+               (f"oil, running [{unit('temperature')}]", "num"),
+               (f"cooler [{unit('power')}]", "num"), (f"peak [{unit('pressure')}]", "num"),
+               ("eff. [%]", "num"), ("warnings", "")]
     rows = []
     for rank, name in enumerate(data["ranking"], 1):
         r = next(x for x in data["strategies"] if x["label"] == name)
@@ -319,15 +333,18 @@ def comparison_section(data, recommended, present, decision=None):
             + _cell(r["electric_energy_per_year_kWh"],
                     _grouped(r["electric_energy_per_year_kWh"]), s, "electric_energy_per_year_kWh")
             + _cell(r["cost_per_year"], _grouped(r["cost_per_year"]), s, "cost_per_year")
-            + _cell(r["co2_per_year_kg"], f"{r['co2_per_year_kg'] / 1e3:.2f}", s, "co2_per_year_kg")
-            + _cell(r["heat_to_oil_W"], _num(r["heat_to_oil_W"] / 1e3), s, "heat_to_oil_W")
-            + _cell(r["oil_temperature_steady_C"], f"{r['oil_temperature_steady_C']:.1f}", s,
+            + _cell(r["co2_per_year_kg"], f"{r['co2_per_year_kg'] / 1e3:,.2f}" if system == "si"
+                    else shown(r["co2_per_year_kg"], "mass", 4), s, "co2_per_year_kg")
+            + _cell(r["heat_to_oil_W"], shown(r["heat_to_oil_W"], "power"), s, "heat_to_oil_W")
+            + _cell(r["oil_temperature_steady_C"],
+                    shown(r["oil_temperature_steady_C"], "temperature", 3, "temperature"), s,
                     "oil_temperature_steady_C")
-            + _cell(r["oil_temperature_operating_C"], f"{r['oil_temperature_operating_C']:.1f}",
+            + _cell(r["oil_temperature_operating_C"],
+                    shown(r["oil_temperature_operating_C"], "temperature", 3, "temperature"),
                     s, "oil_temperature_operating_C")
-            + _cell(r["cooler_duty_W"], _num(r["cooler_duty_W"] / 1e3) if r["cooler_needed"]
+            + _cell(r["cooler_duty_W"], shown(r["cooler_duty_W"], "power") if r["cooler_needed"]
                     else "none", s, "cooler_duty_W")
-            + _cell(r["peak_pressure_Pa"], f"{r['peak_pressure_Pa'] / 1e5:.0f}", s,
+            + _cell(r["peak_pressure_Pa"], shown(r["peak_pressure_Pa"], "pressure"), s,
                     "peak_pressure_Pa")
             + _cell(r["overall_efficiency"], f"{100 * r['overall_efficiency']:.0f}", s,
                     "overall_efficiency")
@@ -873,7 +890,7 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
 <section id="comparison"><h2>2 Strategies compared</h2>
 <p>Ranked by the decision rule: circuits that can do the job first, then by yearly cost of
 ownership. The recommended row is highlighted; ruled-out rows are grey.</p>
-{comparison_section(data, rec_name, present, dec)}{cost_fig}</section>
+{comparison_section(data, rec_name, present, dec, rd.get("system", "si"))}{cost_fig}</section>
 <section id="energy"><h2>3 Where the energy goes</h2>{flow}</section>
 <section id="cycle"><h2>4 Heat and pressure over the cycle</h2>{cyc}</section>
 <section id="shift"><h2>5 Oil temperature over a shift</h2>{shift}</section>

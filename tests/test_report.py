@@ -531,6 +531,9 @@ def test_warnings_in_words_and_customer_units(built):
         assert _esc(sentence(code)) in text
     assert any(head in seen for _, head in SEVERITIES)
     us = report.build_report(sc, cmp, prepared=dict(rd, system="us"))
+    # the comparison table in the customer's units too (its data-value attributes stay SI)
+    table = _visible(us[us.index('id="comparison"'):us.index('id="energy"')])
+    assert "peak [psi]" in table and "[°F]" in table and "CO₂ [lb/yr]" in table
     part = us[us.index('id="warnings"'):us.index('id="assumptions"')]
     assert "psi" in part and "°F" in part
     for unit in (" bar", "°C", " kW", "L/min"):
