@@ -434,7 +434,15 @@ def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
     if rows:
         figs.append(figures.sensitivity_figure(rows, system, "what moves the duty most"))
     from dash import dcc
-    return html.Div(([line] if line else [])
+
+    from heatload.wording import plain_path
+    # the inputs in plain words; the file's path as the tooltip
+    names = [html.Span(plain_path(u.path, scenario), title=u.path, className="input-name")
+             for u in scenario.uncertainty]
+    inputs = html.P(["Uncertain inputs: "] + [x for i, sp in enumerate(names)
+                                              for x in ([", "] if i else []) + [sp]],
+                    id="mc-inputs", className="note")
+    return html.Div(([line] if line else []) + [inputs]
                     + [dcc.Graph(figure=f, id=f"mc-graph-{i}") for i, f in enumerate(figs)],
                     id="mc-result")
 

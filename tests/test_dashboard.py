@@ -354,6 +354,12 @@ def test_uncertainty_view(base):
     out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
     assert out.id == "mc-result"
     hist, tornado = (g.figure for g in out.children if hasattr(g, "figure"))
+    # uncertain inputs named in plain words, the file's path as their tooltip
+    names = next(g for g in out.children if getattr(g, "id", None) == "mc-inputs")
+    spans = {sp.title: sp.children for sp in names.children if not isinstance(sp, str)}
+    assert spans["phases[*].load"] == "phase loads"
+    assert set(spans) == {u.path for u in base["scenario"].uncertainty}
+    assert [y for y in tornado.data[0].y if "[" in y or "_" in y] == []
     # the duty to quote is named and marked on the histogram
     from heatload import decision
     quote = next(g for g in out.children if getattr(g, "id", None) == "mc-quote")
