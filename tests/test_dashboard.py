@@ -604,3 +604,19 @@ def test_production_server_serves_the_page():
         t.join(timeout=10)
         server.close()
         server.task_dispatcher.shutdown()
+
+
+def test_warnings_in_plain_words_and_chosen_units(base):
+    """The decision view gives a circuit's warnings as plain sentences grouped by
+    severity (no internal code); the comparison gives them in the chosen units."""
+    from heatload.checks import CODE_KINDS
+
+    comp = base["results"]["comparison"]
+    (div,) = figures.warnings_in_words(comp, "meter-out")
+    text = str(div.to_plotly_json())
+    assert "Rules the circuit out" in text and "Needs attention" in text
+    assert not [c for c in CODE_KINDS if "-" in c and c in text]
+    us = {r["label"]: r for r in figures.comparison_rows(base["results"], "us")}
+    words = " ".join(us["meter-out"]["warnings"])
+    assert "psi" in words and "°F" in words and "hp" in words
+    assert " bar" not in words and "°C" not in words and " kW" not in words
