@@ -156,7 +156,8 @@ def cmd_check(args):
           f"{_fmt(pu.relief.cracking_pressure, 'pressure', s)}; motor "
           f"{_fmt(motor.rated_power, 'power', s)} {eff}")
     print(f"  reservoir: {_fmt(sc.reservoir.oil_volume, 'volume', s)} oil, "
-          f"{sc.reservoir.length:.2f} x {sc.reservoir.width:.2f} x {sc.reservoir.height:.2f} m")
+          + " x ".join(_fmt(x, "distance", s) for x in (sc.reservoir.length, sc.reservoir.width,
+                                                       sc.reservoir.height)))
     for a in sc.actuators:
         if a.kind == "motor":
             print(f"  actuator {a.name}: motor {a.displacement * 1e6:.0f} cm³/rev")
@@ -228,7 +229,8 @@ def cmd_thermal(args):
           f"{_temperature(sc.ambient.temperature_max, s)}, cold start "
           f"{_temperature(sc.ambient.cold_start_temperature, s)}")
     t = _unit("temperature", s)
-    uncoupled, cycle_range, ua = f"steady\nuncoupled [{t}]", f"cycle\nmin..max [{t}]", "UA\n[W/K]"
+    uncoupled, cycle_range = f"steady\nuncoupled [{t}]", f"cycle\nmin..max [{t}]"
+    ua = f"UA\n[{_unit('thermal_conductance', s)}]"
     headers = ["strategy", f"heat, no\ncooler [{_unit('power', s)}]", uncoupled,
                f"steady\ncoupled [{t}]", cycle_range, f"hot day\n[{t}]",
                ua, "to oil\nlimit", "cooler"]
@@ -240,7 +242,8 @@ def cmd_thermal(args):
                      _num(th.steady_uncoupled, "temperature", s),
                      _num(th.steady_coupled, "temperature", s),
                      f"{_num(th.cycle_minimum, 'temperature', s)}..{_num(th.cycle_maximum, 'temperature', s)}",
-                     _num(th.steady_hot, "temperature", s), f"{th.conductance:.1f}", ttl,
+                     _num(th.steady_hot, "temperature", s),
+                     _num(th.conductance, "thermal_conductance", s), ttl,
                      _fmt(th.cooler_duty, "power", s) if th.cooler_needed else "not needed"])
     print(_table(headers, rows, args.width, optional=(cycle_range, ua, uncoupled)))
     for o in cmp.outcomes:
