@@ -1,8 +1,10 @@
 """Warnings a designer must see next to the energy numbers.
 
-Each warning names its strategy, phase, a code, the value that triggered it
-and the limit, and a one-line message in bar / L/min (the engine stays free
-of pint; the edges reformat if asked for US units).
+Each warning is data: a code, its phase, the value that triggered it and the
+limit (SI, of the code's kind, :data:`CODE_KINDS`), and a one-line text whose
+figures are marked with their SI value and kind (:func:`heatload.units.mark`):
+the engine writes no unit; every edge writes the text in its reader's units
+through :func:`heatload.wording.warning_text`.
 
 Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 ``cavitation``, ``relief-passing``, ``speed-not-reached``, ``stall``,
