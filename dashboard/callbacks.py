@@ -436,11 +436,19 @@ def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
         line = html.P([html.B(f"Quote this duty: {figures.fmt(quote, 'power', system)}"),
                        f" — {basis}."], id="mc-quote", className="msg")
     figs = [figures.histogram_figure(_sample_array(mc), pct, system,
-                                     f"{strategy}: cooler duty over {n} samples", quote)]
+                                     f"{strategy}: cooler duty over {n:,} samples", quote)]
     if rows:
         figs.append(figures.sensitivity_figure(rows, system, "what moves the duty most"))
     from dash import dcc
-    return html.Div(([line] if line else [])
+
+    from heatload.wording import plain_path
+    # the inputs in plain words; the file's path as the tooltip
+    names = [html.Span(plain_path(u.path, scenario), title=u.path, className="input-name")
+             for u in scenario.uncertainty]
+    inputs = html.P(["Uncertain inputs: "] + [x for i, sp in enumerate(names)
+                                              for x in ([", "] if i else []) + [sp]],
+                    id="mc-inputs", className="note")
+    return html.Div(([line] if line else []) + [inputs]
                     + [dcc.Graph(figure=f, id=f"mc-graph-{i}") for i, f in enumerate(figs)],
                     id="mc-result")
 

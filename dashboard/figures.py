@@ -14,6 +14,7 @@ from plotly.subplots import make_subplots
 
 from heatload import units
 from heatload.report_assets import PALETTE, ROLE_COLOURS
+from heatload.wording import customer_warnings, plain_path, warning_text
 
 K0 = 273.15
 
@@ -102,7 +103,7 @@ def strategy_record(results: dict, name: str | None) -> dict | None:
 COMPARISON_COLUMNS = (
     ("strategy", "strategy"),
     ("energy", "electric energy per cycle"),
-    ("heat", "mean heat into oil"),
+    ("heat", "heat into oil, running"),
     ("peak", "peak pressure"),
     ("steady", "oil temperature, steady, no cooler"),
     ("operating", "oil temperature, operating"),
@@ -140,8 +141,7 @@ def comparison_rows(results: dict, system: str) -> list:
             "cost": ("–" if r["cost_per_year"] is None else
                      f"{r['cost_per_year']:,.0f} {r.get('currency') or ''}".strip()),
             "co2": co2_text,
-            "warnings": [w["message"] if not w.get("phase") else f"{w['phase']}: {w['message']}"
-                         for w in r["warnings"]],
+            "warnings": [warning_text(w, system, with_phase=True) for w in r["warnings"]],
         })
     return rows
 
@@ -286,6 +286,21 @@ def decision_figure(results: dict):
                         "present, grey: ruled out)", height=90 + 42 * max(len(order), 1))
 
 
+def warnings_in_words(comp: dict, name: str | None) -> list:
+    """The warnings of strategy *name* in plain sentences grouped by severity
+    (:func:`heatload.wording.customer_warnings`), for the decision view."""
+    r = next((x for x in comp["strategies"] if x["label"] == name), None)
+    if r is None or not r["warnings"]:
+        return []
+    groups = customer_warnings(r["warnings"])
+    kids = [html.H3(f"What to watch with {name}")]
+    for heading, items in groups:
+        kids.append(html.H4(heading))
+        kids.append(html.Ul([html.Li([text, html.Span(f" ({', '.join(ph)})", className="note")])
+                             for text, ph in items]))
+    return [html.Div(kids, id="decision-warnings")]
+
+
 def decision_view(results: dict, system: str):
     """The first view: the decision in a sentence, the ranked chart of yearly cost,
     the circuits ruled out with their reasons."""
@@ -310,6 +325,7 @@ def decision_view(results: dict, system: str):
                          "cooler's price spread over the service life.", className="caution"))
     if out_rows:
         kids += [html.H3("Ruled out"), html.Ul(out_rows, id="ruled-out", className="ruled-out")]
+    kids += warnings_in_words(comp, dec.get("recommended") or comp.get("recommended"))
     kids += [html.Div(f"Note: {n}.", className="caution") for n in dec.get("notes") or []]
     kids.append(html.Div("Rule: circuits that can do the job first (no stall, speed reached, "
                          "within ratings, no runaway without a holding valve, motor not "
@@ -520,21 +536,24 @@ def sensitivity_figure(rows: list, system: str, title: str):
     duty with the input at its low and at its high bound (the others nominal)."""
     pu = _u("power", system)
     rows = rows[::-1]                       # largest swing on top
-    names, base, width = [], [], []
+    names, paths, base, width = [], [], [], []
     for r in rows:
         lo, hi = r.get("cooler_duty_low_W"), r.get("cooler_duty_high_W")
         if lo is None or hi is None:
-            sw = r.get("cooler_duty_swing_W", r.get("swing_W", r.get("swing")))
+            sw = r.get("cooler_duty_swing_W")
             if not isinstance(sw, (int, float)):
                 continue
             lo, hi = 0.0, abs(sw)
         a, b = sorted((float(conv(lo, "power", system)), float(conv(hi, "power", system))))
-        names.append(str(r.get("path", "?")))
+        path = str(r.get("path", "?"))
+        names.append(plain_path(path))       # plain words; the file's path on hover
+        paths.append(path)
         base.append(a)
         width.append(max(b - a, 1e-9))
-    fig = go.Figure(go.Bar(x=width, base=base, y=names, orientation="h",
+    fig = go.Figure(go.Bar(x=width, base=base, y=names, orientation="h", customdata=paths,
                            marker_color=OKABE_ITO["orange"],
-                           hovertemplate="%{base:.4g} to %{x:.4g} wide<extra></extra>"))
+                           hovertemplate="%{y} (%{customdata}): from %{base:,.3r} over "
+                                         f"%{{x:,.3r}} {pu}<extra></extra>"))
     fig.update_xaxes(title_text=f"cooler duty, input at its low and high bound [{pu}]")
     fig.update_yaxes(title_text="uncertain input", automargin=True)
     return _layout(fig, title, height=320)

@@ -102,7 +102,7 @@ def log_view(contents, filename, capacity_text, store, system):
     import numpy as np
 
     from heatload import chain, evaluation, measured
-    from heatload.units import to_si
+    from heatload.units import format_quantity, to_si
 
     empty = ("", None, None, {"data": [], "layout": {"height": 80}})
     if not contents:
@@ -122,7 +122,8 @@ def log_view(contents, filename, capacity_text, store, system):
         elif scenario is not None:
             mean_oil = float(np.mean(log.values["oil"]))
             capacity = float(evaluation.heat_capacity(scenario, mean_oil))
-            source = f"from the scenario's oil and steel at {mean_oil - 273.15:.3g} °C"
+            source = ("from the scenario's oil and steel at "
+                      f"{format_quantity(mean_oil, 'temperature', system)}")
         else:
             capacity, source = None, "not given"
         fit = measured.fit_log(log, capacity)

@@ -138,7 +138,7 @@ def display_text(raw, kind: str | None, system: str) -> str:
         return str(raw)
     if kind != "dimensionless":
         si = units.from_si(si, kind, units.display_unit(kind, system))
-    return _trim(units.format_number(si, EDIT_DIGITS))
+    return _trim(units.format_number(si, EDIT_DIGITS, group=False))
 
 
 def _trim(text: str) -> str:

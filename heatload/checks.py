@@ -1,8 +1,10 @@
 """Warnings a designer must see next to the energy numbers.
 
-Each warning names its strategy, phase, a code, the value that triggered it
-and the limit, and a one-line message in bar / L/min (the engine stays free
-of pint; the edges reformat if asked for US units).
+Each warning is data: a code, its phase, the value that triggered it and the
+limit (SI, of the code's kind, :data:`CODE_KINDS`), and a one-line text whose
+figures are marked with their SI value and kind (:func:`heatload.units.mark`):
+the engine writes no unit; every edge writes the text in its reader's units
+through :func:`heatload.wording.warning_text`.
 
 Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 ``cavitation``, ``relief-passing``, ``speed-not-reached``, ``stall``,
@@ -12,31 +14,71 @@ Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import dataclass
 
 import numpy as np
 
 from heatload.circuits import CAVITATION_THRESHOLD, UNLOAD_CENTRE, CircuitResult
+from heatload.units import mark
+
+
+#: The kind of quantity (:data:`heatload.units.KINDS`) of each code's value and
+#: limit; "speed" is the actuator's speed (m/s of a cylinder, rev/s of a motor).
+CODE_KINDS = {"motor-overload": "power", "pressure-rating": "pressure",
+              "hold-pressure": "pressure", "relief-passing": "flow",
+              "intensification": "pressure", "overrunning-load": "force",
+              "cavitation": "pressure", "stall": "speed", "speed-not-reached": "speed",
+              "speed-drift": "dimensionless", "oil-temperature": "temperature",
+              "viscosity-window": "kinematic_viscosity",
+              "correlation-range": "dimensionless"}
 
 
 @dataclass(frozen=True)
 class Warning_:
+    """One warning as data: its code, phase (None: the whole cycle), value and
+    limit [SI, of :attr:`kind`] and its text, whose figures are marked
+    (:func:`heatload.units.mark`) so that every edge writes them in its reader's
+    units (:meth:`text`); :attr:`message` is the text in SI units."""
+
     code: str
     phase: str | None
     value: float
     limit: float | None
-    message: str
+    template: str
+    kind: str | None = None
+
+    def __post_init__(self):
+        if self.kind is None:
+            object.__setattr__(self, "kind", CODE_KINDS.get(self.code))
+
+    @property
+    def message(self) -> str:
+        """The one-line message in SI units."""
+        return self.text("si")
+
+    def text(self, system: str = "si") -> str:
+        """The one-line message in *system*'s units ("si" or "us")."""
+        from heatload.units import render
+        return render(self.template, system)
 
     def as_dict(self) -> dict:
-        d = asdict(self)
-        for k in ("value", "limit"):  # plain floats: JSON-ready
-            if d[k] is not None:
-                d[k] = float(d[k])
-        return d
+        """JSON-ready: code, phase, value, limit [SI], message (SI text), kind,
+        and the text as ``template`` with its ``quantities`` [SI] that the edges
+        write in the reader's units (:func:`heatload.wording.warning_text`)."""
+        from heatload.units import split_marks
+        template, quantities = split_marks(self.template)
+        return {"code": self.code, "phase": self.phase, "value": float(self.value),
+                "limit": None if self.limit is None else float(self.limit),
+                "message": self.message, "kind": self.kind, "template": template,
+                "quantities": quantities}
 
 
 def _bar(p):
-    return f"{p / 1e5:.0f} bar"
+    return mark(p, "pressure", 0)
+
+
+def _deg(t):
+    return mark(t, "temperature", 0)
 
 
 #: Continuous load an IEC motor may carry, as a multiple of its rating [-]: IEC
@@ -91,7 +133,7 @@ def motor_overloaded(shaft_power, rated_power, speed_fraction=1.0):
 
 
 def _kw(p):
-    return f"{p / 1e3:.3g} kW" if abs(p) >= 1e3 else f"{p:.3g} W"
+    return mark(p, "power")
 
 
 def _motor_overload_text(shaft_power, rated_power, speed_fraction, duration):
@@ -211,7 +253,7 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
              lambda i: f"the pressure to hold {_bar(hold[i])} is more than the pump "
                        f"supplies here ({_bar(max(pp[i], 0.0))})"),
         cond("relief-passing", still & (relief > 1e-9) & (pump_flow > 0), relief, None,
-             lambda i: f"the relief valve passes {relief[i] * 6e4:.1f} L/min at "
+             lambda i: f"the relief valve passes {mark(relief[i], 'flow', 1)} at "
                        f"{_bar(pp[i])} for the whole phase"),
         cond("intensification", moving & (p2 > pp * (1 + 1e-6)) & (p2 > 1e5)
              & ~result.counterbalance_active, p2, pp,
@@ -219,13 +261,13 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
                        + (f" (x{p2[i] / pp[i]:.2f})" if pp[i] >= 1e5 else "")
                        + ": the cylinder intensifies"),
         cond("overrunning-load", moving & result.runaway, load, zero,
-             lambda i: f"overrunning load {load[i]:.0f} this circuit cannot hold: the "
+             lambda i: f"overrunning load {mark(load[i], 'force')} this circuit cannot hold: the "
                        f"actuator runs away; figures assume a counterbalance valve at "
                        f"{_bar(result.counterbalance_setting[i])} (fit one, or throttle "
                        f"the outlet)"),
         cond("cavitation", moving & (chamber_lo < CAVITATION_THRESHOLD), chamber_lo,
              np.full(shape, CAVITATION_THRESHOLD),
-             lambda i: f"a chamber would fall to {chamber_lo[i] / 1e5:.2f} bar gauge: "
+             lambda i: f"a chamber would fall to {mark(chamber_lo[i], 'pressure', 2)} gauge: "
                        f"cavitation risk"),
         cond("stall", moving & stalled, zero, result.speed_target,
              lambda i: "the load needs more pressure than the supply allows: the actuator "
@@ -309,11 +351,11 @@ def thermal_conditions(scenario, steady_no_cooler, operating, cooler_duty,
                                                scenario.ambient.temperature_max), float), n)
 
         def hot_text(i):
-            tail = (f": a cooler is needed ({duty[i] / 1e3:.2f} kW sized)" if duty[i] > 0
+            tail = (f": a cooler is needed ({mark(duty[i], 'power')} sized)" if duty[i] > 0
                     else "")
-            return (f"on the hottest day ({amb_max[i] - 273.15:.0f} °C ambient) without a "
-                    f"cooler the oil would settle at {t_hot[i] - 273.15:.0f} °C, above the "
-                    f"fluid's limit {limit - 273.15:.0f} °C{tail}")
+            return (f"on the hottest day ({_deg(amb_max[i])} ambient) without a "
+                    f"cooler the oil would settle at {_deg(t_hot[i])}, above the "
+                    f"fluid's limit {_deg(limit)}{tail}")
         out.append(Condition("oil-temperature", t_hot > limit, t_hot, np.full(n, limit),
                              hot_text, per_phase=False))
     for t, label in ((t_op, "running"),
@@ -323,7 +365,7 @@ def thermal_conditions(scenario, steady_no_cooler, operating, cooler_duty,
         edge = np.where(low, pump.viscosity_min, pump.viscosity_max)
 
         def visc_text(i, t=t, nu=nu, label=label):
-            return (f"viscosity {nu[i] * 1e6:.1f} mm²/s at {label} ({t[i] - 273.15:.0f} °C) "
+            return (f"viscosity {nu[i] * 1e6:.1f} mm²/s at {label} ({_deg(t[i])}) "
                     f"outside the pump's window {pump.viscosity_min * 1e6:.0f}-"
                     f"{pump.viscosity_max * 1e6:.0f} mm²/s")
         out.append(Condition("viscosity-window", low | (nu > pump.viscosity_max), nu, edge,

@@ -48,8 +48,8 @@ def _load(path):
 
 
 def _fmt(value, kind, system, digits=3):
-    # plain numbers with thousands separators (units.format_quantity has none yet)
-    return f"{_num(value, kind, system, digits)} {_unit(kind, system)}".strip()
+    from heatload.units import format_quantity
+    return format_quantity(value, kind, system, digits)
 
 
 def _unit(kind, system):
@@ -122,6 +122,7 @@ def _temperature(t_kelvin, system):
 # ---------------------------------------------------------------------------
 
 def cmd_compare(args):
+    from heatload.wording import warning_text
     from heatload import chain, tables
     sc, path = _load(args.file)
     cmp = chain.compare(sc, args.strategy or None)
@@ -138,7 +139,7 @@ def cmd_compare(args):
     cur = sc.economics.currency
     co2, eff, peak = "CO2\n[t/yr]", "eff.\n[%]", f"peak\n[{_unit('pressure', s)}]"
     headers = ["#", "strategy", "energy\n[kWh/yr]", f"cost\n[{cur}/yr]", co2,
-               f"heat to\noil [{_unit('power', s)}]",
+               f"heat,\nrunning [{_unit('power', s)}]",
                f"oil, no\ncooler [{_unit('temperature', s)}]",
                f"cooler\n[{_unit('power', s)}]", peak, eff, "warnings"]
     rows = []
@@ -166,7 +167,7 @@ def cmd_compare(args):
     print()
     for o in cmp.ranked():
         for w in o.warnings:
-            print(f"  ! {o.name} / {w.phase or 'whole cycle'}: {w.message}")
+            print(f"  ! {o.name} / {warning_text(w, s, with_phase=True)}")
     print(f"\nCooler duty at the design point: oil at "
           f"{_temperature(cmp.outcomes[0].thermal.design_oil_temperature, s)}, ambient "
           f"{_temperature(sc.ambient.temperature_max, s)}, margin {100 * sc.cooler.margin:.0f} %.")
@@ -193,7 +194,8 @@ def cmd_check(args):
           f"{_fmt(pu.relief.cracking_pressure, 'pressure', s)}; motor "
           f"{_fmt(motor.rated_power, 'power', s)} {eff}")
     print(f"  reservoir: {_fmt(sc.reservoir.oil_volume, 'volume', s)} oil, "
-          f"{sc.reservoir.length:.2f} x {sc.reservoir.width:.2f} x {sc.reservoir.height:.2f} m")
+          + " x ".join(_fmt(x, "distance", s) for x in (sc.reservoir.length, sc.reservoir.width,
+                                                       sc.reservoir.height)))
     for a in sc.actuators:
         if a.kind == "motor":
             print(f"  actuator {a.name}: motor {a.displacement * 1e6:.0f} cm³/rev")
@@ -209,6 +211,7 @@ def cmd_check(args):
 
 
 def cmd_phases(args):
+    from heatload.wording import warning_text
     from heatload import chain, tables
     sc, path = _load(args.file)
     try:
@@ -244,11 +247,12 @@ def cmd_phases(args):
     print(_table(headers, rows, args.width,
                  optional=("largest loss", headers[4], headers[5], headers[9], headers[7])))
     for w in o.warnings:
-        print(f"  ! {w.phase or 'whole cycle'}: {w.message}")
+        print(f"  ! {warning_text(w, s, with_phase=True)}")
     return 0
 
 
 def cmd_thermal(args):
+    from heatload.wording import warning_text
     from heatload import chain
     sc, path = _load(args.file)
     cmp = chain.compare(sc, args.strategy or None)
@@ -265,8 +269,9 @@ def cmd_thermal(args):
           f"{_temperature(sc.ambient.temperature_max, s)}, cold start "
           f"{_temperature(sc.ambient.cold_start_temperature, s)}")
     t = _unit("temperature", s)
-    uncoupled, cycle_range, ua = f"steady\nuncoupled [{t}]", f"cycle\nmin..max [{t}]", "UA\n[W/K]"
-    headers = ["strategy", f"heat\n[{_unit('power', s)}]", uncoupled,
+    uncoupled, cycle_range = f"steady\nuncoupled [{t}]", f"cycle\nmin..max [{t}]"
+    ua = f"UA\n[{_unit('thermal_conductance', s)}]"
+    headers = ["strategy", f"heat, no\ncooler [{_unit('power', s)}]", uncoupled,
                f"steady\ncoupled [{t}]", cycle_range, f"hot day\n[{t}]",
                ua, "to oil\nlimit", "cooler"]
     rows = []
@@ -277,13 +282,14 @@ def cmd_thermal(args):
                      _num(th.steady_uncoupled, "temperature", s),
                      _num(th.steady_coupled, "temperature", s),
                      f"{_num(th.cycle_minimum, 'temperature', s)}..{_num(th.cycle_maximum, 'temperature', s)}",
-                     _num(th.steady_hot, "temperature", s), f"{th.conductance:.1f}", ttl,
+                     _num(th.steady_hot, "temperature", s),
+                     _num(th.conductance, "thermal_conductance", s), ttl,
                      _fmt(th.cooler_duty, "power", s) if th.cooler_needed else "not needed"])
     print(_table(headers, rows, args.width, optional=(cycle_range, ua, uncoupled)))
     for o in cmp.outcomes:
         for w in o.warnings:
             if w.code in ("oil-temperature", "viscosity-window"):
-                print(f"  ! {o.name}: {w.message}")
+                print(f"  ! {o.name}: {warning_text(w, s)}")
     print("Steady temperatures are without a cooler; 'coupled' lets the oil's viscosity "
           "change pump leakage and line losses at that temperature.")
     print(CAUTION)

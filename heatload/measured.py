@@ -208,7 +208,7 @@ def print_text(log, fit, comparison, system, capacity_source):
     from heatload.cli import CAUTION, _table
 
     dt = np.diff(log.time)
-    print(f"{log.source} — {fit.samples} samples over {fit.duration / 3600:.3g} h "
+    print(f"{log.source} — {fit.samples:,} samples over {fit.duration / 3600:.3g} h "
           f"(median step {np.median(dt):.3g} s, longest {dt.max():.3g} s); running "
           f"{100 * fit.running_fraction:.0f} % of the time")
     print("Columns: " + ", ".join(f"{k} = {h!r}" for k, h in log.headers.items()))
@@ -322,7 +322,7 @@ def build_html(log, fit, comparison, system="si", capacity_source="given") -> st
     div = pio.to_html(figure(log, fit), include_plotlyjs=True, full_html=False,
                       config={"displaylogo": False})
     body = (f"<header class='title'><h1>Temperature log fit — {e(log.source)}</h1>"
-            f"<div class='meta'>{fit.samples} samples over {fit.duration / 3600:.3g} h; "
+            f"<div class='meta'>{fit.samples:,} samples over {fit.duration / 3600:.3g} h; "
             f"residual RMS {fit.residual_rms:.3g} K</div></header>"
             "<p>Model: C dT/dt = P·running − UA (T − T<sub>ambient</sub>), solved exactly "
             "between samples and fitted by least squares to the logged oil temperature.</p>"

@@ -35,6 +35,7 @@ import numpy as np
 
 from heatload import outputs, tables
 from heatload.errors import HeatloadError
+from heatload.wording import plain_path, severity_counts
 
 K0 = 273.15
 
@@ -289,21 +290,35 @@ def _table(headers, rows, cls=""):
 # sections
 # ---------------------------------------------------------------------------
 
-def comparison_section(data, recommended, present, decision=None):
+def comparison_section(data, recommended, present, decision=None, system="si"):
+    """The ranked comparison table, figures in *system*'s units (each cell's
+    ``data-value`` stays the SI figure of ``compare --json``)."""
+    from heatload.units import display_unit, from_file, from_si, pretty_unit
+
+    def unit(kind):
+        return pretty_unit(display_unit(kind, system))
+
+    def shown(v, kind, digits=3, file_kind=None):
+        """*v* (SI, or as the JSON holds it for *file_kind*) as a number in *system*."""
+        if v is None:
+            return "–"
+        return _num(from_si(from_file(v, file_kind), kind, display_unit(kind, system)), digits)
     cur = data["scenario"]["currency"]
+    co2 = "t" if system == "si" else unit("mass")
     headers = [("strategy", ""), (f"ownership [{cur}/yr]", "num"), ("energy [kWh/yr]", "num"),
                (f"electricity [{cur}/yr]", "num"),
-               ("CO₂ [t/yr]", "num"), ("heat to oil [kW]", "num"),
-               ("oil, no cooler [°C]", "num"), ("oil, running [°C]", "num"),
-               ("cooler [kW]", "num"), ("peak [bar]", "num"), ("eff. [%]", "num"),
-               ("warnings", "")]
+               (f"CO₂ [{co2}/yr]", "num"), (f"heat to oil, running [{unit('power')}]", "num"),
+               (f"oil, no cooler [{unit('temperature')}]", "num"),
+               (f"oil, running [{unit('temperature')}]", "num"),
+               (f"cooler [{unit('power')}]", "num"), (f"peak [{unit('pressure')}]", "num"),
+               ("eff. [%]", "num"), ("warnings", "")]
     rows = []
     for rank, name in enumerate(data["ranking"], 1):
         r = next(x for x in data["strategies"] if x["label"] == name)
         ok = r.get("feasible", True)
         cls = " ".join(c for c, on in (("recommended", name == recommended),
                                        ("present", name == present), ("out", not ok)) if on)
-        codes = sorted({w["code"] for w in r["warnings"]})
+        codes = severity_counts(r["warnings"])
         s = r["label"]
         own = r.get("yearly_cost_total")
         rows.append(
@@ -312,19 +327,22 @@ def comparison_section(data, recommended, present, decision=None):
             + _cell(r["electric_energy_per_year_kWh"],
                     _grouped(r["electric_energy_per_year_kWh"]), s, "electric_energy_per_year_kWh")
             + _cell(r["cost_per_year"], _grouped(r["cost_per_year"]), s, "cost_per_year")
-            + _cell(r["co2_per_year_kg"], f"{r['co2_per_year_kg'] / 1e3:.2f}", s, "co2_per_year_kg")
-            + _cell(r["heat_to_oil_W"], _num(r["heat_to_oil_W"] / 1e3), s, "heat_to_oil_W")
-            + _cell(r["oil_temperature_steady_C"], f"{r['oil_temperature_steady_C']:.1f}", s,
+            + _cell(r["co2_per_year_kg"], f"{r['co2_per_year_kg'] / 1e3:,.2f}" if system == "si"
+                    else shown(r["co2_per_year_kg"], "mass", 4), s, "co2_per_year_kg")
+            + _cell(r["heat_to_oil_W"], shown(r["heat_to_oil_W"], "power"), s, "heat_to_oil_W")
+            + _cell(r["oil_temperature_steady_C"],
+                    shown(r["oil_temperature_steady_C"], "temperature", 3, "temperature"), s,
                     "oil_temperature_steady_C")
-            + _cell(r["oil_temperature_operating_C"], f"{r['oil_temperature_operating_C']:.1f}",
+            + _cell(r["oil_temperature_operating_C"],
+                    shown(r["oil_temperature_operating_C"], "temperature", 3, "temperature"),
                     s, "oil_temperature_operating_C")
-            + _cell(r["cooler_duty_W"], _num(r["cooler_duty_W"] / 1e3) if r["cooler_needed"]
+            + _cell(r["cooler_duty_W"], shown(r["cooler_duty_W"], "power") if r["cooler_needed"]
                     else "none", s, "cooler_duty_W")
-            + _cell(r["peak_pressure_Pa"], f"{r['peak_pressure_Pa'] / 1e5:.0f}", s,
+            + _cell(r["peak_pressure_Pa"], shown(r["peak_pressure_Pa"], "pressure"), s,
                     "peak_pressure_Pa")
             + _cell(r["overall_efficiency"], f"{100 * r['overall_efficiency']:.0f}", s,
                     "overall_efficiency")
-            + f'<td class="small {"warn" if codes else ""}">{_e(", ".join(codes) or "–")}</td></tr>'
+            + f'<td class="small {"warn" if codes else ""}">{_e(codes or "–")}</td></tr>'
             + ("" if ok else f'<tr class="out reason-row"><td colspan="{len(headers)}">'
                f'<span class="reason">{_e(s)} is {_e(r["reason"])}</span></td></tr>'))
     return _table(headers, rows, "compare")
@@ -339,6 +357,7 @@ def assumptions(scenario, data=None, system="si") -> list:
     """Every input and model assumption with its value and source (list of dicts:
     item, value (text in *system*'s units: "si" or "us"), source, kind, value_si)."""
     from heatload import chain, decision, evaluation, oil
+    from heatload.paths import resolve_path
     from heatload.strategies import circuit
     from heatload.units import format_quantity as fq
 
@@ -462,22 +481,40 @@ def assumptions(scenario, data=None, system="si") -> list:
     A(_assumption("shift length", f"{sc.shift_duration / 3600:.1f} h", "scenario", "time",
                   sc.shift_duration))
     for u in sc.uncertainty:
-        A(_assumption(f"uncertain: {u.path}", f"{u.distribution} {u.low:g} .. {u.high:g}"
-                      + (" (factors)" if u.relative else " (SI)"), "scenario"))
+        kind = None if u.relative else resolve_path(sc, u.path).kind
+        span = (f"x {u.low:g} .. {u.high:g} of the nominal" if u.relative
+                else f"{u.low:g} .. {u.high:g} (SI)" if kind is None   # cylinders and motors
+                else f"{q(u.low, kind)} .. {q(u.high, kind)}")
+        A(_assumption(f"uncertain: {plain_path(u.path, sc)} ({u.path})",
+                      f"{u.distribution}, {span}", "scenario"))
     for name, src in METHODS:
         A(_assumption(f"method: {name}", "", src))
     return out
 
 
-def _warnings_html(data):
-    items = []
-    for r in data["strategies"]:
-        for w in r["warnings"]:
-            items.append(f"<li><b>{_e(r['label'])}</b> / {_e(w['phase'] or 'whole cycle')}: "
-                         f"{_e(w['message'])} <span class=\"note\">({_e(w['code'])})</span></li>")
-    if not items:
-        return "<p>No warnings.</p>"
-    return '<ul class="warnings">' + "".join(items) + "</ul>"
+def _warnings_html(data, system="si"):
+    """Per strategy in rank order: its warnings in plain sentences grouped by
+    severity, then each one with its figures in *system*'s units (the code
+    only as a data attribute, never as text)."""
+    from heatload.wording import customer_warnings, warning_text
+
+    order = {n: i for i, n in enumerate(data.get("ranking") or [])}
+    parts = []
+    for r in sorted(data["strategies"], key=lambda r: order.get(r["label"], len(order))):
+        if not r["warnings"]:
+            continue
+        groups = "".join(
+            f"<p class=\"severity\"><b>{_e(head)}</b></p><ul>" + "".join(
+                f"<li>{_e(text)} <span class=\"note\">({_e(', '.join(ph))})</span></li>"
+                for text, ph in items) + "</ul>"
+            for head, items in customer_warnings(r["warnings"]))
+        detail = "".join(
+            f'<li data-code="{_e(w["code"])}" data-severity="{_e(w.get("severity", ""))}">'
+            f"{_e(warning_text(w, system, with_phase=True))}</li>" for w in r["warnings"])
+        parts.append(f'<div class="warnings keep" data-strategy="{_e(r["label"])}">'
+                     f"<h3>{_e(r['label'])}</h3>{groups}"
+                     f'<p class="note">In detail:</p><ul class="warnings small">{detail}</ul></div>')
+    return "".join(parts) or "<p>No warnings.</p>"
 
 
 def _cooler_html(rec, sz, unc):
@@ -539,15 +576,17 @@ def _cooler_html(rec, sz, unc):
             + "".join(
                 _cell(tt[k], f"{tt[k]:.1f}", None, f"uncertainty_oil_{k}")
                 for k in ("P50", "P90", "P95")) + "</tr>"]
-        parts.append(f"<p class=\"note\">Monte Carlo, {unc['samples']} samples (seed "
+        parts.append(f"<p class=\"note\">Monte Carlo, {unc['samples']:,} samples (seed "
                      f"{unc['seed']}), over the scenario's uncertain inputs.</p>")
         parts.append(_table([("", ""), ("P50", "num"), ("P90", "num"), ("P95", "num")], urows,
                             "keep"))
         if unc.get("sensitivity"):
             srows = []
             for s in unc["sensitivity"]:
-                sw = s.get("swing")
-                srows.append(f"<tr><td><code>{_e(s.get('path'))}</code></td>"
+                sw = s.get("cooler_duty_swing_W")
+                path = str(s.get("path"))
+                srows.append(f'<tr><td title="{_e(path)}">{_e(plain_path(path))} '
+                             f'<span class="note">({_e(path)})</span></td>'
                              + _cell(sw if isinstance(sw, (int, float)) else None,
                                      _num(sw / 1e3) if isinstance(sw, (int, float)) else str(sw))
                              + "</tr>")
@@ -845,7 +884,7 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
 <section id="comparison"><h2>2 Strategies compared</h2>
 <p>Ranked by the decision rule: circuits that can do the job first, then by yearly cost of
 ownership. The recommended row is highlighted; ruled-out rows are grey.</p>
-{comparison_section(data, rec_name, present, dec)}{cost_fig}</section>
+{comparison_section(data, rec_name, present, dec, rd.get("system", "si"))}{cost_fig}</section>
 <section id="energy"><h2>3 Where the energy goes</h2>{flow}</section>
 <section id="cycle"><h2>4 Heat and pressure over the cycle</h2>{cyc}</section>
 <section id="shift"><h2>5 Oil temperature over a shift</h2>{shift}</section>
@@ -855,7 +894,7 @@ ownership. The recommended row is highlighted; ruled-out rows are grey.</p>
 + cooler price) x the capital recovery factor over the service life. Simple payback = extra price
 over the present circuit / yearly electricity saving. Prices are the scenario's or given on the
 command line.</p>{payback}{notes}</section>
-<section id="warnings"><h2>8 Warnings</h2>{_warnings_html(data)}</section>
+<section id="warnings"><h2>8 Warnings</h2>{_warnings_html(data, rd.get("system", "si"))}</section>
 <section id="assumptions" class="appendix"><h2>Appendix: assumptions and methods ({unit_word}
 units)</h2>{assum}
 <div class="caution">{_e(CAUTION)}</div></section>

@@ -323,8 +323,8 @@ def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5,
         ``available`` (bool), ``note``; when available: ``samples``, ``seed``,
         ``cooler_duty_W`` {P50, P90, P95}, ``oil_temperature_C`` {P50, P90, P95},
         ``sensitivity`` (the *top* entries of the ranking, dicts with ``path`` and
-        ``swing`` = the cooler duty's swing [W] ...).  Scenarios without uncertain
-        inputs use the uncertainty module's typical defaults.
+        ``cooler_duty_swing_W`` ..., :func:`heatload.uncertainty.sensitivity`).
+        Scenarios without uncertain inputs use the uncertainty module's typical defaults.
     """
     try:
         from heatload import uncertainty
@@ -345,8 +345,6 @@ def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5,
     for s in list(sens)[:top]:
         row = {k: (float(v) if isinstance(v, (int, float, np.floating)) and
                    not isinstance(v, bool) else v) for k, v in dict(s).items()}
-        # one name for the duty's swing whichever key the ranking uses
-        row.setdefault("swing", row.get("cooler_duty_swing_W"))
         rows.append(row)
     # specific cooling power [W/K] each sample's cooler must give: duty / ETD,
     # ETD = design oil T - the sample's hottest ambient (what an air-oil cooler
@@ -586,7 +584,7 @@ def run_cli(args) -> int:
     print()
     if unc["available"]:
         d, tt = unc["cooler_duty_W"], unc["oil_temperature_C"]
-        print(f"Uncertainty ({unc['samples']} samples, seed {unc['seed']}):")
+        print(f"Uncertainty ({unc['samples']:,} samples, seed {unc['seed']}):")
         print("  cooler duty      " + ", ".join(f"{k} {fq(d[k], 'power', s)}"
                                                for k in ("P50", "P90", "P95")))
         print("  oil temperature (steady, no cooler, typical ambient)\n                   " + ", ".join(f"{k} {fq(tt[k] + K0, 'temperature', s)}"
@@ -594,9 +592,10 @@ def run_cli(args) -> int:
         if unc["sensitivity"]:
             print("  inputs that move the duty most:")
             for r in unc["sensitivity"]:
-                sw = r.get("swing")
+                from heatload.wording import plain_path
+                sw = r.get("cooler_duty_swing_W")
                 extra = r.get("oil_temperature_swing_K")
-                print(f"    {r.get('path')}: duty swing "
+                print(f"    {plain_path(r['path'])} ({r['path']}): duty swing "
                       f"{fq(sw, 'power', s) if isinstance(sw, float) else sw}"
                       + (f", oil temperature swing "
                          f"{fq(extra, 'temperature_difference', s)}"

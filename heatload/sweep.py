@@ -232,7 +232,28 @@ def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK, t
     finally:
         if bar is not None:
             bar.close()
-    return pd.concat(frames, ignore_index=True)
+    return file_frame(pd.concat(frames, ignore_index=True), scenario, values)
+
+
+def file_frame(df, scenario, values):
+    """The sweep's table as its files hold it: each varied column named with
+    its unit and in it (:func:`heatload.units.file_name`, ``file_value``: SI,
+    absolute temperatures in degC), like every other column."""
+    from heatload.paths import resolve_path
+    from heatload.units import file_name, file_value
+
+    names = {}
+    for p in values:
+        kind = resolve_path(scenario, p).kind
+        df[p] = file_value(df[p], kind)
+        names[p] = file_name(p, kind)
+    return df.rename(columns=names)
+
+
+def varied_column(spec) -> str:
+    """The column of a varied path in :func:`run_sweep`'s table."""
+    from heatload.units import file_name
+    return file_name(spec.path, spec.kind)
 
 
 #: Extensions ``heatload sweep -o`` writes.
@@ -274,7 +295,7 @@ def _show(df, specs, system, rows, out, width=None):
     (None: every column): varied values and figures as plain numbers, units in
     the headers."""
     from heatload.tables import format_table, plain_number
-    from heatload.units import display_unit, from_si, pretty_unit
+    from heatload.units import display_unit, from_file, from_si, pretty_unit
 
     def column(kind, name):
         unit = display_unit(kind, system)
@@ -294,9 +315,11 @@ def _show(df, specs, system, rows, out, width=None):
     wcols = [c for c in df.columns if c.startswith("warnings_")]
     lines = []
     for _, r in df.iloc[rows].iterrows():
-        t_oil = (r["oil_temperature_steady_K"] if np.isfinite(r["oil_temperature_steady_K"])
-                 else r["oil_temperature_uncoupled_K"])
-        lines.append([r["strategy"]] + [value(r[s.path], s.kind, u) for s, (_, u) in zip(specs, varied)]
+        t_oil = from_file(r["oil_temperature_steady_C"] if np.isfinite(r["oil_temperature_steady_C"])
+                          else r["oil_temperature_uncoupled_C"], "temperature")
+        lines.append([r["strategy"]]
+                     + [value(from_file(r[varied_column(s)], s.kind), s.kind, u)
+                        for s, (_, u) in zip(specs, varied)]
                      + [plain_number(r["electric_energy_per_cycle_J"] / 1e3, 4),
                         plain_number(r["cycle_time_s"], 3),
                         plain_number(r["electric_energy_per_year_kWh"], 4),
@@ -368,7 +391,7 @@ def run_cli(args) -> int:
     energy = df["electric_energy_per_cycle_J"].to_numpy()
     price = df["strategy"].map({s.name: s.parameters.price for s in strategies}).to_numpy(float)
     hours = (df["economics.hours_per_year"].to_numpy() if "economics.hours_per_year" in df
-             else scenario.economics.hours_per_year)
+             else scenario.economics.hours_per_year)   # a plain number: no suffix
     cycles = hours * 3600.0 / df["cycle_time_s"].to_numpy()
     cost = decision.variant_yearly_cost(df["cost_per_year"].to_numpy(),
                                         df["cooler_duty_W"].to_numpy(), price, scenario)
@@ -388,6 +411,7 @@ def run_cli(args) -> int:
         _show(df, specs, system, front[:top], out, width)
     disp = "power_unit.pump.displacement"
     if any(s.path == disp for s in specs):
+        disp = next(varied_column(s) for s in specs if s.path == disp)
         front = clean[pareto_front(energy[clean], df[disp].to_numpy()[clean])]
         front = front[np.argsort(df[disp].to_numpy()[front], kind="stable")]
         print(f"\nPareto front, energy per cycle vs pump displacement "

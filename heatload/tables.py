@@ -65,6 +65,18 @@ def _is_motor(scenario, ph):
     return scenario.actuator(ph.actuator).kind == "motor"
 
 
+def warning_records(outcome, scenario) -> list:
+    """The warnings of *outcome* as records (``Warning_.as_dict``) with their
+    ``severity`` (:func:`heatload.wording.severity`: "blocking" where the
+    decision rule rules the circuit out by it)."""
+    from heatload.decision import blocking_warnings
+    from heatload.wording import severity
+
+    out = blocking_warnings(outcome, scenario)
+    return [dict(w.as_dict(), severity=severity(w.code, any(w is b for b in out)))
+            for w in outcome.warnings]
+
+
 def strategy_record(outcome, scenario, pa, with_phases=True) -> dict:
     """Headline figures of one strategy (SI, unit-suffixed keys)."""
     from heatload.energy import J_PER_KWH
@@ -92,6 +104,9 @@ def strategy_record(outcome, scenario, pa, with_phases=True) -> dict:
         "oil_temperature_operating_C": _f(th.operating_temperature - K0),
         "oil_temperature_cycle_min_C": _f(th.cycle_minimum - K0),
         "oil_temperature_cycle_max_C": _f(th.cycle_maximum - K0),
+        # heat_to_oil_W: running (held by the sized cooler where one is needed);
+        # heat_to_oil_steady_W: at the steady temperature without a cooler
+        "heat_to_oil_steady_W": _f(th.heat_coupled),
         "heat_to_oil_uncoupled_W": _f(th.heat_uncoupled),
         "heat_to_oil_design_W": _f(th.design_heat),
         "cooler_needed": bool(th.cooler_needed),
@@ -100,7 +115,7 @@ def strategy_record(outcome, scenario, pa, with_phases=True) -> dict:
         "price": _f(outcome.strategy.parameters.price),
         "component_energy_per_cycle_J": {k: _f(v) for k, v in
                                          e.component_energy_per_cycle.items()},
-        "warnings": [w.as_dict() for w in outcome.warnings],
+        "warnings": warning_records(outcome, scenario),
     }
     if with_phases:
         rec["phases"] = phase_records(outcome, scenario, pa)
@@ -216,19 +231,16 @@ def terminal_width(default: int = DEFAULT_WIDTH) -> int:
 
 def plain_number(value, digits: int = 3) -> str:
     """*value* with *digits* significant figures (at least the whole part),
-    thousands separated, never in exponent form: ``49,040``, ``12.0``, ``0.655``.
+    thousands separated, never in exponent form: ``49,040``, ``12.0``, ``0.655``
+    (:func:`heatload.units.format_number`; "n/a" where not finite).
 
     >>> plain_number(49040.3), plain_number(12.04), plain_number(0.6546), plain_number(-1234567.0)
     ('49,040', '12.0', '0.655', '-1,234,567')
     """
+    from heatload.units import format_number
+
     v = float(value)
-    if not math.isfinite(v):
-        return "n/a"
-    if v == 0.0:
-        return "0"
-    decimals = max(digits - 1 - math.floor(math.log10(abs(v))), 0)
-    text = f"{v:,.{decimals}f}"
-    return "0" if text.lstrip("-").strip("0.,") == "" else text
+    return format_number(v, digits) if math.isfinite(v) else "n/a"
 
 
 def count(n: int, noun: str, plural: str | None = None) -> str:

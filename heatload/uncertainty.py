@@ -223,8 +223,10 @@ def sensitivity(scenario: Scenario, strategy) -> list:
     Returns
     -------
     list of dict
-        ``path, low, high, cooler_duty_low_W, cooler_duty_high_W,
-        cooler_duty_swing_W, oil_temperature_low_K, oil_temperature_high_K,
+        ``path``, its bounds (``low_factor``/``high_factor`` for factors, else
+        ``low_<unit>``/``high_<unit>``, :func:`heatload.units.file_name`),
+        ``relative``, ``cooler_duty_low_W, cooler_duty_high_W,
+        cooler_duty_swing_W, oil_temperature_low_C, oil_temperature_high_C,
         oil_temperature_swing_K`` per input.
     """
     inputs, default = inputs_of(scenario)
@@ -246,14 +248,24 @@ def sensitivity(scenario: Scenario, strategy) -> list:
         draws[u.path] = x
     ov = _overrides(scenario, inputs, draws, default)
     duty, temp = _evaluate(scenario, strategy, ov, 2 * k)
+    from heatload.paths import resolve_path
+    from heatload.units import file_name, file_value
+
     rows = []
     for i, u in enumerate(inputs):
         d0, d1 = duty[2 * i], duty[2 * i + 1]
         t0, t1 = temp[2 * i], temp[2 * i + 1]
-        rows.append({"path": u.path, "low": float(u.low), "high": float(u.high),
+        how = _targets(scenario, u, default)[2]
+        kind = {"factor": "dimensionless", "offset": "temperature_difference"}.get(
+            how, resolve_path(scenario, u.path).kind)
+        low, high = (file_name(b, "dimensionless" if how == "factor" else kind)
+                     for b in ("low", "high"))
+        rows.append({"path": u.path, low: float(file_value(u.low, kind)),
+                     high: float(file_value(u.high, kind)),
                      "relative": u.relative, "cooler_duty_low_W": float(d0),
                      "cooler_duty_high_W": float(d1), "cooler_duty_swing_W": float(abs(d1 - d0)),
-                     "oil_temperature_low_K": float(t0), "oil_temperature_high_K": float(t1),
+                     "oil_temperature_low_C": float(file_value(t0, "temperature")),
+                     "oil_temperature_high_C": float(file_value(t1, "temperature")),
                      "oil_temperature_swing_K": float(abs(t1 - t0))})
     rows.sort(key=lambda r: (-r["cooler_duty_swing_W"], -r["oil_temperature_swing_K"]))
     return rows

@@ -92,6 +92,69 @@ KINDS: dict[str, Kind] = {
 
 UNIT_SYSTEMS = ("si", "us")
 
+#: The one convention of every output file (JSON keys, CSV, Parquet and
+#: spreadsheet columns): a number's name ends in its unit -- SI, except
+#: absolute temperatures in degC (``_C``); temperature differences in ``_K``.
+#: Plain numbers (efficiencies, fractions, factors, counts, money in the
+#: scenario's ``currency``) carry a name that says so (:data:`PLAIN_NAMES`).
+#: A record that names its unit beside the number is the one exception: a
+#: warning's ``value``/``limit`` (SI of its ``kind``), a phase's ``speed``
+#: (``speed_unit``: m/s or rev/s as the actuator is a cylinder or a motor).
+SUFFIXES = {"pressure": "Pa", "flow": "m3_s", "length": "m", "distance": "m", "area": "m2",
+            "volume": "m3", "displacement": "m3_rev", "velocity": "m_s",
+            "shaft_speed": "rps", "force": "N", "torque": "N_m", "power": "W",
+            "energy": "J", "time": "s", "temperature": "C", "temperature_difference": "K",
+            "mass": "kg", "mass_flow": "kg_s", "density": "kg_m3",
+            "kinematic_viscosity": "m2_s", "dynamic_viscosity": "Pa_s", "bulk_modulus": "Pa",
+            "heat_transfer_coefficient": "W_m2K", "thermal_conductance": "W_K",
+            "heat_capacity": "J_K", "specific_heat": "J_kgK", "thermal_conductivity": "W_mK",
+            "expansion_coefficient": "per_K", "flow_per_pressure": "m3_sPa",
+            "pressure_per_flow": "Pa_s_m3", "specific_energy_price": "per_J",
+            "emission_factor": "kg_J"}
+#: Suffixes of figures that are not a kind's SI unit (energy per year, payback time).
+EXTRA_SUFFIXES = ("kWh", "per_kWh", "kg_per_kWh", "h", "years")
+#: Endings of names of plain numbers: no unit, the name says what they are.
+PLAIN_NAMES = ("efficiency", "fraction", "factor", "margin", "ratio", "effectiveness",
+               "ntu", "count", "iterations", "rank", "seed", "samples", "variant", "passes",
+               "phases", "decimals", "cost", "price", "cost_total", "cost_per_year",
+               "saving_per_year", "hours_per_year", "P50", "P90", "P95")
+#: Beginnings of names of counts: ``warnings_<code>`` counts the phases with that warning.
+PLAIN_PREFIXES = ("warnings_",)
+
+
+def file_name(name: str, kind: str | None) -> str:
+    """*name* of a number in an output file with its unit suffix
+    (:data:`SUFFIXES`); a plain number keeps a name of :data:`PLAIN_NAMES`
+    and gets ``_factor`` otherwise; a path whose items mix kinds (cylinders
+    and motors) gets ``_SI``.
+
+    >>> file_name("power_unit.pump.displacement", "displacement")
+    'power_unit.pump.displacement_m3_rev'
+    >>> file_name("ambient.temperature_max", "temperature")
+    'ambient.temperature_max_C'
+    >>> file_name("economics.hours_per_year", "dimensionless")
+    'economics.hours_per_year'
+    """
+    if kind is None:
+        return f"{name}_SI"
+    if kind == "dimensionless":
+        return name if name.endswith(PLAIN_NAMES) else f"{name}_factor"
+    return f"{name}_{SUFFIXES[kind]}"
+
+
+def file_value(value, kind: str | None):
+    """An SI value (float or array) as an output file holds it: unchanged,
+    except absolute temperatures in degC."""
+    return value - _ZERO_CELSIUS if kind == "temperature" else value
+
+
+def from_file(value, kind: str | None):
+    """A value as an output file holds it (:func:`file_value`) back in SI."""
+    return value + _ZERO_CELSIUS if kind == "temperature" else value
+
+
+_ZERO_CELSIUS = 273.15   # K
+
 
 @lru_cache(maxsize=1)
 def registry():
@@ -472,25 +535,103 @@ def pretty_unit(unit: str) -> str:
     return _PRETTY.get(unit, unit)
 
 
-def format_quantity(value: float, kind: str, system: str = "si", digits: int = 3) -> str:
-    """Format an SI value of *kind* for people, e.g. ``"160 bar"`` or ``"2321 psi"``.
+def format_quantity(value: float, kind: str, system: str = "si", digits: int = 3,
+                    decimals: int | None = None) -> str:
+    """Format an SI value of *kind* for people, e.g. ``"160 bar"`` or ``"2,321 psi"``.
 
-    *digits* is the number of significant figures (at least the integer part).
+    *digits* is the number of significant figures (at least the integer part);
+    *decimals*, when given, fixes the places after the point instead.
+    Thousands are separated (:func:`format_number`).
     """
     unit = display_unit(kind, system)
     v = from_si(value, kind, unit) if unit else float(value)
-    return f"{format_number(v, digits)} {pretty_unit(unit)}".strip()
+    text = format_number(v, digits) if decimals is None else _grouped(v, decimals)
+    return f"{text} {pretty_unit(unit)}".strip()
 
 
-def format_number(v: float, digits: int = 3) -> str:
-    """A float with *digits* significant figures, never in exponent form for
-    ordinary engineering magnitudes."""
+def _grouped(v: float, decimals: int, group: bool = True) -> str:
+    text = f"{v:,.{decimals}f}" if group else f"{v:.{decimals}f}"
+    # "-0" and "-0.00" read as a sign that means nothing
+    return text.lstrip("-") if text.lstrip("-").strip("0.,") == "" else text
+
+
+def format_number(v: float, digits: int = 3, group: bool = True) -> str:
+    """A float with *digits* significant figures (at least the whole part),
+    thousands separated, never in exponent form for any magnitude a machine
+    has (1e-9 to 1e15); ``group=False`` for text that is read back
+    (an editable cell: :func:`to_si` refuses separators).
+
+    >>> format_number(49040.3), format_number(12.04), format_number(0.6546)
+    ('49,040', '12.0', '0.655')
+    >>> format_number(-1234567.0), format_number(7069.4, group=False)
+    ('-1,234,567', '7069')
+    """
+    v = float(v)
     if not math.isfinite(v):
-        return str(v)
+        return "n/a" if math.isnan(v) else str(v)
     if v == 0:
         return "0"
     mag = math.floor(math.log10(abs(v)))
-    if mag >= 9 or mag <= -5:
+    if mag >= 15 or mag <= -10:
         return f"{v:.{max(digits - 1, 0)}e}"
-    decimals = max(digits - 1 - mag, 0)
-    return f"{v:.{decimals}f}"
+    return _grouped(v, max(digits - 1 - mag, 0), group)
+
+
+# ---------------------------------------------------------------------------
+# Quantities inside text.  The engine writes a message once, with each figure
+# marked by its SI value and kind (:func:`mark`); the edges render the text in
+# the reader's unit system (:func:`render`), so a warning built in the engine
+# reads in psi and °F for a US reader without the engine knowing pint.
+
+_MARK_OPEN, _MARK_SEP, _MARK_CLOSE = "\ue000", "\ue001", "\ue002"
+_MARK = re.compile(f"{_MARK_OPEN}([a-z_]+){_MARK_SEP}([^{_MARK_SEP}{_MARK_CLOSE}]+)"
+                   f"{_MARK_SEP}(-?\\d*){_MARK_CLOSE}")
+
+
+def mark(value, kind: str, decimals: int | None = None) -> str:
+    """The SI *value* of *kind* as a mark inside a message, rendered by
+    :func:`render` (with *decimals* places in the display unit, else 3
+    significant figures)."""
+    return (f"{_MARK_OPEN}{kind}{_MARK_SEP}{float(value)!r}{_MARK_SEP}"
+            f"{'' if decimals is None else int(decimals)}{_MARK_CLOSE}")
+
+
+def split_marks(text: str) -> tuple[str, list]:
+    """*text* with its marks replaced by ``{0}``, ``{1}``... and the marked
+    quantities as plain data ``[{"value": SI, "kind": ..., "decimals": ...}]``
+    (for JSON; :func:`fill` writes them back in a unit system).
+
+    >>> split_marks("at " + mark(2e7, "pressure", 0))
+    ('at {0}', [{'value': 20000000.0, 'kind': 'pressure', 'decimals': 0}])
+    """
+    found = []
+
+    def one(m):
+        found.append({"value": float(m.group(2)), "kind": m.group(1),
+                      "decimals": int(m.group(3)) if m.group(3) else None})
+        return "{" + str(len(found) - 1) + "}"
+    return _MARK.sub(one, text), found
+
+
+def fill(template: str, quantities, system: str = "si") -> str:
+    """The text of :func:`split_marks` with its quantities written in *system*'s units."""
+    for i, q in enumerate(quantities):
+        template = template.replace("{" + str(i) + "}", format_quantity(
+            q["value"], q["kind"], system, decimals=q.get("decimals")), 1)
+    return template
+
+
+def render(text: str, system: str = "si") -> str:
+    """*text* with every :func:`mark` written in *system*'s units.
+
+    >>> render("relief at " + mark(3.7e7, "pressure", 0))
+    'relief at 370 bar'
+    """
+    if _MARK_OPEN not in text:
+        return text
+
+    def one(m):
+        d = m.group(3)
+        return format_quantity(float(m.group(2)), m.group(1), system,
+                               decimals=int(d) if d else None)
+    return _MARK.sub(one, text)

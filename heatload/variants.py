@@ -50,9 +50,12 @@ class VariantResults:
         return int(np.size(self.cycle_time))
 
     def frame(self):
-        """The results as a pandas DataFrame: one row per variant, SI units in
-        the column names."""
+        """The results as a pandas DataFrame: one row per variant, units in the
+        column names (:data:`heatload.units.SUFFIXES`: SI, absolute
+        temperatures in degC); the varied values under their paths, as given."""
         import pandas as pd
+
+        from heatload.units import file_value
 
         cols = {p: np.asarray(v) for p, v in self.values.items()}
         cols.update({
@@ -64,10 +67,10 @@ class VariantResults:
             "cost_per_year": self.cost_per_year,
             "peak_pressure_Pa": self.peak_pressure,
             "cycle_time_s": self.cycle_time,
-            "oil_temperature_uncoupled_K": self.oil_temperature_uncoupled,
-            "oil_temperature_steady_K": self.oil_temperature_steady,
-            "oil_temperature_operating_K": self.oil_temperature_operating,
-            "oil_temperature_cycle_max_K": self.oil_temperature_cycle_max,
+            "oil_temperature_uncoupled_C": file_value(self.oil_temperature_uncoupled, "temperature"),
+            "oil_temperature_steady_C": file_value(self.oil_temperature_steady, "temperature"),
+            "oil_temperature_operating_C": file_value(self.oil_temperature_operating, "temperature"),
+            "oil_temperature_cycle_max_C": file_value(self.oil_temperature_cycle_max, "temperature"),
             "design_heat_W": self.design_heat,
             "cooler_duty_W": self.cooler_duty,
             "cooler_duty_without_margin_W": self.cooler_duty_without_margin,

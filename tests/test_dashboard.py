@@ -354,6 +354,12 @@ def test_uncertainty_view(base):
     out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
     assert out.id == "mc-result"
     hist, tornado = (g.figure for g in out.children if hasattr(g, "figure"))
+    # uncertain inputs named in plain words, the file's path as their tooltip
+    names = next(g for g in out.children if getattr(g, "id", None) == "mc-inputs")
+    spans = {sp.title: sp.children for sp in names.children if not isinstance(sp, str)}
+    assert spans["phases[*].load"] == "phase loads"
+    assert set(spans) == {u.path for u in base["scenario"].uncertainty}
+    assert [y for y in tornado.data[0].y if "[" in y or "_" in y] == []
     # the duty to quote is named and marked on the histogram
     from heatload import decision
     quote = next(g for g in out.children if getattr(g, "id", None) == "mc-quote")
@@ -618,3 +624,19 @@ def test_a_downloaded_scenario_with_a_control_character_in_its_name_loads():
     sc = dataclasses.replace(sc, name="Press\rX\x1b")
     again = io.loads_scenario(io.dumps_scenario(sc), source="dl.toml")
     assert again.name == sc.name
+
+
+def test_warnings_in_plain_words_and_chosen_units(base):
+    """The decision view gives a circuit's warnings as plain sentences grouped by
+    severity (no internal code); the comparison gives them in the chosen units."""
+    from heatload.checks import CODE_KINDS
+
+    comp = base["results"]["comparison"]
+    (div,) = figures.warnings_in_words(comp, "meter-out")
+    text = str(div.to_plotly_json())
+    assert "Rules the circuit out" in text and "Needs attention" in text
+    assert not [c for c in CODE_KINDS if "-" in c and c in text]
+    us = {r["label"]: r for r in figures.comparison_rows(base["results"], "us")}
+    words = " ".join(us["meter-out"]["warnings"])
+    assert "psi" in words and "°F" in words and "hp" in words
+    assert " bar" not in words and "°C" not in words and " kW" not in words

@@ -306,3 +306,37 @@ def test_example_choice_and_report_download(dash_duo):
     text = found[0].read_text(encoding="utf-8")
     assert "<html" in text.lower() and lift.name in text
     assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
+def test_warnings_follow_the_us_units(dash_duo):
+    """With US customary units chosen, the comparison's warnings give their figures
+    in psi, °F and hp (the engine's records hold SI; the dashboard writes them)."""
+    import re
+
+    from heatload import chain, io, tables
+
+    # the forming press's warnings carry pressures (ratings, relief), temperatures (the
+    # hottest day) and powers (motor load, cooler duty)
+    cmp = chain.compare(io.load_scenario(io.default_scenario_path()))
+    recs = tables.comparison_dict(cmp, with_phases=False)["strategies"]
+    kinds = {q["kind"] for r in recs for w in r["warnings"] for q in w["quantities"]}
+    assert {"pressure", "temperature", "power"} <= kinds   # something to look at
+    _start(dash_duo)
+    _tab(dash_duo, "Comparison")
+    end = time.time() + 30
+    while len(dash_duo.find_elements("#comparison-table tbody tr")) != 7 and time.time() < end:
+        time.sleep(0.2)
+    dash_duo.wait_for_element("#comparison-table td.warnings.has", timeout=20)
+    si = " ".join(e.text for e in dash_duo.find_elements("#comparison-table td.warnings"))
+    assert "°C" in si and "bar" in si and "kW" in si
+    dash_duo.find_element("#units input[value='us']").click()
+    dash_duo.wait_for_contains_text("#comparison-table td.warnings.has", "°F", timeout=20)
+    us = " ".join(e.text for e in dash_duo.find_elements("#comparison-table td.warnings"))
+    assert "°F" in us and "psi" in us and "hp" in us and "gpm" in us
+    # no SI unit is left in any warning (kinematic viscosity is mm²/s in both systems)
+    for unit in ("°C", " bar", " kW", "L/min", " kN"):
+        assert unit not in us, (unit, us)
+    # the figures are grouped, never in exponent form
+    assert not re.search(r"\d\.\de[+-]\d", us)
+    _shot(dash_duo, "browser_us_warnings")
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()

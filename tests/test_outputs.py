@@ -341,3 +341,89 @@ def test_several_missing_folders_are_a_slip_not_created(tmp_path):
     # one missing level is a folder the command makes
     outputs.write_atomic(tmp_path / "a" / "s.csv", lambda p: open(p, "w").write("x"), "-o")
     assert (tmp_path / "a" / "s.csv").read_text() == "x"
+
+
+# ---------------------------------------------------------------------------
+# one unit convention across every output (units.SUFFIXES)
+
+def _unit_named(key):
+    from heatload.units import EXTRA_SUFFIXES, PLAIN_NAMES, PLAIN_PREFIXES, SUFFIXES
+    allowed = tuple("_" + s for s in set(SUFFIXES.values()) | set(EXTRA_SUFFIXES))
+    return key.endswith(allowed) or key.endswith(PLAIN_NAMES) or key.startswith(PLAIN_PREFIXES)
+
+
+def _beside(key, keys):
+    """Whether the record names *key*'s unit beside it: a ``kind`` for its
+    value / limit (SI of that kind), or a ``<name>_unit``."""
+    return (("kind" in keys and key in ("value", "limit", "value_si"))
+            or f"{key.split('_')[0]}_unit" in keys)
+
+
+def _unnamed_numbers(x, where="", named=False):
+    """Paths of numbers in JSON data whose key (or an enclosing key) carries no unit
+    and whose record does not name it beside them (``kind``, ``<name>_unit``)."""
+    bad = []
+    if isinstance(x, dict):
+        for k, v in x.items():
+            k = str(k)
+            beside = _beside(k, x)
+            bad += _unnamed_numbers(v, f"{where}.{k}", named or beside or _unit_named(k))
+    elif isinstance(x, list):
+        for v in x:
+            bad += _unnamed_numbers(v, f"{where}[]", named)
+    elif isinstance(x, (int, float)) and not isinstance(x, bool) and not named:
+        bad.append(where)
+    return bad
+
+
+def test_every_number_of_every_output_names_its_unit(tmp_path, capsys):
+    """JSON of compare / thermal / cooler / phases, the sweep's CSV and Parquet and the
+    report's spreadsheet tables: every number's name ends in its unit (or says it is a
+    plain number), and absolute temperatures are in degC (``_C``) everywhere."""
+    import json
+
+    import pandas as pd
+
+    sc = io.load_scenario(io.default_scenario_path())
+    for argv in (["compare", "--json"], ["thermal", "--json"], ["cooler", "--json"],
+                 ["phases", "--json", "--strategy", sc.strategies[0].name]):
+        assert main(argv) == 0
+        data = json.loads(capsys.readouterr().out)
+        assert _unnamed_numbers(data, argv[0]) == []
+        text = json.dumps(data)
+        # absolute temperatures only in degC: no key of an absolute temperature in K
+        for key in ("temperature_low_K", "temperature_high_K", "temperature_max_K",
+                    "temperature_steady_K"):
+            assert key not in text, (argv[0], key)
+    # the hottest ambient in degC as the file gives it (forming_press.toml: 38 degC)
+    assert main(["compare", "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["scenario"]["ambient_max_C"] == \
+        pytest.approx(sc.ambient.temperature_max - 273.15, abs=1e-9)
+
+    frames = {}
+    for suffix in (".csv", ".parquet"):
+        out = tmp_path / f"s{suffix}"
+        assert main(["sweep", "--vary", "ambient.temperature_max=30..40degC:2",
+                     "--vary", "power_unit.pump.displacement=20..30cm^3:2",
+                     "--strategy", sc.strategies[0].name, "--top", "0",
+                     "-o", str(out)]) == 0
+        capsys.readouterr()
+        frames[suffix] = (pd.read_csv(out) if suffix == ".csv" else pd.read_parquet(out))
+    for df in frames.values():
+        numeric = [c for c in df.columns if pd.api.types.is_numeric_dtype(df[c])]
+        assert [c for c in numeric if not _unit_named(c)] == []
+        # the varied temperature in degC, as given on the command line
+        assert sorted(set(df["ambient.temperature_max_C"])) == pytest.approx([30.0, 40.0])
+        # 20 cm^3 = 2e-5 m^3 (per revolution)
+        assert sorted(set(df["power_unit.pump.displacement_m3_rev"])) == \
+            pytest.approx([20e-6, 30e-6])
+        assert not any(c.endswith("_K") and "temperature" in c and "swing" not in c
+                       for c in df.columns)
+
+    cmp = chain.compare(sc)
+    tables_ = report.export_tables(sc, cmp)
+    for name, df in tables_.items():
+        numeric = [c for c in df.columns if pd.api.types.is_numeric_dtype(df[c])
+                   and not pd.api.types.is_bool_dtype(df[c])]
+        assert [c for c in numeric
+                if not (_unit_named(c) or _beside(c, df.columns))] == [], name

@@ -487,3 +487,56 @@ def test_print_to_pdf_page_count(built, tmp_path):
     # page numbers "x of y" come from CSS paged media
     css = re.search(r"<style>(.*?)</style>", text, re.S).group(1)
     assert 'counter(page) " of " counter(pages)' in css
+
+
+class _VisibleText(html.parser.HTMLParser):
+    """The text a reader sees: no attributes, no <style> or <script> bodies."""
+
+    def __init__(self):
+        super().__init__()
+        self.parts, self._skip = [], 0
+
+    def handle_starttag(self, tag, attrs):
+        self._skip += tag in ("style", "script")
+
+    def handle_endtag(self, tag):
+        self._skip -= tag in ("style", "script")
+
+    def handle_data(self, data):
+        if not self._skip:
+            self.parts.append(data)
+
+
+def _visible(text):
+    p = _VisibleText()
+    p.feed(text)
+    return " ".join(p.parts)
+
+
+def test_warnings_in_words_and_customer_units(built):
+    """Customers read plain sentences grouped by severity, never the internal codes;
+    with US units the warnings give psi and °F, not bar and °C."""
+    from heatload.checks import CODE_KINDS
+    from heatload.wording import SEVERITIES, sentence
+
+    p = io.default_scenario_path()
+    sc, cmp, rd, text, _ = built[p]
+    seen = _visible(text)
+    codes = {w["code"] for r in rd["data"]["strategies"] for w in r["warnings"]}
+    assert codes
+    for code in CODE_KINDS:                     # no internal code reaches the reader
+        if "-" in code:                         # ("stall" is also an English word)
+            assert code not in seen, code
+    for code in codes:
+        assert _esc(sentence(code)) in text
+    assert any(head in seen for _, head in SEVERITIES)
+    us = report.build_report(sc, cmp, prepared=dict(rd, system="us"))
+    # the comparison table in the customer's units too (its data-value attributes stay SI)
+    table = _visible(us[us.index('id="comparison"'):us.index('id="energy"')])
+    assert "peak [psi]" in table and "[°F]" in table and "CO₂ [lb/yr]" in table
+    part = us[us.index('id="warnings"'):us.index('id="assumptions"')]
+    assert "psi" in part and "°F" in part
+    for unit in (" bar", "°C", " kW", "L/min"):
+        assert unit not in _visible(part), unit
+    # the uncertain inputs in plain words, the file's path beside them
+    assert "phase loads" in seen and "phases[*].load" in text

@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 
-from heatload import chain, circuits, io, tables
+from heatload import chain, circuits, decision, io, tables
 
 K0 = 273.15
 J_PER_KWH = 3.6e6   # 1 kWh = 3.6 MJ (SI definition)
@@ -49,7 +49,11 @@ def test_numbers_equal_the_outcomes(comparison):
             th.operating_temperature - K0, abs=1e-12)
         assert rec["cooler_duty_W"] == th.cooler_duty
         assert rec["cooler_needed"] is bool(th.cooler_needed)
-        assert rec["warnings"] == [w.as_dict() for w in o.warnings]
+        assert [{k: v for k, v in w.items() if k != "severity"}
+                for w in rec["warnings"]] == [w.as_dict() for w in o.warnings]
+        out = {(w.code, w.phase) for w in decision.blocking_warnings(o, sc)}
+        assert [w["severity"] == "blocking" for w in rec["warnings"]] == [
+            (w.code, w.phase) in out for w in o.warnings]
         assert set(rec["component_energy_per_cycle_J"]) == set(circuits.LOSS_COMPONENTS)
         assert len(rec["phases"]) == len(sc.phases)
         for i, ph in enumerate(rec["phases"]):

@@ -63,7 +63,7 @@ def test_bare_number_needs_unit():
 def test_format_si_and_us():
     assert format_quantity(160e5, "pressure", "si") == "160 bar"
     # 160 bar = 2320.6 psi (NIST factor above)
-    assert format_quantity(160e5, "pressure", "us") == "2321 psi"
+    assert format_quantity(160e5, "pressure", "us") == "2,321 psi"   # thousands grouped
     assert format_quantity(308.15, "temperature", "us") == "95.0 °F"
     assert format_quantity(1e-3, "flow", "si") == "60.0 L/min"
     # 60 L/min = 15.85 US gpm
@@ -226,3 +226,22 @@ def test_compare_of_the_examples_imports_no_pint():
                              timeout=300)
         assert out.returncode == 0, out.stderr
         assert out.stdout.strip() == "[]", (path.name, out.stdout)
+
+
+def test_marked_text_renders_in_each_system():
+    from heatload.units import fill, mark, render, split_marks
+    # 370 bar = 5366 psi; 80 degC = 176 degF; 7.5 kW = 10.06 hp (NIST SP 811 factors)
+    text = (f"pump at {mark(370e5, 'pressure', 0)}, oil {mark(353.15, 'temperature', 0)}, "
+            f"motor {mark(7500.0, 'power')}")
+    assert render(text, "si") == "pump at 370 bar, oil 80 °C, motor 7.50 kW"
+    assert render(text, "us") == "pump at 5,366 psi, oil 176 °F, motor 10.1 hp"
+    template, quantities = split_marks(text)
+    assert template == "pump at {0}, oil {1}, motor {2}"
+    assert fill(template, quantities, "us") == render(text, "us")
+
+
+def test_format_number_groups_thousands_only_when_asked():
+    from heatload.units import format_number
+    assert format_number(7069.4) == "7,069" and format_number(7069.4, group=False) == "7069"
+    assert format_number(49040.0, 4) == "49,040"          # never 4.904e+04
+    assert format_number(-0.0001) == "-0.000100"
