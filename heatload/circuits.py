@@ -108,6 +108,11 @@ class CircuitResult:
     counterbalance_setting: np.ndarray = None  #: [Pa], where active
     #: |p_pump Q1 - Q1 (drops) - p1 Q1| left by the root solve [W]; ~rounding
     bookkeeping_residual: np.ndarray = None
+    #: power put into (+) or taken from (-) an accumulator's gas [W]; sums to
+    #: zero over a cycle the pump keeps up with (None: the circuit stores none)
+    stored_power: np.ndarray = None
+    #: an accumulator circuit's pump on-time over the cycle [-] (None: not one)
+    pump_duty: np.ndarray = None
 
     @property
     def heat_to_oil(self) -> np.ndarray:
@@ -121,8 +126,9 @@ class CircuitResult:
 
     @property
     def balance_residual(self) -> np.ndarray:
-        """``P_electric - useful - sum(losses)`` [W]; zero to rounding."""
-        return self.electric_power - self.useful_power - sum(self.losses.values())
+        """``P_electric - useful - sum(losses) - stored`` [W]; zero to rounding."""
+        stored = 0.0 if self.stored_power is None else self.stored_power
+        return self.electric_power - self.useful_power - sum(self.losses.values()) - stored
 
 
 # ---------------------------------------------------------------------------
@@ -444,6 +450,7 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     # ---- pump flow, stroke and speed --------------------------------------
     leakage = leak * np.maximum(p_pump, 0.0)
+    c["pump_pressure"] = p_pump
     frac, n_pump, q_pump = kind.pump_state(c, q1, leakage, moving, stalled, use_centre, shape)
     surplus = np.maximum(q_pump - q1, 0.0)
     at_relief = p_pump >= c["relief_cracking"] * (1.0 - 1e-12)
@@ -454,11 +461,11 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     bleed_q = surplus - centre_q - relief_q
 
     # ---- powers -------------------------------------------------------------
-    mu = c["mu"]
-    torque = pumps.pump_torque(c["pump_displacement"], n_pump, np.maximum(p_pump, 0.0), mu,
-                               c["pump_viscous"], c["pump_friction"], frac)
-    p_shaft_hyd = pumps.pump_shaft_power(torque, n_pump)
     speed = np.where(moving, q1 * c["speed_per_flow"], 0.0)
+    t_actual = _actual_duration(c, speed, stalled)
+    # shaft power, losses of pumps run apart from the circuit (an unloaded pump),
+    # and power into an accumulator (zero for most circuits)
+    p_shaft_hyd, apart, stored, duty = kind.pump_power(c, n_pump, p_pump, frac, q1, t_actual)
     useful = c["load"] * speed * c["work_per_load_speed"]
     # what the actuator does not turn into load work: friction, motor efficiencies
     actuator_loss = p1 * q1 - p2 * q2 - useful
@@ -477,7 +484,10 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     p_out = np.maximum(p_pump, 0.0) * (q1 + relief_q + bleed_q + centre_q)
     # the solved root leaves rounding between q_pump and the flows booked: the
     # pump term takes it so the balance closes exactly
-    losses["pump"] = p_shaft_hyd - p_out
+    losses["pump"] = p_shaft_hyd - p_out - stored
+    for k, v in apart.items():
+        losses["pump"] = losses["pump"] - v
+        losses[k] = losses[k] + v
     # pressure recovered in the pump line beyond p_pump (negative throttle) cannot
     # occur: dp's are clipped at zero; but p1*q1 books against p_pump*q1 exactly:
     mismatch = np.maximum(p_pump, 0.0) * q1 - q1 * (dp_fc_in + check_dp + pline_dp + dv_in_dp) - p1 * q1
@@ -485,7 +495,6 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     bookkeeping = np.abs(mismatch)
 
     # compression of the oil in the pressurised chamber, released as heat
-    t_actual = _actual_duration(c, speed, stalled)
     prev = c["previous_phase"]
     # prev and p1 may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
     shape = np.broadcast_shapes(np.shape(prev), np.shape(p1))
@@ -531,7 +540,9 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         losses=losses, stalled=stalled, flow_limited=flow_limited, runaway=runaway,
         counterbalance_active=c["cb_active"],
         counterbalance_setting=np.where(c["cb_active"], c["cb_setting"], 0.0),
-        bookkeeping_residual=bookkeeping)
+        bookkeeping_residual=bookkeeping,
+        stored_power=None if np.ndim(stored) == 0 and stored == 0 else stored + z,
+        pump_duty=None if duty is None else np.asarray(duty)[..., None] + z)
 
 
 def _actual_duration(c, speed, stalled):

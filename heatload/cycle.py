@@ -271,8 +271,39 @@ def strategy_arrays(scenario: Scenario, strategy: Strategy | str,
         "cb_fitted": cb is not None, "cb_setting": cb if cb is not None else 0.0,
         "cb_ratio": sp("counterbalance_pilot_ratio"),
         "vs_min_fraction": sp("min_speed_fraction"), "vs_max_fraction": sp("max_speed_fraction"),
+        "unloading_drop": sp("unloading_valve_drop"),
     }
+    out.update(_two_stage_and_accumulator(sp, relief, strategy.kind))
     return {k: _row(v) for k, v in out.items()}
+
+
+def _two_stage_and_accumulator(sp, relief, kind) -> dict:
+    """Hi-lo and accumulator settings with their defaults filled in (see
+    :class:`heatload.model.StrategyParameters`); for an accumulator circuit
+    (*kind*) a working range left empty is refused naming the setting."""
+    from heatload.errors import HeatloadError
+    from heatload.strategies import circuit
+    unload = sp("unloading_pressure")
+    p_max = sp("accumulator_pressure_max")
+    # below the relief's cracking, so the relief stays shut while charging
+    p_max = np.maximum(relief - 10e5, 0.9 * np.asarray(relief)) if p_max is None else p_max
+    p_min = sp("accumulator_pressure_min")
+    p_min = 0.75 * np.asarray(p_max) if p_min is None else p_min
+    pre = sp("accumulator_precharge")
+    pre = 0.9 * np.asarray(p_min) if pre is None else pre
+    if not circuit(kind).accumulator:
+        pass
+    elif np.any(np.asarray(p_min) >= p_max):
+        raise HeatloadError("the accumulator's working range is empty: give "
+                            "accumulator_pressure_min below accumulator_pressure_max (Pa, "
+                            "e.g. \"120 bar\")", field="strategies.accumulator_pressure_min")
+    elif np.any(np.asarray(pre) > p_min):
+        raise HeatloadError("accumulator_precharge must not exceed the lowest working "
+                            "pressure", field="strategies.accumulator_precharge")
+    return {"hilo_fraction": sp("high_pressure_fraction"),
+            "unload_pressure": relief / 3.0 if unload is None else unload,
+            "acc_p_min": p_min, "acc_p_max": p_max, "acc_precharge": pre,
+            "acc_volume": sp("accumulator_gas_volume"), "acc_exponent": sp("polytropic_exponent")}
 
 
 def finalize(c: dict) -> dict:

@@ -256,10 +256,11 @@ unloading = "centre"
 [strategy_defaults]
 flow_control_min_drop = "8 bar"
 
-# Circuits to compare.  Leave out [[strategies]] to compare all seven with defaults.
+# Circuits to compare.  Leave out [[strategies]] to compare all of them with defaults.
 [[strategies]]
 kind = "meter-in"                      # meter-in | meter-out | bleed-off | bypass-compensated |
-                                       # pressure-compensated | load-sensing | variable-speed
+                                       # pressure-compensated | load-sensing | variable-speed |
+                                       # hi-lo | accumulator
 label = "meter-in"                     # shown name (default: kind); names must be unique
 price = 0                              # extra price over the cheapest circuit, in currency
 
@@ -288,6 +289,24 @@ kind = "variable-speed"
 min_speed_fraction = 0.1               # slowest motor speed / nominal
 max_speed_fraction = 1.0
 price = 1800
+
+[[strategies]]
+kind = "hi-lo"                         # double pump; [power_unit.pump] is the pair's total
+high_pressure_fraction = 0.25          # the small pump's share of the displacement
+unloading_pressure = "60 bar"          # the large pump unloads above it; default relief / 3
+unloading_valve_drop = "3 bar"         # the unloaded pump's flow to tank crosses this
+price = 600
+
+[[strategies]]
+kind = "accumulator"                   # fixed pump charging a gas accumulator
+accumulator_pressure_max = "170 bar"   # pump idles above it; default relief cracking - 10 bar
+accumulator_pressure_min = "125 bar"   # pump back on below it; default 0.75 x the maximum;
+                                       # every load (+ flow control) must stay below it
+accumulator_precharge = "110 bar"      # gas precharge; default 0.9 x the minimum
+accumulator_gas_volume = "10 L"        # gas volume at the precharge (nominal size)
+polytropic_exponent = 1.0              # 1 isothermal (cycles of minutes); 1.4 adiabatic
+unloading_valve_drop = "3 bar"         # the idling pump's flow to tank
+price = 2000
 
 [cooler]
 oil_temperature_max = "55 degC"        # design oil temperature; default fluid max - 5 K;
@@ -578,6 +597,14 @@ _PARAMETERS = {
     "counterbalance_pilot_ratio": _F("dimensionless", "pos", high=100.0),
     "min_speed_fraction": _F("dimensionless", "frac_pos"),
     "max_speed_fraction": _F("dimensionless", "pos", high=3.0),
+    "high_pressure_fraction": _F("dimensionless", "frac_pos"),
+    "unloading_pressure": _F("pressure", "pos"),
+    "unloading_valve_drop": _F("pressure", "nonneg"),
+    "accumulator_pressure_min": _F("pressure", "pos"),
+    "accumulator_pressure_max": _F("pressure", "pos"),
+    "accumulator_precharge": _F("pressure", "pos"),
+    "accumulator_gas_volume": _F("volume", "pos"),
+    "polytropic_exponent": _F("dimensionless", "pos", high=2.0),
     "price": _F("dimensionless", "nonneg"),
 }
 _STRATEGY = {
@@ -1018,7 +1045,7 @@ def _strategies(data, defaults: dict, source):
                      for k in m.STRATEGIES)
     items = _array(data, "strategies", source)
     if not items:
-        raise _err("leave out [[strategies]] to compare all seven, or list at least one",
+        raise _err("leave out [[strategies]] to compare all of them, or list at least one",
                    "strategies", source)
     out, names = [], set()
     for i, item in enumerate(items):
@@ -1042,6 +1069,18 @@ def _parameters(vals: dict, path: str, source) -> m.StrategyParameters:
     if not params.min_speed_fraction < params.max_speed_fraction:
         raise _err("min_speed_fraction must be below max_speed_fraction",
                    f"{path}.min_speed_fraction", source)
+    if not params.high_pressure_fraction < 1.0:
+        raise _err("high_pressure_fraction must be below 1 (the large pump's share is "
+                   "what is left)", f"{path}.high_pressure_fraction", source)
+    lo, hi, pre = (params.accumulator_pressure_min, params.accumulator_pressure_max,
+                   params.accumulator_precharge)
+    if lo is not None and hi is not None and not lo < hi:
+        raise _err("accumulator_pressure_min must be below accumulator_pressure_max",
+                   f"{path}.accumulator_pressure_min", source)
+    if pre is not None and lo is not None and pre > lo:
+        raise _err("accumulator_precharge must not exceed accumulator_pressure_min (the "
+                   "bladder would bottom out inside the working range)",
+                   f"{path}.accumulator_precharge", source)
     return params
 
 

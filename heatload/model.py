@@ -254,6 +254,23 @@ class StrategyParameters:
     counterbalance_pilot_ratio: float = 3.0  #: pilot ratio of the counterbalance valve [-]
     min_speed_fraction: float = 0.1        #: variable speed: lowest motor speed / nominal [-]
     max_speed_fraction: float = 1.0        #: variable speed: highest / nominal [-]
+    #: hi-lo: the small (high-pressure) pump's share of the double pump's displacement [-]
+    high_pressure_fraction: float = 0.25
+    #: hi-lo: the large pump unloads above this [Pa]; None -> a third of the relief cracking
+    unloading_pressure: Optional[float] = None
+    #: hi-lo, accumulator: drop of an unloaded pump's flow to tank [Pa] (common practice)
+    unloading_valve_drop: float = 3e5
+    #: accumulator: lowest working pressure [Pa]; None -> 0.75 x the highest
+    accumulator_pressure_min: Optional[float] = None
+    #: accumulator: highest working pressure [Pa]; None -> relief cracking - 10 bar
+    #: (at least 0.9 x the cracking)
+    accumulator_pressure_max: Optional[float] = None
+    #: accumulator: gas precharge [Pa]; None -> 0.9 x the lowest working pressure
+    accumulator_precharge: Optional[float] = None
+    #: accumulator: gas volume at the precharge, its nominal size [m^3]
+    accumulator_gas_volume: float = 0.010
+    #: accumulator: polytropic exponent of the gas [-] (1 isothermal: slow cycles)
+    polytropic_exponent: float = 1.0
     price: Optional[float] = None          #: extra price of this circuit over the cheapest [currency]
 
 

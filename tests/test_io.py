@@ -100,7 +100,7 @@ def test_minimal_file_loads_to_si():
     assert s.phases[2].hold_pressure == pytest.approx(100e5, rel=1e-15)  # 1 bar = 1e5 Pa
     assert s.phases[3].speed == pytest.approx(200 / 60, rel=1e-12)       # rpm -> rev/s
     assert isinstance(s.actuator("mot"), model.HydraulicMotor)
-    # no [[strategies]]: all seven with default parameters, in the model's order
+    # no [[strategies]]: every strategy with default parameters, in the model's order
     assert tuple(x.kind for x in s.strategies) == model.STRATEGIES
     assert all(x.parameters == model.StrategyParameters() for x in s.strategies)
     # the sections left out keep the model's defaults
@@ -579,3 +579,37 @@ def test_limits_documented_with_their_reasons():
         assert fragment in section, fragment
     for fragment in ("-60 .. +70 degC", "at least 0.1 L", "area ratio", "24 h"):
         assert fragment in io.SCHEMA_EXAMPLE, fragment
+
+
+def _readme_block(heading):
+    """The first ```toml block after *heading* in the README."""
+    from pathlib import Path
+    readme = (Path(__file__).parents[1] / "README.md").read_text(encoding="utf-8")
+    after = readme.split(heading, 1)[1]
+    return after.split("```toml\n", 1)[1].split("```", 1)[0]
+
+
+def test_readme_hi_lo_and_accumulator_example_loads():
+    text = MINIMAL + "\n" + _readme_block("### Hi-lo and accumulator circuits")
+    s = io.loads_scenario(text, source="README")
+    hilo, acc = s.strategy("hi-lo").parameters, s.strategy("accumulator").parameters
+    assert hilo.high_pressure_fraction == 0.2
+    assert hilo.unloading_pressure == pytest.approx(50e5, rel=1e-15)     # 1 bar = 1e5 Pa
+    assert acc.accumulator_gas_volume == pytest.approx(0.020, rel=1e-15)  # 1 L = 1e-3 m^3
+    assert acc.accumulator_precharge == pytest.approx(110e5, rel=1e-15)
+    # saved and loaded again: the same settings
+    assert io.loads_scenario(io.dumps_scenario(s)).strategies == s.strategies
+
+
+@pytest.mark.parametrize("lines, field", [
+    ('high_pressure_fraction = 1.0', "high_pressure_fraction"),
+    ('accumulator_pressure_min = "180 bar"\naccumulator_pressure_max = "170 bar"',
+     "accumulator_pressure_min"),
+    ('accumulator_pressure_min = "100 bar"\naccumulator_precharge = "120 bar"',
+     "accumulator_precharge"),
+])
+def test_hi_lo_and_accumulator_settings_refused(lines, field):
+    text = MINIMAL + '\n[[strategies]]\nkind = "accumulator"\n' + lines + "\n"
+    with pytest.raises(HeatloadError) as info:
+        io.loads_scenario(text, source="bad.toml")
+    assert field in str(info.value) and "bad.toml" in str(info.value)
