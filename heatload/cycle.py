@@ -14,6 +14,10 @@ outlet "area" ``a_out`` and effective force ``force``:
 
 - cylinder extending: ``a_in = A_cap``, ``a_out = A_annulus``, ``force = F + F_friction``;
   retracting: the areas swap.  Speed [m/s] = Q1 / a_in.
+- cylinder extending with ``regeneration`` (differential connection): ``a_in = A_cap -
+  A_annulus`` (the rod's area), ``a_out = A_annulus``, ``Q2 / Q1 = A_annulus / a_in``; the
+  rod side's oil returns to the cap side, so ``p2`` is the rod side's excess over the cap
+  side (its path's drops) and ``p1 a_in - p2 a_out = force`` still holds.
 - hydraulic motor: ``a_in = a_out = D`` [m^3/rev]; ``force = 2 pi T / eta_hm`` for a
   driving torque T >= 0 and ``2 pi T eta_hm`` for an overrunning one; speed
   [rev/s] = Q1 eta_v / D driving, Q1 / (eta_v D) overrun (the motor then pumps), so
@@ -135,6 +139,18 @@ def phase_arrays(scenario: Scenario, values: Overrides | None = None) -> dict:
                            # to p2 too
                            compression_volume_outlet=a_out * aget("stroke", act.stroke)
                            + aget("dead_volume", act.dead_volume))
+                if ph.regeneration:
+                    # differential connection: the rod side's oil (Q2 = v A_ann) crosses
+                    # the valve and its hose and joins the pump's at the cap side, so the
+                    # pump fills the rod's area only: v = Q1 / A_rod.  With p2 the rod
+                    # side's excess over the cap side (those drops), the balance
+                    # p1 A_cap - (p1 + p2) A_ann = F is p1 A_rod - p2 A_ann = F, the
+                    # generalised actuator's with a_in = A_rod (F = p A_rod when p2 = 0)
+                    row.update(a_in=cap - ann, q_ratio=ann / (cap - ann),
+                               speed_per_flow=1.0 / (cap - ann),
+                               compression_volume=row["compression_volume"]
+                               + row["compression_volume_outlet"],
+                               compression_volume_outlet=0.0)
         spf = row["speed_per_flow"]
         # speed target as inlet flow
         if moving:

@@ -220,6 +220,9 @@ load = "60 kN"
 speed = "20 mm/s"
 stroke = "50 mm"
 compress = true                        # count the compression energy of the cap side
+# regeneration = true                  # extend differentially: the rod side's oil joins
+                                       # the cap side; v = Q / A_rod, F = p A_rod (a fast
+                                       # approach at low force)
 
 [[phases]]
 name = "dwell"
@@ -586,6 +589,7 @@ _PHASE = {
     "hold_force": _F("force", "pos"),
     "unloading": _F("choice", choices=m.UNLOADING),
     "compress": _F("bool"),
+    "regeneration": _F("bool"),
 }
 _PARAMETERS = {
     "flow_control_min_drop": _F("pressure", "nonneg"),
@@ -1012,9 +1016,12 @@ def _phase(item, i, by_name, source):
             vals["speed"] = _value(item["speed"], _PHASE["speed"], f"{p}.speed", source,
                                    kind="shaft_speed" if is_motor else "velocity")
     for key in ("stroke", "duration", "hold_pressure", "hold_force", "unloading",
-                "compress"):
+                "compress", "regeneration"):
         if key in item:
             vals[key] = _value(item[key], _PHASE[key], f"{p}.{key}", source)
+    if vals.get("regeneration") and (is_motor or motion != "extend"):
+        raise _err("only an extending cylinder can regenerate (its rod side joined to the "
+                   "cap side)", f"{p}.regeneration", source)
     if "stroke" in vals:
         if is_motor or motion not in ("extend", "retract"):
             raise _err("only an extending or retracting cylinder has a stroke; give a "
@@ -1588,6 +1595,8 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
             "speed": "shaft_speed" if motor else "velocity"})
         if ph.motion == "idle" and ph.load == 0.0:
             del item["load"]               # an idle phase takes no load key
+        if not ph.regeneration:
+            del item["regeneration"]       # written only where it is set
         if ph.speed is None and ph.motion in ("extend", "retract", "run"):
             item = {k: v for k, v in item.items() if k != "stroke" and k != "duration"
                     and k not in ("hold_pressure", "hold_force", "unloading", "compress")}

@@ -235,6 +235,9 @@ class Phase:
     hold_force: Optional[float] = None     #: force to hold (converted with the cap area) [N]
     unloading: str = "centre"              #: one of :data:`UNLOADING`
     compress: bool = True                  #: count compression energy of the chamber
+    #: an extending cylinder connected differentially: the rod side's oil joins the
+    #: cap side, so speed and force follow the rod area (v = Q / A_rod, F = p A_rod)
+    regeneration: bool = False
 
 
 @dataclass(frozen=True)

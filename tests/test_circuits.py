@@ -600,8 +600,10 @@ def scenarios(draw):
         speed = draw(st.one_of(st.none(), st.floats(0.001, 0.5)))
         unl = draw(st.sampled_from(["relief", "centre", "held"]))
         if kind in ("extend", "retract"):
+            regen = kind == "extend" and draw(st.booleans())
             phases.append(m.Phase(f"p{i}", "c", kind, load=load_frac * relief * a1,
-                                  speed=speed, stroke=0.3, unloading=unl))
+                                  speed=speed, stroke=0.3, unloading=unl,
+                                  regeneration=regen))
         elif kind == "run":
             torque = load_frac * relief * mot.displacement / (2 * math.pi)
             phases.append(m.Phase(f"p{i}", "mot", "run", load=torque,
@@ -942,3 +944,49 @@ def test_accumulator_load_above_its_lowest_pressure_stalls():
     r = _solve(sc, "accumulator")
     assert r.flow_limited[0] or r.stalled[0]
     assert r.speed[0] < 0.05
+
+
+# ---------------------------------------------------------------------------
+# 6. regeneration (differential connection), by hand
+# ---------------------------------------------------------------------------
+
+A_ROD = A1 - A2                                  # pi d^2 / 4 (geometry): 38.48 cm^2
+
+
+def test_regeneration_speed_and_force_from_the_rod_area():
+    # v = Q / A_rod and p = F / A_rod (differential cylinder, common practice):
+    # 10 kN and 0.1 m/s need 10e3 / 38.48e-4 = 25.98 bar and 0.1 x 38.48 cm^2 =
+    # 23.09 L/min, where the plain extension needs 78.54 cm^2: 47.12 L/min
+    assert A_ROD == pytest.approx(math.pi / 4 * ROD**2, rel=1e-12)
+    f, v = 10e3, 0.1
+    ph = m.Phase("approach", "c", "extend", load=f, speed=v, stroke=0.4, regeneration=True)
+    r = _solve(_scenario([ph]), "meter-in")
+    assert _close(r.actuator_flow[0], v * A_ROD, abs_=1e-12)
+    assert r.actuator_flow[0] * 60000 == pytest.approx(23.09, abs=0.01)
+    assert _close(r.inlet_pressure[0], f / A_ROD)
+    assert r.inlet_pressure[0] / 1e5 == pytest.approx(25.98, abs=0.01)
+    assert _close(r.speed[0], v)
+    # ideal drops: the rod side's oil rejoins at the cap pressure, nothing reaches tank
+    assert abs(r.outlet_pressure[0]) < 1e-6
+    assert _close(r.outlet_flow[0], v * A2, abs_=1e-12)
+    assert _close(r.useful_power[0], f * v)
+    assert abs(r.losses["actuator"][0]) < 1e-6
+    # the full pump flow: v = Q_th / A_rod = 0.176 m/s (40.6 L/min over 38.48 cm^2)
+    full = m.Phase("fast", "c", "extend", load=0.0, speed=None, stroke=0.4, regeneration=True)
+    r_full = _solve(_scenario([full]), "bleed-off")
+    assert _close(r_full.speed[0], Q_TH / A_ROD, rel=1e-9)
+    # the duration follows: 0.4 m / 0.176 m/s = 2.27 s
+    assert _close(r_full.duration[0], 0.4 / (Q_TH / A_ROD), rel=1e-9)
+
+
+def test_regeneration_with_drops_keeps_the_force_balance():
+    # real drops on the rod side's path: p1 A_cap - (p1 + p2) A_ann = F, i.e.
+    # p1 A_rod - p2 A_ann = F (force balance, common practice)
+    ph = m.Phase("approach", "c", "extend", load=10e3, speed=0.1, stroke=0.4,
+                 regeneration=True)
+    sc = _scenario([ph])
+    r = circuits.solve_strategy("meter-in", cycle.circuit_inputs(sc, "meter-in"))
+    p1, p2 = r.inlet_pressure[0], r.outlet_pressure[0]
+    assert p2 > 0
+    assert p1 * A1 - (p1 + p2) * A2 == pytest.approx(10e3, rel=1e-9)
+    assert abs(r.balance_residual[0]) < 1e-9 * r.electric_power[0]

@@ -613,3 +613,23 @@ def test_hi_lo_and_accumulator_settings_refused(lines, field):
     with pytest.raises(HeatloadError) as info:
         io.loads_scenario(text, source="bad.toml")
     assert field in str(info.value) and "bad.toml" in str(info.value)
+
+
+def test_regeneration_is_read_written_and_refused_where_it_cannot_be():
+    text = MINIMAL.replace('motion = "extend"', 'motion = "extend"\nregeneration = true', 1)
+    s = io.loads_scenario(text)
+    assert [p.regeneration for p in s.phases][:2] == [True, False]
+    again = io.dumps_scenario(s)
+    assert again.count("regeneration") == 1           # written only where it is set
+    assert io.loads_scenario(again) == s
+    bad = MINIMAL.replace('motion = "retract"', 'motion = "retract"\nregeneration = true', 1)
+    assert bad != MINIMAL
+    with pytest.raises(HeatloadError, match="only an extending cylinder can regenerate") as e:
+        io.loads_scenario(bad, source="bad.toml")
+    assert "regeneration" in str(e.value)
+
+
+def test_readme_regeneration_example_loads():
+    text = MINIMAL + "\n" + _readme_block("### Regeneration")
+    s = io.loads_scenario(text, source="README")
+    assert s.phases[-1].regeneration and s.phases[-1].speed is None
