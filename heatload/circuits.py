@@ -511,7 +511,8 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
                                               - np.maximum(p2_prev, 0.0) ** 2)
     e_comp = np.maximum(e_in, 0.0) + np.maximum(e_out, 0.0)
     e_comp = np.where(c["compress"], e_comp / (2.0 * c["bulk_modulus"]), 0.0)
-    losses["compression"] = e_comp / t_actual
+    # once per pass: a repeated phase's duration holds all its passes
+    losses["compression"] = e_comp * c.get("repeats", 1.0) / t_actual
     p_shaft = p_shaft_hyd + losses["compression"]
 
     # drive motor (and converter for variable speed)
@@ -547,11 +548,12 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
 def _actual_duration(c, speed, stalled):
     """Phase duration [s]: the stroke at the speed reached where the phase is
-    given by its stroke, else the given duration.  A stalled stroke keeps its
-    nominal duration (the result carries the stall warning)."""
+    given by its stroke, else the given duration; times its passes per cycle
+    (``repeats``: a repeated block's phase lasts all its passes).  A stalled
+    stroke keeps its nominal duration (the result carries the stall warning)."""
     by_stroke = c["by_stroke"] & (speed > 0)
     t = np.where(by_stroke, c["stroke"] / np.where(speed > 0, speed, 1.0), c["duration"])
-    return np.maximum(t, 1e-9)
+    return np.maximum(t, 1e-9) * c.get("repeats", 1.0)
 
 
 def solve_all(c: dict, strategies=None) -> dict:

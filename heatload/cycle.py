@@ -185,6 +185,9 @@ def phase_arrays(scenario: Scenario, values: Overrides | None = None) -> dict:
             out["previous_phase"][i] = j
     for k, v in cols.items():
         out[k] = np.stack(np.broadcast_arrays(*v), axis=-1)
+    # passes per cycle of each phase ([[repeats]]): its time in the cycle is that
+    # many of its single pass
+    out["repeats"] = np.asarray(scenario.phase_repeats(), float)
     return out
 
 

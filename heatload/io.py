@@ -73,7 +73,14 @@ prepared_by = "A. Designer"
 revision = "A"
 
 [economics]
-hours_per_year = 4000                  # running hours of the machine [h/year]
+hours_per_year = 4000                  # running hours of the machine [h/year], or instead
+                                       # a shift pattern (all three; then no hours_per_year
+                                       # and no shift_duration: the warm-up from cold runs
+                                       # over each day's hours):
+# hours_per_shift = 8
+# shifts_per_day = 2
+# days_per_week = 5
+# weeks_per_year = 50                  # default 50 with a shift pattern
 electricity_price = "0.20 /kWh"        # price of bought electrical energy, in `currency`
 currency = "EUR"
 grid_co2_factor = "0.35 kg/kWh"        # CO2 emitted per kWh bought
@@ -254,6 +261,12 @@ name = "part change"
 motion = "idle"
 duration = "8 s"
 unloading = "centre"
+
+# A block of consecutive phases run more than once per cycle, written once:
+# [[repeats]]
+# first = "press"                      # the block's first phase (by name)
+# last = "dwell"                       # its last; default: the first
+# count = 2                            # passes per cycle (a whole number)
 
 # Shared by every strategy below (any key of a [[strategies]] item except kind and label).
 [strategy_defaults]
@@ -450,6 +463,10 @@ _SCENARIO = {
 }
 _ECONOMICS = {
     "hours_per_year": _F("dimensionless", "pos", high=8784.0),
+    "hours_per_shift": _F("dimensionless", "pos", high=24.0),
+    "shifts_per_day": _F("dimensionless", "pos", high=24.0),
+    "days_per_week": _F("dimensionless", "pos", high=7.0),
+    "weeks_per_year": _F("dimensionless", "pos", high=53.0),
     "electricity_price": _F("specific_energy_price", "nonneg"),
     "currency": _F("str", "nonempty"),
     "grid_co2_factor": _F("emission_factor", "nonneg"),
@@ -642,8 +659,13 @@ _UNCERTAINTY = {
 }
 _TOP = ("scenario", "economics", "fluid", "ambient", "reservoir", "power_unit",
         "actuators", "phases", "strategy_defaults", "strategies", "cooler",
-        "uncertainty", "coolers")
-_ARRAYS = ("actuators", "phases", "strategies", "uncertainty")
+        "uncertainty", "coolers", "repeats")
+_ARRAYS = ("actuators", "phases", "strategies", "uncertainty", "repeats")
+_REPEAT = {
+    "first": _F("str", "nonempty", required=True),
+    "last": _F("str", "nonempty"),
+    "count": _F("dimensionless", "pos", high=1000.0, required=True),
+}
 
 
 # ---------------------------------------------------------------------------
@@ -979,6 +1001,39 @@ def _phases(data, actuators, source):
     return tuple(out)
 
 
+def _repeats(data, phases, source) -> tuple:
+    """``[[repeats]]``: blocks of consecutive phases run *count* times per cycle."""
+    items = _array(data, "repeats", source)
+    names = [p.name for p in phases]
+    taken = [None] * len(names)
+    out = []
+    for i, item in enumerate(items):
+        p = f"repeats[{i}]"
+        _table(item, _REPEAT, p, source)
+        vals = _read(item, _REPEAT, p, source)
+        for key in ("first", "last"):
+            if key in vals and vals[key] not in names:
+                raise _err(f"no phase called {vals[key]!r}{_suggest(vals[key], names)}",
+                           f"{p}.{key}", source)
+        first = vals["first"]
+        last = vals.get("last", first)
+        a, b = names.index(first), names.index(last)
+        if b < a:
+            raise _err(f"{last!r} comes before {first!r} in [[phases]]; a block runs from "
+                       f"its first phase to its last", f"{p}.last", source)
+        count = vals["count"]
+        if count != int(count):
+            raise _err(f"count must be a whole number of passes, not {count:g}",
+                       f"{p}.count", source)
+        for j in range(a, b + 1):
+            if taken[j] is not None:
+                raise _err(f"phase {names[j]!r} is already in repeats[{taken[j]}]; blocks "
+                           f"may not overlap", f"{p}.first", source)
+            taken[j] = i
+        out.append(m.Repeat(first=first, last=last, count=int(count)))
+    return tuple(out)
+
+
 def _phase(item, i, by_name, source):
     p = f"phases[{i}]"
     _table(item, _PHASE, p, source)
@@ -1091,8 +1146,28 @@ def _parameters(vals: dict, path: str, source) -> m.StrategyParameters:
     return params
 
 
-def _economics(data, strategies, source):
+_SHIFT_KEYS = ("hours_per_shift", "shifts_per_day", "days_per_week")
+
+
+def _economics(data, strategies, source, shift_given=False):
     e = _simple(data, _ECONOMICS, "economics", source, m.Economics())
+    given = [k for k in _SHIFT_KEYS if k in data]
+    if given or "weeks_per_year" in data:
+        missing = [k for k in _SHIFT_KEYS if k not in data]
+        if missing:
+            raise _err(f"a shift pattern needs {', '.join(_SHIFT_KEYS)}; "
+                       f"{missing[0]} is missing", f"economics.{missing[0]}", source)
+        if "hours_per_year" in data:
+            raise _err("give hours_per_year or a shift pattern (hours_per_shift, "
+                       "shifts_per_day, days_per_week), not both",
+                       "economics.hours_per_year", source)
+        if shift_given:
+            raise _err("with a shift pattern the warm-up runs over one day's hours from "
+                       "cold; leave shift_duration out", "scenario.shift_duration", source)
+        if e.hours_per_shift * e.shifts_per_day > 24.0 * (1 + 1e-12):
+            raise _err(f"{e.hours_per_shift:g} h x {e.shifts_per_day:g} shifts is more than "
+                       f"a day (24 h)", "economics.shifts_per_day", source)
+        e = dataclasses.replace(e, hours_per_year=m.shift_hours(e)[0])
     if e.present_strategy is not None:
         names = [s.name for s in strategies] + [s.kind for s in strategies]
         if e.present_strategy not in names:
@@ -1217,8 +1292,12 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
                          source)
         _parameters(defaults, "strategy_defaults", source)
     strategies = _strategies(data.get("strategies"), defaults, source)
-    economics = (_economics(data["economics"], strategies, source)
+    economics = (_economics(data["economics"], strategies, source,
+                            "shift_duration" in data["scenario"])
                  if "economics" in data else m.Economics())
+    pattern = m.shift_hours(economics)
+    if pattern is not None:
+        head["shift_duration"] = pattern[1] * 3600.0   # cold start each day
     cooler = (_simple(data["cooler"], _COOLER, "cooler", source, m.CoolerDesign())
               if "cooler" in data else m.CoolerDesign())
     # datasheet coolers: their format lives with their physics
@@ -1229,6 +1308,9 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
                           reservoir=reservoir, power_unit=power_unit, economics=economics,
                           cooler=cooler, coolers=coolers,
                           **{k: v for k, v in head.items() if k != "name"})
+    if "repeats" in data:
+        scenario = dataclasses.replace(scenario,
+                                       repeats=_repeats(data["repeats"], phases, source))
     if "uncertainty" in data:
         scenario = dataclasses.replace(
             scenario, uncertainty=_uncertainty(data["uncertainty"], scenario, source))
@@ -1568,6 +1650,12 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
         if getattr(s, k):
             d["scenario"][k] = getattr(s, k)
     d["economics"] = _dump_fields(s.economics, _ECONOMICS)
+    if s.repeats:
+        d["repeats"] = [{"first": r.first, "last": r.last, "count": r.count}
+                        for r in s.repeats]
+    if m.shift_hours(s.economics) is not None:
+        # the pattern gives both: written, they would contradict it on loading
+        del d["economics"]["hours_per_year"], d["scenario"]["shift_duration"]
     fluid = _dump_fields(s.fluid, _FLUID, skip=("viscosity_points",))
     if s.fluid.viscosity_points:
         fluid["viscosity_points"] = [[_format(t, "temperature"),

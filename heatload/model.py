@@ -241,6 +241,16 @@ class Phase:
 
 
 @dataclass(frozen=True)
+class Repeat:
+    """A block of consecutive phases (from *first* to *last*, by name) that runs
+    *count* times in each cycle, written once."""
+
+    first: str
+    last: str
+    count: int = 2                         #: passes of the block per cycle [-]
+
+
+@dataclass(frozen=True)
 class StrategyParameters:
     """Settings of the strategy-specific components.
 
@@ -295,12 +305,39 @@ class Economics:
     """Operating hours, energy price and grid emissions."""
 
     hours_per_year: float = 4000.0         #: machine running hours [h/year]
+    #: a shift pattern (all three, or none): hours per shift [h], shifts per day,
+    #: running days per week; with it hours_per_year = their product x weeks_per_year,
+    #: and the warm-up from cold runs over one day's hours (cold start each day)
+    hours_per_shift: Optional[float] = None
+    shifts_per_day: Optional[float] = None
+    days_per_week: Optional[float] = None
+    weeks_per_year: Optional[float] = None  #: None -> 50 with a shift pattern [-]
     electricity_price: float = 0.20 / 3.6e6  #: [currency/J]
     currency: str = "EUR"
     grid_co2_factor: float = 0.35 / 3.6e6  #: [kg/J]
     present_strategy: Optional[str] = None  #: the circuit the machine has now
     service_life: float = 10.0             #: years over which prices are annualised [year]
     interest_rate: float = 0.05            #: for the annualised prices [-/year]
+
+
+#: Working weeks a year of a shift pattern that gives none (52 less about two
+#: of holidays and shutdowns; common practice, from memory).
+WEEKS_PER_YEAR = 50.0
+
+
+def shift_hours(economics: Economics):
+    """``(hours per year [h], running hours per day [h])`` of a shift pattern,
+    or None when the economics give none.
+
+    .. math::  H_{year} = h_{shift} \, n_{shifts} \, n_{days} \, n_{weeks},
+               \qquad H_{day} = h_{shift} \, n_{shifts}
+    """
+    e = economics
+    if e.hours_per_shift is None:
+        return None
+    weeks = WEEKS_PER_YEAR if e.weeks_per_year is None else e.weeks_per_year
+    day = e.hours_per_shift * e.shifts_per_day
+    return day * e.days_per_week * weeks, day
 
 
 @dataclass(frozen=True)
@@ -376,6 +413,8 @@ class Scenario:
     shift_duration: float = 8 * 3600.0
     #: uncertain inputs (:class:`UncertainInput` items)
     uncertainty: tuple = ()
+    #: blocks of phases repeated within the cycle (:class:`Repeat` items)
+    repeats: tuple = ()
     #: air-oil coolers given by their datasheet curves
     #: (:class:`heatload.cooler_datasheet.DatasheetCooler` items)
     coolers: tuple = ()
@@ -391,6 +430,15 @@ class Scenario:
             if a.name == name:
                 return a
         raise KeyError(name)
+
+    def phase_repeats(self) -> tuple:
+        """Passes of each phase per cycle: a block's count inside it, else 1."""
+        names = [p.name for p in self.phases]
+        out = [1] * len(names)
+        for r in self.repeats:
+            for i in range(names.index(r.first), names.index(r.last) + 1):
+                out[i] = r.count
+        return tuple(out)
 
     def strategy(self, name: str) -> Strategy:
         for s in self.strategies:

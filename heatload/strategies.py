@@ -635,7 +635,7 @@ class Accumulator(MeterIn):
                                                     c["acc_precharge"], c["acc_volume"],
                                                     c["acc_exponent"]), shape)
         q_on = np.broadcast_to(q_on, shape)
-        need = q1 * t
+        need = q1 * t / c.get("repeats", 1.0)     # one pass of a repeated phase
         short = (q1 > q_on) & (need > usable * (1.0 + 1e-9))
         behind = np.broadcast_to(np.asarray(duty)[..., None] > 1.0 + 1e-9, shape) \
             & np.broadcast_to(c["moving"], shape)

@@ -10,6 +10,7 @@
 4. Vectorization: a leading variants axis gives the same numbers as separate solves.
 """
 
+import dataclasses
 import math
 
 import numpy as np
@@ -990,3 +991,34 @@ def test_regeneration_with_drops_keeps_the_force_balance():
     assert p2 > 0
     assert p1 * A1 - (p1 + p2) * A2 == pytest.approx(10e3, rel=1e-9)
     assert abs(r.balance_residual[0]) < 1e-9 * r.electric_power[0]
+
+
+# ---------------------------------------------------------------------------
+# 7. repeated blocks of phases
+# ---------------------------------------------------------------------------
+
+@pytest.mark.parametrize("strategy", STRATEGIES)
+def test_repeated_block_equals_the_copied_phases(strategy):
+    # a block (press, back) run 3 times in the cycle, written once, gives the cycle
+    # the copied phases give: time t_A + 3 (t_B + t_C), energy sum(P t) alike
+    a = m.Phase("approach", "c", "extend", load=2e3, speed=0.1, stroke=0.2, compress=False)
+    b = m.Phase("press", "c", "extend", load=F_EXT, speed=0.02, stroke=0.05, compress=False)
+    cc = m.Phase("back", "c", "retract", load=1e3, speed=0.1, stroke=0.05, compress=False)
+    idle = m.Phase("wait", None, "idle", duration=4.0)
+    rep = dataclasses.replace(_scenario([a, b, cc, idle]),
+                              repeats=(m.Repeat("press", "back", 3),))
+    copied = _scenario([a, b, cc, dataclasses.replace(b, name="press2"),
+                        dataclasses.replace(cc, name="back2"),
+                        dataclasses.replace(b, name="press3"),
+                        dataclasses.replace(cc, name="back3"), idle])
+    r = circuits.solve_strategy(strategy, cycle.circuit_inputs(rep, strategy))
+    k = circuits.solve_strategy(strategy, cycle.circuit_inputs(copied, strategy))
+    t_one = 0.2 / 0.1 + 3 * (0.05 / 0.02 + 0.05 / 0.1) + 4.0      # 2 + 3 x 3 + 4 = 15 s
+    if not (r.flow_limited.any() or r.stalled.any()):
+        assert r.duration.sum() == pytest.approx(t_one, rel=1e-12)
+    assert r.duration.sum() == pytest.approx(k.duration.sum(), rel=1e-12)
+    for name in ("electric_power", "heat_to_oil"):
+        e_rep = (getattr(r, name) * r.duration).sum()
+        e_cop = (getattr(k, name) * k.duration).sum()
+        assert e_rep == pytest.approx(e_cop, rel=1e-9), name
+    assert np.all(np.abs(r.balance_residual) <= 1e-9 * (np.abs(r.electric_power) + 1.0))

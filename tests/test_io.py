@@ -633,3 +633,76 @@ def test_readme_regeneration_example_loads():
     text = MINIMAL + "\n" + _readme_block("### Regeneration")
     s = io.loads_scenario(text, source="README")
     assert s.phases[-1].regeneration and s.phases[-1].speed is None
+
+
+def test_shift_pattern_gives_hours_per_year_and_the_daily_warm_up():
+    text = MINIMAL + ('\n[economics]\nhours_per_shift = 8\nshifts_per_day = 2\n'
+                      'days_per_week = 5\n')
+    s = io.loads_scenario(text)
+    # 8 h x 2 shifts x 5 days x 50 weeks (the default) = 4000 h; a 16 h day from cold
+    assert s.economics.hours_per_year == pytest.approx(8 * 2 * 5 * 50, rel=1e-15)
+    assert s.shift_duration == pytest.approx(16 * 3600, rel=1e-15)
+    again = io.dumps_scenario(s)
+    assert "hours_per_year" not in again and "shift_duration" not in again
+    assert io.loads_scenario(again) == s
+    s48 = io.loads_scenario(text + "weeks_per_year = 48\n")
+    assert s48.economics.hours_per_year == pytest.approx(8 * 2 * 5 * 48, rel=1e-15)
+    # the older key alone keeps working
+    old = io.loads_scenario(MINIMAL + "\n[economics]\nhours_per_year = 3000\n")
+    assert old.economics.hours_per_year == 3000 and old.shift_duration == 8 * 3600
+
+
+@pytest.mark.parametrize("extra, field", [
+    ("hours_per_shift = 8\nshifts_per_day = 2\n", "economics.days_per_week"),
+    ("hours_per_shift = 8\nshifts_per_day = 2\ndays_per_week = 5\nhours_per_year = 4000\n",
+     "economics.hours_per_year"),
+    ("hours_per_shift = 10\nshifts_per_day = 3\ndays_per_week = 5\n",
+     "economics.shifts_per_day"),
+    ("days_per_week = 8\n", "economics.days_per_week"),
+])
+def test_shift_pattern_refused(extra, field):
+    with pytest.raises(HeatloadError) as info:
+        io.loads_scenario(MINIMAL + "\n[economics]\n" + extra, source="bad.toml")
+    assert field in str(info.value)
+
+
+def test_shift_pattern_and_shift_duration_are_not_both_given():
+    text = MINIMAL.replace('name = "test rig"', 'name = "test rig"\nshift_duration = "8 h"')
+    text += "\n[economics]\nhours_per_shift = 8\nshifts_per_day = 1\ndays_per_week = 5\n"
+    with pytest.raises(HeatloadError, match="shift_duration"):
+        io.loads_scenario(text)
+
+
+def test_repeats_read_written_and_refused():
+    text = MINIMAL + '\n[[repeats]]\nfirst = "out"\nlast = "back"\ncount = 3\n'
+    s = io.loads_scenario(text)
+    assert s.repeats == (model.Repeat("out", "back", 3),)
+    assert s.phase_repeats() == (3, 3, 1, 1)
+    assert len(s.phases) == 4                         # written once, not copied
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
+    # one phase alone: last defaults to first
+    s1 = io.loads_scenario(MINIMAL + '\n[[repeats]]\nfirst = "spin"\ncount = 2\n')
+    assert s1.phase_repeats() == (1, 1, 1, 2)
+
+
+@pytest.mark.parametrize("block, fragment", [
+    ('first = "outt"\ncount = 2', "no phase called 'outt'"),
+    ('first = "back"\nlast = "out"\ncount = 2', "comes before"),
+    ('first = "out"\ncount = 2.5', "whole number"),
+    ('first = "out"\ncount = 0', "count"),
+    ('first = "out"\nlast = "back"\ncount = 2\n\n[[repeats]]\nfirst = "back"\ncount = 2',
+     "may not overlap"),
+])
+def test_bad_repeats_refused(block, fragment):
+    with pytest.raises(HeatloadError, match=fragment):
+        io.loads_scenario(MINIMAL + "\n[[repeats]]\n" + block + "\n", source="bad.toml")
+
+
+def test_readme_repeats_and_shift_example_loads():
+    phases = MINIMAL.replace('name = "out"', 'name = "charge"').replace(
+        'name = "back"', 'name = "charge back"')
+    s = io.loads_scenario(phases + "\n" + _readme_block("### Repeated blocks and shift"),
+                          source="README")
+    assert s.phase_repeats() == (2, 2, 1, 1)
+    assert s.economics.hours_per_year == pytest.approx(3840, rel=1e-15)   # 8 x 2 x 5 x 48
+    assert s.shift_duration == pytest.approx(16 * 3600, rel=1e-15)
