@@ -61,7 +61,7 @@ ROOM_LOSSES = ("drive_motor", "converter")
 LOSS_COMPONENTS = OIL_LOSSES + ROOM_LOSSES
 
 #: Unloading codes used in the arrays (see :data:`heatload.model.UNLOADING`).
-UNLOAD_RELIEF, UNLOAD_CENTRE, UNLOAD_HELD = 0, 1, 2
+UNLOAD_RELIEF, UNLOAD_CENTRE, UNLOAD_HELD, UNLOAD_CHECK = 0, 1, 2, 3
 
 #: Counterbalance setting assumed where a circuit cannot hold an overrunning
 #: load: 1.3 x the load-induced pressure (common practice for the setting).
@@ -204,12 +204,16 @@ def _inlet_pressure(q1, c, outlet_extra):
 def _inlet_pressure_at(p_back, c):
     """:func:`_inlet_pressure` for a known outlet back pressure *p_back* [Pa]."""
     a1, a2, f = c["a_in"], c["a_out"], c["force"]
+    # an actuator's back-pressure valve adds its setting to the outlet path while it
+    # moves (a fixed counter-force bp A2; loss Q2 bp, booked with the counterbalance)
+    bp = c.get("back_pressure", 0.0)
+    p_back = p_back + bp
     p1_open = (f + a2 * p_back) / a1
     setting = np.where(c["cb_active"], c["cb_setting"], 0.0)
     p1_active = (f + a2 * (p_back + setting)) / (a1 + c["cb_ratio"] * a2)
     p1 = np.where(c["cb_active"], np.maximum(p1_open, p1_active), p1_open)
     dp_cb = np.where(c["cb_active"], np.maximum(setting - c["cb_ratio"] * p1, 0.0), 0.0)
-    return p1, p_back + dp_cb, dp_cb
+    return p1, p_back + dp_cb, dp_cb + bp
 
 
 # ---------------------------------------------------------------------------
@@ -266,6 +270,12 @@ class _Subset(dict):
             v = v[self._idx]
         self[key] = v
         return v
+
+    def get(self, key, default=None):
+        try:
+            return self[key]
+        except KeyError:
+            return default
 
 
 def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
@@ -388,6 +398,12 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # throttle needs none.  Where none is fitted the load would run away: the
     # phase is flagged and its figures assume one set at 1.3 x the load-induced
     # pressure.
+    # an actuator's own counterbalance valve (phase entries) replaces the strategy's
+    if "cb_own" in c:
+        own = c["cb_own"]
+        c["cb_fitted"] = c["cb_fitted"] | own
+        c["cb_setting"] = np.where(own, c["cb_own_setting"], c["cb_setting"])
+        c["cb_ratio"] = np.where(own, c["cb_own_ratio"], c["cb_ratio"])
     runaway = overrun & ~c["cb_fitted"] & (not kind.meters_out)
     c["cb_active"] = overrun & (c["cb_fitted"] | runaway) & (not kind.meters_out)
     c["cb_setting"] = np.where(runaway, COUNTERBALANCE_FACTOR * np.abs(c["force"]) / c["a_out"],
@@ -436,10 +452,16 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     # ---- phases with nothing moving (hold / idle) ----------------------------
     p_hold = np.where(moving, 0.0, c["hold_pressure"])
-    holding = ~moving & (p_hold > 0.0)
     unload = c["unloading"]
+    # a pilot-operated check holds the load; the pump is unloaded meanwhile: a fixed
+    # pump vented (at the centre's drop, whatever the centre), a variable one at zero
+    # stroke or standby.  No relief flow; the pump's leakage only
+    on_check = ~moving & (unload == UNLOAD_CHECK)
+    holding = ~moving & (p_hold > 0.0) & ~on_check
+    vent = on_check & (not kind.variable_pump)
+    c["centre_unloads"] = c["centre_unloads"] | vent
     centre_ok = c["centre_unloads"]
-    use_centre = ~moving & (unload == UNLOAD_CENTRE) & centre_ok
+    use_centre = ~moving & ((unload == UNLOAD_CENTRE) | vent) & centre_ok
     # centre drop at the full theoretical flow (leakage at a few bar is negligible)
     centre_dp = _centre_drop(c["q_theoretical"], c)
     relief_full = _relief_supply(z, c, c["q_theoretical"])

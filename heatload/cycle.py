@@ -30,11 +30,12 @@ import numpy as np
 
 from heatload import motors, oil, pumps
 from heatload.actuators import cylinder_areas
-from heatload.circuits import UNLOAD_CENTRE, UNLOAD_HELD, UNLOAD_RELIEF
+from heatload.circuits import UNLOAD_CENTRE, UNLOAD_CHECK, UNLOAD_HELD, UNLOAD_RELIEF
 from heatload.model import Scenario, Strategy, StrategyParameters
 from heatload.paths import Overrides
 
-_UNLOAD_CODE = {"relief": UNLOAD_RELIEF, "centre": UNLOAD_CENTRE, "held": UNLOAD_HELD}
+_UNLOAD_CODE = {"relief": UNLOAD_RELIEF, "centre": UNLOAD_CENTRE, "held": UNLOAD_HELD,
+                "pilot-check": UNLOAD_CHECK}
 TWO_PI = 2.0 * np.pi
 
 
@@ -188,7 +189,30 @@ def phase_arrays(scenario: Scenario, values: Overrides | None = None) -> dict:
     # passes per cycle of each phase ([[repeats]]): its time in the cycle is that
     # many of its single pass
     out["repeats"] = np.asarray(scenario.phase_repeats(), float)
+    out.update(_actuator_valves(scenario, phases, out["moving"]))
     return out
+
+
+def _actuator_valves(scenario: Scenario, phases, moving) -> dict:
+    """Valves set per actuator in its outlet line, per phase: its own
+    counterbalance (``cb_own``, setting, pilot ratio; replaces the strategy's)
+    and a back-pressure valve's setting while it moves (``back_pressure`` [Pa])."""
+    n = len(phases)
+    own, setting, ratio, bp = (np.zeros(n, bool), np.zeros(n), np.full(n, 3.0),
+                               np.zeros(n))
+    for i, ph in enumerate(phases):
+        act = scenario.actuator(ph.actuator) if ph.actuator else None
+        if act is None:
+            continue
+        if getattr(act, "counterbalance_setting", None) is not None:
+            own[i], setting[i] = True, act.counterbalance_setting
+            ratio[i] = act.counterbalance_pilot_ratio
+        if getattr(act, "back_pressure", None) is not None and moving[i]:
+            bp[i] = act.back_pressure
+    if not own.any() and not bp.any():
+        return {}                   # the circuit as without per-actuator valves
+    return {"cb_own": own, "cb_own_setting": setting, "cb_own_ratio": ratio,
+            "back_pressure": bp}
 
 
 def oil_entries(scenario: Scenario, oil_temperature) -> dict:

@@ -193,6 +193,11 @@ stroke = "400 mm"
 friction_force = "500 N"               # seal friction, opposes motion
 max_pressure = "250 bar"
 dead_volume = "0.3 L"                  # oil in the hoses, each side
+# counterbalance_setting = "120 bar"   # its own counterbalance valve in the outlet line
+                                       # (default: the strategy's, if any)
+# counterbalance_pilot_ratio = 3.0
+# back_pressure = "5 bar"              # a back-pressure valve in its outlet line: its
+                                       # counter-force and its loss while it moves
 
 [[actuators]]
 name = "spindle"
@@ -238,7 +243,9 @@ motion = "hold"
 duration = "3 s"
 hold_pressure = "160 bar"              # pressure held on the cap side, or instead:
 # hold_force = "50 kN"                 # a force held (not both)
-unloading = "held"                     # relief | centre | held (how the pump is unloaded)
+unloading = "held"                     # relief | centre | held | pilot-check (how the pump
+                                       # is unloaded; pilot-check: a pilot-operated check
+                                       # holds the load, the pump is unloaded)
 
 [[phases]]
 name = "return"
@@ -583,6 +590,9 @@ _CYLINDER = {
     "friction_force": _F("force", "nonneg"),
     "max_pressure": _F("pressure", "pos"),
     "dead_volume": _F("volume", "nonneg"),
+    "counterbalance_setting": _F("pressure", "pos"),
+    "counterbalance_pilot_ratio": _F("dimensionless", "pos", high=100.0),
+    "back_pressure": _F("pressure", "pos"),
 }
 _HYDRAULIC_MOTOR = {
     "name": _F("str", "nonempty", required=True),
@@ -592,6 +602,9 @@ _HYDRAULIC_MOTOR = {
     "hydromechanical_efficiency": _F("dimensionless", "eff"),
     "max_pressure": _F("pressure", "pos"),
     "max_speed": _F("shaft_speed", "pos"),
+    "counterbalance_setting": _F("pressure", "pos"),
+    "counterbalance_pilot_ratio": _F("dimensionless", "pos", high=100.0),
+    "back_pressure": _F("pressure", "pos"),
 }
 #: Phase keys; the kinds of load and speed depend on the actuator (see _phase_kind).
 _PHASE = {

@@ -33,7 +33,7 @@ MOTIONS = ("extend", "retract", "hold", "idle", "run")
 #: ``centre``: the directional valve's open/tandem centre returns it to tank at low pressure;
 #: ``held``: the pump holds the phase's pressure at near-zero flow (variable
 #: pumps and variable speed only; a fixed pump falls back to ``relief``).
-UNLOADING = ("relief", "centre", "held")
+UNLOADING = ("relief", "centre", "held", "pilot-check")
 
 
 @dataclass(frozen=True)
@@ -197,6 +197,11 @@ class Cylinder:
     friction_force: float = 0.0            #: seal friction, opposes motion [N]
     max_pressure: float = 250e5            #: rating [Pa]
     dead_volume: float = 0.0               #: oil in hoses to the cylinder, each side [m^3]
+    #: its own counterbalance valve in the outlet line [Pa]; None -> the strategy's
+    counterbalance_setting: Optional[float] = None
+    counterbalance_pilot_ratio: float = 3.0  #: of its own counterbalance valve [-]
+    #: a back-pressure (counter-force) valve in its outlet line [Pa]; None -> none
+    back_pressure: Optional[float] = None
     kind: str = "cylinder"
 
 
@@ -210,6 +215,11 @@ class HydraulicMotor:
     hydromechanical_efficiency: float = 0.92  #: [-]
     max_pressure: float = 250e5            #: rating [Pa]
     max_speed: Optional[float] = None      #: [rev/s]
+    #: its own counterbalance (brake) valve in the outlet line [Pa]; None -> the strategy's
+    counterbalance_setting: Optional[float] = None
+    counterbalance_pilot_ratio: float = 3.0  #: of its own counterbalance valve [-]
+    #: a back-pressure (counter-force) valve in its outlet line [Pa]; None -> none
+    back_pressure: Optional[float] = None
     kind: str = "motor"
 
 

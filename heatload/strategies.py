@@ -154,10 +154,11 @@ class MeterOut(MeterIn):
         # throttle drop = what the relief pressure leaves beyond the force balance
         p_pump = _c._relief_supply(q1, c, c["q_theoretical"])
         p1_open = p_pump - supply
-        # p1 A1 - (p_back + dp_fc) A2 = F  ->  dp_fc = (p1 A1 - F)/A2 - p_back
+        # p1 A1 - (p_back + bp + dp_fc) A2 = F  ->  dp_fc = (p1 A1 - F)/A2 - p_back - bp
+        # (bp: the actuator's back-pressure valve, if any)
         dp_fc_out = np.where(moving & ~stalled,
                              np.maximum((p1_open * c["a_in"] - c["force"]) / c["a_out"]
-                                        - p_back, 0.0), 0.0)
+                                        - p_back - c.get("back_pressure", 0.0), 0.0), 0.0)
         p1, p2, dp_cb = _c._inlet_pressure_at(p_back + dp_fc_out, c)
         return p_pump, p1, p2, dp_cb, np.zeros(np.shape(q1)), dp_fc_out
 
@@ -412,6 +413,12 @@ class _Share(dict):
 
     def __missing__(self, key):
         return self._c[key]
+
+    def get(self, key, default=None):
+        try:
+            return self[key]
+        except KeyError:
+            return default
 
 
 class HiLo(MeterIn):

@@ -589,7 +589,9 @@ def scenarios(draw):
     pu = m.PowerUnit(pump=pump, relief=m.ReliefValve(cracking_pressure=relief,
                                                      override=draw(st.floats(0.0, 30e5))))
     cyl = m.Cylinder("c", bore=bore, rod=rod, stroke=0.5,
-                     friction_force=draw(st.floats(0.0, 2e3)), dead_volume=1e-4)
+                     friction_force=draw(st.floats(0.0, 2e3)), dead_volume=1e-4,
+                     back_pressure=draw(st.one_of(st.none(), st.floats(1e5, 20e5))),
+                     counterbalance_setting=draw(st.one_of(st.none(), st.floats(10e5, 200e5))))
     mot = m.HydraulicMotor("mot", displacement=draw(st.floats(10e-6, 200e-6)),
                            volumetric_efficiency=draw(st.floats(0.85, 0.99)),
                            hydromechanical_efficiency=draw(st.floats(0.85, 0.99)))
@@ -599,7 +601,7 @@ def scenarios(draw):
         kind = draw(st.sampled_from(["extend", "retract", "run", "hold", "idle"]))
         load_frac = draw(st.floats(-0.8, 1.3))   # of the relief force; beyond 1 stalls
         speed = draw(st.one_of(st.none(), st.floats(0.001, 0.5)))
-        unl = draw(st.sampled_from(["relief", "centre", "held"]))
+        unl = draw(st.sampled_from(["relief", "centre", "held", "pilot-check"]))
         if kind in ("extend", "retract"):
             regen = kind == "extend" and draw(st.booleans())
             phases.append(m.Phase(f"p{i}", "c", kind, load=load_frac * relief * a1,
@@ -1022,3 +1024,96 @@ def test_repeated_block_equals_the_copied_phases(strategy):
         e_cop = (getattr(k, name) * k.duration).sum()
         assert e_rep == pytest.approx(e_cop, rel=1e-9), name
     assert np.all(np.abs(r.balance_residual) <= 1e-9 * (np.abs(r.electric_power) + 1.0))
+
+
+# ---------------------------------------------------------------------------
+# 8. valves set per actuator, and a hold on a pilot-operated check
+# ---------------------------------------------------------------------------
+
+def test_back_pressure_valve_per_actuator_by_hand():
+    # a 10 bar back-pressure valve in the outlet line: p2 = 10 bar while moving, so the
+    # force balance p1 A1 - p2 A2 = F gives p1 = (F + A2 x 10 bar)/A1 = 63.66 + 5.1 bar;
+    # its loss Q2 x 10 bar (P = p Q); in a hold it does nothing
+    bp = 10e5
+    acts = (m.Cylinder("c", bore=BORE, rod=ROD, stroke=0.5, back_pressure=bp),)
+    sc = _scenario([EXTEND, _hold("relief")], actuators=acts)
+    r = _solve(sc, "meter-in")
+    p1 = (F_EXT + A2 * bp) / A1
+    assert _close(r.inlet_pressure[0], p1)
+    assert _close(r.outlet_pressure[0], bp)
+    q2 = Q1_EXT * A2 / A1
+    assert _close(r.losses["counterbalance"][0], q2 * bp)
+    assert _close(r.losses["flow_control"][0], Q1_EXT * (P_RELIEF - p1))
+    assert r.outlet_pressure[1] == 0 and r.losses["counterbalance"][1] == 0
+    # retracting, the valve sits in the (cap side) outlet: p1 A2 - bp A1 = F
+    back = m.Phase("back", "c", "retract", load=5e3, speed=0.05, stroke=0.3)
+    r2 = _solve(_scenario([back], actuators=acts), "meter-in")
+    assert _close(r2.inlet_pressure[0], (5e3 + A1 * bp) / A2)
+    # meter-out: the outlet throttle takes what the valve leaves, p2 still from the balance
+    r3 = _solve(sc, "meter-out")
+    assert _close(r3.outlet_pressure[0], (P_RELIEF * A1 - F_EXT) / A2)
+    assert _close(r3.losses["counterbalance"][0] + r3.losses["flow_control"][0],
+                  q2 * (P_RELIEF * A1 - F_EXT) / A2)
+    for res in (r, r2, r3):
+        assert np.all(np.abs(res.balance_residual) < 1e-6)
+
+
+def test_counterbalance_per_actuator_replaces_the_strategys():
+    # the actuator's own valve: the same hand formula as the strategy's
+    # p1 = (F + A2 setting)/(A1 + r A2), here with r = 4 (common practice)
+    f = -20e3
+    setting = 1.3 * abs(f) / A2
+    acts = (m.Cylinder("c", bore=BORE, rod=ROD, stroke=0.5, counterbalance_setting=setting,
+                       counterbalance_pilot_ratio=4.0),)
+    sc = _scenario([m.Phase("lower", "c", "extend", load=f, speed=V_EXT, stroke=0.3)],
+                   actuators=acts)
+    r = _solve(sc, "meter-in")
+    assert not r.runaway[0] and r.counterbalance_active[0]
+    p1 = (f + A2 * setting) / (A1 + 4.0 * A2)
+    assert _close(r.inlet_pressure[0], p1)
+    assert _close(r.outlet_pressure[0], setting - 4.0 * p1)
+    # and it wins over a strategy's setting
+    sc2 = _scenario([m.Phase("lower", "c", "extend", load=f, speed=V_EXT, stroke=0.3)],
+                    actuators=acts, counterbalance_setting=2 * setting)
+    assert _close(_solve(sc2, "meter-in").inlet_pressure[0], p1)
+
+
+@pytest.mark.parametrize("strategy", ["meter-in", "bleed-off", "bypass-compensated", "hi-lo",
+                                      "variable-speed"])
+def test_hold_on_a_pilot_operated_check_unloads_the_pump(strategy):
+    # closed centre, 150 bar held by a pilot-operated check: the pump is vented at the
+    # valve's centre drop, 3 bar at 60 L/min ~ Q^2 (orifice law, common practice):
+    # 3 x (40.6/60)^2 = 1.374 bar; no relief flow; the chamber stays at 150 bar
+    sc = _scenario([EXTEND, _hold("pilot-check", hold_pressure=150e5)])
+    c = _ideal(sc, strategy, dv_centre_drop=3e5, centre_unloads=np.array(False))
+    r = circuits.solve_strategy(strategy, c)
+    q = Q_TH * (0.1 if strategy == "variable-speed" else 1.0)   # at its minimum speed
+    p_vent = 3e5 * (q / (60 / 60000)) ** 2
+    if strategy != "variable-speed":
+        assert p_vent / 1e5 == pytest.approx(3 * (40.6 / 60) ** 2, rel=1e-9)
+    assert _close(r.pump_pressure[1], p_vent)
+    assert r.relief_flow[1] == 0
+    assert _close(r.inlet_pressure[1], 150e5)
+    assert _close(r.heat_to_oil[1], q * p_vent)              # ideal pump: the vent only
+    # held over the relief instead, the same hold costs 180 bar x 40.6 L/min = 12.2 kW
+    # (hi-lo: 180 bar x 10.15 + 3 bar x 30.45 L/min = 3.2 kW), against 93 W vented
+    r_relief = circuits.solve_strategy(strategy, _ideal(
+        _scenario([EXTEND, _hold("relief", hold_pressure=150e5)]), strategy))
+    if strategy != "variable-speed":    # which holds at its minimum speed either way
+        assert r_relief.heat_to_oil[1] > 30 * r.heat_to_oil[1]
+    # no hold-pressure warning: the check holds, not the pump
+    from heatload import checks
+    conds = checks.phase_conditions(r, c, sc)
+    assert not any(cd.mask[1] for cd in conds if cd.code == "hold-pressure")
+
+
+@pytest.mark.parametrize("strategy", ["pressure-compensated", "load-sensing"])
+def test_hold_on_a_pilot_operated_check_variable_pump_destrokes(strategy):
+    # a variable pump need not be vented: it sits at zero stroke at its compensator
+    # (150 bar here) or at its standby (25 bar, model default); ideal pump: no flow, no heat
+    sc = _scenario([EXTEND, _hold("pilot-check", hold_pressure=160e5)],
+                   compensator_setting=150e5)
+    r = _solve(sc, strategy)
+    assert _close(r.pump_pressure[1], 150e5 if strategy == "pressure-compensated" else 25e5)
+    assert abs(r.pump_flow[1]) < 1e-12 and abs(r.heat_to_oil[1]) < 1e-6
+    assert _close(r.inlet_pressure[1], 160e5)               # the check holds 160 bar

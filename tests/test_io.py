@@ -706,3 +706,14 @@ def test_readme_repeats_and_shift_example_loads():
     assert s.phase_repeats() == (2, 2, 1, 1)
     assert s.economics.hours_per_year == pytest.approx(3840, rel=1e-15)   # 8 x 2 x 5 x 48
     assert s.shift_duration == pytest.approx(16 * 3600, rel=1e-15)
+
+
+def test_readme_actuator_valves_example_loads():
+    s = io.loads_scenario(MINIMAL + "\n" + _readme_block("### Valves per actuator"),
+                          source="README")
+    lift = s.actuator("lift")
+    assert lift.counterbalance_setting == pytest.approx(110e5, rel=1e-15)
+    assert lift.counterbalance_pilot_ratio == 4.0
+    assert lift.back_pressure == pytest.approx(4e5, rel=1e-15)
+    assert s.phases[-1].unloading == "pilot-check"
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
