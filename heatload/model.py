@@ -253,7 +253,13 @@ class Phase:
 @dataclass(frozen=True)
 class Repeat:
     """A block of consecutive phases (from *first* to *last*, by name) that runs
-    *count* times in each cycle, written once."""
+    *count* times in each cycle, written once.
+
+    A repeated phase's figures cover all its passes (its duration is *count*
+    single passes).  Its chamber's compression energy is counted once per pass
+    from the pressure of the phase before it in the file: where the block's
+    last phase pressurises the same chamber as its first, the passes after the
+    first start from that instead (not modelled; small against the cycle)."""
 
     first: str
     last: str
