@@ -61,7 +61,7 @@ PHASE_COLUMNS = (
     Column("stroke", "stroke", "length", "length"),
     Column("duration", "duration", "time", "time"),
     Column("hold_pressure", "hold pressure", "pressure", "pressure"),
-    Column("unloading", "unloading", choices=("centre", "relief", "held")),
+    Column("unloading", "unloading", choices=("centre", "relief", "held", "pilot-check")),
 )
 
 ACTUATOR_COLUMNS = (

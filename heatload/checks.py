@@ -18,7 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from heatload.circuits import CAVITATION_THRESHOLD, UNLOAD_CENTRE, CircuitResult
+from heatload.circuits import CAVITATION_THRESHOLD, UNLOAD_CENTRE, UNLOAD_CHECK, CircuitResult
 from heatload.units import mark
 
 
@@ -249,6 +249,7 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
              lambda i: f"actuator chamber at {_bar(chamber_hi[i])} above its rating "
                        f"{_bar(rating[i])}"),
         cond("hold-pressure", still & (hold > 0) & (full(c["unloading"]) != UNLOAD_CENTRE)
+             & (full(c["unloading"]) != UNLOAD_CHECK)
              & (pp < hold * (1 - 1e-6)), hold, pp,
              lambda i: f"the pressure to hold {_bar(hold[i])} is more than the pump "
                        f"supplies here ({_bar(max(pp[i], 0.0))})"),

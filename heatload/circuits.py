@@ -61,7 +61,7 @@ ROOM_LOSSES = ("drive_motor", "converter")
 LOSS_COMPONENTS = OIL_LOSSES + ROOM_LOSSES
 
 #: Unloading codes used in the arrays (see :data:`heatload.model.UNLOADING`).
-UNLOAD_RELIEF, UNLOAD_CENTRE, UNLOAD_HELD = 0, 1, 2
+UNLOAD_RELIEF, UNLOAD_CENTRE, UNLOAD_HELD, UNLOAD_CHECK = 0, 1, 2, 3
 
 #: Counterbalance setting assumed where a circuit cannot hold an overrunning
 #: load: 1.3 x the load-induced pressure (common practice for the setting).
@@ -108,6 +108,11 @@ class CircuitResult:
     counterbalance_setting: np.ndarray = None  #: [Pa], where active
     #: |p_pump Q1 - Q1 (drops) - p1 Q1| left by the root solve [W]; ~rounding
     bookkeeping_residual: np.ndarray = None
+    #: power put into (+) or taken from (-) an accumulator's gas [W]; sums to
+    #: zero over a cycle the pump keeps up with (None: the circuit stores none)
+    stored_power: np.ndarray = None
+    #: an accumulator circuit's pump on-time over the cycle [-] (None: not one)
+    pump_duty: np.ndarray = None
 
     @property
     def heat_to_oil(self) -> np.ndarray:
@@ -121,8 +126,9 @@ class CircuitResult:
 
     @property
     def balance_residual(self) -> np.ndarray:
-        """``P_electric - useful - sum(losses)`` [W]; zero to rounding."""
-        return self.electric_power - self.useful_power - sum(self.losses.values())
+        """``P_electric - useful - sum(losses) - stored`` [W]; zero to rounding."""
+        stored = 0.0 if self.stored_power is None else self.stored_power
+        return self.electric_power - self.useful_power - sum(self.losses.values()) - stored
 
 
 # ---------------------------------------------------------------------------
@@ -198,12 +204,16 @@ def _inlet_pressure(q1, c, outlet_extra):
 def _inlet_pressure_at(p_back, c):
     """:func:`_inlet_pressure` for a known outlet back pressure *p_back* [Pa]."""
     a1, a2, f = c["a_in"], c["a_out"], c["force"]
+    # an actuator's back-pressure valve adds its setting to the outlet path while it
+    # moves (a fixed counter-force bp A2; loss Q2 bp, booked with the counterbalance)
+    bp = c.get("back_pressure", 0.0)
+    p_back = p_back + bp
     p1_open = (f + a2 * p_back) / a1
     setting = np.where(c["cb_active"], c["cb_setting"], 0.0)
     p1_active = (f + a2 * (p_back + setting)) / (a1 + c["cb_ratio"] * a2)
     p1 = np.where(c["cb_active"], np.maximum(p1_open, p1_active), p1_open)
     dp_cb = np.where(c["cb_active"], np.maximum(setting - c["cb_ratio"] * p1, 0.0), 0.0)
-    return p1, p_back + dp_cb, dp_cb
+    return p1, p_back + dp_cb, dp_cb + bp
 
 
 # ---------------------------------------------------------------------------
@@ -260,6 +270,12 @@ class _Subset(dict):
             v = v[self._idx]
         self[key] = v
         return v
+
+    def get(self, key, default=None):
+        try:
+            return self[key]
+        except KeyError:
+            return default
 
 
 def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
@@ -382,6 +398,12 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # throttle needs none.  Where none is fitted the load would run away: the
     # phase is flagged and its figures assume one set at 1.3 x the load-induced
     # pressure.
+    # an actuator's own counterbalance valve (phase entries) replaces the strategy's
+    if "cb_own" in c:
+        own = c["cb_own"]
+        c["cb_fitted"] = c["cb_fitted"] | own
+        c["cb_setting"] = np.where(own, c["cb_own_setting"], c["cb_setting"])
+        c["cb_ratio"] = np.where(own, c["cb_own_ratio"], c["cb_ratio"])
     runaway = overrun & ~c["cb_fitted"] & (not kind.meters_out)
     c["cb_active"] = overrun & (c["cb_fitted"] | runaway) & (not kind.meters_out)
     c["cb_setting"] = np.where(runaway, COUNTERBALANCE_FACTOR * np.abs(c["force"]) / c["a_out"],
@@ -436,10 +458,16 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     # ---- phases with nothing moving (hold / idle) ----------------------------
     p_hold = np.where(moving, 0.0, c["hold_pressure"])
-    holding = ~moving & (p_hold > 0.0)
     unload = c["unloading"]
+    # a pilot-operated check holds the load; the pump is unloaded meanwhile: a fixed
+    # pump vented (at the centre's drop, whatever the centre), a variable one at zero
+    # stroke or standby.  No relief flow; the pump's leakage only
+    on_check = ~moving & (unload == UNLOAD_CHECK)
+    holding = ~moving & (p_hold > 0.0) & ~on_check
+    vent = on_check & (not kind.variable_pump)
+    c["centre_unloads"] = c["centre_unloads"] | vent
     centre_ok = c["centre_unloads"]
-    use_centre = ~moving & (unload == UNLOAD_CENTRE) & centre_ok
+    use_centre = ~moving & ((unload == UNLOAD_CENTRE) | vent) & centre_ok
     # centre drop at the full theoretical flow (leakage at a few bar is negligible)
     centre_dp = _centre_drop(c["q_theoretical"], c)
     relief_full = _relief_supply(z, c, c["q_theoretical"])
@@ -450,6 +478,7 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     # ---- pump flow, stroke and speed --------------------------------------
     leakage = leak * np.maximum(p_pump, 0.0)
+    c["pump_pressure"] = p_pump
     frac, n_pump, q_pump = kind.pump_state(c, q1, leakage, moving, stalled, use_centre, shape)
     surplus = np.maximum(q_pump - q1, 0.0)
     at_relief = p_pump >= c["relief_cracking"] * (1.0 - 1e-12)
@@ -460,11 +489,11 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     bleed_q = surplus - centre_q - relief_q
 
     # ---- powers -------------------------------------------------------------
-    mu = c["mu"]
-    torque = pumps.pump_torque(c["pump_displacement"], n_pump, np.maximum(p_pump, 0.0), mu,
-                               c["pump_viscous"], c["pump_friction"], frac)
-    p_shaft_hyd = pumps.pump_shaft_power(torque, n_pump)
     speed = np.where(moving, q1 * c["speed_per_flow"], 0.0)
+    t_actual = _actual_duration(c, speed, stalled)
+    # shaft power, losses of pumps run apart from the circuit (an unloaded pump),
+    # and power into an accumulator (zero for most circuits)
+    p_shaft_hyd, apart, stored, duty = kind.pump_power(c, n_pump, p_pump, frac, q1, t_actual)
     useful = c["load"] * speed * c["work_per_load_speed"]
     # what the actuator does not turn into load work: friction, motor efficiencies
     actuator_loss = p1 * q1 - p2 * q2 - useful
@@ -483,7 +512,10 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     p_out = np.maximum(p_pump, 0.0) * (q1 + relief_q + bleed_q + centre_q)
     # the solved root leaves rounding between q_pump and the flows booked: the
     # pump term takes it so the balance closes exactly
-    losses["pump"] = p_shaft_hyd - p_out
+    losses["pump"] = p_shaft_hyd - p_out - stored
+    for k, v in apart.items():
+        losses["pump"] = losses["pump"] - v
+        losses[k] = losses[k] + v
     # pressure recovered in the pump line beyond p_pump (negative throttle) cannot
     # occur: dp's are clipped at zero; but p1*q1 books against p_pump*q1 exactly:
     mismatch = np.maximum(p_pump, 0.0) * q1 - q1 * (dp_fc_in + check_dp + pline_dp + dv_in_dp) - p1 * q1
@@ -491,7 +523,6 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     bookkeeping = np.abs(mismatch)
 
     # compression of the oil in the pressurised chamber, released as heat
-    t_actual = _actual_duration(c, speed, stalled)
     prev = c["previous_phase"]
     # prev and p1 may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
     shape = np.broadcast_shapes(np.shape(prev), np.shape(p1))
@@ -508,7 +539,8 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
                                               - np.maximum(p2_prev, 0.0) ** 2)
     e_comp = np.maximum(e_in, 0.0) + np.maximum(e_out, 0.0)
     e_comp = np.where(c["compress"], e_comp / (2.0 * c["bulk_modulus"]), 0.0)
-    losses["compression"] = e_comp / t_actual
+    # once per pass: a repeated phase's duration holds all its passes
+    losses["compression"] = e_comp * c.get("repeats", 1.0) / t_actual
     p_shaft = p_shaft_hyd + losses["compression"]
 
     # drive motor (and converter for variable speed)
@@ -537,16 +569,19 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         losses=losses, stalled=stalled, flow_limited=flow_limited, runaway=runaway,
         counterbalance_active=c["cb_active"],
         counterbalance_setting=np.where(c["cb_active"], c["cb_setting"], 0.0),
-        bookkeeping_residual=bookkeeping)
+        bookkeeping_residual=bookkeeping,
+        stored_power=None if np.ndim(stored) == 0 and stored == 0 else stored + z,
+        pump_duty=None if duty is None else np.asarray(duty)[..., None] + z)
 
 
 def _actual_duration(c, speed, stalled):
     """Phase duration [s]: the stroke at the speed reached where the phase is
-    given by its stroke, else the given duration.  A stalled stroke keeps its
-    nominal duration (the result carries the stall warning)."""
+    given by its stroke, else the given duration; times its passes per cycle
+    (``repeats``: a repeated block's phase lasts all its passes).  A stalled
+    stroke keeps its nominal duration (the result carries the stall warning)."""
     by_stroke = c["by_stroke"] & (speed > 0)
     t = np.where(by_stroke, c["stroke"] / np.where(speed > 0, speed, 1.0), c["duration"])
-    return np.maximum(t, 1e-9)
+    return np.maximum(t, 1e-9) * c.get("repeats", 1.0)
 
 
 def solve_all(c: dict, strategies=None) -> dict:

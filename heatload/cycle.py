@@ -14,6 +14,10 @@ outlet "area" ``a_out`` and effective force ``force``:
 
 - cylinder extending: ``a_in = A_cap``, ``a_out = A_annulus``, ``force = F + F_friction``;
   retracting: the areas swap.  Speed [m/s] = Q1 / a_in.
+- cylinder extending with ``regeneration`` (differential connection): ``a_in = A_cap -
+  A_annulus`` (the rod's area), ``a_out = A_annulus``, ``Q2 / Q1 = A_annulus / a_in``; the
+  rod side's oil returns to the cap side, so ``p2`` is the rod side's excess over the cap
+  side (its path's drops) and ``p1 a_in - p2 a_out = force`` still holds.
 - hydraulic motor: ``a_in = a_out = D`` [m^3/rev]; ``force = 2 pi T / eta_hm`` for a
   driving torque T >= 0 and ``2 pi T eta_hm`` for an overrunning one; speed
   [rev/s] = Q1 eta_v / D driving, Q1 / (eta_v D) overrun (the motor then pumps), so
@@ -26,11 +30,12 @@ import numpy as np
 
 from heatload import motors, oil, pumps
 from heatload.actuators import cylinder_areas
-from heatload.circuits import UNLOAD_CENTRE, UNLOAD_HELD, UNLOAD_RELIEF
+from heatload.circuits import UNLOAD_CENTRE, UNLOAD_CHECK, UNLOAD_HELD, UNLOAD_RELIEF
 from heatload.model import Scenario, Strategy, StrategyParameters
 from heatload.paths import Overrides
 
-_UNLOAD_CODE = {"relief": UNLOAD_RELIEF, "centre": UNLOAD_CENTRE, "held": UNLOAD_HELD}
+_UNLOAD_CODE = {"relief": UNLOAD_RELIEF, "centre": UNLOAD_CENTRE, "held": UNLOAD_HELD,
+                "pilot-check": UNLOAD_CHECK}
 TWO_PI = 2.0 * np.pi
 
 
@@ -135,6 +140,18 @@ def phase_arrays(scenario: Scenario, values: Overrides | None = None) -> dict:
                            # to p2 too
                            compression_volume_outlet=a_out * aget("stroke", act.stroke)
                            + aget("dead_volume", act.dead_volume))
+                if ph.regeneration:
+                    # differential connection: the rod side's oil (Q2 = v A_ann) crosses
+                    # the valve and its hose and joins the pump's at the cap side, so the
+                    # pump fills the rod's area only: v = Q1 / A_rod.  With p2 the rod
+                    # side's excess over the cap side (those drops), the balance
+                    # p1 A_cap - (p1 + p2) A_ann = F is p1 A_rod - p2 A_ann = F, the
+                    # generalised actuator's with a_in = A_rod (F = p A_rod when p2 = 0)
+                    row.update(a_in=cap - ann, q_ratio=ann / (cap - ann),
+                               speed_per_flow=1.0 / (cap - ann),
+                               compression_volume=row["compression_volume"]
+                               + row["compression_volume_outlet"],
+                               compression_volume_outlet=0.0)
         spf = row["speed_per_flow"]
         # speed target as inlet flow
         if moving:
@@ -169,7 +186,33 @@ def phase_arrays(scenario: Scenario, values: Overrides | None = None) -> dict:
             out["previous_phase"][i] = j
     for k, v in cols.items():
         out[k] = np.stack(np.broadcast_arrays(*v), axis=-1)
+    # passes per cycle of each phase ([[repeats]]): its time in the cycle is that
+    # many of its single pass
+    out["repeats"] = np.asarray(scenario.phase_repeats(), float)
+    out.update(_actuator_valves(scenario, phases, out["moving"]))
     return out
+
+
+def _actuator_valves(scenario: Scenario, phases, moving) -> dict:
+    """Valves set per actuator in its outlet line, per phase: its own
+    counterbalance (``cb_own``, setting, pilot ratio; replaces the strategy's)
+    and a back-pressure valve's setting while it moves (``back_pressure`` [Pa])."""
+    n = len(phases)
+    own, setting, ratio, bp = (np.zeros(n, bool), np.zeros(n), np.full(n, 3.0),
+                               np.zeros(n))
+    for i, ph in enumerate(phases):
+        act = scenario.actuator(ph.actuator) if ph.actuator else None
+        if act is None:
+            continue
+        if getattr(act, "counterbalance_setting", None) is not None:
+            own[i], setting[i] = True, act.counterbalance_setting
+            ratio[i] = act.counterbalance_pilot_ratio
+        if getattr(act, "back_pressure", None) is not None and moving[i]:
+            bp[i] = act.back_pressure
+    if not own.any() and not bp.any():
+        return {}                   # the circuit as without per-actuator valves
+    return {"cb_own": own, "cb_own_setting": setting, "cb_own_ratio": ratio,
+            "back_pressure": bp}
 
 
 def oil_entries(scenario: Scenario, oil_temperature) -> dict:
@@ -271,8 +314,39 @@ def strategy_arrays(scenario: Scenario, strategy: Strategy | str,
         "cb_fitted": cb is not None, "cb_setting": cb if cb is not None else 0.0,
         "cb_ratio": sp("counterbalance_pilot_ratio"),
         "vs_min_fraction": sp("min_speed_fraction"), "vs_max_fraction": sp("max_speed_fraction"),
+        "unloading_drop": sp("unloading_valve_drop"),
     }
+    out.update(_two_stage_and_accumulator(sp, relief, strategy.kind))
     return {k: _row(v) for k, v in out.items()}
+
+
+def _two_stage_and_accumulator(sp, relief, kind) -> dict:
+    """Hi-lo and accumulator settings with their defaults filled in (see
+    :class:`heatload.model.StrategyParameters`); for an accumulator circuit
+    (*kind*) a working range left empty is refused naming the setting."""
+    from heatload.errors import HeatloadError
+    from heatload.strategies import circuit
+    unload = sp("unloading_pressure")
+    p_max = sp("accumulator_pressure_max")
+    # below the relief's cracking, so the relief stays shut while charging
+    p_max = np.maximum(relief - 10e5, 0.9 * np.asarray(relief)) if p_max is None else p_max
+    p_min = sp("accumulator_pressure_min")
+    p_min = 0.75 * np.asarray(p_max) if p_min is None else p_min
+    pre = sp("accumulator_precharge")
+    pre = 0.9 * np.asarray(p_min) if pre is None else pre
+    if not circuit(kind).accumulator:
+        pass
+    elif np.any(np.asarray(p_min) >= p_max):
+        raise HeatloadError("the accumulator's working range is empty: give "
+                            "accumulator_pressure_min below accumulator_pressure_max (Pa, "
+                            "e.g. \"120 bar\")", field="strategies.accumulator_pressure_min")
+    elif np.any(np.asarray(pre) > p_min):
+        raise HeatloadError("accumulator_precharge must not exceed the lowest working "
+                            "pressure", field="strategies.accumulator_precharge")
+    return {"hilo_fraction": sp("high_pressure_fraction"),
+            "unload_pressure": relief / 3.0 if unload is None else unload,
+            "acc_p_min": p_min, "acc_p_max": p_max, "acc_precharge": pre,
+            "acc_volume": sp("accumulator_gas_volume"), "acc_exponent": sp("polytropic_exponent")}
 
 
 def finalize(c: dict) -> dict:

@@ -74,7 +74,14 @@ prepared_by = "A. Designer"
 revision = "A"
 
 [economics]
-hours_per_year = 4000                  # running hours of the machine [h/year]
+hours_per_year = 4000                  # running hours of the machine [h/year], or instead
+                                       # a shift pattern (all three; then no hours_per_year
+                                       # and no shift_duration: the warm-up from cold runs
+                                       # over each day's hours):
+# hours_per_shift = 8
+# shifts_per_day = 2
+# days_per_week = 5
+# weeks_per_year = 50                  # default 50 with a shift pattern
 electricity_price = "0.20 /kWh"        # price of bought electrical energy, in `currency`
 currency = "EUR"
 grid_co2_factor = "0.35 kg/kWh"        # CO2 emitted per kWh bought
@@ -187,6 +194,11 @@ stroke = "400 mm"
 friction_force = "500 N"               # seal friction, opposes motion
 max_pressure = "250 bar"
 dead_volume = "0.3 L"                  # oil in the hoses, each side
+# counterbalance_setting = "120 bar"   # its own counterbalance valve in the outlet line
+                                       # (default: the strategy's, if any)
+# counterbalance_pilot_ratio = 3.0
+# back_pressure = "5 bar"              # a back-pressure valve in its outlet line: its
+                                       # counter-force and its loss while it moves
 
 [[actuators]]
 name = "spindle"
@@ -221,6 +233,9 @@ load = "60 kN"
 speed = "20 mm/s"
 stroke = "50 mm"
 compress = true                        # count the compression energy of the cap side
+# regeneration = true                  # extend differentially: the rod side's oil joins
+                                       # the cap side; v = Q / A_rod, F = p A_rod (a fast
+                                       # approach at low force)
 
 [[phases]]
 name = "dwell"
@@ -229,7 +244,9 @@ motion = "hold"
 duration = "3 s"
 hold_pressure = "160 bar"              # pressure held on the cap side, or instead:
 # hold_force = "50 kN"                 # a force held (not both)
-unloading = "held"                     # relief | centre | held (how the pump is unloaded)
+unloading = "held"                     # relief | centre | held | pilot-check (how the pump
+                                       # is unloaded; pilot-check: a pilot-operated check
+                                       # holds the load, the pump is unloaded)
 
 [[phases]]
 name = "return"
@@ -253,14 +270,21 @@ motion = "idle"
 duration = "8 s"
 unloading = "centre"
 
+# A block of consecutive phases run more than once per cycle, written once:
+# [[repeats]]
+# first = "press"                      # the block's first phase (by name)
+# last = "dwell"                       # its last; default: the first
+# count = 2                            # passes per cycle (a whole number)
+
 # Shared by every strategy below (any key of a [[strategies]] item except kind and label).
 [strategy_defaults]
 flow_control_min_drop = "8 bar"
 
-# Circuits to compare.  Leave out [[strategies]] to compare all seven with defaults.
+# Circuits to compare.  Leave out [[strategies]] to compare all of them with defaults.
 [[strategies]]
 kind = "meter-in"                      # meter-in | meter-out | bleed-off | bypass-compensated |
-                                       # pressure-compensated | load-sensing | variable-speed
+                                       # pressure-compensated | load-sensing | variable-speed |
+                                       # hi-lo | accumulator
 label = "meter-in"                     # shown name (default: kind); names must be unique
 price = 0                              # extra price over the cheapest circuit, in currency
 
@@ -289,6 +313,24 @@ kind = "variable-speed"
 min_speed_fraction = 0.1               # slowest motor speed / nominal
 max_speed_fraction = 1.0
 price = 1800
+
+[[strategies]]
+kind = "hi-lo"                         # double pump; [power_unit.pump] is the pair's total
+high_pressure_fraction = 0.25          # the small pump's share of the displacement
+unloading_pressure = "60 bar"          # the large pump unloads above it; default relief / 3
+unloading_valve_drop = "3 bar"         # the unloaded pump's flow to tank crosses this
+price = 600
+
+[[strategies]]
+kind = "accumulator"                   # fixed pump charging a gas accumulator
+accumulator_pressure_max = "170 bar"   # pump idles above it; default relief cracking - 10 bar
+accumulator_pressure_min = "125 bar"   # pump back on below it; default 0.75 x the maximum;
+                                       # every load (+ flow control) must stay below it
+accumulator_precharge = "110 bar"      # gas precharge; default 0.9 x the minimum
+accumulator_gas_volume = "10 L"        # gas volume at the precharge (nominal size)
+polytropic_exponent = 1.0              # 1 isothermal (cycles of minutes); 1.4 adiabatic
+unloading_valve_drop = "3 bar"         # the idling pump's flow to tank
+price = 2000
 
 [cooler]
 oil_temperature_max = "55 degC"        # design oil temperature; default fluid max - 5 K;
@@ -436,6 +478,10 @@ _SCENARIO = {
 }
 _ECONOMICS = {
     "hours_per_year": _F("dimensionless", "pos", high=8784.0),
+    "hours_per_shift": _F("dimensionless", "pos", high=24.0),
+    "shifts_per_day": _F("dimensionless", "pos", high=24.0),
+    "days_per_week": _F("dimensionless", "pos", high=7.0),
+    "weeks_per_year": _F("dimensionless", "pos", high=53.0),
     "electricity_price": _F("specific_energy_price", "nonneg"),
     "currency": _F("str", "nonempty"),
     "grid_co2_factor": _F("emission_factor", "nonneg"),
@@ -554,6 +600,9 @@ _CYLINDER = {
     "friction_force": _F("force", "nonneg"),
     "max_pressure": _F("pressure", "pos"),
     "dead_volume": _F("volume", "nonneg"),
+    "counterbalance_setting": _F("pressure", "pos"),
+    "counterbalance_pilot_ratio": _F("dimensionless", "pos", high=100.0),
+    "back_pressure": _F("pressure", "pos"),
 }
 _HYDRAULIC_MOTOR = {
     "name": _F("str", "nonempty", required=True),
@@ -563,6 +612,9 @@ _HYDRAULIC_MOTOR = {
     "hydromechanical_efficiency": _F("dimensionless", "eff"),
     "max_pressure": _F("pressure", "pos"),
     "max_speed": _F("shaft_speed", "pos"),
+    "counterbalance_setting": _F("pressure", "pos"),
+    "counterbalance_pilot_ratio": _F("dimensionless", "pos", high=100.0),
+    "back_pressure": _F("pressure", "pos"),
 }
 #: Phase keys; the kinds of load and speed depend on the actuator (see _phase_kind).
 _PHASE = {
@@ -577,6 +629,7 @@ _PHASE = {
     "hold_force": _F("force", "pos"),
     "unloading": _F("choice", choices=m.UNLOADING),
     "compress": _F("bool"),
+    "regeneration": _F("bool"),
 }
 _PARAMETERS = {
     "flow_control_min_drop": _F("pressure", "nonneg"),
@@ -588,6 +641,14 @@ _PARAMETERS = {
     "counterbalance_pilot_ratio": _F("dimensionless", "pos", high=100.0),
     "min_speed_fraction": _F("dimensionless", "frac_pos"),
     "max_speed_fraction": _F("dimensionless", "pos", high=3.0),
+    "high_pressure_fraction": _F("dimensionless", "frac_pos"),
+    "unloading_pressure": _F("pressure", "pos"),
+    "unloading_valve_drop": _F("pressure", "nonneg"),
+    "accumulator_pressure_min": _F("pressure", "pos"),
+    "accumulator_pressure_max": _F("pressure", "pos"),
+    "accumulator_precharge": _F("pressure", "pos"),
+    "accumulator_gas_volume": _F("volume", "pos"),
+    "polytropic_exponent": _F("dimensionless", "pos", high=2.0),
     "price": _F("dimensionless", "nonneg"),
 }
 _STRATEGY = {
@@ -621,8 +682,13 @@ _UNCERTAINTY = {
 }
 _TOP = ("scenario", "economics", "fluid", "ambient", "reservoir", "power_unit",
         "actuators", "phases", "strategy_defaults", "strategies", "cooler",
-        "uncertainty", "coolers")
-_ARRAYS = ("actuators", "phases", "strategies", "uncertainty")
+        "uncertainty", "coolers", "repeats")
+_ARRAYS = ("actuators", "phases", "strategies", "uncertainty", "repeats")
+_REPEAT = {
+    "first": _F("str", "nonempty", required=True),
+    "last": _F("str", "nonempty"),
+    "count": _F("dimensionless", "pos", high=1000.0, required=True),
+}
 
 
 # ---------------------------------------------------------------------------
@@ -958,6 +1024,39 @@ def _phases(data, actuators, source):
     return tuple(out)
 
 
+def _repeats(data, phases, source) -> tuple:
+    """``[[repeats]]``: blocks of consecutive phases run *count* times per cycle."""
+    items = _array(data, "repeats", source)
+    names = [p.name for p in phases]
+    taken = [None] * len(names)
+    out = []
+    for i, item in enumerate(items):
+        p = f"repeats[{i}]"
+        _table(item, _REPEAT, p, source)
+        vals = _read(item, _REPEAT, p, source)
+        for key in ("first", "last"):
+            if key in vals and vals[key] not in names:
+                raise _err(f"no phase called {vals[key]!r}{_suggest(vals[key], names)}",
+                           f"{p}.{key}", source)
+        first = vals["first"]
+        last = vals.get("last", first)
+        a, b = names.index(first), names.index(last)
+        if b < a:
+            raise _err(f"{last!r} comes before {first!r} in [[phases]]; a block runs from "
+                       f"its first phase to its last", f"{p}.last", source)
+        count = vals["count"]
+        if count != int(count):
+            raise _err(f"count must be a whole number of passes, not {count:g}",
+                       f"{p}.count", source)
+        for j in range(a, b + 1):
+            if taken[j] is not None:
+                raise _err(f"phase {names[j]!r} is already in repeats[{taken[j]}]; blocks "
+                           f"may not overlap", f"{p}.first", source)
+            taken[j] = i
+        out.append(m.Repeat(first=first, last=last, count=int(count)))
+    return tuple(out)
+
+
 def _phase(item, i, by_name, source):
     p = f"phases[{i}]"
     _table(item, _PHASE, p, source)
@@ -995,9 +1094,12 @@ def _phase(item, i, by_name, source):
             vals["speed"] = _value(item["speed"], _PHASE["speed"], f"{p}.speed", source,
                                    kind="shaft_speed" if is_motor else "velocity")
     for key in ("stroke", "duration", "hold_pressure", "hold_force", "unloading",
-                "compress"):
+                "compress", "regeneration"):
         if key in item:
             vals[key] = _value(item[key], _PHASE[key], f"{p}.{key}", source)
+    if vals.get("regeneration") and (is_motor or motion != "extend"):
+        raise _err("only an extending cylinder can regenerate (its rod side joined to the "
+                   "cap side)", f"{p}.regeneration", source)
     if "stroke" in vals:
         if is_motor or motion not in ("extend", "retract"):
             raise _err("only an extending or retracting cylinder has a stroke; give a "
@@ -1028,7 +1130,7 @@ def _strategies(data, defaults: dict, source):
                      for k in m.STRATEGIES)
     items = _array(data, "strategies", source)
     if not items:
-        raise _err("leave out [[strategies]] to compare all seven, or list at least one",
+        raise _err("leave out [[strategies]] to compare all of them, or list at least one",
                    "strategies", source)
     out, names = [], set()
     for i, item in enumerate(items):
@@ -1052,11 +1154,43 @@ def _parameters(vals: dict, path: str, source) -> m.StrategyParameters:
     if not params.min_speed_fraction < params.max_speed_fraction:
         raise _err("min_speed_fraction must be below max_speed_fraction",
                    f"{path}.min_speed_fraction", source)
+    if not params.high_pressure_fraction < 1.0:
+        raise _err("high_pressure_fraction must be below 1 (the large pump's share is "
+                   "what is left)", f"{path}.high_pressure_fraction", source)
+    lo, hi, pre = (params.accumulator_pressure_min, params.accumulator_pressure_max,
+                   params.accumulator_precharge)
+    if lo is not None and hi is not None and not lo < hi:
+        raise _err("accumulator_pressure_min must be below accumulator_pressure_max",
+                   f"{path}.accumulator_pressure_min", source)
+    if pre is not None and lo is not None and pre > lo:
+        raise _err("accumulator_precharge must not exceed accumulator_pressure_min (the "
+                   "bladder would bottom out inside the working range)",
+                   f"{path}.accumulator_precharge", source)
     return params
 
 
-def _economics(data, strategies, source):
+_SHIFT_KEYS = ("hours_per_shift", "shifts_per_day", "days_per_week")
+
+
+def _economics(data, strategies, source, shift_given=False):
     e = _simple(data, _ECONOMICS, "economics", source, m.Economics())
+    given = [k for k in _SHIFT_KEYS if k in data]
+    if given or "weeks_per_year" in data:
+        missing = [k for k in _SHIFT_KEYS if k not in data]
+        if missing:
+            raise _err(f"a shift pattern needs {', '.join(_SHIFT_KEYS)}; "
+                       f"{missing[0]} is missing", f"economics.{missing[0]}", source)
+        if "hours_per_year" in data:
+            raise _err("give hours_per_year or a shift pattern (hours_per_shift, "
+                       "shifts_per_day, days_per_week), not both",
+                       "economics.hours_per_year", source)
+        if shift_given:
+            raise _err("with a shift pattern the warm-up runs over one day's hours from "
+                       "cold; leave shift_duration out", "scenario.shift_duration", source)
+        if e.hours_per_shift * e.shifts_per_day > 24.0 * (1 + 1e-12):
+            raise _err(f"{e.hours_per_shift:g} h x {e.shifts_per_day:g} shifts is more than "
+                       f"a day (24 h)", "economics.shifts_per_day", source)
+        e = dataclasses.replace(e, hours_per_year=m.shift_hours(e)[0])
     if e.present_strategy is not None:
         names = [s.name for s in strategies] + [s.kind for s in strategies]
         if e.present_strategy not in names:
@@ -1181,8 +1315,12 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
                          source)
         _parameters(defaults, "strategy_defaults", source)
     strategies = _strategies(data.get("strategies"), defaults, source)
-    economics = (_economics(data["economics"], strategies, source)
+    economics = (_economics(data["economics"], strategies, source,
+                            "shift_duration" in data["scenario"])
                  if "economics" in data else m.Economics())
+    pattern = m.shift_hours(economics)
+    if pattern is not None:
+        head["shift_duration"] = pattern[1] * 3600.0   # cold start each day
     cooler = (_simple(data["cooler"], _COOLER, "cooler", source, m.CoolerDesign())
               if "cooler" in data else m.CoolerDesign())
     # datasheet coolers: their format lives with their physics
@@ -1193,6 +1331,9 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
                           reservoir=reservoir, power_unit=power_unit, economics=economics,
                           cooler=cooler, coolers=coolers,
                           **{k: v for k, v in head.items() if k != "name"})
+    if "repeats" in data:
+        scenario = dataclasses.replace(scenario,
+                                       repeats=_repeats(data["repeats"], phases, source))
     if "uncertainty" in data:
         scenario = dataclasses.replace(
             scenario, uncertainty=_uncertainty(data["uncertainty"], scenario, source))
@@ -1537,6 +1678,12 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
         if getattr(s, k):
             d["scenario"][k] = getattr(s, k)
     d["economics"] = _dump_fields(s.economics, _ECONOMICS)
+    if s.repeats:
+        d["repeats"] = [{"first": r.first, "last": r.last, "count": r.count}
+                        for r in s.repeats]
+    if m.shift_hours(s.economics) is not None:
+        # the pattern gives both: written, they would contradict it on loading
+        del d["economics"]["hours_per_year"], d["scenario"]["shift_duration"]
     fluid = _dump_fields(s.fluid, _FLUID, skip=("viscosity_points",))
     if s.fluid.viscosity_points:
         fluid["viscosity_points"] = [[_format(t, "temperature"),
@@ -1564,6 +1711,8 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
             "speed": "shaft_speed" if motor else "velocity"})
         if ph.motion == "idle" and ph.load == 0.0:
             del item["load"]               # an idle phase takes no load key
+        if not ph.regeneration:
+            del item["regeneration"]       # written only where it is set
         if ph.speed is None and ph.motion in ("extend", "retract", "run"):
             item = {k: v for k, v in item.items() if k != "stroke" and k != "duration"
                     and k not in ("hold_pressure", "hold_force", "unloading", "compress")}

@@ -33,7 +33,7 @@ MOTIONS = ("extend", "retract", "hold", "idle", "run")
 #: ``centre``: the directional valve's open/tandem centre returns it to tank at low pressure;
 #: ``held``: the pump holds the phase's pressure at near-zero flow (variable
 #: pumps and variable speed only; a fixed pump falls back to ``relief``).
-UNLOADING = ("relief", "centre", "held")
+UNLOADING = ("relief", "centre", "held", "pilot-check")
 
 
 @dataclass(frozen=True)
@@ -197,6 +197,11 @@ class Cylinder:
     friction_force: float = 0.0            #: seal friction, opposes motion [N]
     max_pressure: float = 250e5            #: rating [Pa]
     dead_volume: float = 0.0               #: oil in hoses to the cylinder, each side [m^3]
+    #: its own counterbalance valve in the outlet line [Pa]; None -> the strategy's
+    counterbalance_setting: Optional[float] = None
+    counterbalance_pilot_ratio: float = 3.0  #: of its own counterbalance valve [-]
+    #: a back-pressure (counter-force) valve in its outlet line [Pa]; None -> none
+    back_pressure: Optional[float] = None
     kind: str = "cylinder"
 
 
@@ -210,6 +215,11 @@ class HydraulicMotor:
     hydromechanical_efficiency: float = 0.92  #: [-]
     max_pressure: float = 250e5            #: rating [Pa]
     max_speed: Optional[float] = None      #: [rev/s]
+    #: its own counterbalance (brake) valve in the outlet line [Pa]; None -> the strategy's
+    counterbalance_setting: Optional[float] = None
+    counterbalance_pilot_ratio: float = 3.0  #: of its own counterbalance valve [-]
+    #: a back-pressure (counter-force) valve in its outlet line [Pa]; None -> none
+    back_pressure: Optional[float] = None
     kind: str = "motor"
 
 
@@ -235,6 +245,25 @@ class Phase:
     hold_force: Optional[float] = None     #: force to hold (converted with the cap area) [N]
     unloading: str = "centre"              #: one of :data:`UNLOADING`
     compress: bool = True                  #: count compression energy of the chamber
+    #: an extending cylinder connected differentially: the rod side's oil joins the
+    #: cap side, so speed and force follow the rod area (v = Q / A_rod, F = p A_rod)
+    regeneration: bool = False
+
+
+@dataclass(frozen=True)
+class Repeat:
+    """A block of consecutive phases (from *first* to *last*, by name) that runs
+    *count* times in each cycle, written once.
+
+    A repeated phase's figures cover all its passes (its duration is *count*
+    single passes).  Its chamber's compression energy is counted once per pass
+    from the pressure of the phase before it in the file: where the block's
+    last phase pressurises the same chamber as its first, the passes after the
+    first start from that instead (not modelled; small against the cycle)."""
+
+    first: str
+    last: str
+    count: int = 2                         #: passes of the block per cycle [-]
 
 
 @dataclass(frozen=True)
@@ -254,6 +283,23 @@ class StrategyParameters:
     counterbalance_pilot_ratio: float = 3.0  #: pilot ratio of the counterbalance valve [-]
     min_speed_fraction: float = 0.1        #: variable speed: lowest motor speed / nominal [-]
     max_speed_fraction: float = 1.0        #: variable speed: highest / nominal [-]
+    #: hi-lo: the small (high-pressure) pump's share of the double pump's displacement [-]
+    high_pressure_fraction: float = 0.25
+    #: hi-lo: the large pump unloads above this [Pa]; None -> a third of the relief cracking
+    unloading_pressure: Optional[float] = None
+    #: hi-lo, accumulator: drop of an unloaded pump's flow to tank [Pa] (common practice)
+    unloading_valve_drop: float = 3e5
+    #: accumulator: lowest working pressure [Pa]; None -> 0.75 x the highest
+    accumulator_pressure_min: Optional[float] = None
+    #: accumulator: highest working pressure [Pa]; None -> relief cracking - 10 bar
+    #: (at least 0.9 x the cracking)
+    accumulator_pressure_max: Optional[float] = None
+    #: accumulator: gas precharge [Pa]; None -> 0.9 x the lowest working pressure
+    accumulator_precharge: Optional[float] = None
+    #: accumulator: gas volume at the precharge, its nominal size [m^3]
+    accumulator_gas_volume: float = 0.010
+    #: accumulator: polytropic exponent of the gas [-] (1 isothermal: slow cycles)
+    polytropic_exponent: float = 1.0
     price: Optional[float] = None          #: extra price of this circuit over the cheapest [currency]
 
 
@@ -275,12 +321,39 @@ class Economics:
     """Operating hours, energy price and grid emissions."""
 
     hours_per_year: float = 4000.0         #: machine running hours [h/year]
+    #: a shift pattern (all three, or none): hours per shift [h], shifts per day,
+    #: running days per week; with it hours_per_year = their product x weeks_per_year,
+    #: and the warm-up from cold runs over one day's hours (cold start each day)
+    hours_per_shift: Optional[float] = None
+    shifts_per_day: Optional[float] = None
+    days_per_week: Optional[float] = None
+    weeks_per_year: Optional[float] = None  #: None -> 50 with a shift pattern [-]
     electricity_price: float = 0.20 / 3.6e6  #: [currency/J]
     currency: str = "EUR"
     grid_co2_factor: float = 0.35 / 3.6e6  #: [kg/J]
     present_strategy: Optional[str] = None  #: the circuit the machine has now
     service_life: float = 10.0             #: years over which prices are annualised [year]
     interest_rate: float = 0.05            #: for the annualised prices [-/year]
+
+
+#: Working weeks a year of a shift pattern that gives none (52 less about two
+#: of holidays and shutdowns; common practice, from memory).
+WEEKS_PER_YEAR = 50.0
+
+
+def shift_hours(economics: Economics):
+    """``(hours per year [h], running hours per day [h])`` of a shift pattern,
+    or None when the economics give none.
+
+    .. math::  H_{year} = h_{shift} \, n_{shifts} \, n_{days} \, n_{weeks},
+               \qquad H_{day} = h_{shift} \, n_{shifts}
+    """
+    e = economics
+    if e.hours_per_shift is None:
+        return None
+    weeks = WEEKS_PER_YEAR if e.weeks_per_year is None else e.weeks_per_year
+    day = e.hours_per_shift * e.shifts_per_day
+    return day * e.days_per_week * weeks, day
 
 
 @dataclass(frozen=True)
@@ -356,6 +429,8 @@ class Scenario:
     shift_duration: float = 8 * 3600.0
     #: uncertain inputs (:class:`UncertainInput` items)
     uncertainty: tuple = ()
+    #: blocks of phases repeated within the cycle (:class:`Repeat` items)
+    repeats: tuple = ()
     #: air-oil coolers given by their datasheet curves
     #: (:class:`heatload.cooler_datasheet.DatasheetCooler` items)
     coolers: tuple = ()
@@ -371,6 +446,15 @@ class Scenario:
             if a.name == name:
                 return a
         raise KeyError(name)
+
+    def phase_repeats(self) -> tuple:
+        """Passes of each phase per cycle: a block's count inside it, else 1."""
+        names = [p.name for p in self.phases]
+        out = [1] * len(names)
+        for r in self.repeats:
+            for i in range(names.index(r.first), names.index(r.last) + 1):
+                out[i] = r.count
+        return tuple(out)
 
     def strategy(self, name: str) -> Strategy:
         for s in self.strategies:

@@ -72,7 +72,15 @@ _STRATEGY_KEYS = {"flow_control_min_drop": ("pressure", "nonneg"),
                   "counterbalance_setting": ("pressure", "pos"),
                   "counterbalance_pilot_ratio": ("dimensionless", "pos"),
                   "min_speed_fraction": ("dimensionless", "frac_pos"),
-                  "max_speed_fraction": ("dimensionless", "pos")}
+                  "max_speed_fraction": ("dimensionless", "pos"),
+                  "high_pressure_fraction": ("dimensionless", "frac_pos"),
+                  "unloading_pressure": ("pressure", "pos"),
+                  "unloading_valve_drop": ("pressure", "nonneg"),
+                  "accumulator_pressure_min": ("pressure", "pos"),
+                  "accumulator_pressure_max": ("pressure", "pos"),
+                  "accumulator_precharge": ("pressure", "pos"),
+                  "accumulator_gas_volume": ("volume", "pos"),
+                  "polytropic_exponent": ("dimensionless", "pos")}
 _TABLE_KEYS = {
     "ambient": {"temperature": ("temperature", "pos"), "temperature_max": ("temperature", "pos")},
     "reservoir": {"oil_volume": ("volume", "pos"), "steel_mass": ("mass", "nonneg"),

@@ -31,7 +31,9 @@ from __future__ import annotations
 
 import numpy as np
 
+from heatload import accumulator as _acc
 from heatload import circuits as _c
+from heatload import pumps
 
 
 class Circuit:
@@ -42,6 +44,7 @@ class Circuit:
     variable_pump = False     #: a variable-displacement pump (stroke follows demand)
     meters_out = False        #: speed set in the outlet line (holds an overrunning load)
     speed_controlled = False  #: the pump's motor runs on a frequency converter
+    accumulator = False       #: an accumulator stores the pump's flow between phases
     settings: tuple = ()      #: StrategyParameters fields this circuit reads
 
     # -- the flow solve -----------------------------------------------------
@@ -76,7 +79,8 @@ class Circuit:
         return np.where(use_centre, centre_dp, relief_full)
 
     def pump_state(self, c, q1, leakage, moving, stalled, use_centre, shape):
-        """``(stroke fraction, shaft speed [rev/s], delivered flow [m^3/s])``."""
+        """``(stroke fraction, shaft speed [rev/s], delivered flow [m^3/s])``
+        (``c["pump_pressure"]``: the solved pump pressure [Pa])."""
         n_pump = np.broadcast_to(c["pump_speed"], shape).astype(float)
         return np.ones(shape), n_pump, np.maximum(c["q_theoretical"] - leakage, 0.0)
 
@@ -84,6 +88,20 @@ class Circuit:
         """``(to_centre, to_relief)``: where the surplus flow goes (else: bled)."""
         to_centre = ~moving & use_centre
         return to_centre, ~to_centre
+
+    def pump_power(self, c, n_pump, p_pump, frac, q1, duration):
+        """``(shaft power [W], losses apart {component: W}, stored [W], duty)``.
+
+        The shaft power of the pump(s) at the operating point; the losses of a
+        pump running apart from the circuit (an unloaded pump's flow to tank,
+        booked under that component); the power put into an accumulator; and
+        an accumulator pump's on-time over the cycle (None for the rest).
+        One pump delivering into the circuit: ``P = 2 pi n T(p)``
+        (:func:`heatload.pumps.pump_torque`), nothing apart, nothing stored.
+        """
+        torque = pumps.pump_torque(c["pump_displacement"], n_pump, np.maximum(p_pump, 0.0),
+                                   c["mu"], c["pump_viscous"], c["pump_friction"], frac)
+        return pumps.pump_shaft_power(torque, n_pump), {}, 0.0, None
 
     # -- reporting --------------------------------------------------------------
     def settings_text(self, sp, q) -> str:
@@ -136,10 +154,11 @@ class MeterOut(MeterIn):
         # throttle drop = what the relief pressure leaves beyond the force balance
         p_pump = _c._relief_supply(q1, c, c["q_theoretical"])
         p1_open = p_pump - supply
-        # p1 A1 - (p_back + dp_fc) A2 = F  ->  dp_fc = (p1 A1 - F)/A2 - p_back
+        # p1 A1 - (p_back + bp + dp_fc) A2 = F  ->  dp_fc = (p1 A1 - F)/A2 - p_back - bp
+        # (bp: the actuator's back-pressure valve, if any)
         dp_fc_out = np.where(moving & ~stalled,
                              np.maximum((p1_open * c["a_in"] - c["force"]) / c["a_out"]
-                                        - p_back, 0.0), 0.0)
+                                        - p_back - c.get("back_pressure", 0.0), 0.0), 0.0)
         p1, p2, dp_cb = _c._inlet_pressure_at(p_back + dp_fc_out, c)
         return p_pump, p1, p2, dp_cb, np.zeros(np.shape(q1)), dp_fc_out
 
@@ -384,9 +403,275 @@ class VariableSpeed(Circuit):
                 f"{100 * sp.max_speed_fraction:.0f} % of nominal")
 
 
+class _Share(dict):
+    """A circuit dict seen as one pump of a set: its displacement is *share* of
+    the whole (the leakage scales with it), every other entry as in *c*."""
+
+    def __init__(self, c, share):
+        super().__init__(pump_displacement=c["pump_displacement"] * share)
+        self._c = c
+
+    def __missing__(self, key):
+        return self._c[key]
+
+    def get(self, key, default=None):
+        try:
+            return self[key]
+        except KeyError:
+            return default
+
+
+class HiLo(MeterIn):
+    """Hi-lo: a double pump (or two pumps) on one shaft, and a meter-in flow control.
+
+    The large, low-pressure pump delivers with the small one until the system
+    pressure reaches the unloading valve's setting p_u; above it the unloading
+    valve dumps the large pump's flow to tank at its small drop dp_u and the
+    small, high-pressure pump alone works up to the relief.  Supply pressure
+    available at circuit flow Q (the higher of the two stages):
+
+        p(Q) = max( relief(Q; Q_H),  p_u while Q <= Q_H + Q_L )
+
+    with Q_H = x D n (x: ``high_pressure_fraction``) and Q_L = (1 - x) D n, D
+    the power unit's pump displacement (the double pump's total), each less its
+    leakage.  Where the flow control takes less than both pumps give at p_u,
+    the unloading valve modulates and passes the surplus at p_u (booked as
+    bleed); where the load needs more than p_u the large pump is unloaded: its
+    flow Q_L' crosses the unloading valve at dp_u (loss Q_L' dp_u, bleed) and
+    the small pump's surplus crosses the relief.
+
+    Shaft power: each pump's torque at its own pressure,
+    ``P = 2 pi n (T(x D, p) + T((1 - x) D, p_L))``, p_L = p or dp_u.
+
+    References
+    ----------
+    Two-pump (hi-lo) circuits with an unloading valve: common practice (e.g.
+    press approach at both pumps' flow, pressing at the small pump's).
+    """
+
+    kind = "hi-lo"
+    description = ("double pump: both deliver below the unloading pressure, above it the "
+                   "large pump is unloaded to tank and the small one works up to the relief; "
+                   "a meter-in flow control sets the speed")
+    settings = ("high_pressure_fraction", "unloading_pressure", "unloading_valve_drop",
+                "flow_control_min_drop") + _COUNTERBALANCE
+
+    def _available(self, q, c):
+        x = c["hilo_fraction"]
+        return np.maximum(_c._relief_supply(q, _Share(c, x), x * c["q_theoretical"]),
+                          _c._compensator_supply(q, c, c["unload_pressure"],
+                                                 c["q_theoretical"]))
+
+    def kink(self, c, q_cap, leak):
+        # the corner of the high stage: the small pump's full flow at the relief
+        x = c["hilo_fraction"]
+        return x * (c["q_theoretical"] - leak * c["relief_cracking"])
+
+    def residual(self, q, c, rec=None):
+        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
+        dp_fc = _throttle(c, q, c[self.throttle])
+        return self._available(q, c) - (supply + p1 + dp_fc)
+
+    def pump_pressure(self, q1, c, required, p1, moving, stalled):
+        p_pump = self._available(q1, c)
+        return p_pump, np.maximum(p_pump - required, 0.0)
+
+    def _small_relief(self, c, q):
+        x = c["hilo_fraction"]
+        return _c._relief_supply(q, _Share(c, x), x * c["q_theoretical"])
+
+    def stall_pressure(self, c, z):
+        return self._small_relief(c, z)
+
+    def rest_pressure(self, c, z, use_centre, holding, p_hold, centre_dp, relief_full):
+        # a vented centre passes both pumps' flow; else the small pump's crosses the relief
+        return np.where(use_centre, centre_dp, self._small_relief(c, z))
+
+    def _loaded(self, c, p_pump):
+        """Where the large pump delivers into the circuit (system at or below p_u)."""
+        return p_pump <= c["unload_pressure"] * (1.0 + 1e-9)
+
+    def pump_state(self, c, q1, leakage, moving, stalled, use_centre, shape):
+        # *leakage* is both pumps' at the pump pressure; the small one's is x of it
+        n_pump = np.broadcast_to(c["pump_speed"], shape).astype(float)
+        share = np.where(self._loaded(c, c["pump_pressure"]), 1.0, c["hilo_fraction"])
+        return np.ones(shape), n_pump, np.maximum(share * (c["q_theoretical"] - leakage), 0.0)
+
+    def surplus_routing(self, moving, holding, use_centre, centre_ok, at_relief, shape):
+        # below the relief the surplus is the large pump's, passed by the
+        # modulating unloading valve at the system pressure: bled
+        to_centre = ~moving & use_centre
+        return to_centre, ~to_centre & at_relief
+
+    def pump_power(self, c, n_pump, p_pump, frac, q1, duration):
+        x = c["hilo_fraction"]
+        p = np.maximum(p_pump, 0.0)
+        loaded = self._loaded(c, p_pump)
+        p_large = np.where(loaded, p, c["unloading_drop"])
+
+        def torque(share, pressure):
+            return pumps.pump_torque(c["pump_displacement"] * share, n_pump, pressure, c["mu"],
+                                     c["pump_viscous"], c["pump_friction"])
+        shaft = pumps.pump_shaft_power(torque(x, p) + torque(1.0 - x, p_large), n_pump)
+        leak_large = (1.0 - x) * _c._leak_conductance(c) * c["unloading_drop"]
+        q_dumped = np.where(loaded, 0.0,
+                            np.maximum((1.0 - x) * c["pump_displacement"] * n_pump
+                                       - leak_large, 0.0))
+        return shaft, {"bleed": q_dumped * c["unloading_drop"]}, 0.0, None
+
+    def settings_text(self, sp, q):
+        unload = (q(sp.unloading_pressure, "pressure") if sp.unloading_pressure
+                  else "a third of the relief cracking")
+        return (f"small pump {100 * sp.high_pressure_fraction:.0f} % of the displacement, "
+                f"large pump unloaded above {unload} (to tank at "
+                f"{q(sp.unloading_valve_drop, 'pressure')})")
+
+
+class Accumulator(MeterIn):
+    """Accumulator circuit: a fixed pump charging a gas accumulator between a
+    lowest and a highest working pressure; an unloading (charging) valve idles
+    the pump at its small drop dp_u once p_max is reached and puts it back on
+    at p_min.  The actuators draw from the accumulator through a meter-in flow
+    control, which throttles the accumulator's pressure down to the load's.
+
+    Pressures: the speed must be held down to p_min, so the flow solve takes
+    p_min as the supply; the energy is booked at the swing's volume-weighted
+    mean pressure p_m (:func:`heatload.accumulator.mean_pressure`, polytropic
+    gas, n = 1 by default), the pressure the pump charges at and the circuit
+    draws at on average.  Throttling p_m -> p1 + drops is the flow control's
+    loss ``Q1 (p_m - p_required)``.
+
+    Pump: on for a fraction d of the cycle (:func:`heatload.accumulator.pump_duty`,
+    d = sum(Q1 t) / (Q_p' T), Q_p' = D n - L p_m), idling for 1 - d; in every
+    phase it is booked at that average state:
+
+        P_shaft = d 2 pi n T(p_m) + (1 - d) 2 pi n T(dp_u)
+        unloaded loss (bleed) = (1 - d) Q_idle' dp_u
+        stored = p_m (d Q_p' - Q1)          (sums to zero over the cycle)
+
+    so each phase closes ``P_el = useful + losses + stored``.
+
+    Notes
+    -----
+    The drive motor's part-load loss is taken at the averaged shaft power, not
+    averaged over the on and off states; the motor-overload check sees the
+    averaged power too.  Where d > 1 the pump cannot recharge the accumulator
+    within the cycle (flagged; d is then held at 1), and a phase drawing faster
+    than the pump delivers must find its whole volume between p_max and p_min
+    (the pump comes in only at p_min): flagged where it cannot.
+
+    References
+    ----------
+    Ideal-gas polytropic process (:mod:`heatload.accumulator`); accumulator
+    charging circuits with an unloading valve: common practice.
+    """
+
+    kind = "accumulator"
+    description = ("fixed pump charging a gas accumulator between two pressures, idled by "
+                   "an unloading valve in between; the accumulator delivers the peaks "
+                   "through a meter-in flow control")
+    accumulator = True
+    settings = ("accumulator_pressure_min", "accumulator_pressure_max", "accumulator_precharge",
+                "accumulator_gas_volume", "polytropic_exponent", "unloading_valve_drop",
+                "flow_control_min_drop") + _COUNTERBALANCE
+
+    def _mean(self, c):
+        return _acc.mean_pressure(c["acc_p_min"], c["acc_p_max"], c["acc_exponent"])
+
+    def residual(self, q, c, rec=None):
+        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
+        dp_fc = _throttle(c, q, c[self.throttle])
+        return c["acc_p_min"] - (supply + p1 + dp_fc)
+
+    def kink(self, c, q_cap, leak):
+        return q_cap
+
+    def pump_pressure(self, q1, c, required, p1, moving, stalled):
+        p_m = self._mean(c) + np.zeros(np.shape(q1))
+        return p_m, np.maximum(p_m - required, 0.0)
+
+    def stall_pressure(self, c, z):
+        return self._mean(c) + z
+
+    def rest_pressure(self, c, z, use_centre, holding, p_hold, centre_dp, relief_full):
+        # a closed circuit: the accumulator holds its pressure on the valve
+        return self._mean(c) + z
+
+    def pump_state(self, c, q1, leakage, moving, stalled, use_centre, shape):
+        # the accumulator gives the circuit what it takes; the pump's own
+        # state is booked in pump_power
+        n_pump = np.broadcast_to(c["pump_speed"], shape).astype(float)
+        return np.ones(shape), n_pump, q1 * 1.0
+
+    def surplus_routing(self, moving, holding, use_centre, centre_ok, at_relief, shape):
+        return np.zeros(shape, dtype=bool), np.zeros(shape, dtype=bool)
+
+    def delivery(self, c, q1, duration):
+        """``(p_m, charging flow Q_p', idle flow Q_idle', cycle duty d)``."""
+        p_m = self._mean(c)
+        leak = _c._leak_conductance(c)
+        q_th = c["pump_displacement"] * c["pump_speed"]
+        q_on = np.maximum(q_th - leak * p_m, 1e-30)
+        q_idle = np.maximum(q_th - leak * c["unloading_drop"], 0.0)
+        t = np.broadcast_to(duration, np.shape(q1))
+        # per-variant constants broadcast over phases: the cycle's sums over the last axis
+        volume = (q1 * t).sum(axis=-1)
+        q_on_row = np.broadcast_to(q_on, np.shape(q1))[..., 0]
+        duty = _acc.pump_duty(volume, q_on_row, t.sum(axis=-1))
+        return p_m, q_on, q_idle, duty
+
+    def pump_power(self, c, n_pump, p_pump, frac, q1, duration):
+        p_m, q_on, q_idle, duty = self.delivery(c, q1, duration)
+        d = np.minimum(duty, 1.0)[..., None]
+
+        def shaft(p):
+            return pumps.pump_shaft_power(
+                pumps.pump_torque(c["pump_displacement"], n_pump, p, c["mu"],
+                                  c["pump_viscous"], c["pump_friction"]), n_pump)
+        power = d * shaft(p_m + 0.0 * n_pump) + (1.0 - d) * shaft(c["unloading_drop"]
+                                                                  + 0.0 * n_pump)
+        stored = p_m * (d * q_on - q1)
+        return power, {"bleed": (1.0 - d) * q_idle * c["unloading_drop"]}, stored, duty
+
+    def extra_conditions(self, c, result):
+        from heatload.checks import Condition
+        q1, t = result.actuator_flow, result.duration
+        p_m, q_on, _, duty = self.delivery(c, q1, t)
+        shape = np.shape(q1)
+        usable = np.broadcast_to(_acc.usable_volume(c["acc_p_min"], c["acc_p_max"],
+                                                    c["acc_precharge"], c["acc_volume"],
+                                                    c["acc_exponent"]), shape)
+        q_on = np.broadcast_to(q_on, shape)
+        need = q1 * t / c.get("repeats", 1.0)     # one pass of a repeated phase
+        short = (q1 > q_on) & (need > usable * (1.0 + 1e-9))
+        behind = np.broadcast_to(np.asarray(duty)[..., None] > 1.0 + 1e-9, shape) \
+            & np.broadcast_to(c["moving"], shape)
+        d = np.broadcast_to(np.asarray(duty)[..., None], shape)
+
+        def text_short(i):
+            return (f"the phase draws {need[i] * 1e3:.2f} L faster than the pump delivers; "
+                    f"the accumulator gives only {usable[i] * 1e3:.2f} L between its "
+                    f"working pressures: the speed falls when it is empty")
+
+        def text_behind(i):
+            return (f"the cycle draws {100 * d[i]:.0f} % of what the pump can recharge: "
+                    f"the accumulator runs down cycle by cycle")
+        return [Condition("speed-not-reached", short, need, usable, text_short),
+                Condition("speed-not-reached", behind, d, np.ones(shape), text_behind)]
+
+    def settings_text(self, sp, q):
+        def p(v, default):
+            return q(v, "pressure") if v else default
+        return (f"accumulator {q(sp.accumulator_gas_volume, 'volume')} gas, working "
+                f"{p(sp.accumulator_pressure_min, '0.75 x max')} to "
+                f"{p(sp.accumulator_pressure_max, 'relief - 10 bar')}, n = "
+                f"{sp.polytropic_exponent:g}")
+
+
 #: Every strategy by name, in the order heatload shows them.
 REGISTRY = {cls.kind: cls() for cls in (MeterIn, MeterOut, BleedOff, BypassCompensated,
-                                        PressureCompensated, LoadSensing, VariableSpeed)}
+                                        PressureCompensated, LoadSensing, VariableSpeed,
+                                        HiLo, Accumulator)}
 #: Their names (:data:`heatload.model.STRATEGIES`).
 NAMES = tuple(REGISTRY)
 

@@ -30,9 +30,16 @@ def test_every_strategy_balances(comparison):
         assert np.isfinite(float(o.energy.electric_energy_per_year))
 
 
-def test_ranked_by_yearly_energy(comparison):
-    e = [float(o.energy.electric_energy_per_year) for o in comparison.ranked()]
-    assert e == sorted(e)
+def test_ranked_feasible_first_then_by_yearly_cost(comparison):
+    # the decision rule (heatload.decision): circuits that can do the job first, each
+    # group by its yearly cost of ownership; with the same prices, by energy
+    verdicts = comparison.decision().verdicts
+    assert [o.name for o in comparison.ranked()] == [v.name for v in verdicts]
+    feasible = [v.feasible for v in verdicts]
+    assert feasible == sorted(feasible, reverse=True)
+    for group in (True, False):
+        cost = [v.cost.total for v in verdicts if v.feasible == group]
+        assert cost == sorted(cost)
 
 
 def test_coupled_temperature_satisfies_heat_balance(comparison):

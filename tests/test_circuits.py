@@ -10,6 +10,7 @@
 4. Vectorization: a leading variants axis gives the same numbers as separate solves.
 """
 
+import dataclasses
 import math
 
 import numpy as np
@@ -317,7 +318,8 @@ def test_counterbalance_pressures_by_hand():
     assert _close(r.losses["counterbalance"][0], q2 * (setting - 3.0 * p1))
 
 
-@pytest.mark.parametrize("strategy", STRATEGIES)
+# an accumulator delivers peaks beyond its pump (checked by its own tests below)
+@pytest.mark.parametrize("strategy", [s for s in STRATEGIES if s != "accumulator"])
 def test_flow_limited_by_pump(strategy):
     # set speed beyond the pump: speed = pump flow / area (continuity)
     v = 0.12
@@ -587,7 +589,9 @@ def scenarios(draw):
     pu = m.PowerUnit(pump=pump, relief=m.ReliefValve(cracking_pressure=relief,
                                                      override=draw(st.floats(0.0, 30e5))))
     cyl = m.Cylinder("c", bore=bore, rod=rod, stroke=0.5,
-                     friction_force=draw(st.floats(0.0, 2e3)), dead_volume=1e-4)
+                     friction_force=draw(st.floats(0.0, 2e3)), dead_volume=1e-4,
+                     back_pressure=draw(st.one_of(st.none(), st.floats(1e5, 20e5))),
+                     counterbalance_setting=draw(st.one_of(st.none(), st.floats(10e5, 200e5))))
     mot = m.HydraulicMotor("mot", displacement=draw(st.floats(10e-6, 200e-6)),
                            volumetric_efficiency=draw(st.floats(0.85, 0.99)),
                            hydromechanical_efficiency=draw(st.floats(0.85, 0.99)))
@@ -597,10 +601,12 @@ def scenarios(draw):
         kind = draw(st.sampled_from(["extend", "retract", "run", "hold", "idle"]))
         load_frac = draw(st.floats(-0.8, 1.3))   # of the relief force; beyond 1 stalls
         speed = draw(st.one_of(st.none(), st.floats(0.001, 0.5)))
-        unl = draw(st.sampled_from(["relief", "centre", "held"]))
+        unl = draw(st.sampled_from(["relief", "centre", "held", "pilot-check"]))
         if kind in ("extend", "retract"):
+            regen = kind == "extend" and draw(st.booleans())
             phases.append(m.Phase(f"p{i}", "c", kind, load=load_frac * relief * a1,
-                                  speed=speed, stroke=0.3, unloading=unl))
+                                  speed=speed, stroke=0.3, unloading=unl,
+                                  regeneration=regen))
         elif kind == "run":
             torque = load_frac * relief * mot.displacement / (2 * math.pi)
             phases.append(m.Phase(f"p{i}", "mot", "run", load=torque,
@@ -793,3 +799,344 @@ def test_a_stalled_actuator_holds_what_the_pump_gives(kind):
     bound = v * p_pump**2 / (2 * sc.fluid.bulk_modulus) / r.duration[0]
     assert r.losses["compression"][0] <= bound * (1 + 1e-9)
     assert np.all(np.abs(r.balance_residual) <= 1e-9 * np.maximum(r.electric_power, 1.0))
+
+
+# ---------------------------------------------------------------------------
+# 5. hi-lo and accumulator circuits, by hand (ideal circuit as in section 1)
+# ---------------------------------------------------------------------------
+
+X_HI = 0.25                                     # model default high_pressure_fraction
+Q_HI, Q_LO = X_HI * Q_TH, (1 - X_HI) * Q_TH     # 10.15 and 30.45 L/min
+P_UNLOAD = P_RELIEF / 3                         # default: a third of the relief, 60 bar
+DP_UNLOAD = 3e5                                 # model default unloading_valve_drop
+
+
+def _lmin(q):
+    return q * 60000
+
+
+def test_hi_lo_approach_both_pumps_unloading_valve_modulates():
+    # light load, 30 L/min: between the small pump's 10.15 and both pumps' 40.6 L/min.
+    # Required 5 kN / A1 = 6.37 bar + 8 bar (flow control) < 60 bar, so both pumps
+    # deliver and the unloading valve holds the system at 60 bar, passing the surplus
+    # (common practice: an unloading valve is a pressure valve for the large pump)
+    q1 = 30 / 60000
+    sc = _scenario([m.Phase("approach", "c", "extend", load=5e3, speed=q1 / A1, stroke=0.4)])
+    r = _solve(sc, "hi-lo")
+    p1 = 5e3 / A1
+    assert _close(r.actuator_flow[0], q1, abs_=1e-12)
+    assert _close(r.pump_pressure[0], P_UNLOAD)
+    assert _close(r.pump_flow[0], Q_TH, abs_=1e-12)              # both pumps deliver
+    assert _close(r.bleed_flow[0], Q_TH - q1, abs_=1e-12)         # 10.6 L/min at 60 bar
+    assert _close(r.losses["bleed"][0], (Q_TH - q1) * P_UNLOAD)
+    assert _close(r.losses["flow_control"][0], q1 * (P_UNLOAD - p1))
+    assert r.relief_flow[0] == 0
+    # ideal pumps: shaft = 60 bar x 40.6 L/min / 600 = 4.06 kW (P = p Q)
+    assert r.shaft_power[0] / 1e3 == pytest.approx(60 * 40.6 / 600, rel=1e-9)
+    # against meter-in with the same total pump, whose surplus crosses 180 bar
+    r_in = _solve(sc, "meter-in")
+    assert r_in.shaft_power[0] / 1e3 == pytest.approx(180 * 40.6 / 600, rel=1e-9)
+
+
+def test_hi_lo_pressing_small_pump_large_unloaded():
+    # 50 kN needs 63.66 bar > 60: the large pump unloads to tank at 3 bar; the small
+    # pump works at the relief (180 bar) and the flow control takes 4.71 L/min
+    v = 0.01
+    q1 = v * A1
+    sc = _scenario([m.Phase("press", "c", "extend", load=F_EXT, speed=v, stroke=0.05)])
+    r = _solve(sc, "hi-lo")
+    assert _close(r.actuator_flow[0], q1, abs_=1e-12)
+    assert _close(r.pump_pressure[0], P_RELIEF)
+    assert _close(r.relief_flow[0], Q_HI - q1, abs_=1e-12)
+    assert _close(r.losses["relief"][0], (Q_HI - q1) * P_RELIEF)
+    # the unloaded pump: 30.45 L/min x 3 bar / 600 = 0.152 kW (P = p Q)
+    assert r.losses["bleed"][0] / 1e3 == pytest.approx(30.45 * 3 / 600, rel=1e-9)
+    assert _close(r.losses["flow_control"][0], q1 * (P_RELIEF - P1_EXT))
+    # shaft: 180 bar x 10.15 + 3 bar x 30.45 L/min, / 600 = 3.045 + 0.152 kW
+    assert r.shaft_power[0] / 1e3 == pytest.approx((180 * 10.15 + 3 * 30.45) / 600, rel=1e-9)
+    assert abs(r.losses["pump"][0]) < 1e-6
+    assert abs(r.balance_residual[0]) < 1e-6
+
+
+def test_hi_lo_fast_press_limited_to_the_small_pump():
+    # 50 kN (63.66 bar, above 60) at 23.56 L/min: only the small pump works at that
+    # pressure, so the speed is its 10.15 L/min over A1 (continuity)
+    r = _solve(SC, "hi-lo")
+    assert r.flow_limited[0]
+    assert _close(r.actuator_flow[0], Q_HI, rel=1e-9, abs_=1e-12)
+    assert _close(r.speed[0], Q_HI / A1, rel=1e-9)
+    assert r.relief_flow[0] < 1e-9 * Q_TH
+
+
+def test_hi_lo_hold_over_relief_is_the_small_pump():
+    r = _solve(_scenario([EXTEND, _hold("relief")]), "hi-lo")
+    # relief unloading: the small pump over the relief, the large one unloaded
+    assert _close(r.relief_flow[1], Q_HI, abs_=1e-12)
+    assert _close(r.heat_to_oil[1], Q_HI * P_RELIEF + Q_LO * DP_UNLOAD)
+
+
+P_ACC_MIN, P_ACC_MAX = 100e5, 170e5      # 170 bar: default relief 180 - 10 bar
+ACC_V0, ACC_P0 = 0.020, 90e5             # 20 L precharged to 90 bar
+P_ATM = 1.01325e5                        # ISO 2533 standard atmosphere
+
+
+def _acc_scenario(phases, **over):
+    par = dict(accumulator_pressure_min=P_ACC_MIN, accumulator_precharge=ACC_P0,
+               accumulator_gas_volume=ACC_V0)
+    par.update(over)
+    return _scenario(phases, **par)
+
+
+def test_accumulator_mean_pressure_and_volume_by_hand():
+    from heatload import accumulator as acc
+    pa, pb, p0 = P_ACC_MAX + P_ATM, P_ACC_MIN + P_ATM, ACC_P0 + P_ATM
+    # Boyle (n = 1): V = V0 p0 / p; usable V0 p0 (1/pb - 1/pa) = 20 L x 91.013 x
+    # (1/101.013 - 1/171.013) = 7.376 L
+    assert acc.usable_volume(P_ACC_MIN, P_ACC_MAX, ACC_P0, ACC_V0) * 1e3 == pytest.approx(
+        20 * 91.01325 * (1 / 101.01325 - 1 / 171.01325), rel=1e-12)
+    assert acc.usable_volume(P_ACC_MIN, P_ACC_MAX, ACC_P0, ACC_V0) * 1e3 == pytest.approx(
+        7.376, abs=1e-3)
+    # isothermal work p V ln(V2/V1) over the volume: ln(pa/pb)/(1/pb - 1/pa), abs.
+    assert acc.mean_pressure(P_ACC_MIN, P_ACC_MAX) == pytest.approx(
+        math.log(pa / pb) / (1 / pb - 1 / pa) - P_ATM, rel=1e-12)
+    # polytropic n = 1.4: W = (pa Va - pb Vb)/(n - 1), V ~ p^(-1/n)
+    n = 1.4
+    va, vb = pa ** (-1 / n), pb ** (-1 / n)
+    assert acc.mean_pressure(P_ACC_MIN, P_ACC_MAX, n) == pytest.approx(
+        (pa * va - pb * vb) / (n - 1) / (vb - va) - P_ATM, rel=1e-12)
+    # scipy as an independent integrator of p dV over the same swing
+    from scipy.integrate import quad
+    work, _ = quad(lambda v: pb * vb ** n / v ** n, va, vb)
+    assert acc.mean_pressure(P_ACC_MIN, P_ACC_MAX, n) == pytest.approx(
+        work / (vb - va) - P_ATM, rel=1e-9)
+    assert acc.gas_volume(P_ACC_MAX, ACC_P0, ACC_V0) == pytest.approx(ACC_V0 * p0 / pa)
+
+
+def test_accumulator_by_hand():
+    from heatload import accumulator as acc
+    # extend 50 kN at 0.05 m/s over 0.5 m (10 s, 23.56 L/min, 3.927 L), idle 30 s
+    sc = _acc_scenario([EXTEND, m.Phase("idle", None, "idle", duration=30.0)])
+    r = _solve(sc, "accumulator")
+    p_m = acc.mean_pressure(P_ACC_MIN, P_ACC_MAX)     # checked by hand above
+    volume = Q1_EXT * 10.0
+    duty = volume / (Q_TH * 40.0)                     # 3.927 L / 27.07 L = 0.145
+    assert volume * 1e3 == pytest.approx(3.92699, rel=1e-5)
+    assert r.pump_duty[0] == pytest.approx(duty, rel=1e-12)
+    assert duty == pytest.approx(3.92699 / (40.6 / 60 * 40), rel=1e-5)
+    assert _close(r.actuator_flow[0], Q1_EXT, abs_=1e-12)
+    assert _close(r.pump_pressure[0], p_m)
+    # throttling the accumulator's pressure down to the load's: Q1 (p_m - p1)
+    assert _close(r.losses["flow_control"][0], Q1_EXT * (p_m - P1_EXT))
+    # ideal pump on for d at p_m, idling for 1 - d at 3 bar (P = p Q)
+    for i in (0, 1):
+        assert _close(r.shaft_power[i], duty * p_m * Q_TH + (1 - duty) * DP_UNLOAD * Q_TH)
+        assert _close(r.losses["bleed"][i], (1 - duty) * DP_UNLOAD * Q_TH)
+    # the gas takes p_m (d Q_p - Q1): negative while extending, positive idling,
+    # zero over the cycle
+    assert _close(r.stored_power[0], p_m * (duty * Q_TH - Q1_EXT))
+    assert _close(r.stored_power[1], p_m * duty * Q_TH)
+    assert abs((r.stored_power * r.duration).sum()) < 1e-9 * p_m * volume
+    assert np.all(np.abs(r.balance_residual) < 1e-6)
+    # 7.4 L usable covers the phase's 3.9 L, and the pump keeps up: no warning
+    conds = strategies.REGISTRY["accumulator"].extra_conditions(_ideal(sc, "accumulator"), r)
+    assert not any(cd.mask.any() for cd in conds)
+
+
+def test_accumulator_too_small_and_pump_behind_are_flagged():
+    # 0.12 m/s: 56.5 L/min, more than the pump's 40.6, for 4.17 s: 3.93 L, more than a
+    # 5 L accumulator's 1.84 L usable (5 x 91.013 x (1/101.013 - 1/171.013))
+    v = 0.12
+    sc = _acc_scenario([m.Phase("fast", "c", "extend", load=F_EXT, speed=v, stroke=0.5),
+                        m.Phase("idle", None, "idle", duration=1.0)],
+                       accumulator_gas_volume=0.005)
+    c = _ideal(sc, "accumulator")
+    r = circuits.solve_strategy("accumulator", c)
+    short, behind = strategies.REGISTRY["accumulator"].extra_conditions(c, r)
+    assert short.code == behind.code == "speed-not-reached"
+    assert short.mask[0] and not short.mask[1]
+    assert short.limit[0] * 1e3 == pytest.approx(1.8440, abs=1e-3)
+    # duty 3.927 L / (40.6 L/min x 5.17 s) = 1.12 > 1: the pump falls behind
+    duty = v * A1 * (0.5 / v) / (Q_TH * (0.5 / v + 1.0))
+    assert duty == pytest.approx(1.12, abs=0.01)
+    assert r.pump_duty[0] == pytest.approx(duty, rel=1e-12)
+    assert behind.mask[0]
+    assert "runs down" in behind.text(0)
+
+
+def test_accumulator_load_above_its_lowest_pressure_stalls():
+    # 60 kN needs 76.4 bar + 8 bar flow control: above a 70 bar minimum
+    sc = _acc_scenario([m.Phase("p", "c", "extend", load=60e3, speed=0.05, stroke=0.1)],
+                       accumulator_pressure_min=70e5, accumulator_precharge=60e5)
+    r = _solve(sc, "accumulator")
+    assert r.flow_limited[0] or r.stalled[0]
+    assert r.speed[0] < 0.05
+
+
+# ---------------------------------------------------------------------------
+# 6. regeneration (differential connection), by hand
+# ---------------------------------------------------------------------------
+
+A_ROD = A1 - A2                                  # pi d^2 / 4 (geometry): 38.48 cm^2
+
+
+def test_regeneration_speed_and_force_from_the_rod_area():
+    # v = Q / A_rod and p = F / A_rod (differential cylinder, common practice):
+    # 10 kN and 0.1 m/s need 10e3 / 38.48e-4 = 25.98 bar and 0.1 x 38.48 cm^2 =
+    # 23.09 L/min, where the plain extension needs 78.54 cm^2: 47.12 L/min
+    assert A_ROD == pytest.approx(math.pi / 4 * ROD**2, rel=1e-12)
+    f, v = 10e3, 0.1
+    ph = m.Phase("approach", "c", "extend", load=f, speed=v, stroke=0.4, regeneration=True)
+    r = _solve(_scenario([ph]), "meter-in")
+    assert _close(r.actuator_flow[0], v * A_ROD, abs_=1e-12)
+    assert r.actuator_flow[0] * 60000 == pytest.approx(23.09, abs=0.01)
+    assert _close(r.inlet_pressure[0], f / A_ROD)
+    assert r.inlet_pressure[0] / 1e5 == pytest.approx(25.98, abs=0.01)
+    assert _close(r.speed[0], v)
+    # ideal drops: the rod side's oil rejoins at the cap pressure, nothing reaches tank
+    assert abs(r.outlet_pressure[0]) < 1e-6
+    assert _close(r.outlet_flow[0], v * A2, abs_=1e-12)
+    assert _close(r.useful_power[0], f * v)
+    assert abs(r.losses["actuator"][0]) < 1e-6
+    # the full pump flow: v = Q_th / A_rod = 0.176 m/s (40.6 L/min over 38.48 cm^2)
+    full = m.Phase("fast", "c", "extend", load=0.0, speed=None, stroke=0.4, regeneration=True)
+    r_full = _solve(_scenario([full]), "bleed-off")
+    assert _close(r_full.speed[0], Q_TH / A_ROD, rel=1e-9)
+    # the duration follows: 0.4 m / 0.176 m/s = 2.27 s
+    assert _close(r_full.duration[0], 0.4 / (Q_TH / A_ROD), rel=1e-9)
+
+
+def test_regeneration_with_drops_keeps_the_force_balance():
+    # real drops on the rod side's path: p1 A_cap - (p1 + p2) A_ann = F, i.e.
+    # p1 A_rod - p2 A_ann = F (force balance, common practice)
+    ph = m.Phase("approach", "c", "extend", load=10e3, speed=0.1, stroke=0.4,
+                 regeneration=True)
+    sc = _scenario([ph])
+    r = circuits.solve_strategy("meter-in", cycle.circuit_inputs(sc, "meter-in"))
+    p1, p2 = r.inlet_pressure[0], r.outlet_pressure[0]
+    assert p2 > 0
+    assert p1 * A1 - (p1 + p2) * A2 == pytest.approx(10e3, rel=1e-9)
+    assert abs(r.balance_residual[0]) < 1e-9 * r.electric_power[0]
+
+
+# ---------------------------------------------------------------------------
+# 7. repeated blocks of phases
+# ---------------------------------------------------------------------------
+
+@pytest.mark.parametrize("strategy", STRATEGIES)
+def test_repeated_block_equals_the_copied_phases(strategy):
+    # a block (press, back) run 3 times in the cycle, written once, gives the cycle
+    # the copied phases give: time t_A + 3 (t_B + t_C), energy sum(P t) alike
+    a = m.Phase("approach", "c", "extend", load=2e3, speed=0.1, stroke=0.2, compress=False)
+    b = m.Phase("press", "c", "extend", load=F_EXT, speed=0.02, stroke=0.05, compress=False)
+    cc = m.Phase("back", "c", "retract", load=1e3, speed=0.1, stroke=0.05, compress=False)
+    idle = m.Phase("wait", None, "idle", duration=4.0)
+    rep = dataclasses.replace(_scenario([a, b, cc, idle]),
+                              repeats=(m.Repeat("press", "back", 3),))
+    copied = _scenario([a, b, cc, dataclasses.replace(b, name="press2"),
+                        dataclasses.replace(cc, name="back2"),
+                        dataclasses.replace(b, name="press3"),
+                        dataclasses.replace(cc, name="back3"), idle])
+    r = circuits.solve_strategy(strategy, cycle.circuit_inputs(rep, strategy))
+    k = circuits.solve_strategy(strategy, cycle.circuit_inputs(copied, strategy))
+    t_one = 0.2 / 0.1 + 3 * (0.05 / 0.02 + 0.05 / 0.1) + 4.0      # 2 + 3 x 3 + 4 = 15 s
+    if not (r.flow_limited.any() or r.stalled.any()):
+        assert r.duration.sum() == pytest.approx(t_one, rel=1e-12)
+    assert r.duration.sum() == pytest.approx(k.duration.sum(), rel=1e-12)
+    for name in ("electric_power", "heat_to_oil"):
+        e_rep = (getattr(r, name) * r.duration).sum()
+        e_cop = (getattr(k, name) * k.duration).sum()
+        assert e_rep == pytest.approx(e_cop, rel=1e-9), name
+    assert np.all(np.abs(r.balance_residual) <= 1e-9 * (np.abs(r.electric_power) + 1.0))
+
+
+# ---------------------------------------------------------------------------
+# 8. valves set per actuator, and a hold on a pilot-operated check
+# ---------------------------------------------------------------------------
+
+def test_back_pressure_valve_per_actuator_by_hand():
+    # a 10 bar back-pressure valve in the outlet line: p2 = 10 bar while moving, so the
+    # force balance p1 A1 - p2 A2 = F gives p1 = (F + A2 x 10 bar)/A1 = 63.66 + 5.1 bar;
+    # its loss Q2 x 10 bar (P = p Q); in a hold it does nothing
+    bp = 10e5
+    acts = (m.Cylinder("c", bore=BORE, rod=ROD, stroke=0.5, back_pressure=bp),)
+    sc = _scenario([EXTEND, _hold("relief")], actuators=acts)
+    r = _solve(sc, "meter-in")
+    p1 = (F_EXT + A2 * bp) / A1
+    assert _close(r.inlet_pressure[0], p1)
+    assert _close(r.outlet_pressure[0], bp)
+    q2 = Q1_EXT * A2 / A1
+    assert _close(r.losses["counterbalance"][0], q2 * bp)
+    assert _close(r.losses["flow_control"][0], Q1_EXT * (P_RELIEF - p1))
+    assert r.outlet_pressure[1] == 0 and r.losses["counterbalance"][1] == 0
+    # retracting, the valve sits in the (cap side) outlet: p1 A2 - bp A1 = F
+    back = m.Phase("back", "c", "retract", load=5e3, speed=0.05, stroke=0.3)
+    r2 = _solve(_scenario([back], actuators=acts), "meter-in")
+    assert _close(r2.inlet_pressure[0], (5e3 + A1 * bp) / A2)
+    # meter-out: the outlet throttle takes what the valve leaves, p2 still from the balance
+    r3 = _solve(sc, "meter-out")
+    assert _close(r3.outlet_pressure[0], (P_RELIEF * A1 - F_EXT) / A2)
+    assert _close(r3.losses["counterbalance"][0] + r3.losses["flow_control"][0],
+                  q2 * (P_RELIEF * A1 - F_EXT) / A2)
+    for res in (r, r2, r3):
+        assert np.all(np.abs(res.balance_residual) < 1e-6)
+
+
+def test_counterbalance_per_actuator_replaces_the_strategys():
+    # the actuator's own valve: the same hand formula as the strategy's
+    # p1 = (F + A2 setting)/(A1 + r A2), here with r = 4 (common practice)
+    f = -20e3
+    setting = 1.3 * abs(f) / A2
+    acts = (m.Cylinder("c", bore=BORE, rod=ROD, stroke=0.5, counterbalance_setting=setting,
+                       counterbalance_pilot_ratio=4.0),)
+    sc = _scenario([m.Phase("lower", "c", "extend", load=f, speed=V_EXT, stroke=0.3)],
+                   actuators=acts)
+    r = _solve(sc, "meter-in")
+    assert not r.runaway[0] and r.counterbalance_active[0]
+    p1 = (f + A2 * setting) / (A1 + 4.0 * A2)
+    assert _close(r.inlet_pressure[0], p1)
+    assert _close(r.outlet_pressure[0], setting - 4.0 * p1)
+    # and it wins over a strategy's setting
+    sc2 = _scenario([m.Phase("lower", "c", "extend", load=f, speed=V_EXT, stroke=0.3)],
+                    actuators=acts, counterbalance_setting=2 * setting)
+    assert _close(_solve(sc2, "meter-in").inlet_pressure[0], p1)
+
+
+@pytest.mark.parametrize("strategy", ["meter-in", "bleed-off", "bypass-compensated", "hi-lo",
+                                      "variable-speed"])
+def test_hold_on_a_pilot_operated_check_unloads_the_pump(strategy):
+    # closed centre, 150 bar held by a pilot-operated check: the pump is vented at the
+    # valve's centre drop, 3 bar at 60 L/min ~ Q^2 (orifice law, common practice):
+    # 3 x (40.6/60)^2 = 1.374 bar; no relief flow; the chamber stays at 150 bar
+    sc = _scenario([EXTEND, _hold("pilot-check", hold_pressure=150e5)])
+    c = _ideal(sc, strategy, dv_centre_drop=3e5, centre_unloads=np.array(False))
+    r = circuits.solve_strategy(strategy, c)
+    q = Q_TH * (0.1 if strategy == "variable-speed" else 1.0)   # at its minimum speed
+    p_vent = 3e5 * (q / (60 / 60000)) ** 2
+    if strategy != "variable-speed":
+        assert p_vent / 1e5 == pytest.approx(3 * (40.6 / 60) ** 2, rel=1e-9)
+    assert _close(r.pump_pressure[1], p_vent)
+    assert r.relief_flow[1] == 0
+    assert _close(r.inlet_pressure[1], 150e5)
+    assert _close(r.heat_to_oil[1], q * p_vent)              # ideal pump: the vent only
+    # held over the relief instead, the same hold costs 180 bar x 40.6 L/min = 12.2 kW
+    # (hi-lo: 180 bar x 10.15 + 3 bar x 30.45 L/min = 3.2 kW), against 93 W vented
+    r_relief = circuits.solve_strategy(strategy, _ideal(
+        _scenario([EXTEND, _hold("relief", hold_pressure=150e5)]), strategy))
+    if strategy != "variable-speed":    # which holds at its minimum speed either way
+        assert r_relief.heat_to_oil[1] > 30 * r.heat_to_oil[1]
+    # no hold-pressure warning: the check holds, not the pump
+    from heatload import checks
+    conds = checks.phase_conditions(r, c, sc)
+    assert not any(cd.mask[1] for cd in conds if cd.code == "hold-pressure")
+
+
+@pytest.mark.parametrize("strategy", ["pressure-compensated", "load-sensing"])
+def test_hold_on_a_pilot_operated_check_variable_pump_destrokes(strategy):
+    # a variable pump need not be vented: it sits at zero stroke at its compensator
+    # (150 bar here) or at its standby (25 bar, model default); ideal pump: no flow, no heat
+    sc = _scenario([EXTEND, _hold("pilot-check", hold_pressure=160e5)],
+                   compensator_setting=150e5)
+    r = _solve(sc, strategy)
+    assert _close(r.pump_pressure[1], 150e5 if strategy == "pressure-compensated" else 25e5)
+    assert abs(r.pump_flow[1]) < 1e-12 and abs(r.heat_to_oil[1]) < 1e-6
+    assert _close(r.inlet_pressure[1], 160e5)               # the check holds 160 bar

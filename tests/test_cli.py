@@ -51,9 +51,17 @@ def test_air_and_water_cooled_commands_never_import_coolprop(argv):
 
 
 def test_compare_json_lists_all_strategies(capsys):
+    from heatload import io
     assert main(["compare", "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
-    assert [s["strategy"] for s in data["strategies"]] == list(STRATEGIES)
+    listed = [s.kind for s in io.load_scenario(io.default_scenario_path()).strategies]
+    assert [s["strategy"] for s in data["strategies"]] == listed
+    # the bundled examples together show every registered strategy
+    seen = set()
+    for path in io.example_paths():
+        assert main(["compare", "--json", str(path)]) == 0
+        seen |= {s["strategy"] for s in json.loads(capsys.readouterr().out)["strategies"]}
+    assert seen == set(STRATEGIES)
     for s in data["strategies"]:
         for key in ("heat_to_oil_W", "electric_energy_per_cycle_J", "electric_energy_per_year_kWh",
                     "peak_pressure_Pa", "oil_temperature_steady_C", "cooler_duty_W",

@@ -100,7 +100,7 @@ def test_minimal_file_loads_to_si():
     assert s.phases[2].hold_pressure == pytest.approx(100e5, rel=1e-15)  # 1 bar = 1e5 Pa
     assert s.phases[3].speed == pytest.approx(200 / 60, rel=1e-12)       # rpm -> rev/s
     assert isinstance(s.actuator("mot"), model.HydraulicMotor)
-    # no [[strategies]]: all seven with default parameters, in the model's order
+    # no [[strategies]]: every strategy with default parameters, in the model's order
     assert tuple(x.kind for x in s.strategies) == model.STRATEGIES
     assert all(x.parameters == model.StrategyParameters() for x in s.strategies)
     # the sections left out keep the model's defaults
@@ -208,8 +208,12 @@ def test_example_pump_reaches_its_target_speeds(path):
     s = io.load_scenario(path)
     pump = s.power_unit.pump
     q = pump.displacement * pump.shaft_speed * pump.volumetric_efficiency
-    for ph in s.phases:
+    # with an accumulator the pump need only cover the cycle's mean flow, sum(Q t) / T
+    stored = any(x.kind == "accumulator" for x in s.strategies)
+    volume = time = 0.0
+    for ph, n in zip(s.phases, s.phase_repeats()):
         if ph.speed is None or ph.actuator is None:
+            time += n * (ph.duration or 0.0)
             continue
         a = s.actuator(ph.actuator)
         if a.kind == "motor":
@@ -219,7 +223,11 @@ def test_example_pump_reaches_its_target_speeds(path):
             if ph.motion == "retract":
                 area -= math.pi / 4 * a.rod ** 2
             need = ph.speed * area
-        assert need <= q, ph.name
+        t = ph.duration or ph.stroke / ph.speed
+        volume, time = volume + n * need * t, time + n * t
+        if not stored:
+            assert need <= q, ph.name
+    assert volume <= q * time
 
 
 def test_schema_example_round_trips_and_documents_every_key():
@@ -579,3 +587,141 @@ def test_limits_documented_with_their_reasons():
         assert fragment in section, fragment
     for fragment in ("-60 .. +70 degC", "at least 0.1 L", "area ratio", "24 h"):
         assert fragment in io.SCHEMA_EXAMPLE, fragment
+
+
+def _readme_block(heading):
+    """The first ```toml block after *heading* in the README."""
+    from pathlib import Path
+    readme = (Path(__file__).parents[1] / "README.md").read_text(encoding="utf-8")
+    after = readme.split(heading, 1)[1]
+    return after.split("```toml\n", 1)[1].split("```", 1)[0]
+
+
+def test_readme_hi_lo_and_accumulator_example_loads():
+    text = MINIMAL + "\n" + _readme_block("### Hi-lo and accumulator circuits")
+    s = io.loads_scenario(text, source="README")
+    hilo, acc = s.strategy("hi-lo").parameters, s.strategy("accumulator").parameters
+    assert hilo.high_pressure_fraction == 0.2
+    assert hilo.unloading_pressure == pytest.approx(50e5, rel=1e-15)     # 1 bar = 1e5 Pa
+    assert acc.accumulator_gas_volume == pytest.approx(0.020, rel=1e-15)  # 1 L = 1e-3 m^3
+    assert acc.accumulator_precharge == pytest.approx(110e5, rel=1e-15)
+    # saved and loaded again: the same settings
+    assert io.loads_scenario(io.dumps_scenario(s)).strategies == s.strategies
+
+
+@pytest.mark.parametrize("lines, field", [
+    ('high_pressure_fraction = 1.0', "high_pressure_fraction"),
+    ('accumulator_pressure_min = "180 bar"\naccumulator_pressure_max = "170 bar"',
+     "accumulator_pressure_min"),
+    ('accumulator_pressure_min = "100 bar"\naccumulator_precharge = "120 bar"',
+     "accumulator_precharge"),
+])
+def test_hi_lo_and_accumulator_settings_refused(lines, field):
+    text = MINIMAL + '\n[[strategies]]\nkind = "accumulator"\n' + lines + "\n"
+    with pytest.raises(HeatloadError) as info:
+        io.loads_scenario(text, source="bad.toml")
+    assert field in str(info.value) and "bad.toml" in str(info.value)
+
+
+def test_regeneration_is_read_written_and_refused_where_it_cannot_be():
+    text = MINIMAL.replace('motion = "extend"', 'motion = "extend"\nregeneration = true', 1)
+    s = io.loads_scenario(text)
+    assert [p.regeneration for p in s.phases][:2] == [True, False]
+    again = io.dumps_scenario(s)
+    assert again.count("regeneration") == 1           # written only where it is set
+    assert io.loads_scenario(again) == s
+    bad = MINIMAL.replace('motion = "retract"', 'motion = "retract"\nregeneration = true', 1)
+    assert bad != MINIMAL
+    with pytest.raises(HeatloadError, match="only an extending cylinder can regenerate") as e:
+        io.loads_scenario(bad, source="bad.toml")
+    assert "regeneration" in str(e.value)
+
+
+def test_readme_regeneration_example_loads():
+    text = MINIMAL + "\n" + _readme_block("### Regeneration")
+    s = io.loads_scenario(text, source="README")
+    assert s.phases[-1].regeneration and s.phases[-1].speed is None
+
+
+def test_shift_pattern_gives_hours_per_year_and_the_daily_warm_up():
+    text = MINIMAL + ('\n[economics]\nhours_per_shift = 8\nshifts_per_day = 2\n'
+                      'days_per_week = 5\n')
+    s = io.loads_scenario(text)
+    # 8 h x 2 shifts x 5 days x 50 weeks (the default) = 4000 h; a 16 h day from cold
+    assert s.economics.hours_per_year == pytest.approx(8 * 2 * 5 * 50, rel=1e-15)
+    assert s.shift_duration == pytest.approx(16 * 3600, rel=1e-15)
+    again = io.dumps_scenario(s)
+    assert "hours_per_year" not in again and "shift_duration" not in again
+    assert io.loads_scenario(again) == s
+    s48 = io.loads_scenario(text + "weeks_per_year = 48\n")
+    assert s48.economics.hours_per_year == pytest.approx(8 * 2 * 5 * 48, rel=1e-15)
+    # the older key alone keeps working
+    old = io.loads_scenario(MINIMAL + "\n[economics]\nhours_per_year = 3000\n")
+    assert old.economics.hours_per_year == 3000 and old.shift_duration == 8 * 3600
+
+
+@pytest.mark.parametrize("extra, field", [
+    ("hours_per_shift = 8\nshifts_per_day = 2\n", "economics.days_per_week"),
+    ("hours_per_shift = 8\nshifts_per_day = 2\ndays_per_week = 5\nhours_per_year = 4000\n",
+     "economics.hours_per_year"),
+    ("hours_per_shift = 10\nshifts_per_day = 3\ndays_per_week = 5\n",
+     "economics.shifts_per_day"),
+    ("days_per_week = 8\n", "economics.days_per_week"),
+])
+def test_shift_pattern_refused(extra, field):
+    with pytest.raises(HeatloadError) as info:
+        io.loads_scenario(MINIMAL + "\n[economics]\n" + extra, source="bad.toml")
+    assert field in str(info.value)
+
+
+def test_shift_pattern_and_shift_duration_are_not_both_given():
+    text = MINIMAL.replace('name = "test rig"', 'name = "test rig"\nshift_duration = "8 h"')
+    text += "\n[economics]\nhours_per_shift = 8\nshifts_per_day = 1\ndays_per_week = 5\n"
+    with pytest.raises(HeatloadError, match="shift_duration"):
+        io.loads_scenario(text)
+
+
+def test_repeats_read_written_and_refused():
+    text = MINIMAL + '\n[[repeats]]\nfirst = "out"\nlast = "back"\ncount = 3\n'
+    s = io.loads_scenario(text)
+    assert s.repeats == (model.Repeat("out", "back", 3),)
+    assert s.phase_repeats() == (3, 3, 1, 1)
+    assert len(s.phases) == 4                         # written once, not copied
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
+    # one phase alone: last defaults to first
+    s1 = io.loads_scenario(MINIMAL + '\n[[repeats]]\nfirst = "spin"\ncount = 2\n')
+    assert s1.phase_repeats() == (1, 1, 1, 2)
+
+
+@pytest.mark.parametrize("block, fragment", [
+    ('first = "outt"\ncount = 2', "no phase called 'outt'"),
+    ('first = "back"\nlast = "out"\ncount = 2', "comes before"),
+    ('first = "out"\ncount = 2.5', "whole number"),
+    ('first = "out"\ncount = 0', "count"),
+    ('first = "out"\nlast = "back"\ncount = 2\n\n[[repeats]]\nfirst = "back"\ncount = 2',
+     "may not overlap"),
+])
+def test_bad_repeats_refused(block, fragment):
+    with pytest.raises(HeatloadError, match=fragment):
+        io.loads_scenario(MINIMAL + "\n[[repeats]]\n" + block + "\n", source="bad.toml")
+
+
+def test_readme_repeats_and_shift_example_loads():
+    phases = MINIMAL.replace('name = "out"', 'name = "charge"').replace(
+        'name = "back"', 'name = "charge back"')
+    s = io.loads_scenario(phases + "\n" + _readme_block("### Repeated blocks and shift"),
+                          source="README")
+    assert s.phase_repeats() == (2, 2, 1, 1)
+    assert s.economics.hours_per_year == pytest.approx(3840, rel=1e-15)   # 8 x 2 x 5 x 48
+    assert s.shift_duration == pytest.approx(16 * 3600, rel=1e-15)
+
+
+def test_readme_actuator_valves_example_loads():
+    s = io.loads_scenario(MINIMAL + "\n" + _readme_block("### Valves per actuator"),
+                          source="README")
+    lift = s.actuator("lift")
+    assert lift.counterbalance_setting == pytest.approx(110e5, rel=1e-15)
+    assert lift.counterbalance_pilot_ratio == 4.0
+    assert lift.back_pressure == pytest.approx(4e5, rel=1e-15)
+    assert s.phases[-1].unloading == "pilot-check"
+    assert io.loads_scenario(io.dumps_scenario(s)) == s
