@@ -18,6 +18,8 @@ air-oil coolers: common practice.
 
 from __future__ import annotations
 
+from abc import ABC, abstractmethod
+
 from heatload import cooler as _k
 from heatload.errors import HeatloadError
 
@@ -28,41 +30,43 @@ def _c(t):
     return f"{t - K0:.4g} °C"
 
 
-class CoolerType:
-    """A cooler of one coolant (the interface; see the module notes)."""
+class CoolerType(ABC):
+    """A cooler of one coolant (the interface; see the module notes): a new type
+    implements the abstract methods, the others have defaults."""
 
     name = ""      #: the file's ``coolant`` value
     label = ""     #: the kind of exchanger on the spec sheet
     medium = ""    #: the coolant as the spec sheet's rows name it
     has_fan = False  #: a fan draws electric power while the cooler works
 
+    @abstractmethod
     def inlet_temperature(self, cooler_design, design_ambient) -> float:
         """Coolant inlet temperature at the design point [K]."""
-        raise NotImplementedError
 
+    @abstractmethod
     def refusal(self, oil_temperature, design_ambient, cooler_design, what, oil_field):
         """``(message, field)`` when this coolant cannot cool oil at
         *oil_temperature* [K] (it enters no colder: ETD <= 0, second law); else None."""
-        raise NotImplementedError
 
+    @abstractmethod
     def size(self, sz, cd):
         """Size this cooler into the :class:`heatload.sizing.CoolerSizing` *sz*
         (a note where it cannot reach the duty)."""
-        raise NotImplementedError
 
+    @abstractmethod
     def possible(self, sz) -> bool:
-        raise NotImplementedError
+        """True when :meth:`size` reached the duty (a spec sheet can be drawn)."""
 
     def arrangement(self, sz):
         """The exchanger arrangement of the spec sheet (None: one kind only)."""
         return None
 
+    @abstractmethod
     def spec_sheet(self, duty, oil_inlet_temperature, coolant_inlet_temperature, oil_flow,
                    oil_density, oil_specific_heat, common, options) -> _k.CoolerSpec:
         """The spec sheet at the duty with margin *duty* [W]; *common*: the
         :class:`heatload.cooler.CoolerSpec` fields every type fills; *options*:
         the sizing settings of :func:`heatload.cooler.cooler_spec_sheet`."""
-        raise NotImplementedError
 
     def description(self, spec) -> str:
         return self.label
@@ -73,9 +77,9 @@ class CoolerType:
     def extra_rows(self, spec, system, fq) -> list:
         return []
 
+    @abstractmethod
     def summary(self, spec) -> str:
         """The cooler in a few words for the report's front page (spec record, SI)."""
-        raise NotImplementedError
 
 
 class AirOil(CoolerType):
