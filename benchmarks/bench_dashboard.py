@@ -27,7 +27,8 @@ import numpy as np  # noqa: E402
 
 from heatload.dashboard import app as dash_app  # noqa: E402
 from heatload.dashboard import callbacks, compute, state  # noqa: E402
-from heatload import chain, io, tables  # noqa: E402
+from heatload import chain, io
+from heatload.outputs import tables
 
 
 def _stats(xs):

@@ -4,7 +4,8 @@ import time
 
 import numpy as np
 
-from heatload import chain, circuits, cycle, io
+from heatload import chain, io
+from heatload.hydraulics import circuits, cycle
 from heatload.model import STRATEGIES
 
 SC = io.load_scenario(io.default_scenario_path())
@@ -26,7 +27,7 @@ def main():
     chain.compare(SC)
     print(f"chain.compare (7 strategies, thermal coupling, cooler): "
           f"{(time.perf_counter() - t0) * 1e3:.0f} ms")
-    from heatload import variants
+    from heatload.studies import variants
     t0 = time.perf_counter()
     for s in SC.strategies:
         variants.evaluate_variants(SC, s)

@@ -20,7 +20,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
 import numpy as np  # noqa: E402
 
-from heatload import logfit, measured  # noqa: E402
+from heatload.measurement import logfit, measured
 
 K0 = 273.15
 C, UA, P = 600e3, 55.0, 4000.0

@@ -5,7 +5,8 @@ import time
 
 import numpy as np
 
-from heatload import io, variants
+from heatload import io
+from heatload.studies import variants
 
 SC = io.load_scenario(io.default_scenario_path())
 PATH = "power_unit.pump.displacement"

@@ -6,7 +6,9 @@ import time
 import numpy as np
 from scipy.integrate import solve_ivp
 
-from heatload import io, thermal, uncertainty
+from heatload import io
+from heatload.heat import thermal
+from heatload.studies import uncertainty
 from heatload.chain import compare
 
 SC = io.load_scenario(io.default_scenario_path())

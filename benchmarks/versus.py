@@ -17,7 +17,8 @@ HERE = pathlib.Path(__file__).resolve().parents[1]
 CASE = r"""
 import json, time
 import numpy as np
-from heatload import chain, io, variants
+from heatload import chain, io
+from heatload.studies import variants
 SC = io.load_scenario(io.default_scenario_path())
 def timed(fn, repeat):
     best = np.inf

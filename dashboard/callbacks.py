@@ -26,8 +26,10 @@ from dash.exceptions import PreventUpdate
 
 from . import compute, figures, state
 from .layout import ACTIVE_CELL, MAX_UPLOAD_BYTES
-from heatload import chain, io, report, sizing, tables
-from heatload import uncertainty as unc
+from heatload import chain, io
+from heatload.outputs import report, tables
+from heatload.cooling import sizing
+from heatload.studies import uncertainty as unc
 from heatload.errors import HeatloadError
 
 ERROR_STYLE = {"backgroundColor": "#fde4d3", "border": "2px solid #D55E00"}
@@ -362,7 +364,7 @@ def shift_view(data: dict, strategy: str, system: str):
 
 
 def cooler_view(data: dict, strategy: str, system: str):
-    """Spec sheet rows and notes of the cooler of *strategy* (heatload.sizing)."""
+    """Spec sheet rows and notes of the cooler of *strategy* (heatload.cooling.sizing)."""
     scenario, outcome = compute.strategy_outcome(data, strategy)
     sz = sizing.size_cooler(scenario, outcome, thermostat=False)
     notes = [html.Div(n, className="note") for n in sz.notes]
@@ -407,7 +409,7 @@ def _call(fn, *args, **kwargs):
 
 def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
     """Monte Carlo histogram of the cooler duty and the sensitivity ranking
-    (:mod:`heatload.uncertainty`); a note when it is missing."""
+    (:mod:`heatload.studies.uncertainty`); a note when it is missing."""
     scenario = compute.scenario_of(data)
     if not scenario.uncertainty:
         return html.Div("The scenario lists no uncertain inputs ([[uncertainty]] in the "
@@ -441,7 +443,7 @@ def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
         figs.append(figures.sensitivity_figure(rows, system, "what moves the duty most"))
     from dash import dcc
 
-    from heatload.wording import plain_path
+    from heatload.outputs.wording import plain_path
     # the inputs in plain words; the file's path as the tooltip
     names = [html.Span(plain_path(u.path, scenario), title=u.path, className="input-name")
              for u in scenario.uncertainty]
@@ -479,7 +481,7 @@ REPORT_SAMPLES = 1000
 
 
 def download_report(data: dict, source: str | None = None, system: str = "si"):
-    """The HTML report (heatload.report.build_report), or ``None`` with a note.
+    """The HTML report (heatload.outputs.report.build_report), or ``None`` with a note.
 
     The cover names the scenario as shown (edits included) and its SHA-256 is
     that of the TOML the page's scenario download gives, not of a file on the

@@ -1,8 +1,8 @@
 """The recompute: a validated scenario in, plain JSON-ready results out.
 
-Everything the figures need is taken from :func:`heatload.tables.comparison_dict`
+Everything the figures need is taken from :func:`heatload.outputs.tables.comparison_dict`
 (the same numbers as ``heatload compare --json``) and
-:func:`heatload.tables.savings_against`; nothing is kept on the server
+:func:`heatload.outputs.tables.savings_against`; nothing is kept on the server
 between requests (the results travel to the page's ``dcc.Store``).
 Views that need the engine's objects (temperature over a shift, cooler
 sizing) rebuild the one strategy they show from the stored scenario.
@@ -16,7 +16,8 @@ import math
 
 import numpy as np
 
-from heatload import chain, io, tables
+from heatload import chain, io
+from heatload.outputs import tables
 from heatload.errors import HeatloadError
 
 
@@ -61,7 +62,7 @@ def compute_results(scenario, source=None, only=None, key=None) -> dict:
     Returns
     -------
     dict
-        ``comparison`` (:func:`heatload.tables.comparison_dict`, with phases),
+        ``comparison`` (:func:`heatload.outputs.tables.comparison_dict`, with phases),
         ``savings`` ({baseline: {strategy: {energy_saving_kWh, cost_saving,
         co2_saving_kg}}} for every baseline; empty while incomplete), ``name``,
         ``complete``.

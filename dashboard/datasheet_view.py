@@ -1,6 +1,6 @@
 """Datasheet coolers in the dashboard's cooler view: each cooler listed in the
 scenario (``[[coolers]]``) rated on the hottest day
-(:func:`heatload.cooler_datasheet.rate_coolers`), the chosen one marked.
+(:func:`heatload.cooling.cooler_datasheet.rate_coolers`), the chosen one marked.
 Lays out only; nothing here computes physics."""
 
 from __future__ import annotations
@@ -11,7 +11,7 @@ from dash import html
 def datasheet_block(scenario, outcome, system: str):
     """An HTML block rating the scenario's datasheet coolers for *outcome*'s
     strategy, or None when the scenario lists none."""
-    from heatload import cooler_datasheet
+    from heatload.cooling import cooler_datasheet
     from heatload.units import format_quantity as fq
 
     if not getattr(scenario, "coolers", ()):

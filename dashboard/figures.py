@@ -13,13 +13,13 @@ from dash import html
 from plotly.subplots import make_subplots
 
 from heatload import units
-from heatload.report_assets import PALETTE, ROLE_COLOURS
-from heatload.wording import customer_warnings, plain_path, warning_text
+from heatload.outputs.report_assets import PALETTE, ROLE_COLOURS
+from heatload.outputs.wording import customer_warnings, plain_path, warning_text
 
 K0 = 273.15
 
 #: Okabe-Ito colour-blind-safe palette, by name; the colours are those of the one
-#: palette definition, :data:`heatload.report_assets.PALETTE` (report and dashboard).
+#: palette definition, :data:`heatload.outputs.report_assets.PALETTE` (report and dashboard).
 OKABE_ITO = dict(zip(("blue", "orange", "green", "vermillion", "sky", "purple", "yellow",
                       "black"), PALETTE), grey=ROLE_COLOURS["infeasible"])
 SERIES = PALETTE + (ROLE_COLOURS["infeasible"],)
@@ -251,8 +251,8 @@ def headline(results: dict, strategy: str | None, system: str):
 def decision_figure(results: dict):
     """Yearly cost of ownership of every strategy, ranked: energy, cooler fan,
     annualised circuit and cooler price stacked, one colour per role
-    (:data:`heatload.report_assets.ROLE_COLOURS`), ruled-out circuits grey."""
-    from heatload.report_assets import role_colour
+    (:data:`heatload.outputs.report_assets.ROLE_COLOURS`), ruled-out circuits grey."""
+    from heatload.outputs.report_assets import role_colour
 
     comp = results["comparison"]
     dec = comp.get("decision") or {}
@@ -288,7 +288,7 @@ def decision_figure(results: dict):
 
 def warnings_in_words(comp: dict, name: str | None) -> list:
     """The warnings of strategy *name* in plain sentences grouped by severity
-    (:func:`heatload.wording.customer_warnings`), for the decision view."""
+    (:func:`heatload.outputs.wording.customer_warnings`), for the decision view."""
     r = next((x for x in comp["strategies"] if x["label"] == name), None)
     if r is None or not r["warnings"]:
         return []

@@ -2,7 +2,7 @@
 the tank model fitted to it beside the scenario's model.
 
 Only lays out and calls the engine: reading and fitting are
-:mod:`heatload.measured` and :mod:`heatload.logfit`; the heat capacity comes
+:mod:`heatload.measurement.measured` and :mod:`heatload.measurement.logfit`; the heat capacity comes
 from the scenario shown (:func:`heatload.evaluation.heat_capacity`) unless one is
 typed in.  ``log_view`` is the plain function behind the callback, testable
 without a browser; nothing is written to disk.
@@ -48,7 +48,7 @@ def layout():
 
 
 def _decode(contents, filename):
-    from heatload import logs
+    from heatload.measurement import logs
 
     name = re.sub(r"[^\w.\- ]", "_", str(filename or "log.csv"))[:120]
     if not contents or "," not in contents:
@@ -73,7 +73,7 @@ def _table(rows):
 
 
 def _comparison(c, system):
-    from heatload.measured import _q
+    from heatload.measurement.measured import _q
 
     factor = c["heat_calibration_factor"]
     ua_factor = c["conductance_calibration_factor"]
@@ -101,7 +101,8 @@ def log_view(contents, filename, capacity_text, store, system):
     empty views."""
     import numpy as np
 
-    from heatload import chain, evaluation, measured
+    from heatload import chain, evaluation
+    from heatload.measurement import measured
     from heatload.units import format_quantity, to_si
 
     empty = ("", None, None, {"data": [], "layout": {"height": 80}})

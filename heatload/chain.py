@@ -23,7 +23,9 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from heatload import checks, circuits, cycle, energy, evaluation, heat_transfer, thermal
+from heatload import checks, evaluation
+from heatload.hydraulics import circuits, cycle, energy
+from heatload.heat import heat_transfer, thermal
 from heatload.evaluation import ConductanceTable
 from heatload.model import Scenario, Strategy
 
@@ -164,7 +166,7 @@ def time_to_temperature(heat, capacity, conductance, ambient, start, target, poi
 
     The cycle's heat is taken as its mean: the ripple within a cycle of
     seconds to minutes is negligible against a time constant of hours (the
-    exact segment-by-segment run is :func:`heatload.thermal.warm_up`).
+    exact segment-by-segment run is :func:`heatload.heat.thermal.warm_up`).
     """
     if target <= start:
         return 0.0
@@ -177,9 +179,9 @@ def time_to_temperature(heat, capacity, conductance, ambient, start, target, poi
 
 def shift_profile(scenario: Scenario, outcome: "StrategyOutcome", cooler_on=False):
     """Oil temperature over a shift from a cold start, segment by segment
-    (:func:`heatload.thermal.warm_up`), at typical ambient; with *cooler_on*
+    (:func:`heatload.heat.thermal.warm_up`), at typical ambient; with *cooler_on*
     a thermostat-switched cooler of the sized duty is added
-    (:func:`heatload.thermal.thermostat_cooler_run`)."""
+    (:func:`heatload.heat.thermal.thermostat_cooler_run`)."""
     amb = scenario.ambient
     th = outcome.thermal
     ua = conductance_fn(scenario, amb.temperature)

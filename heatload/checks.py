@@ -4,7 +4,7 @@ Each warning is data: a code, its phase, the value that triggered it and the
 limit (SI, of the code's kind, :data:`CODE_KINDS`), and a one-line text whose
 figures are marked with their SI value and kind (:func:`heatload.units.mark`):
 the engine writes no unit; every edge writes the text in its reader's units
-through :func:`heatload.wording.warning_text`.
+through :func:`heatload.outputs.wording.warning_text`.
 
 Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 ``cavitation``, ``relief-passing``, ``speed-not-reached``, ``stall``,
@@ -18,7 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from heatload.circuits import CAVITATION_THRESHOLD, UNLOAD_CENTRE, UNLOAD_CHECK, CircuitResult
+from heatload.hydraulics.circuits import CAVITATION_THRESHOLD, UNLOAD_CENTRE, UNLOAD_CHECK, CircuitResult
 from heatload.units import mark
 
 
@@ -64,7 +64,7 @@ class Warning_:
     def as_dict(self) -> dict:
         """JSON-ready: code, phase, value, limit [SI], message (SI text), kind,
         and the text as ``template`` with its ``quantities`` [SI] that the edges
-        write in the reader's units (:func:`heatload.wording.warning_text`)."""
+        write in the reader's units (:func:`heatload.outputs.wording.warning_text`)."""
         from heatload.units import split_marks
         template, quantities = split_marks(self.template)
         return {"code": self.code, "phase": self.phase, "value": float(self.value),
@@ -187,7 +187,7 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
     result : CircuitResult
         Solved over ``(N, phases)`` (or ``(phases,)``).
     c : dict
-        Its circuit inputs (:func:`heatload.cycle.circuit_inputs` or the
+        Its circuit inputs (:func:`heatload.hydraulics.cycle.circuit_inputs` or the
         evaluation's builder).
     scenario : Scenario
     values : heatload.paths.Overrides, optional
@@ -336,7 +336,7 @@ def thermal_conditions(scenario, steady_no_cooler, operating, cooler_duty,
       (the coupled one, or the design temperature the sized cooler holds), or
       at the cold start, lies outside the pump's allowed window.
     """
-    from heatload import oil
+    from heatload.properties import oil
 
     g = values.get if values is not None else (lambda k, d: d)
     fluid = scenario.fluid
@@ -392,8 +392,8 @@ def correlation_range_warnings(scenario, oil_temperature: float, air_temperature
                                pressure: float) -> list:
     """``correlation-range``: a tank surface whose natural-convection correlation
     is used beyond its published Rayleigh range at the running temperature (see
-    :func:`heatload.heat_transfer.correlations_out_of_range`)."""
-    from heatload import heat_transfer
+    :func:`heatload.heat.heat_transfer.correlations_out_of_range`)."""
+    from heatload.heat import heat_transfer
 
     out = []
     for name, ra, low, high in heat_transfer.correlations_out_of_range(

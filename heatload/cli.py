@@ -58,7 +58,7 @@ def _unit(kind, system):
 
 
 def _num(value, kind, system, digits=3):
-    from heatload.tables import plain_number
+    from heatload.outputs.tables import plain_number
     from heatload.units import display_unit, from_si
     unit = display_unit(kind, system)
     return plain_number(from_si(value, kind, unit) if unit else float(value), digits)
@@ -102,7 +102,7 @@ def _table(headers, rows, width="auto", optional=()):
     """A text table fitted to *width* columns (by default this run's: the
     terminal's, or every column with ``--wide``; ``None`` for every column):
     the *optional* headers are left out in that order."""
-    from heatload.tables import format_table, terminal_width
+    from heatload.outputs.tables import format_table, terminal_width
     if width == "auto":
         width = _output_width
     return format_table(headers, rows, terminal_width() if width == "terminal" else width,
@@ -122,8 +122,9 @@ def _temperature(t_kelvin, system):
 # ---------------------------------------------------------------------------
 
 def cmd_compare(args):
-    from heatload.wording import warning_text
-    from heatload import chain, tables
+    from heatload.outputs.wording import warning_text
+    from heatload import chain
+    from heatload.outputs import tables
     sc, path = _load(args.file)
     cmp = chain.compare(sc, args.strategy or None)
     if args.json:
@@ -131,7 +132,7 @@ def cmd_compare(args):
                          indent=2, ensure_ascii=False))
         return 0
     s = args.units
-    from heatload.tables import count
+    from heatload.outputs.tables import count
     print(f"{sc.name} — {count(len(sc.phases), 'phase')}, "
           f"{sc.economics.hours_per_year:,.0f} h/year, "
           f"ambient {_temperature(sc.ambient.temperature, s)} "
@@ -202,7 +203,7 @@ def cmd_check(args):
         else:
             print(f"  actuator {a.name}: cylinder {_fmt(a.bore, 'length', s)} / "
                   f"{_fmt(a.rod, 'length', s)} x {_fmt(a.stroke, 'distance', s)}")
-    from heatload.tables import count
+    from heatload.outputs.tables import count
     print(f"  {count(len(sc.phases), 'phase')}: " + ", ".join(f"{p.name} ({p.motion})" for p in sc.phases))
     print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
     if sc.coolers:
@@ -211,8 +212,9 @@ def cmd_check(args):
 
 
 def cmd_phases(args):
-    from heatload.wording import warning_text
-    from heatload import chain, tables
+    from heatload.outputs.wording import warning_text
+    from heatload import chain
+    from heatload.outputs import tables
     sc, path = _load(args.file)
     try:
         strat = sc.strategy(args.strategy)
@@ -252,13 +254,13 @@ def cmd_phases(args):
 
 
 def cmd_thermal(args):
-    from heatload.wording import warning_text
+    from heatload.outputs.wording import warning_text
     from heatload import chain
     sc, path = _load(args.file)
     cmp = chain.compare(sc, args.strategy or None)
     s = args.units
     if args.json:
-        from heatload import tables
+        from heatload.outputs import tables
         recs = [{k: v for k, v in tables.strategy_record(o, sc, cmp.phase_arrays, False).items()
                  if k.startswith(("oil_", "heat_", "cooler_", "time_", "strategy", "label"))}
                 for o in cmp.outcomes]
@@ -297,27 +299,27 @@ def cmd_thermal(args):
 
 
 def cmd_cooler(args):
-    from heatload import sizing
+    from heatload.cooling import sizing
     return sizing.run_cli(args)
 
 
 def cmd_report(args):
-    from heatload import report
+    from heatload.outputs import report
     return report.run_cli(args)
 
 
 def cmd_sweep(args):
-    from heatload import sweep
+    from heatload.studies import sweep
     return sweep.run_cli(args)
 
 
 def cmd_logfit(args):
-    from heatload import measured
+    from heatload.measurement import measured
     return measured.run_logfit(args)
 
 
 def cmd_trace(args):
-    from heatload import trace
+    from heatload.measurement import trace
     return trace.run_cli(args)
 
 
@@ -509,7 +511,7 @@ class _TerminalText:
         text = printable(text, keep="\n", json=self._json)
         if self._width is None:
             return self._stream.write(text)
-        from heatload.tables import wrap_line
+        from heatload.outputs.tables import wrap_line
         *lines, self._pending = (self._pending + text).split("\n")
         for line in lines:
             self._stream.write("\n".join(wrap_line(line, self._width)) + "\n")
@@ -517,7 +519,7 @@ class _TerminalText:
 
     def flush(self):
         if self._pending:
-            from heatload.tables import wrap_line
+            from heatload.outputs.tables import wrap_line
             self._stream.write("\n".join(wrap_line(self._pending, self._width)))
             self._pending = ""
         return self._stream.flush()
@@ -551,7 +553,7 @@ def main(argv=None) -> int:
         # a command without --wide may print a file (a draft TOML): its lines stay whole
         args.width, _output_width = None, "terminal"
     else:
-        from heatload.tables import terminal_width
+        from heatload.outputs.tables import terminal_width
         args.width = _output_width = terminal_width()
     stdout = sys.stdout
     sys.stdout = _TerminalText(stdout, json_mode=json_mode, width=args.width)

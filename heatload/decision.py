@@ -139,7 +139,7 @@ def fan_power(duty, cooler):
     P_fan = f duty,  f = ``cooler.fan_power_fraction`` or
     :data:`DEFAULT_FAN_POWER_FRACTION`.
     """
-    from heatload.cooler_types import cooler_type
+    from heatload.cooling.cooler_types import cooler_type
     if not cooler_type(getattr(cooler, "coolant", "air")).has_fan:
         return np.zeros_like(np.asarray(duty, float))
     f = getattr(cooler, "fan_power_fraction", None)
@@ -435,7 +435,7 @@ def decide(comparison, present=None, prices=None) -> Decision:
         notes.append(f"cooler price {DEFAULT_COOLER_PRICE_FIXED:,.0f} {cur} + "
                      f"{DEFAULT_COOLER_PRICE_PER_KW:,.0f} {cur}/kW of duty where the file gives "
                      "none (common practice)")
-    from heatload.cooler_types import cooler_type
+    from heatload.cooling.cooler_types import cooler_type
     if (getattr(sc.cooler, "fan_power_fraction", None) is None
             and cooler_type(sc.cooler.coolant).has_fan):
         notes.append(f"cooler fan power {100 * DEFAULT_FAN_POWER_FRACTION:.0f} % of its duty "
@@ -492,7 +492,7 @@ def quoted_duty(duty_with_margin, margin, percentiles=None):
         The margin [-] (0.2 = 20 %).
     percentiles : dict, optional
         ``{"P50", "P90", "P95"}`` of the duty with margin over the Monte Carlo
-        [W] (:func:`heatload.sizing.cooler_uncertainty`).
+        [W] (:func:`heatload.cooling.sizing.cooler_uncertainty`).
 
     Returns
     -------

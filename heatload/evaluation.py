@@ -2,12 +2,12 @@
 (N variants) -> circuits, heat, oil temperatures, cooler duty and warnings.
 
 ``heatload compare`` (one scenario, N = 1), sweeps and the Monte Carlo all
-call :func:`evaluate`; :mod:`heatload.chain` and :mod:`heatload.variants`
+call :func:`evaluate`; :mod:`heatload.chain` and :mod:`heatload.studies.variants`
 only reshape its arrays into their result objects.
 
 Steps
 -----
-1. solver inputs of the N variants through the one builder (:mod:`heatload.cycle`
+1. solver inputs of the N variants through the one builder (:mod:`heatload.hydraulics.cycle`
    with :class:`heatload.paths.Overrides`), the oil temperature left open;
 2. *uncoupled*: the circuit at the reference oil temperature (the pump's
    datasheet viscosity), its mean heat turned into a steady temperature at
@@ -37,12 +37,16 @@ from functools import lru_cache
 
 import numpy as np
 
-from heatload import checks, circuits, cooler, cycle, heat_transfer, oil
-from heatload import thermal as lumped
+from heatload import checks
+from heatload.hydraulics import circuits, cycle
+from heatload.cooling import cooler
+from heatload.heat import heat_transfer
+from heatload.properties import oil
+from heatload.heat import thermal as lumped
 from heatload.errors import HeatloadError
 from heatload.model import STRATEGIES, Scenario, Strategy, design_oil_temperature
 from heatload.paths import Overrides
-from heatload.strategies import circuit
+from heatload.hydraulics.strategies import circuit
 
 COUPLING_TOLERANCE = 0.01   # [K]
 COUPLING_MAX_ITER = 20
@@ -72,7 +76,7 @@ def strategy_of(scenario: Scenario, strategy) -> Strategy:
 def _compact(c: dict, shape) -> dict:
     """Broadcast entries to *shape*, keeping single values 0-d: the solvers
     then compute uniform terms once (values identical to
-    :func:`heatload.cycle.finalize`, which broadcasts every entry)."""
+    :func:`heatload.hydraulics.cycle.finalize`, which broadcasts every entry)."""
     out = {}
     for k, v in c.items():
         a = np.asarray(v)
@@ -160,7 +164,7 @@ class ConductanceTable:
 
     Each row has its air temperature [K], its user heat-transfer coefficient
     (NaN: computed from natural convection and radiation,
-    :func:`heatload.heat_transfer.reservoir_conductance`) and a factor on UA;
+    :func:`heatload.heat.heat_transfer.reservoir_conductance`) and a factor on UA;
     the table holds 160 nodes from T_a - 20 K to 250 degC and is
     interpolated linearly (clamped at its ends), the formula of
     :func:`numpy.interp`.  ``table(T, rows)`` -> ``(UA, dUA/dT)``.
@@ -359,7 +363,7 @@ def coupled_temperature(builder: Builder, rows, ambient, conductance: Conductanc
 
 def heat_capacity(scenario: Scenario, oil_temperature, values: Overrides | None = None):
     """Oil + steel heat capacity C = V rho(T) c_p(T) + m c_steel [J/K]
-    (:func:`heatload.thermal.heat_capacity`), per variant."""
+    (:func:`heatload.heat.thermal.heat_capacity`), per variant."""
     g = values.get if values is not None else (lambda k, d: d)
     r = scenario.reservoir
     rho = oil.fluid_density(scenario.fluid, oil_temperature)
@@ -452,7 +456,7 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
     hot : bool, optional
         Also the coupled steady temperature at the hottest ambient (thermal=True).
     phases : dict, optional
-        Precomputed :func:`heatload.cycle.phase_arrays` of the scenario (N = 1).
+        Precomputed :func:`heatload.hydraulics.cycle.phase_arrays` of the scenario (N = 1).
 
     Returns
     -------

@@ -18,10 +18,10 @@ from typing import Optional
 
 def __getattr__(name):
     # STRATEGIES: the names heatload compares, in the order it shows them, read
-    # from the registry (heatload.strategies) when first asked for, so the model
+    # from the registry (heatload.hydraulics.strategies) when first asked for, so the model
     # stays free of the solver's imports
     if name == "STRATEGIES":
-        from heatload.strategies import NAMES
+        from heatload.hydraulics.strategies import NAMES
         return NAMES
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
@@ -307,7 +307,7 @@ class StrategyParameters:
 class Strategy:
     """A control strategy to compare, by name, with its parameters."""
 
-    kind: str                              #: a name of :data:`heatload.strategies.REGISTRY`
+    kind: str                              #: a name of :data:`heatload.hydraulics.strategies.REGISTRY`
     label: Optional[str] = None            #: shown name; None -> kind
     parameters: StrategyParameters = field(default_factory=StrategyParameters)
 
@@ -432,7 +432,7 @@ class Scenario:
     #: blocks of phases repeated within the cycle (:class:`Repeat` items)
     repeats: tuple = ()
     #: air-oil coolers given by their datasheet curves
-    #: (:class:`heatload.cooler_datasheet.DatasheetCooler` items)
+    #: (:class:`heatload.cooling.cooler_datasheet.DatasheetCooler` items)
     coolers: tuple = ()
     #: the report's cover: project, customer, who prepared it, revision
     project: str = ""

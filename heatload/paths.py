@@ -18,7 +18,7 @@ not a scenario field).
   naming the nearest valid paths;
 - :func:`valid_paths` -> every path that can vary;
 - :func:`replaced_scenario` -> the scenario with fields set (``dataclasses.replace``);
-- :class:`Overrides` -> the lookup the one builder (:mod:`heatload.cycle`)
+- :class:`Overrides` -> the lookup the one builder (:mod:`heatload.hydraulics.cycle`)
   reads: a field's array over N variants, or the scenario's own value.
 """
 
@@ -33,7 +33,7 @@ import numpy as np
 
 from heatload.errors import HeatloadError
 from heatload.model import Scenario
-from heatload.strategies import circuit
+from heatload.hydraulics.strategies import circuit
 
 # (field kind, check) of every key that can vary; check: pos, nonneg, eff, frac_pos, any
 _POWER_UNIT_KEYS = {
@@ -227,7 +227,7 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
             chosen = []
         if not chosen or key not in _STRATEGY_KEYS:
             raise _unknown(path, scenario)
-        # a setting varies only where the circuit has it (heatload.strategies)
+        # a setting varies only where the circuit has it (heatload.hydraulics.strategies)
         chosen = [s for s in chosen if key in circuit(s.kind).settings]
         if not chosen:
             raise _unknown(path, scenario, f"no such strategy has a {key}")

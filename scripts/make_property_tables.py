@@ -1,9 +1,9 @@
 """Regenerate the property tables shipped with the package from CoolProp:
 
 * heatload/data/air_properties.npz: CoolProp's 'Air' (Lemmon et al. 2000
-  pseudo-pure fluid), read by :func:`heatload.heat_transfer.air_properties`;
+  pseudo-pure fluid), read by :func:`heatload.heat.heat_transfer.air_properties`;
 * heatload/data/water_properties.npz: 'Water' (IAPWS-95) at 101325 Pa, read by
-  :func:`heatload.cooler.coolant_properties` (glycol-water stays with CoolProp).
+  :func:`heatload.cooling.cooler.coolant_properties` (glycol-water stays with CoolProp).
 
     .venv/bin/python scripts/make_property_tables.py
 

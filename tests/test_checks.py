@@ -5,7 +5,8 @@ import math
 
 import pytest
 
-from heatload import checks, circuits, cycle, model as m
+from heatload import checks, model as m
+from heatload.hydraulics import circuits, cycle
 
 BORE, ROD = 0.100, 0.070
 A1 = math.pi / 4 * BORE**2                 # pi D^2 / 4 (geometry)
@@ -216,7 +217,9 @@ def test_motor_overload_in_sweep_counts_and_recommendation():
     # motor asked for more than 160 % rules the strategy out of the recommendation
     import dataclasses
 
-    from heatload import chain, io, report, tables, variants
+    from heatload import chain, io
+    from heatload.outputs import report, tables
+    from heatload.studies import variants
     sc = io.load_scenario(io.default_scenario_path())
     pu = sc.power_unit
     sc = dataclasses.replace(sc, power_unit=dataclasses.replace(
@@ -243,7 +246,8 @@ def test_oil_temperature_warning_judged_on_the_hottest_day():
     # valued at the hot-day temperature
     import dataclasses
 
-    from heatload import chain, heat_transfer
+    from heatload import chain
+    from heatload.heat import heat_transfer
     phases = (m.Phase("close", "c", "extend", load=30e3, speed=0.05, stroke=0.3),
               m.Phase("hold", "c", "hold", duration=10.0, hold_pressure=100e5,
                       unloading="held"),

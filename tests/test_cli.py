@@ -275,7 +275,7 @@ def test_sweep_prints_plain_numbers_and_honours_top(capsys, monkeypatch):
 
 
 def test_counts_read_as_english(capsys, monkeypatch):
-    from heatload.tables import count, times
+    from heatload.outputs.tables import count, times
     # English number agreement (common usage)
     assert count(1, "strategy") == "1 strategy" and count(2, "strategy") == "2 strategies"
     assert count(1, "variant") == "1 variant" and count(1_000, "variant") == "1,000 variants"
@@ -288,7 +288,7 @@ def test_counts_read_as_english(capsys, monkeypatch):
 
 
 def test_plain_number_never_uses_exponents():
-    from heatload.tables import plain_number
+    from heatload.outputs.tables import plain_number
     assert plain_number(4.904e4) == "49,040"
     assert plain_number(2.5e9) == "2,500,000,000"
     assert plain_number(3.2e-6) == "0.00000320"

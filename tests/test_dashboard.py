@@ -15,7 +15,8 @@ from dash import no_update
 
 from heatload.dashboard import app as dash_app
 from heatload.dashboard import callbacks, compute, figures, state
-from heatload import chain, io, tables
+from heatload import chain, io
+from heatload.outputs import tables
 from heatload.errors import HeatloadError
 
 LBF = 4.4482216152605        # N per lbf, NIST SP 811 (exact by definition of lbm and g_n)
@@ -294,7 +295,7 @@ def test_downloaded_scenario_loads_back_equal(base, examples):
 def test_report_download_is_html_or_a_note(base):
     payload, note = callbacks.download_report(base["data"], "forming_press.toml")
     if payload is None:
-        assert "heatload.report" in note
+        assert "heatload.outputs.report" in note
     else:
         assert payload["filename"].endswith(".html")
         assert payload["content"].lstrip().lower().startswith("<!doctype html")
@@ -350,7 +351,7 @@ def test_cooler_view(base):
 
 
 def test_uncertainty_view(base):
-    from heatload import uncertainty as unc
+    from heatload.studies import uncertainty as unc
     out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
     assert out.id == "mc-result"
     hist, tornado = (g.figure for g in out.children if hasattr(g, "figure"))

@@ -313,7 +313,8 @@ def test_warnings_follow_the_us_units(dash_duo):
     in psi, °F and hp (the engine's records hold SI; the dashboard writes them)."""
     import re
 
-    from heatload import chain, io, tables
+    from heatload import chain, io
+    from heatload.outputs import tables
 
     # the forming press's warnings carry pressures (ratings, relief), temperatures (the
     # hottest day) and powers (motor load, cooler duty)

@@ -8,7 +8,8 @@ from pathlib import Path
 
 import pytest
 
-from heatload import chain, evaluation, io, measured
+from heatload import chain, evaluation, io
+from heatload.measurement import measured
 from heatload.dashboard import app as dash_app
 from heatload.dashboard import logfit_view
 
@@ -66,7 +67,7 @@ def test_bad_upload_shows_one_line():
 
 
 def test_cooler_view_lists_the_datasheet_coolers():
-    from heatload import cooler_datasheet, sizing
+    from heatload.cooling import cooler_datasheet, sizing
     from heatload.dashboard import callbacks
     store = _store()
     sc = io.load_scenario(LIFT)

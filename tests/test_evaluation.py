@@ -12,7 +12,8 @@ import dataclasses
 import numpy as np
 import pytest
 
-from heatload import chain, checks, evaluation, io, paths, variants
+from heatload import chain, checks, evaluation, io, paths
+from heatload.studies import variants
 
 EXAMPLES = io.example_paths()
 

@@ -17,7 +17,8 @@ import numpy as np
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from heatload import circuits, cycle, invariants, io
+from heatload.hydraulics import circuits, cycle, invariants
+from heatload import io
 from heatload.errors import HeatloadError
 from heatload.model import STRATEGIES
 

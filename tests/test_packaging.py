@@ -71,9 +71,9 @@ def test_engine_docstring_examples_are_collected():
     config = tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["pytest"]["ini_options"]
     assert "--doctest-modules" in config["addopts"] and "heatload" in config["testpaths"]
     finder, examples = doctest.DocTestFinder(), 0
-    for path in sorted((ROOT / "heatload").glob("*.py")):
-        module = importlib.import_module(f"heatload.{path.stem}" if path.stem != "__init__"
-                                         else "heatload")
+    for path in sorted((ROOT / "heatload").rglob("*.py")):
+        parts = path.relative_to(ROOT).with_suffix("").parts
+        module = importlib.import_module(".".join(p for p in parts if p != "__init__"))
         examples += sum(len(t.examples) > 0 for t in finder.find(module))
     assert examples >= 30
 
@@ -110,3 +110,13 @@ def test_make_run_installs_only_what_running_needs():
     assert "--quiet" not in text and " -q " not in run_install
     (test_stamp,) = test_deps
     assert "[test]" in _make_recipe(test_stamp)
+
+
+def test_every_engine_subpackage_is_packaged():
+    # a subpackage missing from pyproject's list would be left out of the wheel
+    import tomllib
+    listed = set(tomllib.loads((ROOT / "pyproject.toml").read_text())["tool"]["setuptools"]
+                 ["packages"])
+    found = {".".join(p.relative_to(ROOT).parent.parts)
+             for p in (ROOT / "heatload").rglob("__init__.py")}
+    assert found <= listed, found - listed

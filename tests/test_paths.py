@@ -4,7 +4,8 @@ sweeps and the Monte Carlo can vary, and what they refuse the loader refuses."""
 import numpy as np
 import pytest
 
-from heatload import io, paths, uncertainty, variants
+from heatload import io, paths
+from heatload.studies import uncertainty, variants
 from heatload.errors import HeatloadError
 
 EXAMPLES = io.example_paths()

@@ -1,0 +1,611 @@
+"""The cooler job at the edge of the engine: one strategy's design point turned
+into a cooler size, a spec sheet a supplier can quote against, a rating check of
+a given cooler, the thermostat's behaviour over a shift and the uncertainty of
+the duty.
+
+It only calls the engine (:mod:`heatload.chain`, :mod:`heatload.cooling.cooler`,
+:mod:`heatload.properties.oil`) and formats its results; ``run_cli`` is the
+``heatload cooler`` command.
+
+Design point
+------------
+Highest ambient (``ambient.temperature_max``), oil held at the design
+temperature (``outcome.thermal.design_oil_temperature``); the cooler takes
+what the reservoir's surfaces cannot shed there (first law), plus the margin.
+
+Oil flow through the cooler
+---------------------------
+The cooler is taken to sit in the return line, so its oil flow is the
+cycle-average return flow, the time average of the pump flow over the phases:
+Q_cooler = sum(Q_pump,i t_i) / sum(t_i).  All pump flow reaches the tank over
+a cycle (the cylinder's area difference averages out over a full stroke pair),
+so the return flow averages to the pump flow.  An off-line (kidney-loop)
+cooler with its own pump would see a constant flow instead.
+
+Sizing is an estimate for early design; component makers' data, local codes
+and licensed practice govern the selection.
+"""
+
+from __future__ import annotations
+
+import sys
+
+import json
+import math
+from dataclasses import dataclass, field
+from typing import Optional
+
+import numpy as np
+
+from heatload.cooling import cooler
+from heatload.model import design_oil_temperature
+from heatload.cooling.cooler_types import TYPES, cooler_type
+from heatload.errors import HeatloadError
+
+K0 = 273.15
+
+#: Caution printed with every cooler result (the engine's own wording plus the
+#: machine-safety note the report and command line carry).
+CAUTION = ("Cooler sizing is an estimate for early design. Component makers' data, local "
+           "codes and licensed engineering practice govern the selection.")
+
+#: Monte Carlo samples used when the report asks for the uncertainty.
+REPORT_SAMPLES = 2000
+
+ASSUMPTION_OIL_FLOW = ("return-line cooler: oil flow = cycle-average return flow = time "
+                       "average of the pump flow over the cycle")
+
+
+@dataclass
+class CoolerSizing:
+    """A cooler's requirement for one strategy at the design point (SI: W, K, W/K, m^3/s,
+    kg/s, Pa, m^2/s).  Sizings that cannot be done (no cooler needed, or a coolant that
+    cannot reach the duty) are ``None`` with the reason in :attr:`notes`."""
+
+    strategy: str                        #: strategy name
+    coolant: str                         #: "air" | "water" (the one the spec sheet is for)
+    design_oil_temperature: float        #: oil into the cooler [K]
+    design_ambient: float                #: highest ambient = air inlet [K]
+    design_heat: float                   #: mean heat into the oil at the design point [W]
+    design_conductance: float            #: surfaces' UA at the design point [W/K]
+    surfaces_heat: float                 #: UA (T_d - T_a,max), shed without a cooler [W]
+    cooler_needed: bool
+    duty_without_margin: float           #: [W]
+    margin: float                        #: [-]
+    duty: float                          #: with margin [W]
+    oil_flow: float                      #: cycle-average return flow [m^3/s]
+    oil_density: float                   #: at the cooler inlet [kg/m^3]
+    oil_specific_heat: float             #: at the cooler inlet [J/(kg K)]
+    oil_viscosity: float                 #: kinematic, at the cooler inlet [m^2/s]
+    air: Optional[cooler.AirCoolerSizing] = None
+    water: dict = field(default_factory=dict)   #: arrangement -> WaterCoolerSizing
+    spec: Optional[cooler.CoolerSpec] = None
+    rating: Optional[dict] = None        #: see :func:`rate_cooler`
+    thermostat: Optional[dict] = None    #: see :func:`thermostat_summary`
+    notes: list = field(default_factory=list)
+    water_inlet_temperature: float = float("nan")  #: coolant inlet of the water-oil sizing [K]
+    caution: str = CAUTION
+
+
+def cycle_average_flow(flow, duration) -> float:
+    """Time average of a per-phase flow over the cycle.
+
+    Q_avg = sum(Q_i t_i) / sum(t_i)
+
+    Parameters
+    ----------
+    flow : array_like
+        Flow per phase [m^3/s].
+    duration : array_like
+        Phase durations [s].
+
+    Returns
+    -------
+    float
+        [m^3/s].
+
+    References
+    ----------
+    Time average of a piecewise-constant signal (definition).
+    """
+    q = np.asarray(flow, float)
+    t = np.asarray(duration, float)
+    total = float(t.sum())
+    if not total > 0.0:
+        raise HeatloadError("the cycle has no duration", field="phases")
+    return float((q * t).sum() / total)
+
+
+def _design_strategy(scenario, name=None):
+    if name:
+        try:
+            return scenario.strategy(name)
+        except KeyError:
+            raise HeatloadError(f"unknown strategy {name!r}; this scenario has "
+                                f"{', '.join(s.name for s in scenario.strategies)}",
+                                field="--strategy") from None
+    present = scenario.economics.present_strategy
+    if present:
+        try:
+            return scenario.strategy(present)
+        except KeyError:
+            pass
+    return scenario.strategies[0]
+
+
+def rate_cooler(sizing: CoolerSizing, rated_duty: float, rated_etd: float) -> dict:
+    """Duty a given cooler delivers at the design point, and whether it suffices.
+
+    P_design = P_rated ETD_design / ETD_rated (same oil and coolant flows)
+
+    Parameters
+    ----------
+    sizing : CoolerSizing
+    rated_duty : float
+        The cooler's catalogue duty [W].
+    rated_etd : float
+        ETD of that catalogue point [K].
+
+    Returns
+    -------
+    dict
+        ``design_etd_K``, ``duty_at_design_W``, ``required_W`` (with margin),
+        ``required_without_margin_W``, ``suffices`` (covers the duty with margin),
+        ``suffices_without_margin``, ``ratio`` (delivered / required).
+
+    Notes
+    -----
+    Air-oil: :func:`heatload.cooling.cooler.rate_air_cooler` (duty proportional to ETD at
+    fixed flows, common practice).  Water-oil at the rated flows: with UA, Cmin and
+    Cmax unchanged the effectiveness is unchanged, so P = eps Cmin ETD is again
+    proportional to the ETD (effectiveness-NTU); viscosity effects on the oil film
+    are not included.
+
+    References
+    ----------
+    Common practice of cooler catalogues (W per K of ETD); Incropera et al.,
+    6th ed., Sec. 11.4 (P = eps Cmin ETD).
+    """
+    # the sizing carries the coolant inlet temperatures of its design point
+    coolant_in = cooler_type(sizing.coolant).inlet_temperature(sizing, sizing.design_ambient)
+    etd = sizing.design_oil_temperature - coolant_in
+    if not etd > 0.0:
+        raise HeatloadError("the design point has no positive ETD for rating",
+                            field="--rated-etd")
+    delivered = float(cooler.rate_air_cooler(rated_duty, rated_etd, etd))
+    need = sizing.duty
+    return {"coolant": sizing.coolant, "rated_duty_W": float(rated_duty),
+            "rated_etd_K": float(rated_etd), "design_etd_K": float(etd),
+            "duty_at_design_W": delivered, "required_W": float(need),
+            "required_without_margin_W": float(sizing.duty_without_margin),
+            "suffices": bool(delivered >= need),
+            "suffices_without_margin": bool(delivered >= sizing.duty_without_margin),
+            "ratio": (delivered / need) if need > 0 else math.inf}
+
+
+def thermostat_summary(scenario, outcome) -> dict:
+    """A shift with the sized cooler switched by its thermostat
+    (:func:`heatload.chain.shift_profile` with ``cooler_on=True``).
+
+    Returns
+    -------
+    dict
+        ``switch_count`` [-], ``on_fraction`` [-], ``max_temperature_K``,
+        ``final_temperature_K``, ``on_temperature_K``, ``hysteresis_K``,
+        ``shift_duration_s``; ``switch_count`` is 0 and ``on_fraction`` 0 when no
+        cooler is needed (the shift is then a plain warm-up).
+    """
+    from heatload import chain
+
+    run = chain.shift_profile(scenario, outcome, cooler_on=True)
+    on = scenario.cooler.thermostat_on or outcome.thermal.design_oil_temperature
+    if hasattr(run, "switch_on_times"):
+        count, frac = int(len(run.switch_on_times)), float(run.on_fraction)
+    else:
+        count, frac = 0, 0.0
+    return {"switch_count": count, "on_fraction": frac,
+            "max_temperature_K": float(np.max(run.maximum_temperature)),
+            "final_temperature_K": float(np.ravel(run.final_temperature)[0]),
+            "on_temperature_K": float(on),
+            "hysteresis_K": float(scenario.cooler.thermostat_hysteresis),
+            "shift_duration_s": float(scenario.shift_duration)}
+
+
+def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None,
+                thermostat=True) -> CoolerSizing:
+    """Size the cooler of one strategy at the design point.
+
+    P_0 = max(0, Q_d - UA_d (T_d - T_a,max)); P = P_0 (1 + margin);
+    air: P / ETD with ETD = T_d - T_a,max, m_air = P / (c_p,air dT_air),
+    dT_oil = P / (rho Q c_p); water: UA by effectiveness-NTU (counterflow and
+    shell-and-tube, one shell pass, two tube passes).
+
+    Parameters
+    ----------
+    scenario : heatload.model.Scenario
+    outcome : heatload.chain.StrategyOutcome
+    coolant : str, optional
+        'air' or 'water' for the spec sheet; None -> ``scenario.cooler.coolant``.
+    rated_duty, rated_etd : float, optional
+        Rating mode: a cooler's catalogue duty [W] at its ETD [K].
+    thermostat : bool, optional
+        Also run a shift with the thermostat-switched cooler.
+
+    Returns
+    -------
+    CoolerSizing
+
+    Notes
+    -----
+    The oil enters the cooler at the design temperature (a well-mixed tank and a
+    return-line cooler).  Both coolants are sized where they can be; the spec
+    sheet is for *coolant*.
+
+    References
+    ----------
+    Steady energy balance of the oil (first law); Incropera et al., 6th ed.,
+    Sec. 11.4-11.5 (effectiveness-NTU); ETD rating: common practice.
+    """
+    from heatload.properties import oil
+
+    coolant = coolant or scenario.cooler.coolant
+    kind = cooler_type(coolant, field="--coolant")
+    cd = scenario.cooler
+    th = outcome.thermal
+    t_d = float(th.design_oil_temperature)
+    t_a = float(th.design_ambient)
+    # no cooler of a coolant entering no colder than the oil cools it (second
+    # law); the loader refuses such a file for its own coolant, this covers a
+    # coolant chosen afterwards (``heatload cooler --coolant``)
+    refused = kind.refusal(t_d, t_a, cd, "the design oil temperature",
+                           "cooler.oil_temperature_max")
+    if refused:
+        raise HeatloadError(refused[0], field=refused[1])
+    fluid = scenario.fluid
+    q_oil = cycle_average_flow(outcome.circuit.pump_flow, outcome.circuit.duration)
+    rho = float(oil.fluid_density(fluid, t_d))
+    cp = float(oil.fluid_specific_heat(fluid, t_d))
+    nu = float(oil.kinematic_viscosity(fluid, t_d))
+    duty0 = float(th.cooler_duty_without_margin)
+    sz = CoolerSizing(
+        strategy=outcome.name, coolant=coolant, design_oil_temperature=t_d, design_ambient=t_a,
+        design_heat=float(th.design_heat), design_conductance=float(th.design_conductance),
+        surfaces_heat=float(th.design_conductance) * (t_d - t_a),
+        cooler_needed=bool(th.cooler_needed), duty_without_margin=duty0, margin=float(cd.margin),
+        duty=float(th.cooler_duty), oil_flow=q_oil, oil_density=rho, oil_specific_heat=cp,
+        oil_viscosity=nu, water_inlet_temperature=float(cd.water_inlet_temperature))
+    sz.notes.append(ASSUMPTION_OIL_FLOW)
+    if not sz.cooler_needed:
+        sz.notes.append("no cooler needed: the surfaces shed "
+                        f"{sz.surfaces_heat:.0f} W at the design point, the heat is "
+                        f"{sz.design_heat:.0f} W")
+    elif q_oil <= 0.0:
+        sz.notes.append("no return flow through a cooler (the pump delivers nothing over "
+                        "the cycle): use an off-line cooler with its own pump")
+    else:
+        # every coolant is sized where it can be; the spec sheet is for *coolant*
+        for other in TYPES.values():
+            other.size(sz, cd)
+        arrangement = kind.arrangement(sz)
+        if kind.possible(sz):
+            sz.spec = cooler.cooler_spec_sheet(
+                coolant, duty0, t_d, kind.inlet_temperature(cd, t_a),
+                q_oil, rho, cp, nu, margin=cd.margin, oil_pressure_drop_max=cd.oil_pressure_drop_max,
+                air_temperature_rise=cd.air_temperature_rise, water_flow=cd.water_flow,
+                water_temperature_rise=cd.water_temperature_rise,
+                glycol_fraction=cd.water_glycol_fraction, arrangement=arrangement, shell_passes=1)
+            if sz.spec.arrangement == "counterflow":
+                sz.notes.append("spec sheet for a counterflow unit: one-shell shell-and-tube "
+                                "cannot reach the effectiveness")
+        else:
+            # the chosen coolant cannot take the duty: a refusal, not a sheet left blank
+            why = "; ".join(n for n in sz.notes if n.startswith(kind.label)) or "no unit fits"
+            raise HeatloadError(f"no {kind.label} cooler can hold the design point "
+                                f"({why})", field="cooler.coolant")
+    if rated_duty is not None or rated_etd is not None:
+        if rated_duty is None or rated_etd is None:
+            raise HeatloadError("rating mode needs both --rated-duty and --rated-etd",
+                                field="--rated-duty" if rated_duty is None else "--rated-etd")
+        sz.rating = rate_cooler(sz, rated_duty, rated_etd)
+    if thermostat:
+        sz.thermostat = thermostat_summary(scenario, outcome)
+    return sz
+
+
+def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5,
+                       progress=False) -> dict:
+    """Monte Carlo spread of the cooler duty and oil temperature, and the inputs
+    that move the duty most (:mod:`heatload.studies.uncertainty`, imported lazily).
+
+    Returns
+    -------
+    dict
+        ``available`` (bool), ``note``; when available: ``samples``, ``seed``,
+        ``cooler_duty_W`` {P50, P90, P95}, ``oil_temperature_C`` {P50, P90, P95},
+        ``sensitivity`` (the *top* entries of the ranking, dicts with ``path`` and
+        ``cooler_duty_swing_W`` ..., :func:`heatload.studies.uncertainty.sensitivity`).
+        Scenarios without uncertain inputs use the uncertainty module's typical defaults.
+    """
+    try:
+        from heatload.studies import uncertainty
+    except ImportError as exc:
+        return {"available": False,
+                "note": f"uncertainty not available (heatload.studies.uncertainty: {exc})"}
+    try:
+        mc = uncertainty.monte_carlo(scenario, strategy, samples=samples, seed=seed,
+                                     progress=progress)
+        sens = uncertainty.sensitivity(scenario, strategy)
+    except HeatloadError as exc:
+        return {"available": False, "note": f"uncertainty not available: {exc.one_line()}"}
+    pct = mc.percentiles
+
+    def clean(d):
+        return {k: float(v) for k, v in d.items()}
+    rows = []
+    for s in list(sens)[:top]:
+        row = {k: (float(v) if isinstance(v, (int, float, np.floating)) and
+                   not isinstance(v, bool) else v) for k, v in dict(s).items()}
+        rows.append(row)
+    # specific cooling power [W/K] each sample's cooler must give: duty / ETD,
+    # ETD = design oil T - the sample's hottest ambient (what an air-oil cooler
+    # is bought by; the ambient alone moves it)
+    ov = uncertainty._overrides(scenario, mc.inputs, mc.samples, mc.defaults_used)
+    t_amb = np.asarray(ov.get("ambient.temperature_max", scenario.ambient.temperature_max),
+                       float)
+    t_oil = np.asarray(ov.get("cooler.oil_temperature_max",
+                              design_oil_temperature(scenario.fluid, scenario.cooler)), float)
+    etd = t_oil - t_amb
+    kwk = np.where(etd > 0, mc.cooler_duty / np.where(etd > 0, etd, 1.0), np.nan)
+    kwk_pct = {k: float(v) for k, v in zip(("P50", "P90", "P95"),
+                                            np.nanpercentile(kwk, [50.0, 90.0, 95.0]))} \
+        if np.isfinite(kwk).any() else None
+    return {"available": True, "note": "", "samples": int(samples), "seed": int(seed),
+            "specific_cooling_power_W_K": kwk_pct,
+            "cooler_duty_W": clean(pct["cooler_duty_W"]),
+            "oil_temperature_C": clean(pct["oil_temperature_C"]),
+            "sensitivity": rows}
+
+
+def _f(x):
+    if x is None:
+        return None
+    v = float(x)
+    return v if math.isfinite(v) else None
+
+
+def sizing_record(sz: CoolerSizing, uncertainty_result: Optional[dict] = None) -> dict:
+    """The sizing as plain data, SI with unit-suffixed keys (``heatload cooler --json``,
+    the report's cooler section and the spreadsheet's cooler sheet)."""
+    rec = {
+        "strategy": sz.strategy, "coolant": sz.coolant,
+        "design_oil_temperature_C": _f(sz.design_oil_temperature - K0),
+        "design_ambient_C": _f(sz.design_ambient - K0),
+        "design_heat_W": _f(sz.design_heat),
+        "design_conductance_W_K": _f(sz.design_conductance),
+        "surfaces_heat_W": _f(sz.surfaces_heat),
+        "cooler_needed": sz.cooler_needed,
+        "duty_without_margin_W": _f(sz.duty_without_margin), "margin": _f(sz.margin),
+        "duty_W": _f(sz.duty),
+        "oil_flow_m3_s": _f(sz.oil_flow), "oil_density_kg_m3": _f(sz.oil_density),
+        "oil_specific_heat_J_kgK": _f(sz.oil_specific_heat),
+        "oil_viscosity_m2_s": _f(sz.oil_viscosity),
+        "air": None, "water": {}, "spec": None, "rating": sz.rating,
+        "thermostat": sz.thermostat, "notes": list(sz.notes), "caution": sz.caution,
+    }
+    if sz.air is not None:
+        a = sz.air
+        rec["air"] = {"duty_W": _f(a.duty), "etd_K": _f(a.etd),
+                      "specific_cooling_power_W_K": _f(a.specific_cooling_power),
+                      "air_mass_flow_kg_s": _f(a.air_mass_flow),
+                      "air_volume_flow_m3_s": _f(a.air_volume_flow),
+                      "air_inlet_temperature_C": _f(sz.design_ambient - K0),
+                      "air_outlet_temperature_C": _f(a.air_outlet_temperature - K0),
+                      "oil_temperature_drop_K": _f(a.oil_temperature_drop),
+                      "oil_outlet_temperature_C": _f(a.oil_outlet_temperature - K0)}
+    for arr, w in sz.water.items():
+        rec["water"][arr] = {
+            "duty_W": _f(w.duty), "etd_K": _f(w.etd),
+            "required_conductance_W_K": _f(w.required_conductance), "ntu": _f(w.ntu),
+            "effectiveness": _f(w.effectiveness), "capacity_ratio": _f(w.capacity_ratio),
+            "oil_capacity_rate_W_K": _f(w.oil_capacity_rate),
+            "water_capacity_rate_W_K": _f(w.water_capacity_rate),
+            "water_volume_flow_m3_s": _f(w.water_volume_flow),
+            "water_mass_flow_kg_s": _f(w.water_mass_flow),
+            "water_inlet_temperature_C": _f(sz.water_inlet_temperature - K0),
+            "water_outlet_temperature_C": _f(w.water_outlet_temperature - K0),
+            "oil_outlet_temperature_C": _f(w.oil_outlet_temperature - K0),
+            "shell_passes": int(w.shell_passes)}
+    if sz.spec is not None:
+        s = sz.spec
+        rec["spec"] = {
+            "coolant": s.coolant, "duty_W": _f(s.duty),
+            "duty_without_margin_W": _f(s.duty_without_margin), "margin": _f(s.margin),
+            "etd_K": _f(s.etd), "oil_flow_m3_s": _f(s.oil_flow),
+            "oil_inlet_temperature_C": _f(s.oil_inlet_temperature - K0),
+            "oil_outlet_temperature_C": _f(s.oil_outlet_temperature - K0),
+            "oil_pressure_drop_max_Pa": _f(s.oil_pressure_drop_max),
+            "oil_viscosity_m2_s": _f(s.oil_viscosity),
+            "coolant_inlet_temperature_C": _f(s.coolant_inlet_temperature - K0),
+            "coolant_flow_m3_s": _f(s.coolant_flow),
+            "coolant_outlet_temperature_C": _f(s.coolant_outlet_temperature - K0),
+            "glycol_fraction": _f(s.glycol_fraction),
+            "specific_cooling_power_W_K": _f(s.specific_cooling_power),
+            "required_conductance_W_K": _f(s.required_conductance),
+            "arrangement": s.arrangement}
+    if sz.thermostat is not None:
+        t = dict(sz.thermostat)
+        rec["thermostat"] = {
+            "switch_count": t["switch_count"], "on_fraction": _f(t["on_fraction"]),
+            "max_temperature_C": _f(t["max_temperature_K"] - K0),
+            "final_temperature_C": _f(t["final_temperature_K"] - K0),
+            "on_temperature_C": _f(t["on_temperature_K"] - K0),
+            "hysteresis_K": _f(t["hysteresis_K"]), "shift_duration_s": _f(t["shift_duration_s"])}
+    if uncertainty_result is not None:
+        rec["uncertainty"] = uncertainty_result
+    return rec
+
+
+def air_flow_text(volume_flow, system="si") -> str:
+    """Cooling-air volume flow [m^3/s] as fans are rated: m³/h (SI) or cfm (US)."""
+    if system == "us":
+        return f"{volume_flow / 0.00047194745:,.0f} cfm"  # 1 ft^3/min = 0.00047194745 m^3/s
+    return f"{volume_flow * 3600.0:,.0f} m³/h"
+
+
+def spec_rows(sz: CoolerSizing, system="si") -> list:
+    """The spec sheet as (item, value) rows formatted for people in *system*."""
+    from heatload.units import format_quantity as fq
+
+    s = sz.spec
+    if s is None:
+        return []
+    kind = cooler_type(s.coolant)
+    rows = [("coolant", kind.description(s)),
+            ("duty to quote (with margin)", f"{fq(s.duty, 'power', system)} "
+             f"(+{100 * s.margin:.0f} % on {fq(s.duty_without_margin, 'power', system)})"),
+            ("entering temperature difference (ETD)",
+             fq(s.etd, "temperature_difference", system)),
+            ("oil flow", fq(s.oil_flow, "flow", system)),
+            ("oil inlet temperature", fq(s.oil_inlet_temperature, "temperature", system)),
+            ("oil outlet temperature", fq(s.oil_outlet_temperature, "temperature", system)),
+            ("allowed oil-side pressure drop", fq(s.oil_pressure_drop_max, "pressure", system)),
+            ("oil viscosity at inlet", fq(s.oil_viscosity, "kinematic_viscosity", system)),
+            (f"{kind.medium} inlet temperature",
+             fq(s.coolant_inlet_temperature, "temperature", system)),
+            (f"{kind.medium} flow", kind.flow_text(s.coolant_flow, system, fq)),
+            (f"{kind.medium} outlet temperature",
+             fq(s.coolant_outlet_temperature, "temperature", system))]
+    return rows + kind.extra_rows(s, system, fq)
+
+
+#: Plausible ranges of a catalogue rating given on the command line: a duty up to
+#: 5 MW, an ETD up to 200 K (the loader's limit for a temperature difference).
+_RATING_RANGE = {"power": (0.0, 5e6, "5 MW"), "temperature_difference": (0.0, 200.0, "200 K")}
+
+
+def _parse(text, kind, fieldname):
+    from heatload.units import to_si
+    v = to_si(text, kind, field=fieldname)
+    low, high, shown = _RATING_RANGE.get(kind, (-math.inf, math.inf, ""))
+    if not low < v <= high:
+        raise HeatloadError(f"expected a value above 0 and at most {shown}, got {text!r}",
+                            field=fieldname)
+    return v
+
+
+def run_cli(args) -> int:
+    """``heatload cooler [FILE] --coolant air|water --strategy NAME --samples N --seed S
+    --rated-duty P --rated-etd DT --json --units si|us``."""
+    from heatload import chain, io
+    from heatload.units import format_quantity as fq
+
+    path = args.file or io.default_scenario_path()
+    sc = io.load_scenario(path)
+    strat = _design_strategy(sc, getattr(args, "strategy", None))
+    if getattr(args, "samples", 1) is not None and args.samples < 1:
+        raise HeatloadError("--samples must be at least 1", field="--samples")
+    rd = _parse(args.rated_duty, "power", "--rated-duty") if args.rated_duty else None
+    re_ = (_parse(args.rated_etd, "temperature_difference", "--rated-etd")
+           if args.rated_etd else None)
+    if rd is not None and rd <= 0:
+        raise HeatloadError("--rated-duty must be positive", field="--rated-duty")
+    if re_ is not None and re_ <= 0:
+        raise HeatloadError("--rated-etd must be positive", field="--rated-etd")
+    outcome = chain.evaluate_strategy(sc, strat)
+    try:
+        sz = size_cooler(sc, outcome, args.coolant, rd, re_)
+    except HeatloadError as exc:
+        if exc.field and exc.field.startswith("cooler."):
+            raise io.locate_in_file(exc, path) from None
+        raise
+    # a progress bar on stderr for long runs in a terminal (never in --json pipes)
+    unc = cooler_uncertainty(sc, strat, samples=args.samples, seed=args.seed,
+                             progress=sys.stderr.isatty() and not args.json)
+    if args.json:
+        rec = sizing_record(sz, unc)
+        rec["scenario"] = sc.name
+        rec["file"] = str(path)
+        if sc.coolers:
+            from heatload.cooling import cooler_datasheet
+            rec["datasheet_coolers"] = cooler_datasheet.selection_record(
+                cooler_datasheet.rate_coolers(sc, outcome))
+        print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
+                         default=lambda v: None))
+        return 0
+    s = args.units
+    print(f"{sc.name} — cooler for {sz.strategy}")
+    print(f"Design point: ambient {fq(sz.design_ambient, 'temperature', s)}, oil held at "
+          f"{fq(sz.design_oil_temperature, 'temperature', s)}")
+    print(f"  heat into the oil   {fq(sz.design_heat, 'power', s)}")
+    print(f"  surfaces shed       {fq(sz.surfaces_heat, 'power', s)} "
+          f"(UA {fq(sz.design_conductance, 'thermal_conductance', s)})")
+    if not sz.cooler_needed:
+        print("  cooler              not needed")
+    else:
+        print(f"  cooler duty         {fq(sz.duty_without_margin, 'power', s)} + "
+              f"{100 * sz.margin:.0f} % margin = {fq(sz.duty, 'power', s)}")
+        print(f"  oil through cooler  {fq(sz.oil_flow, 'flow', s)} (cycle-average return flow)")
+        if sz.air is not None:
+            a = sz.air
+            print(f"Air-oil: {fq(a.specific_cooling_power, 'thermal_conductance', s)} at ETD "
+                  f"{fq(a.etd, 'temperature_difference', s)}; air "
+                  f"{fq(a.air_mass_flow, 'mass_flow', s)} rising "
+                  f"{fq(a.air_outlet_temperature - sz.design_ambient, 'temperature_difference', s)}; "
+                  f"oil drops {fq(a.oil_temperature_drop, 'temperature_difference', s)}")
+        for arr, w in sz.water.items():
+            print(f"Water-oil {arr}: UA {fq(w.required_conductance, 'thermal_conductance', s)}, "
+                  f"NTU {float(w.ntu):.2f}, effectiveness {float(w.effectiveness):.3f}, water "
+                  f"{fq(w.water_volume_flow, 'flow', s)} "
+                  f"{fq(sz.water_inlet_temperature, 'temperature', s)} -> "
+                  f"{fq(w.water_outlet_temperature, 'temperature', s)}")
+    rows = spec_rows(sz, s)
+    if rows:
+        print("\nSpec sheet")
+        width = max(len(r[0]) for r in rows)
+        for k, v in rows:
+            print(f"  {k.ljust(width)}  {v}")
+    if sz.rating is not None:
+        r = sz.rating
+        verdict = "suffices" if r["suffices"] else (
+            "suffices without the margin only" if r["suffices_without_margin"]
+            else "is too small")
+        print(f"\nRating: {fq(r['rated_duty_W'], 'power', s)} at ETD "
+              f"{fq(r['rated_etd_K'], 'temperature_difference', s)} gives "
+              f"{fq(r['duty_at_design_W'], 'power', s)} at ETD "
+              f"{fq(r['design_etd_K'], 'temperature_difference', s)}: {verdict} "
+              f"(needs {fq(r['required_W'], 'power', s)})")
+    if sz.thermostat is not None and sz.cooler_needed:
+        t = sz.thermostat
+        from heatload.outputs.tables import times
+        print(f"\nThermostat over a {t['shift_duration_s'] / 3600:.1f} h shift: on at "
+              f"{fq(t['on_temperature_K'], 'temperature', s)}, switched on {times(t['switch_count'])}, "
+              f"on {100 * t['on_fraction']:.0f} % of the time, max "
+              f"{fq(t['max_temperature_K'], 'temperature', s)}")
+    print()
+    if unc["available"]:
+        d, tt = unc["cooler_duty_W"], unc["oil_temperature_C"]
+        print(f"Uncertainty ({unc['samples']:,} samples, seed {unc['seed']}):")
+        print("  cooler duty      " + ", ".join(f"{k} {fq(d[k], 'power', s)}"
+                                               for k in ("P50", "P90", "P95")))
+        print("  oil temperature (steady, no cooler, typical ambient)\n                   " + ", ".join(f"{k} {fq(tt[k] + K0, 'temperature', s)}"
+                                               for k in ("P50", "P90", "P95")))
+        if unc["sensitivity"]:
+            print("  inputs that move the duty most:")
+            for r in unc["sensitivity"]:
+                from heatload.outputs.wording import plain_path
+                sw = r.get("cooler_duty_swing_W")
+                extra = r.get("oil_temperature_swing_K")
+                print(f"    {plain_path(r['path'])} ({r['path']}): duty swing "
+                      f"{fq(sw, 'power', s) if isinstance(sw, float) else sw}"
+                      + (f", oil temperature swing "
+                         f"{fq(extra, 'temperature_difference', s)}"
+                         if isinstance(extra, float) else ""))
+    else:
+        print(unc["note"])
+    for n in sz.notes:
+        print(f"  note: {n}")
+    if sc.coolers:      # datasheet coolers listed in the file ([[coolers]])
+        from heatload.cooling import cooler_datasheet
+        cooler_datasheet.print_selection(cooler_datasheet.rate_coolers(sc, outcome), s)
+    print(sz.caution + " Machine-safety standards for hydraulic systems (e.g. ISO 4413) apply.")
+    return 0

@@ -1,0 +1,592 @@
+"""Control strategies: each phase of a duty cycle solved to its operating point.
+
+One solver per strategy, all sharing one structure.  Every phase is a
+steady operating point of one actuator (a differential cylinder or a
+hydraulic motor) fed by the power unit:
+
+    pump (+ relief, bleed or bypass at the pump outlet)
+      -> check valve -> pressure line -> directional valve P->A
+      -> [inlet flow control]  -> actuator inlet  (p1, Q1)
+      actuator outlet (p2, Q2) -> [outlet flow control] [counterbalance]
+      -> directional valve B->T -> return line -> tank (0 bar gauge)
+
+The actuator's steady force balance is ``p1 A1 - p2 A2 = F_eff`` with
+``F_eff`` the load plus friction (cylinders) or ``2 pi T / eta_hm`` (motors).
+A solver finds the inlet flow ``Q1`` that the strategy can deliver (the set
+flow, or less when the pump, the relief or the flow control's minimum drop
+limits it; zero when the load stalls the actuator), then books every watt:
+
+    P_shaft = P_pump_loss + p_pump Q_pump
+    p_pump Q_pump = relief + bleed + (Q1 x every drop on the way in) + p1 Q1
+    p1 Q1 - p2 Q2 = F v + actuator losses      (F v < 0 while a load overruns)
+    p2 Q2 = Q2 x every drop on the way out
+    P_electric = P_shaft + motor losses (+ converter losses)
+
+so ``P_electric = useful + sum(losses)`` closes to rounding.  Motor and
+converter losses heat the room, every other loss heats the oil.
+
+What is particular to each strategy (its residual, pump pressure, rest and
+stall pressures, pump state and surplus routing) lives in its class in
+:mod:`heatload.hydraulics.strategies`; :func:`solve_strategy` is the solve they share.
+
+All functions are vectorized: every input broadcasts (e.g. shape
+``(variants, phases)``), so a design sweep is one call.
+
+References
+----------
+H. E. Merritt, *Hydraulic Control Systems*, Wiley, 1967, ch. 3-5 (valve and
+actuator steady-state relations).  The efficiency bookkeeping is the first
+law for a steady open system (P = p Q for each loss).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from heatload.components import lines, motors, pumps, valves
+
+TWO_PI = 2.0 * np.pi
+
+#: Chamber pressure below which cavitation is flagged [Pa gauge]
+#: (about 0.7 bar absolute; common practice to keep chambers above it).
+CAVITATION_THRESHOLD = -0.3e5
+
+#: Loss components in the order tables show them.  ``drive_motor`` and
+#: ``converter`` heat the room; the rest heat the oil.
+OIL_LOSSES = ("pump", "relief", "flow_control", "bleed", "directional_valve",
+              "check_valve", "lines", "counterbalance", "actuator", "compression")
+ROOM_LOSSES = ("drive_motor", "converter")
+LOSS_COMPONENTS = OIL_LOSSES + ROOM_LOSSES
+
+#: Unloading codes used in the arrays (see :data:`heatload.model.UNLOADING`).
+UNLOAD_RELIEF, UNLOAD_CENTRE, UNLOAD_HELD, UNLOAD_CHECK = 0, 1, 2, 3
+
+#: Counterbalance setting assumed where a circuit cannot hold an overrunning
+#: load: 1.3 x the load-induced pressure (common practice for the setting).
+COUNTERBALANCE_FACTOR = 1.3
+
+_INFEASIBLE = -1e12  # "pressure" of a flow the pump cannot deliver [Pa]
+
+_ROOT_STEPS = 60  # Illinois steps at most (typically 4-8)
+_ROOT_PRESSURE_TOL = 1e-7  # |residual| that counts as solved [Pa] (~1e-14 of the pressures)
+
+
+@dataclass
+class CircuitResult:
+    """Operating point and power balance of every phase for one strategy.
+
+    Every array has the broadcast shape of the inputs (``(..., phases)``).
+    Pressures are gauge [Pa], flows [m^3/s], powers [W], speeds [m/s] or
+    [rev/s] for motors, durations [s].
+    """
+
+    strategy: str
+    pump_pressure: np.ndarray
+    inlet_pressure: np.ndarray        #: actuator inlet p1 [Pa]
+    outlet_pressure: np.ndarray       #: actuator outlet p2 [Pa]
+    pump_flow: np.ndarray             #: delivered by the pump [m^3/s]
+    actuator_flow: np.ndarray         #: into the actuator inlet Q1 [m^3/s]
+    outlet_flow: np.ndarray           #: out of the actuator outlet Q2 [m^3/s]
+    relief_flow: np.ndarray
+    bleed_flow: np.ndarray            #: bled / bypassed at working pressure [m^3/s]
+    speed: np.ndarray                 #: actual actuator speed reached
+    speed_target: np.ndarray
+    pump_shaft_speed: np.ndarray      #: [rev/s]
+    displacement_fraction: np.ndarray  #: pump stroke [-]
+    throttle_drop: np.ndarray         #: drop across the speed-setting element [Pa]
+    duration: np.ndarray              #: actual phase duration [s]
+    shaft_power: np.ndarray
+    electric_power: np.ndarray
+    useful_power: np.ndarray          #: F v, negative while a load overruns
+    losses: dict = field(default_factory=dict)  #: component -> power [W]
+    stalled: np.ndarray = None
+    flow_limited: np.ndarray = None
+    runaway: np.ndarray = None        #: overrunning load this circuit cannot hold
+    counterbalance_active: np.ndarray = None
+    counterbalance_setting: np.ndarray = None  #: [Pa], where active
+    #: |p_pump Q1 - Q1 (drops) - p1 Q1| left by the root solve [W]; ~rounding
+    bookkeeping_residual: np.ndarray = None
+    #: power put into (+) or taken from (-) an accumulator's gas [W]; sums to
+    #: zero over a cycle the pump keeps up with (None: the circuit stores none)
+    stored_power: np.ndarray = None
+    #: an accumulator circuit's pump on-time over the cycle [-] (None: not one)
+    pump_duty: np.ndarray = None
+
+    @property
+    def heat_to_oil(self) -> np.ndarray:
+        """Sum of the losses that end up in the oil [W]."""
+        return sum(self.losses[k] for k in OIL_LOSSES)
+
+    @property
+    def room_losses(self) -> np.ndarray:
+        """Motor and converter losses, which heat the room [W]."""
+        return sum(self.losses[k] for k in ROOM_LOSSES)
+
+    @property
+    def balance_residual(self) -> np.ndarray:
+        """``P_electric - useful - sum(losses) - stored`` [W]; zero to rounding."""
+        stored = 0.0 if self.stored_power is None else self.stored_power
+        return self.electric_power - self.useful_power - sum(self.losses.values()) - stored
+
+
+# ---------------------------------------------------------------------------
+# drops along the paths
+# ---------------------------------------------------------------------------
+
+def _supply_drop(q, c):
+    """Drop from the pump outlet to the actuator inlet at flow *q* (no throttle)."""
+    return (valves.check_valve_pressure_drop(q, c["check_cracking"], c["check_rated_flow"],
+                                             c["check_rated_drop"])
+            + lines.line_pressure_drop(q, c["pline_d"], c["pline_l"], c["density"],
+                                       c["viscosity"], c["pline_rough"], c["pline_k"])
+            + valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"]))
+
+
+def _supply_drop_parts(q, c):
+    check = valves.check_valve_pressure_drop(q, c["check_cracking"], c["check_rated_flow"],
+                                             c["check_rated_drop"])
+    line = lines.line_pressure_drop(q, c["pline_d"], c["pline_l"], c["density"],
+                                    c["viscosity"], c["pline_rough"], c["pline_k"])
+    dv = valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"])
+    return check, line, dv
+
+
+def _return_drop_parts(q, c):
+    dv = valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"])
+    line = lines.line_pressure_drop(q, c["rline_d"], c["rline_l"], c["density"],
+                                    c["viscosity"], c["rline_rough"], c["rline_k"])
+    return dv, line
+
+
+def _centre_drop(q, c):
+    """P->T drop of an open or tandem centre, ~Q^2 from its catalogue point
+    (zero allowed: an ideal centre)."""
+    return c["dv_centre_drop"] * (q / c["dv_rated_flow"]) ** 2
+
+
+def _return_drop(q, c):
+    dv, line = _return_drop_parts(q, c)
+    return dv + line
+
+
+def _flow_drops(q1, c, rec=None):
+    """Every drop that depends on the inlet flow *q1* only: (check, pressure
+    line, valve P->A, valve B->T, return line) [Pa]; appended to *rec* when
+    given, so the solve can reuse them at the flow it settles on."""
+    d = _supply_drop_parts(q1, c) + _return_drop_parts(q1 * c["q_ratio"], c)
+    if rec is not None:
+        rec.append(d)
+    return d
+
+
+def _supply_and_inlet(q, c, outlet_extra, rec=None):
+    """(supply drop, p1) at inlet flow *q* with *outlet_extra* on the outlet path."""
+    check, pline, dv_in, rdv, rline = _flow_drops(q, c, rec)
+    p1, _, _ = _inlet_pressure_at(rdv + rline + outlet_extra, c)
+    return check + pline + dv_in, p1
+
+
+def _inlet_pressure(q1, c, outlet_extra):
+    """Actuator inlet pressure p1 [Pa] from the force balance at inlet flow *q1*.
+
+    ``p1 A1 = F_eff + A2 p2`` with ``p2 = return drops + outlet_extra + dp_cb``,
+    where a fitted counterbalance valve (direct acting, pilot ratio r) adds
+    ``dp_cb = max(setting - r p1, 0)``.  The balance is monotone in p1, so
+    ``p1 = max(p1_open, p1_active)`` with
+    ``p1_active = (F + A2 (p_back + setting)) / (A1 + r A2)``.
+    Returns ``(p1, p2, dp_cb)``.
+    """
+    return _inlet_pressure_at(_return_drop(q1 * c["q_ratio"], c) + outlet_extra, c)
+
+
+def _inlet_pressure_at(p_back, c):
+    """:func:`_inlet_pressure` for a known outlet back pressure *p_back* [Pa]."""
+    a1, a2, f = c["a_in"], c["a_out"], c["force"]
+    # an actuator's back-pressure valve adds its setting to the outlet path while it
+    # moves (a fixed counter-force bp A2; loss Q2 bp, booked with the counterbalance)
+    bp = c.get("back_pressure", 0.0)
+    p_back = p_back + bp
+    p1_open = (f + a2 * p_back) / a1
+    setting = np.where(c["cb_active"], c["cb_setting"], 0.0)
+    p1_active = (f + a2 * (p_back + setting)) / (a1 + c["cb_ratio"] * a2)
+    p1 = np.where(c["cb_active"], np.maximum(p1_open, p1_active), p1_open)
+    dp_cb = np.where(c["cb_active"], np.maximum(setting - c["cb_ratio"] * p1, 0.0), 0.0)
+    return p1, p_back + dp_cb, dp_cb + bp
+
+
+# ---------------------------------------------------------------------------
+# supply characteristics: pump outlet pressure available at circuit flow q
+# ---------------------------------------------------------------------------
+
+def _leak_conductance(c):
+    """Pump leakage per pressure L = Cs D / (2 pi mu) [m^3/(s Pa)] (Wilson slip term)."""
+    return c["pump_slip"] * c["pump_displacement"] / (TWO_PI * c["mu"])
+
+
+def _relief_supply(q, c, theoretical_flow):
+    """Fixed pump with relief: pressure at the pump outlet when the circuit takes *q*.
+
+    Relief branch (relief passing ``Q_p - q``): ``p = p_c + k (Q_p(p) - q)``
+    with ``Q_p = Q_th - L p`` gives ``p = (p_c + k (Q_th - q)) / (1 + k L)``.
+    Pump branch (relief shut, the pump delivers all it can):
+    ``p = (Q_th - q) / L``.
+    """
+    leak = _leak_conductance(c)
+    k = c["relief_override"] / c["relief_rated_flow"]
+    q_crack = theoretical_flow - leak * c["relief_cracking"]
+    relief_branch = (c["relief_cracking"] + k * (theoretical_flow - q)) / (1.0 + k * leak)
+    pump_branch = c["relief_cracking"] - (q - q_crack) / np.maximum(leak, 1e-30)
+    # more than the theoretical flow is out of the pump's reach (p < 0: suction)
+    pump_branch = np.where(q > theoretical_flow, _INFEASIBLE, pump_branch)
+    return np.where(q <= q_crack, relief_branch, pump_branch)
+
+
+def _compensator_supply(q, c, setting, theoretical_flow):
+    """Variable pump at its compensator *setting* until full stroke, then its curve."""
+    leak = _leak_conductance(c)
+    q_full = theoretical_flow - leak * setting
+    pump_branch = setting - (q - q_full) / np.maximum(leak, 1e-30)
+    pump_branch = np.where(q > theoretical_flow, _INFEASIBLE, pump_branch)
+    return np.where(q <= q_full, setting, pump_branch)
+
+
+# ---------------------------------------------------------------------------
+# the solve
+# ---------------------------------------------------------------------------
+
+class _Subset(dict):
+    """Entries of a circuit dict restricted to the elements *idx*, taken only
+    when a residual first reads them (most entries are never read)."""
+
+    def __init__(self, c, idx):
+        super().__init__()
+        self._c, self._idx, self._shape = c, idx, idx.shape
+
+    def __missing__(self, key):
+        v = self._c[key]
+        if isinstance(v, np.ndarray) and v.shape == self._shape:
+            v = v[self._idx]
+        self[key] = v
+        return v
+
+    def get(self, key, default=None):
+        try:
+            return self[key]
+        except KeyError:
+            return default
+
+
+def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
+    """Root in q of a residual decreasing in q, with residual(0) >= 0 >
+    residual(q_hi), for the elements *idx* only.
+
+    The supply characteristics have one corner (where the relief or the
+    compensator takes over from the pump's full flow); evaluating the
+    residual there first leaves a bracket on which it is smooth.  Then a
+    vectorized Illinois (modified regula falsi), superlinear, never leaving the
+    bracket; each element stops on its own once converged (so a result does
+    not depend on the other elements of a batch), ending on the bracket's
+    feasible side (residual >= 0).
+    """
+    sub = _Subset(c, idx)
+    lo = np.zeros(int(idx.sum()))
+    hi = q_hi[idx].copy()
+    # the ends' residuals where the caller has them already (NaN: not known)
+    r_lo = residual(lo, sub) if r_lo is None else r_lo
+    if r_hi is None:
+        r_hi = residual(hi, sub)
+    elif np.isnan(r_hi).any():
+        miss = np.isnan(r_hi)
+        r_hi = r_hi.copy()
+        r_hi[miss] = residual(hi[miss], _Subset(sub, miss))
+    if q_kink is not None:
+        k = np.broadcast_to(q_kink, idx.shape)[idx]
+        inside = (k > lo) & (k < hi)
+        if inside.any():
+            r_k = residual(np.where(inside, k, hi), sub)
+            up = inside & (r_k >= 0.0)
+            down = inside & (r_k < 0.0)
+            lo, r_lo = np.where(up, k, lo), np.where(up, r_k, r_lo)
+            hi, r_hi = np.where(down, k, hi), np.where(down, r_k, r_hi)
+    side = np.zeros(lo.shape)
+    active = np.ones(lo.shape, dtype=bool)
+    for _ in range(_ROOT_STEPS):
+        with np.errstate(divide="ignore", invalid="ignore"):  # flat ends: bisect below
+            q = (lo * r_hi - hi * r_lo) / (r_hi - r_lo)
+        q = np.where(np.isfinite(q) & (q > lo) & (q < hi), q, 0.5 * (lo + hi))
+        r = residual(q, sub)
+        hit = active & (np.abs(r) <= _ROOT_PRESSURE_TOL)  # solved: keep q itself
+        lo = np.where(hit, q, lo)
+        active &= ~hit
+        pos = (r >= 0.0) & active
+        neg = (r < 0.0) & active
+        # Illinois: halve the stale end's residual when the same end moves twice
+        r_hi = np.where(pos & (side > 0), 0.5 * r_hi, r_hi)
+        r_lo = np.where(neg & (side < 0), 0.5 * r_lo, r_lo)
+        lo, r_lo = np.where(pos, q, lo), np.where(pos, r, r_lo)
+        hi, r_hi = np.where(neg, q, hi), np.where(neg, r, r_hi)
+        side = np.where(pos, 1.0, np.where(neg, -1.0, side))
+        active &= hi - lo > 1e-13 * np.maximum(hi, 1e-12)
+        if not active.any():
+            break
+    return lo
+
+
+def _solve_flow(residual, c, q_target, q_kink=None):
+    """Inlet flow reached: the set flow where the residual allows it, else the
+    root of the residual (flow-limited), zero where even q = 0 fails (stall)."""
+    q = q_target.copy()
+    moving = np.asarray(c["moving"])
+    r_target = np.full(q_target.shape, np.nan)
+    rec = []
+    if moving.all():
+        r_target = residual(q_target, c, rec)
+    elif moving.any():  # hold and idle phases need no flow solve
+        r_target[moving] = residual(q_target[moving], _Subset(c, moving), rec)
+    short = moving & (r_target < 0.0)
+    stalled = np.zeros_like(short)
+    r_zero = np.full(q_target.shape, np.nan)
+    if short.any():
+        r_zero[short] = residual(np.zeros(int(short.sum())), _Subset(c, short))
+        stalled = short & (r_zero < 0.0)
+    need = short & ~stalled
+    if need.any():
+        q_hi = np.minimum(q_target, c["q_reach"])
+        r_hi = np.where(q_hi == q_target, r_target, np.nan)[need]
+        q[need] = _root_flow(residual, c, q_hi, need, q_kink, r_lo=r_zero[need], r_hi=r_hi)
+    q[stalled] = 0.0
+    q[~moving] = 0.0
+    # the drops at the set flow, kept where the actuator got it (NaN elsewhere)
+    drops = None
+    if rec:
+        drops = []
+        for part in rec[0]:
+            full = np.full(q_target.shape, np.nan)
+            full[moving] = np.broadcast_to(part, q_target.shape)[moving] if np.shape(part) \
+                == q_target.shape else part
+            full[short] = np.nan
+            drops.append(full)
+    return q, short & ~stalled, stalled, drops
+
+
+def solve_strategy(strategy: str, c: dict) -> CircuitResult:
+    """Solve every phase for one *strategy*.
+
+    Parameters
+    ----------
+    strategy : str
+        A name of :data:`heatload.hydraulics.strategies.REGISTRY`.
+    c : dict
+        Circuit arrays from :func:`heatload.hydraulics.cycle.circuit_inputs` (all SI,
+        broadcast to one shape).
+
+    Returns
+    -------
+    CircuitResult
+    """
+    from heatload.hydraulics.strategies import circuit
+    kind = circuit(strategy)
+    c = dict(c)
+    shape = c["shape"]
+    z = np.zeros(shape)
+    moving = c["moving"]
+    # the load overruns where it beats the seal friction: the effective force pulls
+    overrun = moving & (c["load"] < 0.0) & (c["force"] < 0.0)
+    # A counterbalance valve acts only on an overrunning load; an outlet
+    # throttle needs none.  Where none is fitted the load would run away: the
+    # phase is flagged and its figures assume one set at 1.3 x the load-induced
+    # pressure.
+    # an actuator's own counterbalance valve (phase entries) replaces the strategy's
+    if "cb_own" in c:
+        own = c["cb_own"]
+        c["cb_fitted"] = c["cb_fitted"] | own
+        c["cb_setting"] = np.where(own, c["cb_own_setting"], c["cb_setting"])
+        c["cb_ratio"] = np.where(own, c["cb_own_ratio"], c["cb_ratio"])
+    runaway = overrun & ~c["cb_fitted"] & (not kind.meters_out)
+    c["cb_active"] = overrun & (c["cb_fitted"] | runaway) & (not kind.meters_out)
+    c["cb_setting"] = np.where(runaway, COUNTERBALANCE_FACTOR * np.abs(c["force"]) / c["a_out"],
+                               c["cb_setting"])
+
+    n_nom = c["pump_speed"]
+    c["q_theoretical"] = c["pump_displacement"] * n_nom
+    c["q_theoretical_max"] = c["pump_displacement"] * n_nom * c["vs_max_fraction"]
+    q_cap = kind.flow_capacity(c)
+    c["q_reach"] = q_cap  # beyond it the pump cannot deliver: keeps the root bracket smooth
+    q_target = np.where(np.isfinite(c["q_target"]), c["q_target"], q_cap)
+    q_target = np.where(moving, np.maximum(q_target, 0.0), 0.0)
+    if "shape" in c:            # a single phase may arrive as 0-d; the flow solve
+        q_target = np.broadcast_to(q_target, c["shape"]).copy()   # needs every row
+    c["q_target_safe"] = np.where(q_target > 0, q_target, 1.0)
+
+    # the corner of the supply characteristic: full pump flow at the relief
+    # (fixed pumps) or compensator setting (variable pumps)
+    leak0 = _leak_conductance(c)
+    q_kink = kind.kink(c, q_cap, leak0)
+    q1, flow_limited, stalled, drops_set = _solve_flow(kind.residual, c, q_target, q_kink)
+    full_flow = moving & ~np.isfinite(c["q_target"])
+    flow_limited = flow_limited & ~full_flow
+    q_target = np.where(full_flow, q1, q_target)
+
+    # ---- operating point at the solved flow --------------------------------
+    leak = _leak_conductance(c)
+    # the drops at the solved flow: reused from the set-flow pass where the
+    # actuator got its set flow, computed afresh for the rest
+    if drops_set is None:
+        check_dp, pline_dp, dv_in_dp, rdv_dp, rline_dp = _flow_drops(q1, c)
+    else:
+        fresh = np.isnan(drops_set[0])
+        check_dp, pline_dp, dv_in_dp, rdv_dp, rline_dp = drops_set
+        if fresh.any():
+            for full, part in zip(drops_set, _flow_drops(q1[fresh], _Subset(c, fresh))):
+                full[fresh] = part
+    supply = check_dp + pline_dp + dv_in_dp
+    q2 = q1 * c["q_ratio"]
+    p_back = rdv_dp + rline_dp
+    p_pump, p1, p2, dp_cb, dp_fc_in, dp_fc_out = kind.operating_pressures(
+        q1, c, supply, p_back, moving, stalled)
+    # stalled actuators: the pump sits at what its supply gives at zero flow
+    p_pump = np.where(moving & stalled, kind.stall_pressure(c, z), p_pump)
+    dp_fc_in = np.where(stalled, 0.0, dp_fc_in)
+    # ... and no flow means no drop but the check valve's spring: the inlet chamber
+    # holds what the pump gives, the outlet is open to tank, the load is not met
+    # (not the load's own pressure, which no part of this circuit reaches)
+    stuck = moving & stalled
+    p1 = np.where(stuck, np.maximum(p_pump - c["check_cracking"], 0.0), p1)
+    p2 = np.where(stuck, 0.0, p2)
+
+    # ---- phases with nothing moving (hold / idle) ----------------------------
+    p_hold = np.where(moving, 0.0, c["hold_pressure"])
+    unload = c["unloading"]
+    # a pilot-operated check holds the load; the pump is unloaded meanwhile: a fixed
+    # pump vented (at the centre's drop, whatever the centre), a variable one at zero
+    # stroke or standby.  No relief flow; the pump's leakage only
+    on_check = ~moving & (unload == UNLOAD_CHECK)
+    holding = ~moving & (p_hold > 0.0) & ~on_check
+    vent = on_check & (not kind.variable_pump)
+    c["centre_unloads"] = c["centre_unloads"] | vent
+    centre_ok = c["centre_unloads"]
+    use_centre = ~moving & ((unload == UNLOAD_CENTRE) | vent) & centre_ok
+    # centre drop at the full theoretical flow (leakage at a few bar is negligible)
+    centre_dp = _centre_drop(c["q_theoretical"], c)
+    relief_full = _relief_supply(z, c, c["q_theoretical"])
+    p_rest = kind.rest_pressure(c, z, use_centre, holding, p_hold, centre_dp, relief_full)
+    p_pump = np.where(moving, p_pump, p_rest)
+    p1 = np.where(moving, p1, p_hold)
+    p2 = np.where(moving, p2, 0.0)
+
+    # ---- pump flow, stroke and speed --------------------------------------
+    leakage = leak * np.maximum(p_pump, 0.0)
+    c["pump_pressure"] = p_pump
+    frac, n_pump, q_pump = kind.pump_state(c, q1, leakage, moving, stalled, use_centre, shape)
+    surplus = np.maximum(q_pump - q1, 0.0)
+    at_relief = p_pump >= c["relief_cracking"] * (1.0 - 1e-12)
+    to_centre, to_relief = kind.surplus_routing(moving, holding, use_centre, centre_ok,
+                                                at_relief, shape)
+    centre_q = np.where(to_centre, surplus, 0.0)
+    relief_q = np.where(to_relief & ~to_centre, surplus, 0.0)
+    bleed_q = surplus - centre_q - relief_q
+
+    # ---- powers -------------------------------------------------------------
+    speed = np.where(moving, q1 * c["speed_per_flow"], 0.0)
+    t_actual = _actual_duration(c, speed, stalled)
+    # shaft power, losses of pumps run apart from the circuit (an unloaded pump),
+    # and power into an accumulator (zero for most circuits)
+    p_shaft_hyd, apart, stored, duty = kind.pump_power(c, n_pump, p_pump, frac, q1, t_actual)
+    useful = c["load"] * speed * c["work_per_load_speed"]
+    # what the actuator does not turn into load work: friction, motor efficiencies
+    actuator_loss = p1 * q1 - p2 * q2 - useful
+
+    losses = {
+        "relief": relief_q * np.maximum(p_pump, 0.0),
+        "bleed": bleed_q * np.maximum(p_pump, 0.0),
+        "flow_control": q1 * (dp_fc_in) + q2 * dp_fc_out,
+        "directional_valve": q1 * dv_in_dp + q2 * rdv_dp + centre_q * np.maximum(p_pump, 0.0),
+        "check_valve": q1 * check_dp,
+        "lines": q1 * pline_dp + q2 * rline_dp,
+        "counterbalance": q2 * dp_cb,
+        "actuator": actuator_loss,
+    }
+    # pump: shaft power less what it delivers to the circuit
+    p_out = np.maximum(p_pump, 0.0) * (q1 + relief_q + bleed_q + centre_q)
+    # the solved root leaves rounding between q_pump and the flows booked: the
+    # pump term takes it so the balance closes exactly
+    losses["pump"] = p_shaft_hyd - p_out - stored
+    for k, v in apart.items():
+        losses["pump"] = losses["pump"] - v
+        losses[k] = losses[k] + v
+    # pressure recovered in the pump line beyond p_pump (negative throttle) cannot
+    # occur: dp's are clipped at zero; but p1*q1 books against p_pump*q1 exactly:
+    mismatch = np.maximum(p_pump, 0.0) * q1 - q1 * (dp_fc_in + check_dp + pline_dp + dv_in_dp) - p1 * q1
+    losses["flow_control"] = losses["flow_control"] + mismatch
+    bookkeeping = np.abs(mismatch)
+
+    # compression of the oil in the pressurised chamber, released as heat
+    prev = c["previous_phase"]
+    # prev and p1 may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
+    shape = np.broadcast_shapes(np.shape(prev), np.shape(p1))
+    at = np.broadcast_to(np.maximum(prev, 0), shape or (1,))
+    p_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p1, shape or (1,)), at,
+                                                    axis=-1).reshape(shape), 0.0)
+    p2_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p2, shape or (1,)), at,
+                                                     axis=-1).reshape(shape), 0.0)
+    # E = V (p^2 - p_prev^2) / (2 K) in each chamber: the inlet one filled at p1, and
+    # the outlet one, pressed to p2 when the motion starts (a meter-out circuit's
+    # intensified chamber stores as much as the inlet)
+    e_in = c["compression_volume"] * (np.maximum(p1, 0.0) ** 2 - np.maximum(p_prev, 0.0) ** 2)
+    e_out = c["compression_volume_outlet"] * (np.maximum(p2, 0.0) ** 2
+                                              - np.maximum(p2_prev, 0.0) ** 2)
+    e_comp = np.maximum(e_in, 0.0) + np.maximum(e_out, 0.0)
+    e_comp = np.where(c["compress"], e_comp / (2.0 * c["bulk_modulus"]), 0.0)
+    # once per pass: a repeated phase's duration holds all its passes
+    losses["compression"] = e_comp * c.get("repeats", 1.0) / t_actual
+    p_shaft = p_shaft_hyd + losses["compression"]
+
+    # drive motor (and converter for variable speed)
+    speed_fraction = n_pump / n_nom
+    p_motor_in = motors.motor_input_power(p_shaft, c["motor_rated_power"],
+                                          c["motor_rated_efficiency"],
+                                          speed_fraction if kind.speed_controlled else 1.0)
+    losses["drive_motor"] = p_motor_in - p_shaft
+    if kind.speed_controlled:
+        losses["converter"] = motors.converter_losses(
+            p_motor_in, c["motor_rated_power"] / c["motor_rated_efficiency"],
+            c["drive_efficiency"])
+        p_el = p_motor_in + losses["converter"]
+    else:
+        p_el = p_motor_in
+        losses["converter"] = z.copy()
+
+    return CircuitResult(
+        strategy=strategy, pump_pressure=p_pump, inlet_pressure=p1, outlet_pressure=p2,
+        pump_flow=q1 + relief_q + bleed_q + centre_q, actuator_flow=q1, outlet_flow=q2,
+        relief_flow=relief_q, bleed_flow=bleed_q, speed=speed,
+        speed_target=np.where(moving, q_target * c["speed_per_flow"], 0.0),
+        pump_shaft_speed=n_pump, displacement_fraction=frac,
+        throttle_drop=dp_fc_out if kind.meters_out else dp_fc_in,
+        duration=t_actual, shaft_power=p_shaft, electric_power=p_el, useful_power=useful,
+        losses=losses, stalled=stalled, flow_limited=flow_limited, runaway=runaway,
+        counterbalance_active=c["cb_active"],
+        counterbalance_setting=np.where(c["cb_active"], c["cb_setting"], 0.0),
+        bookkeeping_residual=bookkeeping,
+        stored_power=None if np.ndim(stored) == 0 and stored == 0 else stored + z,
+        pump_duty=None if duty is None else np.asarray(duty)[..., None] + z)
+
+
+def _actual_duration(c, speed, stalled):
+    """Phase duration [s]: the stroke at the speed reached where the phase is
+    given by its stroke, else the given duration; times its passes per cycle
+    (``repeats``: a repeated block's phase lasts all its passes).  A stalled
+    stroke keeps its nominal duration (the result carries the stall warning)."""
+    by_stroke = c["by_stroke"] & (speed > 0)
+    t = np.where(by_stroke, c["stroke"] / np.where(speed > 0, speed, 1.0), c["duration"])
+    return np.maximum(t, 1e-9) * c.get("repeats", 1.0)
+
+
+def solve_all(c: dict, strategies=None) -> dict:
+    """Solve every phase for each strategy name (default: every registered one);
+    returns name -> CircuitResult."""
+    if strategies is None:
+        from heatload.hydraulics.strategies import NAMES as strategies
+    return {s: solve_strategy(s, c) for s in strategies}

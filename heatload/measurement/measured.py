@@ -1,0 +1,401 @@
+"""The machine's own data at the edge of the engine: ``heatload logfit``.
+
+A temperature log (CSV, :mod:`heatload.measurement.logs`) is fitted with the lumped tank
+model (:mod:`heatload.measurement.logfit`); with a scenario the heat capacity comes from
+its oil and steel (:func:`heatload.evaluation.heat_capacity`), the measured heat
+is set beside the model's heat for the present circuit at the logged oil
+temperature, and the cooler duty at the design point is worked out again from
+the measured heat load (:func:`heatload.cooling.cooler.required_cooler_duty`).
+
+Calibration
+-----------
+- heat factor = P_measured / Q_model(T_log): the model's heat of the present
+  circuit at the time-averaged logged oil temperature while running;
+- conductance factor = UA_fitted / UA_model(T_log, T_a,log): the surfaces'
+  conductance of the scenario at the logged oil and air temperatures;
+- design point from the measurement: heat = heat factor x the model's design
+  heat, UA = conductance factor x the model's design UA; the duty follows as
+  in ``heatload cooler`` (the same function, the scenario's margin).
+
+Only this module formats; the fit and the physics live in their modules.
+"""
+
+from __future__ import annotations
+
+import html
+import json
+import math
+
+import numpy as np
+
+from heatload.errors import HeatloadError
+
+K0 = 273.15
+
+#: What the given heat capacity does to the results (said with every fit that uses one).
+CAPACITY_NOTE = ("P and UA are proportional to the heat capacity C, which is given, not "
+                 "fitted: a C 10 % high makes both 10 % high; the time constant and P/UA "
+                 "come from the log alone.")
+
+
+def log_columns():
+    """Columns of a temperature log (README, "Measured logs")."""
+    from heatload.measurement.logs import ColumnSpec
+    return {"time": ColumnSpec(("time",), "time", True, "s"),
+            "oil": ColumnSpec(("oil",), "temperature", True, "degC"),
+            "ambient": ColumnSpec(("ambient",), "temperature", True, "degC"),
+            "running": ColumnSpec(("running",), "fraction", False)}
+
+
+def read_temperature_log(path, columns=None, units=None, ambient_temperature=None, text=None):
+    """Read a temperature log (:func:`heatload.measurement.logs.read_log`); with
+    *ambient_temperature* [K] the log needs no ambient column (taken constant)."""
+    from heatload.measurement import logfit, logs
+
+    specs = log_columns()
+    if ambient_temperature is not None:
+        specs["ambient"] = logs.ColumnSpec(("ambient",), "temperature", False, "degC")
+    log = logs.read_log(path, specs, columns, units, min_rows=logfit.MIN_SAMPLES, text=text)
+    if "ambient" not in log.values:
+        log.values["ambient"] = np.full(len(log), float(ambient_temperature))
+        log.notes.append(f"no ambient column: the air taken at a constant "
+                         f"{ambient_temperature - K0:.4g} °C")
+    return log
+
+
+def fit_log(log, capacity=None, confidence=0.95):
+    """:func:`heatload.measurement.logfit.fit_tank_log` on a read :class:`~heatload.measurement.logs.Log`."""
+    from heatload.measurement import logfit
+
+    fit = logfit.fit_tank_log(log.time, log.values["oil"], log.values["ambient"],
+                              log.values.get("running"), capacity=capacity,
+                              confidence=confidence)
+    fit.notes[:0] = log.notes
+    return fit
+
+
+def logged_oil_temperature(log, fit) -> float:
+    """Time-averaged logged oil temperature while the machine runs [K] (the
+    whole log when it never runs)."""
+    t = log.time
+    w = np.diff(t) * (log.values["running"][:-1] if "running" in log.values else 1.0)
+    y = 0.5 * (log.values["oil"][1:] + log.values["oil"][:-1])
+    if not np.sum(w) > 0:
+        w = np.diff(t)
+    return float(np.sum(w * y) / np.sum(w))
+
+
+def scenario_comparison(scenario, log, fit, strategy=None) -> dict:
+    """The measured heat and conductance beside the scenario's model, the
+    calibration factors and the cooler duty at the design point from the
+    measurement (see the module notes).  SI values, unit-suffixed keys.
+    *strategy*: the machine's circuit by name; default the scenario's present one."""
+    from heatload import chain, evaluation
+    from heatload.cooling import cooler, sizing
+
+    strat = sizing._design_strategy(scenario, strategy)
+    t_log = logged_oil_temperature(log, fit)
+    ta_log = float(np.mean(log.values["ambient"]))
+    q_model = float(evaluation.mean_heat(chain.solve_at(scenario, strat, t_log)))
+    ua_model = float(chain.conductance_fn(scenario, ta_log)(t_log))
+    outcome = chain.evaluate_strategy(scenario, strat)
+    th = outcome.thermal
+    heat_factor = fit.heat / q_model if fit.heat is not None and q_model > 0 else None
+    ua_factor = fit.conductance / ua_model if fit.conductance is not None else None
+    rec = {"strategy": strat.name, "logged_oil_temperature_C": t_log - K0,
+           "logged_ambient_C": ta_log - K0,
+           "model_heat_W": q_model, "measured_heat_W": fit.heat,
+           "heat_calibration_factor": heat_factor,
+           "model_conductance_W_K": ua_model, "measured_conductance_W_K": fit.conductance,
+           "conductance_calibration_factor": ua_factor,
+           "design_oil_temperature_C": th.design_oil_temperature - K0,
+           "design_ambient_C": th.design_ambient - K0,
+           "model_design_heat_W": th.design_heat,
+           "model_design_conductance_W_K": th.design_conductance,
+           "model_cooler_duty_W": th.cooler_duty, "margin": scenario.cooler.margin,
+           "measured_design_heat_W": None, "measured_design_conductance_W_K": None,
+           "measured_cooler_duty_W": None}
+    if heat_factor is not None and ua_factor is not None:
+        q_d = heat_factor * th.design_heat
+        ua_d = ua_factor * th.design_conductance
+        duty = float(cooler.required_cooler_duty(q_d, ua_d, th.design_oil_temperature,
+                                                 th.design_ambient, scenario.cooler.margin))
+        rec.update(measured_design_heat_W=q_d, measured_design_conductance_W_K=ua_d,
+                   measured_cooler_duty_W=duty)
+        if fit.identified["heat"] and fit.identified["conductance"]:
+            lo_q, hi_q = (heat_factor * th.design_heat * v / fit.heat
+                          for v in fit.intervals["heat"])
+            lo_u, hi_u = (ua_factor * th.design_conductance * v / fit.conductance
+                          for v in fit.intervals["conductance"])
+            # the duty grows with the heat and falls with the conductance
+            rec["measured_cooler_duty_W_interval"] = [
+                float(cooler.required_cooler_duty(lo_q, max(hi_u, 0.0),
+                                                  th.design_oil_temperature,
+                                                  th.design_ambient, scenario.cooler.margin)),
+                float(cooler.required_cooler_duty(hi_q, max(lo_u, 0.0),
+                                                  th.design_oil_temperature,
+                                                  th.design_ambient, scenario.cooler.margin))]
+    return rec
+
+
+# ---------------------------------------------------------------------------
+# formatting
+# ---------------------------------------------------------------------------
+
+def _unit(kind, system):
+    from heatload.units import display_unit
+    # a tank's UA reads in W/K (tens of W/K), not the cooler's kW/K
+    return "W/K" if kind == "thermal_conductance" and system == "si" else display_unit(kind, system)
+
+
+def _q(value, kind, system, digits=3):
+    from heatload.units import format_number, from_si, pretty_unit
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        return "–"
+    unit = _unit(kind, system)
+    v = float(from_si(value, kind, unit)) if unit else float(value)
+    return f"{format_number(v, digits)} {pretty_unit(unit)}".strip()
+
+
+def _iv(pair, kind, system, digits=3):
+    """An interval "low .. high unit", with the digits it takes to tell the
+    ends apart."""
+    from heatload.units import format_number, from_si, pretty_unit
+    if pair is None:
+        return "–"
+    unit = _unit(kind, system)
+    for d in range(digits, 7):
+        vals = []
+        for v in pair:
+            if v is None or math.isnan(v):
+                vals.append("–")
+            elif not math.isfinite(v):
+                vals.append("∞" if v > 0 else "−∞")
+            else:
+                vals.append(format_number(float(from_si(v, kind, unit)), d))
+        if vals[0] != vals[1]:
+            break
+    return f"{vals[0]} .. {vals[1]} {pretty_unit(unit)}".strip()
+
+
+def summary_rows(fit, system="si", capacity_source="given") -> list:
+    """(quantity, value, interval, status) rows of a fit for people."""
+    pct = f"{100 * fit.confidence:.0f} %"
+
+    def status(key):
+        return "identified" if fit.identified.get(key, True) else "NOT identified"
+    rows = [("heat into the oil while running, P", _q(fit.heat, "power", system),
+             _iv(fit.intervals.get("heat"), "power", system),
+             status("heat") if fit.capacity is not None else "needs the heat capacity"),
+            ("conductance to the air, UA", _q(fit.conductance, "thermal_conductance", system, 3),
+             _iv(fit.intervals.get("conductance"), "thermal_conductance", system),
+             status("conductance") if fit.conductance is not None
+             else "needs the heat capacity"),
+            ("heat capacity, C", _q(fit.capacity, "heat_capacity", system), "", capacity_source
+             if fit.capacity is not None else "not given"),
+            ("time constant, C/UA", f"{fit.time_constant / 3600:.3g} h"
+             if math.isfinite(fit.time_constant) else "∞",
+             _iv([v / 3600 for v in fit.intervals["time_constant"]], "dimensionless",
+                 system) + " h", status("conductance")),
+            ("steady rise while running, P/UA", _q(fit.temperature_rise,
+                                                   "temperature_difference", system),
+             _iv(fit.intervals["temperature_rise"], "temperature_difference", system), ""),
+            ("initial oil temperature", _q(fit.initial_temperature, "temperature", system),
+             "", status("initial_temperature"))]
+    return [r + (pct,) for r in rows]
+
+
+def print_text(log, fit, comparison, system, capacity_source):
+    from heatload.cli import CAUTION, _table
+
+    dt = np.diff(log.time)
+    print(f"{log.source} — {fit.samples:,} samples over {fit.duration / 3600:.3g} h "
+          f"(median step {np.median(dt):.3g} s, longest {dt.max():.3g} s); running "
+          f"{100 * fit.running_fraction:.0f} % of the time")
+    print("Columns: " + ", ".join(f"{k} = {h!r}" for k, h in log.headers.items()))
+    print("Model: C dT/dt = P·running − UA (T − T_ambient), exact between samples, "
+          "least squares on the logged oil temperature")
+    rows = summary_rows(fit, system, capacity_source)
+    print(_table(["quantity", "fitted", f"{rows[0][4]} interval", ""],
+                 [r[:4] for r in rows]))
+    print(f"Residual: RMS {fit.residual_rms:.3g} K, largest {fit.residual_max:.3g} K; "
+          f"lag-1 autocorrelation {fit.residual_autocorrelation:.2f}"
+          + (f" (intervals widened x{fit.interval_widening:.2f} for it)"
+             if fit.interval_widening > 1.0 else ""))
+    for n in fit.notes:
+        print(f"  ! {n}")
+    if fit.capacity is not None:
+        print(CAPACITY_NOTE)
+    if comparison is not None:
+        c = comparison
+        print(f"\nAgainst the scenario ({c['strategy']}, the present circuit), oil at "
+              f"{_q(c['logged_oil_temperature_C'] + K0, 'temperature', system)} as logged:")
+        print(f"  heat into the oil    model {_q(c['model_heat_W'], 'power', system)}, "
+              f"measured {_q(c['measured_heat_W'], 'power', system)}; calibration factor "
+              + (f"{c['heat_calibration_factor']:.3g}" if c["heat_calibration_factor"]
+                 is not None else "–"))
+        print(f"  surfaces' UA         model "
+              f"{_q(c['model_conductance_W_K'], 'thermal_conductance', system)}, measured "
+              f"{_q(c['measured_conductance_W_K'], 'thermal_conductance', system)}; factor "
+              + (f"{c['conductance_calibration_factor']:.3g}"
+                 if c["conductance_calibration_factor"] is not None else "–"))
+        print(f"  design point: oil {_q(c['design_oil_temperature_C'] + K0, 'temperature', system)}"
+              f", ambient {_q(c['design_ambient_C'] + K0, 'temperature', system)}, margin "
+              f"{100 * c['margin']:.0f} %")
+        print(f"  cooler duty          model {_q(c['model_cooler_duty_W'], 'power', system)}; "
+              f"from the measurement {_q(c['measured_cooler_duty_W'], 'power', system)}"
+              + (f" ({_iv(c['measured_cooler_duty_W_interval'], 'power', system)})"
+                 if c.get("measured_cooler_duty_W_interval") else "")
+              + "  (heat and UA of the model scaled by the factors above)")
+    print(CAUTION)
+
+
+def figure(log, fit):
+    """The log with the fitted model (plotly figure: temperatures, residual,
+    running state)."""
+    import plotly.graph_objects as go
+    from plotly.subplots import make_subplots
+    from heatload.outputs.report_assets import PALETTE
+
+    n = len(log.time)
+    step = max(1, n // 4000)               # a few thousand points draw fast
+    th = log.time[::step] / 3600.0
+    rows = 3 if "running" in log.values else 2
+    heights = [0.6, 0.2, 0.2][:rows]
+    fig = make_subplots(rows=rows, cols=1, shared_xaxes=True, row_heights=heights,
+                        vertical_spacing=0.05)
+    fig.add_trace(go.Scatter(x=th, y=log.values["oil"][::step] - K0, mode="markers",
+                             name="oil, logged", marker=dict(size=3, color=PALETTE[0])),
+                  row=1, col=1)
+    fig.add_trace(go.Scatter(x=th, y=fit.fitted[::step] - K0, mode="lines", name="oil, fitted",
+                             line=dict(color=PALETTE[3], width=2)), row=1, col=1)
+    fig.add_trace(go.Scatter(x=th, y=log.values["ambient"][::step] - K0, mode="lines",
+                             name="ambient", line=dict(color=PALETTE[2], width=1)),
+                  row=1, col=1)
+    fig.add_trace(go.Scatter(x=th, y=fit.residuals[::step], mode="lines", name="residual",
+                             line=dict(color=PALETTE[7], width=1)), row=2, col=1)
+    if rows == 3:
+        fig.add_trace(go.Scatter(x=th, y=log.values["running"][::step], mode="lines",
+                                 name="running", line=dict(color=PALETTE[1], shape="hv"),
+                                 fill="tozeroy"), row=3, col=1)
+        fig.update_yaxes(title_text="running", range=[-0.05, 1.05], row=3, col=1)
+    fig.update_yaxes(title_text="temperature [°C]", row=1, col=1)
+    fig.update_yaxes(title_text="residual [K]", row=2, col=1)
+    fig.update_xaxes(title_text="time [h]", row=rows, col=1)
+    fig.update_layout(width=680, height=560, template="plotly_white",
+                      margin=dict(l=64, r=20, t=46, b=50),
+                      title=dict(text="Oil temperature: log and fitted tank model", x=0.0),
+                      legend=dict(orientation="h", yanchor="bottom", y=1.0, xanchor="right",
+                                  x=1.0))
+    return fig
+
+
+def build_html(log, fit, comparison, system="si", capacity_source="given") -> str:
+    """A self-contained HTML page: the fit's table, notes, the figure and the
+    caution (plotly.js inline, no request to any server)."""
+    import plotly.io as pio
+    from heatload.outputs.report import CAUTION
+    from heatload.outputs.report_assets import STYLESHEET
+
+    e = html.escape
+    rows = "".join(f"<tr><td>{e(a)}</td><td class='num'>{e(b)}</td><td class='num'>{e(c)}</td>"
+                   f"<td>{e(d)}</td></tr>" for a, b, c, d, _ in
+                   summary_rows(fit, system, capacity_source))
+    notes = "".join(f"<li>{e(n)}</li>" for n in fit.notes)
+    comp = ""
+    if comparison is not None:
+        c = comparison
+        factor = c["heat_calibration_factor"]
+        comp = (f"<h2>Against the model ({e(c['strategy'])})</h2><table><tbody>"
+                f"<tr><td>heat into the oil at the logged oil temperature</td><td class='num'>"
+                f"model {e(_q(c['model_heat_W'], 'power', system))}, measured "
+                f"{e(_q(c['measured_heat_W'], 'power', system))}</td></tr>"
+                f"<tr><td>calibration factor (measured / model)</td><td class='num'>"
+                f"{'–' if factor is None else f'{factor:.3g}'}</td></tr>"
+                f"<tr><td>surfaces' conductance UA at the logged temperatures</td>"
+                f"<td class='num'>model "
+                f"{e(_q(c['model_conductance_W_K'], 'thermal_conductance', system))}, measured "
+                f"{e(_q(c['measured_conductance_W_K'], 'thermal_conductance', system))}</td></tr>"
+                f"<tr><td>cooler duty at the design point</td><td class='num'>model "
+                f"{e(_q(c['model_cooler_duty_W'], 'power', system))}; from the measurement "
+                f"{e(_q(c['measured_cooler_duty_W'], 'power', system))}</td></tr>"
+                "</tbody></table>")
+    div = pio.to_html(figure(log, fit), include_plotlyjs=True, full_html=False,
+                      config={"displaylogo": False})
+    body = (f"<header class='title'><h1>Temperature log fit — {e(log.source)}</h1>"
+            f"<div class='meta'>{fit.samples:,} samples over {fit.duration / 3600:.3g} h; "
+            f"residual RMS {fit.residual_rms:.3g} K</div></header>"
+            "<p>Model: C dT/dt = P·running − UA (T − T<sub>ambient</sub>), solved exactly "
+            "between samples and fitted by least squares to the logged oil temperature.</p>"
+            f"<table><thead><tr><th>quantity</th><th class='num'>fitted</th>"
+            f"<th class='num'>{100 * fit.confidence:.0f} % interval</th><th></th></tr></thead>"
+            f"<tbody>{rows}</tbody></table>"
+            + (f"<ul>{notes}</ul>" if notes else "")
+            + (f"<p>{e(CAPACITY_NOTE)}</p>" if fit.capacity is not None else "") + comp
+            + f"<div class='figure'>{div}</div><div class='caution'>{e(CAUTION)}</div>")
+    return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
+            f"<title>Temperature log fit — {e(log.source)}</title>"
+            f"<style>{STYLESHEET}</style></head><body><main>{body}</main></body></html>\n")
+
+
+def run_logfit(args) -> int:
+    """``heatload logfit LOG.csv [--scenario FILE | --heat-capacity Q] [--column KEY=NAME]
+    [--unit KEY=UNIT] [--ambient-temperature T] [--json] [-o report.html] [--force]``."""
+    from heatload.measurement import logfit, logs
+    from heatload.io import files as outputs
+    from heatload.units import to_si
+
+    out = getattr(args, "output", None)
+    if out:
+        outputs.check_output(out, "--output", force=args.force, suffixes=(".html",))
+    if args.scenario and args.heat_capacity:
+        raise HeatloadError("give --scenario or --heat-capacity, not both",
+                            field="--heat-capacity")
+    if not 0.5 <= args.confidence < 1.0:
+        raise HeatloadError("--confidence must lie in [0.5, 1)", field="--confidence")
+    amb = (to_si(args.ambient_temperature, "temperature", field="--ambient-temperature")
+           if args.ambient_temperature else None)
+    log = read_temperature_log(args.log, logs.parse_assignments(args.column, "--column"),
+                               logs.parse_assignments(args.unit, "--unit"), amb)
+    scenario = None
+    capacity = None
+    source = "not given"
+    if args.scenario:
+        from heatload import chain, evaluation, io
+        scenario = io.load_scenario(args.scenario)
+        mean_oil = float(np.mean(log.values["oil"]))
+        capacity = float(evaluation.heat_capacity(scenario, mean_oil))
+        source = (f"from {args.scenario}: oil and steel at {mean_oil - K0:.3g} °C")
+    elif args.heat_capacity:
+        capacity = to_si(args.heat_capacity, "heat_capacity", field="--heat-capacity")
+        if not capacity > 0.0:
+            raise HeatloadError("must be positive", field="--heat-capacity")
+        source = "given"
+    fit = fit_log(log, capacity, args.confidence)
+    comparison = (scenario_comparison(scenario, log, fit, getattr(args, "strategy", None))
+                  if scenario is not None else None)
+    if out:
+        text = build_html(log, fit, comparison, args.units, source)
+        from heatload.outputs.report import write_html
+        write_html(text, out, args.force)
+    if args.json:
+        from heatload.cli import CAUTION
+        rec = logfit.fit_record(fit, source)
+        rec.update(file=str(args.log), columns=dict(log.headers), units=dict(log.units),
+                   start=log.start.isoformat() if log.start else None,
+                   scenario=comparison, caution=CAUTION,
+                   heat_capacity_note=CAPACITY_NOTE if fit.capacity is not None else None)
+        print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
+                         default=_json_default))
+        return 0
+    print_text(log, fit, comparison, args.units, source)
+    if out:
+        print(f"wrote {out}")
+    return 0
+
+
+def _json_default(v):
+    if isinstance(v, (np.floating, np.integer)):
+        f = float(v)
+        return f if math.isfinite(f) else None
+    return None

@@ -1,0 +1,421 @@
+"""``heatload sweep``: a grid or a random sample of design variants at array speed.
+
+``--vary PATH=LOW..HIGH:N`` names a scenario field (the paths of
+:mod:`heatload.studies.variants`), its range with units (``16..40cm^3:13``,
+``63..100mm:8``, ``34..42degC:5``; a unit given only on HIGH applies to LOW
+too) and the number of values.  Several ``--vary`` make the full grid
+(every combination); ``--samples N --seed S`` draws N variants uniformly in
+the ranges instead.  Each strategy is evaluated in vectorized chunks
+(:func:`heatload.studies.variants.evaluate_variants`), the table is written to CSV or
+Parquet atomically (the output path checked before anything is computed; in
+CSV, text a spreadsheet would run as a formula gets a leading quote), and the
+best variants and the Pareto front (energy per cycle against cooler duty, and
+against the pump displacement when it varies) are printed.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from heatload.io import files as outputs
+from heatload.errors import HeatloadError
+
+#: Variants per vectorized pass (bounds memory: ~12 phases x 60 arrays each).
+CHUNK = 20000
+
+_SPEC = re.compile(r"^\s*([^=\s]+)\s*=\s*(.+?)\s*\.\.\s*(.+?)\s*(?::\s*(\S+))?\s*$")
+_NUMBER = re.compile(r"^([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(.*)$")
+
+
+@dataclass(frozen=True)
+class VarySpec:
+    """One ``--vary``: field path, SI bounds, number of grid values, kind."""
+
+    path: str
+    low: float
+    high: float
+    count: int | None
+    kind: str
+    text: str
+
+
+def _split(text):
+    m = _NUMBER.match(text.strip())
+    if not m:
+        return None, None
+    return m.group(1), m.group(2).strip()
+
+
+def parse_vary(text: str, scenario, need_count: bool = True) -> VarySpec:
+    """Parse ``PATH=LOW..HIGH:N`` into SI bounds for *scenario*'s field.
+
+    Raises
+    ------
+    HeatloadError
+        Malformed spec, unknown path, a unit of the wrong kind, N < 1,
+        LOW > HIGH; the message names the spec.
+    """
+    from heatload import paths, units
+
+    field = f"--vary {text}"
+    if "..." in (text or ""):
+        raise HeatloadError("write two dots between LOW and HIGH, e.g. 16..40cm^3:13",
+                            field=field)
+    m = _SPEC.match(text or "")
+    if not m:
+        raise HeatloadError("expected PATH=LOW..HIGH:N, e.g. "
+                            "power_unit.pump.displacement=16..40cm^3:13", field=field)
+    path, lo_txt, hi_txt, n_txt = m.groups()
+    try:
+        ref = paths.resolve_path(scenario, path)
+    except HeatloadError as exc:
+        raise HeatloadError(exc.message, field=field) from None
+    if ref.kind is None:
+        raise HeatloadError(f"{path} mixes cylinders and motors: no single unit", field=field)
+    count = None
+    if n_txt is not None:
+        if not re.fullmatch(r"[+-]?\d+", n_txt):
+            raise HeatloadError(f"N must be a whole number, got {n_txt!r}", field=field)
+        count = int(n_txt)
+        if count < 1:
+            raise HeatloadError(f"N must be >= 1, got {count}", field=field)
+    elif need_count:
+        raise HeatloadError("give the number of values, e.g. ...:8", field=field)
+    lo_num, lo_unit = _split(lo_txt)
+    hi_num, hi_unit = _split(hi_txt)
+    if lo_num is None or hi_num is None:
+        raise HeatloadError("LOW and HIGH must be numbers with an optional unit", field=field)
+    lo_unit = lo_unit or hi_unit
+    hi_unit = hi_unit or lo_unit
+    kind = ref.kind
+    try:
+        low = units.to_si(f"{lo_num} {lo_unit}".strip(), kind, field=field)
+        high = units.to_si(f"{hi_num} {hi_unit}".strip(), kind, field=field)
+    except HeatloadError as exc:
+        raise HeatloadError(f"{exc.message} (the field {path} is {units.KINDS[kind].noun})",
+                            field=field) from None
+    if low > high:
+        raise HeatloadError(f"LOW must not exceed HIGH ({lo_txt} > {hi_txt})", field=field)
+    return VarySpec(path=ref.path, low=low, high=high, count=count, kind=kind, text=text)
+
+
+#: Most rows (variants x strategies) one sweep evaluates: about 0.5 GB of results
+#: in memory; a larger study is several sweeps.
+MAX_SWEEP_ROWS = 2_000_000
+
+
+def check_size(specs, samples, strategies: int) -> int:
+    """The number of variants, refused beyond :data:`MAX_SWEEP_ROWS` rows before
+    anything is computed."""
+    n = samples if samples is not None else math.prod(s.count for s in specs)
+    if n < 1:
+        raise HeatloadError(f"must be >= 1, got {n}", field="--samples")
+    if n * strategies > MAX_SWEEP_ROWS:
+        from heatload.outputs.tables import count
+        raise HeatloadError(f"{n:,} variants x {count(strategies, 'strategy')} is more than the "
+                            f"{MAX_SWEEP_ROWS:,} rows one sweep evaluates; use fewer values "
+                            "or fewer strategies", field="--samples" if samples else "--vary")
+    return n
+
+
+def check_corners(scenario, specs) -> None:
+    """Refuse a range that reaches a machine the loader would refuse.
+
+    The variants at the corners of the ranges (every combination of LOW and
+    HIGH for up to four paths, else each path alone at its ends) go through the
+    loader's own checks (:func:`heatload.io.scenario_from_dict`), so a sweep
+    holds the same limits as a file.  The limits are monotone in each field
+    (areas, volumes, temperatures), so the corners bound the whole range.
+    """
+    import itertools
+
+    from heatload import io, paths, units
+
+    if len(specs) <= 4:
+        corners = [dict(zip(specs, c)) for c in itertools.product(*[(s.low, s.high)
+                                                                    for s in specs])]
+    else:
+        corners = [{s: v} for s in specs for v in (s.low, s.high)]
+    for corner in corners:
+        sc = paths.replaced_scenario(scenario, {s.path: v for s, v in corner.items()})
+        try:
+            io.scenario_from_dict(io.scenario_to_dict(sc), "--vary")
+        except HeatloadError as exc:
+            at = ", ".join(f"{s.path} = {units.format_quantity(v, s.kind)}"
+                           for s, v in corner.items())
+            raise HeatloadError(f"the variant with {at} is no machine the loader accepts: "
+                                f"{exc.field + ': ' if exc.field else ''}{exc.message}",
+                                field="--vary") from None
+
+
+def grid_values(specs) -> dict:
+    """Full grid (every combination) of the specs: path -> (N,) SI values."""
+    axes = [np.linspace(s.low, s.high, s.count) for s in specs]
+    mesh = np.meshgrid(*axes, indexing="ij")
+    return {s.path: m.ravel() for s, m in zip(specs, mesh)}
+
+
+def sample_values(specs, samples: int, seed: int) -> dict:
+    """*samples* variants drawn uniformly in the ranges (numpy ``default_rng(seed)``)."""
+    if samples < 1:
+        raise HeatloadError(f"must be >= 1, got {samples}", field="--samples")
+    rng = np.random.default_rng(seed)
+    return {s.path: rng.uniform(s.low, s.high, samples) for s in specs}
+
+
+def pareto_front(x, y) -> np.ndarray:
+    """Mask of the points no other point dominates, minimising both *x* and *y*.
+
+    Point i is dominated when some j has x_j <= x_i and y_j <= y_i with one
+    of them strict.  Sorted by x then y, a point is on the front exactly
+    when its y is below every y before it (equal points share their fate).
+    O(n log n).  NaN points are never on the front.
+
+    Parameters
+    ----------
+    x, y : array_like
+        Objectives, shape (n,).
+
+    Returns
+    -------
+    ndarray of bool, shape (n,)
+    """
+    x = np.asarray(x, float).ravel()
+    y = np.asarray(y, float).ravel()
+    if x.shape != y.shape:
+        raise HeatloadError("x and y need the same length", field="pareto_front")
+    out = np.zeros(x.size, dtype=bool)
+    ok = np.isfinite(x) & np.isfinite(y)
+    if not ok.any():
+        return out
+    pts = np.stack([x[ok], y[ok]], axis=1)
+    uniq, inverse = np.unique(pts, axis=0, return_inverse=True)
+    prev_min = np.concatenate([[np.inf], np.minimum.accumulate(uniq[:-1, 1])])
+    front_u = uniq[:, 1] < prev_min
+    out[np.nonzero(ok)[0]] = front_u[inverse.reshape(-1)]
+    return out
+
+
+def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK, thermal="design"):
+    """Evaluate every variant for each strategy; returns a pandas DataFrame.
+
+    *thermal* as in :func:`heatload.studies.variants.evaluate_variants`: ``"design"``
+    (one solve per variant, the default) or True for the coupled oil
+    temperature as well."""
+    import pandas as pd
+
+    from heatload.studies import variants
+
+    n = len(next(iter(values.values()))) if values else 1
+    frames = []
+    bar = None
+    total = n * len(strategies)
+    if progress and total > chunk:
+        from tqdm import tqdm
+        bar = tqdm(total=total, unit="variant", file=sys.stderr, desc="sweep")
+    try:
+        for st in strategies:
+            for start in range(0, n, chunk):
+                part = {k: v[start:start + chunk] for k, v in values.items()}
+                res = variants.evaluate_variants(scenario, st, part, thermal=thermal)
+                df = res.frame()
+                df.insert(0, "variant", np.arange(start, start + len(res)))
+                frames.append(df)
+                if bar is not None:
+                    bar.update(len(res))
+    finally:
+        if bar is not None:
+            bar.close()
+    return file_frame(pd.concat(frames, ignore_index=True), scenario, values)
+
+
+def file_frame(df, scenario, values):
+    """The sweep's table as its files hold it: each varied column named with
+    its unit and in it (:func:`heatload.units.file_name`, ``file_value``: SI,
+    absolute temperatures in degC), like every other column."""
+    from heatload.paths import resolve_path
+    from heatload.units import file_name, file_value
+
+    names = {}
+    for p in values:
+        kind = resolve_path(scenario, p).kind
+        df[p] = file_value(df[p], kind)
+        names[p] = file_name(p, kind)
+    return df.rename(columns=names)
+
+
+def varied_column(spec) -> str:
+    """The column of a varied path in :func:`run_sweep`'s table."""
+    from heatload.units import file_name
+    return file_name(spec.path, spec.kind)
+
+
+#: Extensions ``heatload sweep -o`` writes.
+TABLE_SUFFIXES = (".csv", ".parquet")
+
+
+def check_table_path(path, force=False) -> Path:
+    """Refuse a ``heatload sweep -o`` target before the sweep runs: an extension
+    other than .csv / .parquet, a folder, pipe or device (even with *force*),
+    an existing file without *force*, Parquet without its writer."""
+    p = outputs.check_output(path, "--output", force=force, suffixes=TABLE_SUFFIXES)
+    if p.suffix.lower() == ".parquet":
+        try:
+            import pyarrow  # noqa: F401  (pandas' Parquet engine)
+        except ImportError:
+            raise HeatloadError("writing .parquet needs the 'pyarrow' package "
+                                "(pip install pyarrow), or write .csv", field="--output") from None
+    return p
+
+
+def write_table(df, path, force=False) -> Path:
+    """Write *df* to CSV or Parquet (by suffix) atomically; refuse to
+    overwrite an existing file unless *force*.  In CSV, text cells a
+    spreadsheet would run as a formula get a leading quote
+    (:func:`heatload.io.files.to_csv`); Parquet keeps the values as they are
+    (typed data, not opened as a spreadsheet)."""
+    p = check_table_path(path, force)
+    if p.suffix.lower() == ".csv":
+        def write(tmp):
+            outputs.to_csv(df, tmp)
+    else:
+        def write(tmp):
+            df.to_parquet(tmp, index=False, engine="pyarrow")
+    return outputs.write_atomic(p, write, "--output", force=force)
+
+
+def _show(df, specs, system, rows, out, width=None):
+    """Print the variants *rows* of *df* as a table fitted to *width* columns
+    (None: every column): varied values and figures as plain numbers, units in
+    the headers."""
+    from heatload.outputs.tables import format_table, plain_number
+    from heatload.units import display_unit, from_file, from_si, pretty_unit
+
+    def column(kind, name):
+        unit = display_unit(kind, system)
+        return f"{name}\n[{pretty_unit(unit)}]" if unit else name, unit
+
+    def value(v, kind, unit, digits=3):
+        return plain_number(from_si(v, kind, unit) if unit else v, digits)
+
+    # a varied field by its last name, the full path where two share it
+    last = [s.path.rsplit(".", 1)[-1] for s in specs]
+    varied = [column(s.kind, s.path if last.count(n) > 1 else n) for s, n in zip(specs, last)]
+    cooler = column("power", "cooler")
+    oil = column("temperature", "oil T,\nsteady")
+    head = (["strategy"] + [h for h, _ in varied]
+            + ["energy/\ncycle [kJ]", "cycle\n[s]", "energy/\nyr [kWh]", cooler[0], oil[0],
+               "warn-\nings"])
+    wcols = [c for c in df.columns if c.startswith("warnings_")]
+    lines = []
+    for _, r in df.iloc[rows].iterrows():
+        t_oil = from_file(r["oil_temperature_steady_C"] if np.isfinite(r["oil_temperature_steady_C"])
+                          else r["oil_temperature_uncoupled_C"], "temperature")
+        lines.append([r["strategy"]]
+                     + [value(from_file(r[varied_column(s)], s.kind), s.kind, u)
+                        for s, (_, u) in zip(specs, varied)]
+                     + [plain_number(r["electric_energy_per_cycle_J"] / 1e3, 4),
+                        plain_number(r["cycle_time_s"], 3),
+                        plain_number(r["electric_energy_per_year_kWh"], 4),
+                        value(r["cooler_duty_W"], "power", cooler[1]),
+                        value(t_oil, "temperature", oil[1]),
+                        str(int(sum(r[c] for c in wcols)))])
+    print(format_table(head, lines, width, optional=(head[-1], head[-5], head[-4])), file=out)
+
+
+def _shown(top, n):
+    """", the first 5 shown" when --top cuts a list of *n* rows."""
+    if top >= n:
+        return ""
+    return ", none shown (--top 0)" if top == 0 else f", the first {top:,} shown"
+
+
+def run_cli(args) -> int:
+    """``heatload sweep``: parse, evaluate, write, print (exit code 0)."""
+    from heatload import io
+    from heatload.outputs.tables import count
+
+    path = args.file or io.default_scenario_path()
+    scenario = io.load_scenario(path)
+    if not args.vary:
+        raise HeatloadError("give at least one --vary PATH=LOW..HIGH:N", field="--vary")
+    sampling = args.samples is not None
+    specs = [parse_vary(t, scenario, need_count=not sampling) for t in args.vary]
+    if len({s.path for s in specs}) < len(specs):
+        raise HeatloadError("the same path is varied twice", field="--vary")
+    if args.top is not None and args.top < 0:
+        raise HeatloadError(f"must be >= 0, got {args.top}", field="--top")
+    if args.output:
+        check_table_path(args.output, force=args.force)      # before the sweep runs
+    names = args.strategy or [s.name for s in scenario.strategies]
+    strategies = []
+    for name in names:
+        try:
+            strategies.append(scenario.strategy(name))
+        except KeyError:
+            raise HeatloadError(f"unknown strategy {name!r}; expected one of "
+                                f"{', '.join(s.name for s in scenario.strategies)}",
+                                field="--strategy") from None
+    check_size(specs, args.samples if sampling else None, len(strategies))
+    check_corners(scenario, specs)
+    values = (sample_values(specs, args.samples, args.seed) if sampling
+              else grid_values(specs))
+    n = len(next(iter(values.values())))
+    coupled = bool(getattr(args, "coupled", False))
+    df = run_sweep(scenario, values, strategies, progress=True,
+                   thermal=True if coupled else "design")
+    out = sys.stdout
+    if args.output:
+        written = write_table(df, args.output, force=args.force)
+        print(f"wrote {len(df)} rows to {written}", file=out)
+    system = getattr(args, "units", "si") or "si"
+    print(f"{scenario.name}: {count(n, 'variant')} x {count(len(strategies), 'strategy')} "
+          f"({'sample, seed ' + str(args.seed) if sampling else 'grid'}); "
+          + ("coupled oil temperature" if coupled else
+             "figures at the design oil temperature, steady temperature without a cooler "
+             "uncoupled (--coupled for the self-consistent one)"), file=out)
+    top = args.top if args.top is not None else 10
+    width = getattr(args, "width", None)
+    # The decision rule (heatload.decision): feasible first, then yearly cost of
+    # ownership per cycle (per part made: a slower variant makes fewer parts in
+    # the same hours, so a yearly figure alone would flatter it).
+    from heatload import decision
+    flawed = ~decision.feasible_counts(
+        {c[len("warnings_"):]: df[c].to_numpy() for c in df.columns if c.startswith("warnings_")})
+    energy = df["electric_energy_per_cycle_J"].to_numpy()
+    price = df["strategy"].map({s.name: s.parameters.price for s in strategies}).to_numpy(float)
+    hours = (df["economics.hours_per_year"].to_numpy() if "economics.hours_per_year" in df
+             else scenario.economics.hours_per_year)   # a plain number: no suffix
+    cycles = hours * 3600.0 / df["cycle_time_s"].to_numpy()
+    cost = decision.variant_yearly_cost(df["cost_per_year"].to_numpy(),
+                                        df["cooler_duty_W"].to_numpy(), price, scenario)
+    ranked = decision.rank_order(~flawed, cost / np.where(cycles > 0, cycles, np.nan))
+    if top:
+        order = ranked[:top]
+        print(f"\nbest {len(order)} by yearly cost of ownership per cycle (feasible first: "
+              f"{int(flawed.sum()):,} of {len(df):,} stall, miss a speed, run away, exceed a "
+              f"rating or overload the motor):", file=out)
+        _show(df, specs, system, order, out, width)
+    clean = np.nonzero(~flawed)[0]
+    front = clean[pareto_front(energy[clean], df["cooler_duty_W"].to_numpy()[clean])]
+    front = front[np.argsort(energy[front], kind="stable")]
+    print(f"\nPareto front, energy per cycle vs cooler duty ({count(front.size, 'variant')} "
+          f"without those warnings{_shown(top, front.size)}):", file=out)
+    if top:
+        _show(df, specs, system, front[:top], out, width)
+    disp = "power_unit.pump.displacement"
+    if any(s.path == disp for s in specs):
+        disp = next(varied_column(s) for s in specs if s.path == disp)
+        front = clean[pareto_front(energy[clean], df[disp].to_numpy()[clean])]
+        front = front[np.argsort(df[disp].to_numpy()[front], kind="stable")]
+        print(f"\nPareto front, energy per cycle vs pump displacement "
+              f"({count(front.size, 'variant')}{_shown(top, front.size)}):", file=out)
+        if top:
+            _show(df, specs, system, front[:top], out, width)
+    return 0
