@@ -7,11 +7,8 @@ from __future__ import annotations
 from dash import dash_table, dcc, html
 
 from . import logfit_view, state
+from heatload.outputs.wording import CAUTION
 
-#: Shown on every page: what the numbers are and what governs.
-CAUTION = ("Estimates for early design. Component makers' data, the machine-safety "
-           "standards for hydraulic systems, local codes and licensed engineering "
-           "practice govern the final design and selection.")
 
 #: Largest duty-cycle file accepted; a larger one is refused with a message
 #: by the server (the browser's own size filter would drop it silently).

@@ -33,6 +33,7 @@ import sys
 import warnings
 
 from heatload.errors import HeatloadError, printable
+from heatload.outputs.wording import CAUTION
 
 K0 = 273.15
 
@@ -109,8 +110,6 @@ def _table(headers, rows, width="auto", optional=()):
                         optional)
 
 
-CAUTION = ("Estimates for early design. Component makers' data, machine-safety standards "
-           "for hydraulic systems (e.g. ISO 4413), local codes and licensed practice govern.")
 
 
 def _temperature(t_kelvin, system):

@@ -6,8 +6,7 @@ SI inside: W, K, m^3/s, kg/s, W/K, Pa, m^2/s.  Water and air come from tables
 shipped with the package; CoolProp (ethylene glycol-water 'INCOMP::MEG') is
 imported lazily, only for glycol.
 
-Sizing here is an estimate for early design.  Component makers' data, local
-codes and licensed engineering practice govern the final selection.
+Every result carries the one caution text (:data:`heatload.outputs.wording.CAUTION`).
 """
 
 from __future__ import annotations
@@ -21,13 +20,11 @@ import numpy as np
 
 from heatload.properties import property_tables
 from heatload.errors import HeatloadError
+from heatload.outputs.wording import CAUTION
 
 #: Arrangements accepted by the water-oil functions.
 ARRANGEMENTS = ("shell-and-tube", "counterflow")
 
-#: Caution printed with every cooler result.
-CAUTION = ("Cooler sizing is an estimate for early design. Component makers' data, "
-           "local codes and licensed engineering practice govern the selection.")
 
 CoolantProperties = namedtuple(
     "CoolantProperties",

@@ -41,13 +41,10 @@ from heatload.cooling import cooler
 from heatload.model import design_oil_temperature
 from heatload.cooling.cooler_types import TYPES, cooler_type
 from heatload.errors import HeatloadError
+from heatload.outputs.wording import CAUTION
 
 K0 = 273.15
 
-#: Caution printed with every cooler result (the engine's own wording plus the
-#: machine-safety note the report and command line carry).
-CAUTION = ("Cooler sizing is an estimate for early design. Component makers' data, local "
-           "codes and licensed engineering practice govern the selection.")
 
 #: Monte Carlo samples used when the report asks for the uncertainty.
 REPORT_SAMPLES = 2000
@@ -607,5 +604,5 @@ def run_cli(args) -> int:
     if sc.coolers:      # datasheet coolers listed in the file ([[coolers]])
         from heatload.cooling import cooler_datasheet
         cooler_datasheet.print_selection(cooler_datasheet.rate_coolers(sc, outcome), s)
-    print(sz.caution + " Machine-safety standards for hydraulic systems (e.g. ISO 4413) apply.")
+    print(sz.caution)
     return 0

@@ -36,13 +36,10 @@ import numpy as np
 from heatload.io import files as outputs
 from heatload.outputs import tables
 from heatload.errors import HeatloadError
-from heatload.outputs.wording import plain_path, severity_counts
+from heatload.outputs.wording import CAUTION, plain_path, severity_counts
 
 K0 = 273.15
 
-CAUTION = ("This report is an estimate for early design. Component makers' data, "
-           "machine-safety standards for hydraulic systems (e.g. ISO 4413), local codes and "
-           "licensed engineering practice govern the design, selection and installation.")
 
 LOSS_LABELS = {"drive_motor": "drive motor", "converter": "frequency converter", "pump": "pump",
                "relief": "relief valve", "flow_control": "flow control", "bleed": "bleed / bypass",

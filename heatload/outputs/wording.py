@@ -14,6 +14,14 @@ from __future__ import annotations
 
 import re
 
+#: The one caution printed with every result a person could be hurt by acting on
+#: (pressures, temperatures, cooler sizes): the command line, the report, the
+#: cooler's spec sheet, the log fit and the dashboard all show this text.
+CAUTION = ("These figures are an estimate for early design. Component makers' data, "
+           "machine-safety standards for hydraulic systems (e.g. ISO 4413), local codes "
+           "and licensed engineering practice govern the design, selection and "
+           "installation.")
+
 #: Severities, most serious first, with the heading a customer reads.
 SEVERITIES = (("blocking", "Rules the circuit out"),
               ("attention", "Needs attention"),

@@ -89,3 +89,14 @@ def test_every_code_has_a_kind_and_a_sentence():
     from heatload.checks import PHASE_CODES
     codes = set(PHASE_CODES) | {"oil-temperature", "viscosity-window", "correlation-range"}
     assert codes <= set(CODE_KINDS) and codes <= set(wording.SENTENCES)
+
+
+def test_one_caution_text():
+    # the caution lives in one place; the CLI, report, cooler sheet and dashboard import it
+    from pathlib import Path
+    root = Path(wording.__file__).parents[2]
+    holders = [p.relative_to(root).as_posix()
+               for folder in ("heatload", "dashboard") for p in (root / folder).rglob("*.py")
+               if "licensed engineering practice" in p.read_text(encoding="utf-8")]
+    assert holders == ["heatload/outputs/wording.py"]
+    assert "ISO 4413" in wording.CAUTION
