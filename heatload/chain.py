@@ -25,7 +25,7 @@ import numpy as np
 
 from heatload import checks, evaluation
 from heatload.hydraulics import circuits, cycle, energy
-from heatload.heat import heat_transfer, thermal
+from heatload.heat import thermal
 from heatload.evaluation import ConductanceTable
 from heatload.model import Scenario, Strategy
 
@@ -149,8 +149,6 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
         operating_temperature=t_op)
     warns = (checks.phase_warnings(ev.conditions, scenario, row=0)
              + checks.cycle_warnings(ev.cycle_conditions, row=0))
-    warns += checks.correlation_range_warnings(
-        scenario, t_op, amb.temperature, heat_transfer.barometric_pressure(amb.altitude))
     return StrategyOutcome(strategy=ev.strategy, circuit=res_op,
                            energy=energy.summarize(res_op, scenario.economics),
                            circuit_uncoupled=res_u,

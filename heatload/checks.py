@@ -290,7 +290,7 @@ PHASE_CODES = ("motor-overload", "pressure-rating", "hold-pressure", "relief-pas
 
 #: Codes of the whole cycle every evaluation judges (the oil's limit needs the
 #: hottest day's steady temperature, which sweeps do not solve)
-CYCLE_CODES = ("viscosity-window",)
+CYCLE_CODES = ("viscosity-window", "correlation-range")
 
 
 def condition_counts(conditions) -> dict:
@@ -371,7 +371,37 @@ def thermal_conditions(scenario, steady_no_cooler, operating, cooler_duty,
                     f"{pump.viscosity_max * 1e6:.0f} mm²/s")
         out.append(Condition("viscosity-window", low | (nu > pump.viscosity_max), nu, edge,
                              visc_text, per_phase=False))
+    out += correlation_range_conditions(scenario, t_op, values)
     return out
+
+
+def correlation_range_conditions(scenario, operating, values=None) -> list:
+    """``correlation-range``: a tank surface whose natural-convection correlation is
+    used beyond its published Rayleigh range with the oil at *operating* [K] and
+    the air at the typical ambient, one condition per surface, masks (N,)
+    (:func:`heatload.heat.heat_transfer.surface_rayleigh_numbers`)."""
+    from heatload.heat import heat_transfer
+
+    g = values.get if values is not None else (lambda k, d: d)
+    t_op = np.atleast_1d(np.asarray(operating, float))
+    t_air = np.broadcast_to(np.asarray(g(("ambient", "temperature"),
+                                         scenario.ambient.temperature), float), t_op.shape)
+    pressure = heat_transfer.barometric_pressure(scenario.ambient.altitude)
+    out = []
+    for name, ra, low, high in heat_transfer.surface_rayleigh_numbers(
+            scenario.reservoir, t_op, t_air, pressure):
+        above = ra > high
+        edge = np.where(above, high, low)
+
+        def text(i, name=name, ra=ra, low=low, high=high, above=above):
+            return (f"{name}: Rayleigh number {ra[i]:.2g} "
+                    f"{'above' if above[i] else 'below'} the range of its natural-"
+                    f"convection correlation ({low[i]:.0e} to {high[i]:.0e}); its heat "
+                    "shedding is an extrapolation")
+        out.append(Condition("correlation-range", above | (ra < low), ra, edge, text,
+                             per_phase=False))
+    return out
+
 
 
 def cycle_warnings(conditions, row=0) -> list:
@@ -386,21 +416,3 @@ def thermal_warnings(scenario, steady_no_cooler: float, operating: float,
     """The temperature warnings of one strategy (:func:`thermal_conditions`)."""
     return cycle_warnings(thermal_conditions(scenario, steady_no_cooler, operating,
                                              cooler_duty))
-
-
-def correlation_range_warnings(scenario, oil_temperature: float, air_temperature: float,
-                               pressure: float) -> list:
-    """``correlation-range``: a tank surface whose natural-convection correlation
-    is used beyond its published Rayleigh range at the running temperature (see
-    :func:`heatload.heat.heat_transfer.correlations_out_of_range`)."""
-    from heatload.heat import heat_transfer
-
-    out = []
-    for name, ra, low, high in heat_transfer.correlations_out_of_range(
-            scenario.reservoir, oil_temperature, air_temperature, pressure):
-        side = "above" if ra > high else "below"
-        out.append(Warning_("correlation-range", None, ra, high if ra > high else low,
-                            f"{name}: Rayleigh number {ra:.2g} {side} the range of its "
-                            f"natural-convection correlation ({low:.0e} to {high:.0e}); "
-                            "its heat shedding is an extrapolation"))
-    return out

@@ -698,39 +698,39 @@ RAYLEIGH_RANGES = {"vertical": (1e-1, 1e12), "horizontal-up": (1e4, 1e11),
                    "horizontal-down": (1e4, 1e9), "cylinder": (1e-5, 1e12)}
 
 
-def correlations_out_of_range(reservoir, oil_temperature, air_temperature,
-                              pressure=101325.0) -> list:
-    """Surfaces whose natural-convection correlation is used beyond its published
-    Rayleigh range at this oil and air temperature.
+def surface_rayleigh_numbers(reservoir, oil_temperature, air_temperature,
+                             pressure=101325.0) -> list:
+    """Rayleigh number of every naturally cooled surface, with its correlation's
+    published range, vectorized over the temperatures.
 
-    Ra = g beta (T_s - T_a) L^3 / (nu alpha), air at the film temperature, with the
+    Ra = g beta |T_s - T_a| L^3 / (nu alpha), air at the film temperature, with the
     lengths and orientations of :func:`reservoir_heat_transfer` (a face colder
     than the air takes the opposite plate correlation).
 
     Parameters
     ----------
     reservoir : heatload.model.Reservoir
-    oil_temperature, air_temperature : float
-        [K].
+    oil_temperature, air_temperature : array_like
+        [K], broadcast together.
     pressure : float, optional
         Absolute air pressure [Pa].
 
     Returns
     -------
-    list of (str, float, float, float)
-        ``(surface, Ra, low, high)`` for each surface outside its range
-        (:data:`RAYLEIGH_RANGES`); empty when all are inside, when a user
-        coefficient replaces convection, or when oil and air are at one
-        temperature (no natural convection to speak of).
+    list of (str, ndarray, ndarray, ndarray)
+        ``(surface, Ra, low, high)`` per surface whose convection is computed (a
+        user coefficient replaces it and drops the surface); *low* and *high* are
+        the range of :data:`RAYLEIGH_RANGES` for the orientation each element
+        takes.  Where oil and air are at one temperature Ra is 0 and the range
+        is (0, inf): no natural convection to speak of, nothing to flag.
 
     References
     ----------
     Incropera et al., Fundamentals of Heat and Mass Transfer, 7th ed., Sec. 9.6.
     """
-    ts, ta = float(oil_temperature), float(air_temperature)
+    ts, ta = np.broadcast_arrays(np.asarray(oil_temperature, float),
+                                 np.asarray(air_temperature, float))
     r = reservoir
-    if ts == ta:
-        return []
     parts = []
     if r.heat_transfer_coefficient is None:
         plate = r.length * r.width / (2.0 * (r.length + r.width))
@@ -742,17 +742,18 @@ def correlations_out_of_range(reservoir, oil_temperature, air_temperature,
         if s.heat_transfer_coefficient is None:
             parts.append((s.name, s.orientation, s.characteristic_length))
     swap = {"horizontal-up": "horizontal-down", "horizontal-down": "horizontal-up"}
-    film = 0.5 * (ts + ta)
-    air = air_properties(film, pressure)
+    air = air_properties(0.5 * (ts + ta), pressure)
+    cold, same = ts < ta, ts == ta
     out = []
     for name, orientation, length in parts:
-        if ts < ta:                                # a cold face: the stable and unstable cases swap
-            orientation = swap.get(orientation, orientation)
-        ra = float(rayleigh(grashof(air.expansion, abs(ts - ta), length,
-                                    air.kinematic_viscosity), air.prandtl))
+        ra = np.asarray(rayleigh(grashof(air.expansion, np.abs(ts - ta), length,
+                                         air.kinematic_viscosity), air.prandtl), float)
         low, high = RAYLEIGH_RANGES[orientation]
-        if not low <= ra <= high:
-            out.append((name, ra, low, high))
+        # a cold face: the stable and unstable plate cases swap
+        low_c, high_c = RAYLEIGH_RANGES[swap.get(orientation, orientation)]
+        low = np.where(same, 0.0, np.where(cold, low_c, low))
+        high = np.where(same, np.inf, np.where(cold, high_c, high))
+        out.append((name, np.where(same, 0.0, ra), low, high))
     return out
 
 

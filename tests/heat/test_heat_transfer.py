@@ -270,7 +270,12 @@ def test_a_big_tank_bottom_beyond_its_correlation_is_named():
     import dataclasses
 
     from heatload import io
-    from heatload.heat.heat_transfer import air_properties, correlations_out_of_range
+    from heatload.heat.heat_transfer import air_properties, surface_rayleigh_numbers
+
+    def out_of_range(res, ts, ta):
+        return {name: (float(ra), float(lo), float(hi))
+                for name, ra, lo, hi in surface_rayleigh_numbers(res, ts, ta)
+                if not lo <= ra <= hi}
     r = io.load_scenario(io.default_scenario_path()).reservoir
     big = dataclasses.replace(r, length=6.0, width=5.0, bottom_exposed=True, surfaces=())
     ts, ta = 338.15, 298.15
@@ -278,10 +283,15 @@ def test_a_big_tank_bottom_beyond_its_correlation_is_named():
     L = 30.0 / 22.0
     ra_hand = 9.80665 * (1 / 318.15) * 40.0 * L**3 / (air.kinematic_viscosity
                                                        * air.kinematic_viscosity / air.prandtl)
-    found = {name: (ra, lo, hi) for name, ra, lo, hi in correlations_out_of_range(big, ts, ta)}
+    found = out_of_range(big, ts, ta)
     assert set(found) == {"tank bottom"}
     ra, lo, hi = found["tank bottom"]
     assert (lo, hi) == (1e4, 1e9)
     assert ra == pytest.approx(ra_hand, rel=1e-3)     # beta = 1/T_film (ideal gas)
     # the default tank is inside every range
-    assert correlations_out_of_range(r, ts, ta) == []
+    assert out_of_range(r, ts, ta) == {}
+    # vectorized: the same numbers over an array of oil temperatures, row by row
+    rows = surface_rayleigh_numbers(big, np.array([ts, 318.15, ta]), ta)
+    bottom = [x for x in rows if x[0] == "tank bottom"][0]
+    assert bottom[1][0] == pytest.approx(ra, rel=1e-12) and bottom[1][2] == 0.0
+    assert bottom[3][2] == np.inf                    # oil at the air's temperature: no flag

@@ -92,3 +92,18 @@ def test_design_mode_heat_is_the_chain_design_heat():
         v = variants.evaluate_variants(SC, o.strategy, thermal="design")
         np.testing.assert_allclose(v.heat_to_oil[0], o.thermal.design_heat, rtol=1e-12)
         np.testing.assert_allclose(v.cooler_duty[0], o.thermal.cooler_duty, rtol=1e-12)
+
+
+def test_sweeps_count_the_correlation_range():
+    # A 6 m x 5 m tank bottom exposed 40 K above the air: Ra ~ 8e9, beyond the
+    # 1e4..1e9 of the hot-face-down plate correlation (Incropera et al., 7th ed.,
+    # eq. 9.32); a sweep counts it as compare lists it.
+    import dataclasses
+    big = dataclasses.replace(SC.reservoir, length=6.0, width=5.0, bottom_exposed=True)
+    sc = dataclasses.replace(SC, reservoir=big)
+    meter_in = next(s for s in sc.strategies if s.kind == "meter-in")
+    res = variants.evaluate_variants(sc, meter_in, {"ambient.temperature": [298.15, 303.15]})
+    listed = [w for o in chain.compare(sc).outcomes if o.strategy.name == meter_in.name
+              for w in o.warnings if w.code == "correlation-range"]
+    assert len(listed) == 1
+    assert res.warnings["correlation-range"][0] == 1
