@@ -34,64 +34,49 @@ import numpy as np
 from heatload.errors import HeatloadError
 from heatload.model import Scenario
 from heatload.hydraulics.strategies import circuit
+from heatload.io import schema as _schema
 
-# (field kind, check) of every key that can vary; check: pos, nonneg, eff, frac_pos, any
+
+def _vary(spec: dict, *keys) -> dict:
+    """``{key: (kind, check)}`` of the variable *keys* of one file table, read from
+    the loader's field specifications (:mod:`heatload.io.schema`): a path varies a
+    field with the very kind and sign rule the file has for it."""
+    return {k: (spec[k].kind, spec[k].check or "any") for k in keys}
+
+
+# Which keys can vary (numeric fields the builder reads); kinds and checks come
+# from the schema.  check: pos, nonneg, eff, frac_pos, any
 _POWER_UNIT_KEYS = {
-    "pump": {"displacement": ("displacement", "pos"), "shaft_speed": ("shaft_speed", "pos"),
-             "volumetric_efficiency": ("dimensionless", "eff"),
-             "hydromechanical_efficiency": ("dimensionless", "eff"),
-             "rated_pressure": ("pressure", "pos"), "max_pressure": ("pressure", "pos")},
-    "motor": {"rated_power": ("power", "pos"), "efficiency": ("dimensionless", "eff"),
-              "drive_efficiency": ("dimensionless", "eff")},
-    "relief": {"cracking_pressure": ("pressure", "pos"), "override": ("pressure", "nonneg"),
-               "rated_flow": ("flow", "pos")},
-    "directional_valve": {"rated_flow": ("flow", "pos"), "pressure_drop": ("pressure", "pos"),
-                          "centre_pressure_drop": ("pressure", "nonneg"),
-                          "max_pressure": ("pressure", "pos")},
-    "check_valve": {"cracking_pressure": ("pressure", "nonneg"), "rated_flow": ("flow", "pos"),
-                    "pressure_drop": ("pressure", "nonneg")},
-    "pressure_line": {"length": ("distance", "pos"), "inner_diameter": ("length", "pos"),
-                      "roughness": ("length", "nonneg"), "fittings_k": ("dimensionless", "nonneg")},
+    "pump": _vary(_schema._PUMP, "displacement", "shaft_speed", "volumetric_efficiency",
+                  "hydromechanical_efficiency", "rated_pressure", "max_pressure"),
+    "motor": _vary(_schema._MOTOR, "rated_power", "efficiency", "drive_efficiency"),
+    "relief": _vary(_schema._RELIEF, "cracking_pressure", "override", "rated_flow"),
+    "directional_valve": _vary(_schema._DIRECTIONAL, "rated_flow", "pressure_drop",
+                               "centre_pressure_drop", "max_pressure"),
+    "check_valve": _vary(_schema._CHECK, "cracking_pressure", "rated_flow", "pressure_drop"),
+    "pressure_line": _vary(_schema._LINE, "length", "inner_diameter", "roughness",
+                           "fittings_k"),
 }
 _POWER_UNIT_KEYS["return_line"] = _POWER_UNIT_KEYS["pressure_line"]
-_CYLINDER_KEYS = {"bore": ("length", "pos"), "rod": ("length", "pos"),
-                  "stroke": ("distance", "pos"), "friction_force": ("force", "nonneg"),
-                  "max_pressure": ("pressure", "pos"), "dead_volume": ("volume", "nonneg")}
-_MOTOR_KEYS = {"displacement": ("displacement", "pos"),
-               "volumetric_efficiency": ("dimensionless", "eff"),
-               "hydromechanical_efficiency": ("dimensionless", "eff"),
-               "max_pressure": ("pressure", "pos")}
-_PHASE_KEYS = {"load": ("force", "any"), "speed": ("velocity", "pos"),
-               "stroke": ("distance", "pos"), "duration": ("time", "pos"),
-               "hold_pressure": ("pressure", "pos"), "hold_force": ("force", "pos")}
-_STRATEGY_KEYS = {"flow_control_min_drop": ("pressure", "nonneg"),
-                  "bypass_spring": ("pressure", "nonneg"),
-                  "compensator_setting": ("pressure", "pos"),
-                  "load_sensing_margin": ("pressure", "nonneg"),
-                  "standby_pressure": ("pressure", "nonneg"),
-                  "counterbalance_setting": ("pressure", "pos"),
-                  "counterbalance_pilot_ratio": ("dimensionless", "pos"),
-                  "min_speed_fraction": ("dimensionless", "frac_pos"),
-                  "max_speed_fraction": ("dimensionless", "pos"),
-                  "high_pressure_fraction": ("dimensionless", "frac_pos"),
-                  "unloading_pressure": ("pressure", "pos"),
-                  "unloading_valve_drop": ("pressure", "nonneg"),
-                  "accumulator_pressure_min": ("pressure", "pos"),
-                  "accumulator_pressure_max": ("pressure", "pos"),
-                  "accumulator_precharge": ("pressure", "pos"),
-                  "accumulator_gas_volume": ("volume", "pos"),
-                  "polytropic_exponent": ("dimensionless", "pos")}
+_CYLINDER_KEYS = _vary(_schema._CYLINDER, "bore", "rod", "stroke", "friction_force",
+                       "max_pressure", "dead_volume")
+_MOTOR_KEYS = _vary(_schema._HYDRAULIC_MOTOR, "displacement", "volumetric_efficiency",
+                    "hydromechanical_efficiency", "max_pressure")
+# the kinds of a phase's load and speed follow its actuator (force or torque,
+# velocity or shaft speed): the cylinder's are listed here, the motor's are set
+# where the path is resolved
+_PHASE_KEYS = _vary(_schema._PHASE, "load", "speed", "stroke", "duration", "hold_pressure",
+                    "hold_force")
+_STRATEGY_KEYS = _vary(_schema._PARAMETERS, *(k for k in _schema._PARAMETERS if k != "price"))
 _TABLE_KEYS = {
-    "ambient": {"temperature": ("temperature", "pos"), "temperature_max": ("temperature", "pos")},
-    "reservoir": {"oil_volume": ("volume", "pos"), "steel_mass": ("mass", "nonneg"),
-                  "steel_specific_heat": ("specific_heat", "pos"),
-                  "heat_transfer_coefficient": ("heat_transfer_coefficient", "pos"),
+    "ambient": _vary(_schema._AMBIENT, "temperature", "temperature_max"),
+    "reservoir": {**_vary(_schema._RESERVOIR, "oil_volume", "steel_mass", "steel_specific_heat",
+                          "heat_transfer_coefficient"),
+                  # a multiplier on the computed UA, nominal 1: a path, not a file key
                   "heat_transfer_factor": ("dimensionless", "pos")},
-    "fluid": {"bulk_modulus": ("bulk_modulus", "pos")},
-    "economics": {"hours_per_year": ("dimensionless", "pos"),
-                  "electricity_price": ("specific_energy_price", "nonneg")},
-    "cooler": {"margin": ("dimensionless", "nonneg"),
-               "oil_temperature_max": ("temperature", "pos")},
+    "fluid": _vary(_schema._FLUID, "bulk_modulus"),
+    "economics": _vary(_schema._ECONOMICS, "hours_per_year", "electricity_price"),
+    "cooler": _vary(_schema._COOLER, "margin", "oil_temperature_max"),
 }
 
 _PART = re.compile(r"^([A-Za-z0-9_\- ]+)(?:\[(\*|\d+)\])?$")

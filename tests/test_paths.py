@@ -69,3 +69,15 @@ def test_replaced_scenario_and_get_agree():
     sc = paths.replaced_scenario(PRESS, {"actuators.main.bore": 0.11, "phases[3].load": 1e5})
     assert paths.resolve_path(sc, "actuators.main.bore").nominal == (0.11,)
     assert paths.resolve_path(sc, "phases[3].load").nominal == (1e5,)
+
+
+def test_a_path_varies_a_field_with_the_files_own_rule():
+    # a zero-length pressure line and an ideal directional valve (0 bar) load from a
+    # file, so a sweep may reach them too; a negative length is refused by both
+    ref = paths.resolve_path(PRESS, "power_unit.pressure_line.length")
+    assert (ref.kind, ref.check) == ("distance", "nonneg")
+    ov = paths.Overrides(PRESS, overrides={"power_unit.pressure_line.length": [0.0, 2.0],
+                                           "power_unit.directional_valve.pressure_drop": [0.0, 4e5]})
+    assert len(ov.by_path) == 2
+    with pytest.raises(HeatloadError, match="pressure_line.length"):
+        paths.Overrides(PRESS, overrides={"power_unit.pressure_line.length": [-1.0, 2.0]})
