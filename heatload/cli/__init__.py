@@ -303,8 +303,8 @@ def cmd_cooler(args):
 
 
 def cmd_report(args):
-    from heatload.outputs import report
-    return report.run_cli(args)
+    from heatload.cli import report
+    return report.run(args)
 
 
 def cmd_sweep(args):
@@ -318,8 +318,8 @@ def cmd_logfit(args):
 
 
 def cmd_trace(args):
-    from heatload.measurement import trace
-    return trace.run_cli(args)
+    from heatload.cli import trace
+    return trace.run(args)
 
 
 def cmd_dashboard(args):
@@ -582,6 +582,3 @@ def main(argv=None) -> int:
         sys.stdout = stdout
         _output_width = "terminal"
 
-
-if __name__ == "__main__":
-    sys.exit(main())
