@@ -149,7 +149,7 @@ def cmd_compare(args):
         codes = sorted({w.code for w in o.warnings})
         rows.append([i, o.name, f"{float(e.electric_energy_per_year) / 3.6e6:,.0f}",
                      f"{float(e.cost_per_year):,.0f}", f"{float(e.co2_per_year) / 1000:,.1f}",
-                     _num(e.average_heat_to_oil, "power", s), _num(th.steady_coupled,
+                     _num(th.heat_running, "power", s), _num(th.steady_coupled,
                                                                    "temperature", s),
                      _num(th.cooler_duty, "power", s) if th.cooler_needed else "none",
                      _num(e.peak_pressure, "pressure", s), f"{100 * float(e.overall_efficiency):.0f}",

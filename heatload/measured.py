@@ -17,6 +17,15 @@ Calibration
   heat, UA = conductance factor x the model's design UA; the duty follows as
   in ``heatload cooler`` (the same function, the scenario's margin).
 
+Applying the factor
+-------------------
+The heat factor goes into the file as ``heat_calibration`` under
+``[scenario]`` (:func:`calibration_line`); every command then multiplies every
+strategy's heat into the oil by it (:func:`heatload.evaluation.evaluate`).
+The factor is always worked out against the *raw* model (the scenario with
+``heat_calibration`` = 1), so a file that already carries one gets the same
+factor again, never the factor of a factor.
+
 Only this module formats; the fit and the physics live in their modules.
 """
 
@@ -74,6 +83,39 @@ def fit_log(log, capacity=None, confidence=0.95):
     return fit
 
 
+def calibration_advice(comparison, fit, path) -> list:
+    """Lines saying how to apply the heat factor of *comparison* to the file
+    *path* (the exact line to add), or why it should not be applied."""
+    from heatload.io import HEAT_CALIBRATION_RANGE
+
+    f = comparison["heat_calibration_factor"]
+    now = comparison.get("heat_calibration_in_file", 1.0)
+    if f is None:
+        return ["no calibration factor: the log gives no heat (see above)"]
+    if not fit.identified.get("heat", True):
+        return [f"the heat is not identified by this log: do not apply the factor {f:.3g}"]
+    low, high = HEAT_CALIBRATION_RANGE
+    if not low <= float(f"{f:.3g}") <= high:
+        return [f"the factor {f:.3g} lies outside {low:g} .. {high:g}: the duty cycle or the "
+                "log is wrong rather than the losses; check both before calibrating"]
+    where = (f"replace heat_calibration = {now:.6g} under [scenario] in {path} by"
+             if now != 1.0 else f"to apply it, add under [scenario] in {path}:")
+    out = [where, f"    {calibration_line(f)}",
+           "(every command then scales every strategy's heat into the oil by it; "
+           "electricity and costs stay the model's)"]
+    ua = comparison.get("conductance_calibration_factor")
+    if ua is not None and abs(ua - 1.0) > 0.05:
+        out.append(f"the conductance factor {ua:.3g} is not applied by it: the other "
+                   "commands keep the model's UA of the surfaces, so their cooler duty "
+                   "differs from the one from the measurement above")
+    return out
+
+
+def calibration_line(factor) -> str:
+    """The file's line that applies a heat factor (3 significant digits)."""
+    return f"heat_calibration = {float(f'{factor:.3g}'):g}"
+
+
 def logged_oil_temperature(log, fit) -> float:
     """Time-averaged logged oil temperature while the machine runs [K] (the
     whole log when it never runs)."""
@@ -90,8 +132,13 @@ def scenario_comparison(scenario, log, fit, strategy=None) -> dict:
     calibration factors and the cooler duty at the design point from the
     measurement (see the module notes).  SI values, unit-suffixed keys.
     *strategy*: the machine's circuit by name; default the scenario's present one."""
+    import dataclasses
+
     from heatload import chain, cooler, evaluation, sizing
 
+    applied = float(scenario.heat_calibration)
+    # the raw model: a factor already in the file must not feed back into itself
+    scenario = dataclasses.replace(scenario, heat_calibration=1.0)
     strat = sizing._design_strategy(scenario, strategy)
     t_log = logged_oil_temperature(log, fit)
     ta_log = float(np.mean(log.values["ambient"]))
@@ -105,6 +152,7 @@ def scenario_comparison(scenario, log, fit, strategy=None) -> dict:
            "logged_ambient_C": ta_log - K0,
            "model_heat_W": q_model, "measured_heat_W": fit.heat,
            "heat_calibration_factor": heat_factor,
+           "heat_calibration_in_file": applied,
            "model_conductance_W_K": ua_model, "measured_conductance_W_K": fit.conductance,
            "conductance_calibration_factor": ua_factor,
            "design_oil_temperature_C": th.design_oil_temperature - K0,
@@ -204,7 +252,7 @@ def summary_rows(fit, system="si", capacity_source="given") -> list:
     return [r + (pct,) for r in rows]
 
 
-def print_text(log, fit, comparison, system, capacity_source):
+def print_text(log, fit, comparison, system, capacity_source, scenario_path=None):
     from heatload.cli import CAUTION, _table
 
     dt = np.diff(log.time)
@@ -246,6 +294,11 @@ def print_text(log, fit, comparison, system, capacity_source):
               + (f" ({_iv(c['measured_cooler_duty_W_interval'], 'power', system)})"
                  if c.get("measured_cooler_duty_W_interval") else "")
               + "  (heat and UA of the model scaled by the factors above)")
+        if c.get("heat_calibration_in_file", 1.0) != 1.0:
+            print(f"  the file's heat_calibration = {c['heat_calibration_in_file']:.6g} is left "
+                  "out of the model figures above")
+        for line in calibration_advice(c, fit, scenario_path or "the scenario file"):
+            print(f"  {line}")
     print(CAUTION)
 
 
@@ -382,11 +435,15 @@ def run_logfit(args) -> int:
         rec.update(file=str(args.log), columns=dict(log.headers), units=dict(log.units),
                    start=log.start.isoformat() if log.start else None,
                    scenario=comparison, caution=CAUTION,
+                   heat_calibration_line=(
+                       calibration_line(comparison["heat_calibration_factor"])
+                       if comparison is not None
+                       and comparison["heat_calibration_factor"] is not None else None),
                    heat_capacity_note=CAPACITY_NOTE if fit.capacity is not None else None)
         print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
                          default=_json_default))
         return 0
-    print_text(log, fit, comparison, args.units, source)
+    print_text(log, fit, comparison, args.units, source, args.scenario)
     if out:
         print(f"wrote {out}")
     return 0
