@@ -117,6 +117,14 @@ def _temperature(t_kelvin, system):
     return _fmt(t_kelvin, "temperature", system, 3)
 
 
+def _calibration(scenario):
+    """Say the file's heat calibration, when it has one."""
+    from heatload.wording import calibration_note
+    note = calibration_note(scenario.heat_calibration)
+    if note:
+        print(note)
+
+
 # ---------------------------------------------------------------------------
 # commands
 # ---------------------------------------------------------------------------
@@ -171,6 +179,7 @@ def cmd_compare(args):
     print(f"\nCooler duty at the design point: oil at "
           f"{_temperature(cmp.outcomes[0].thermal.design_oil_temperature, s)}, ambient "
           f"{_temperature(sc.ambient.temperature_max, s)}, margin {100 * sc.cooler.margin:.0f} %.")
+    _calibration(sc)
     print(CAUTION)
     return 0
 
@@ -248,6 +257,7 @@ def cmd_phases(args):
                  optional=("largest loss", headers[4], headers[5], headers[9], headers[7])))
     for w in o.warnings:
         print(f"  ! {warning_text(w, s, with_phase=True)}")
+    _calibration(sc)
     return 0
 
 
@@ -262,7 +272,9 @@ def cmd_thermal(args):
         recs = [{k: v for k, v in tables.strategy_record(o, sc, cmp.phase_arrays, False).items()
                  if k.startswith(("oil_", "heat_", "cooler_", "time_", "strategy", "label"))}
                 for o in cmp.outcomes]
-        print(json.dumps({"scenario": sc.name, "strategies": recs}, indent=2, ensure_ascii=False))
+        print(json.dumps({"scenario": sc.name,
+                          "heat_calibration_factor": float(sc.heat_calibration),
+                          "strategies": recs}, indent=2, ensure_ascii=False))
         return 0
     print(f"{sc.name} — oil {sc.fluid.name}, {_fmt(sc.reservoir.oil_volume, 'volume', s)}; "
           f"ambient {_temperature(sc.ambient.temperature, s)}, hot day "
@@ -292,6 +304,7 @@ def cmd_thermal(args):
                 print(f"  ! {o.name}: {warning_text(w, s)}")
     print("Steady temperatures are without a cooler; 'coupled' lets the oil's viscosity "
           "change pump leakage and line losses at that temperature.")
+    _calibration(sc)
     print(CAUTION)
     return 0
 

@@ -89,7 +89,7 @@ def calibration_advice(comparison, fit, path) -> list:
     from heatload.io import HEAT_CALIBRATION_RANGE
 
     f = comparison["heat_calibration_factor"]
-    now = comparison.get("heat_calibration_in_file", 1.0)
+    now = comparison.get("file_heat_calibration_factor", 1.0)
     if f is None:
         return ["no calibration factor: the log gives no heat (see above)"]
     if not fit.identified.get("heat", True):
@@ -152,7 +152,7 @@ def scenario_comparison(scenario, log, fit, strategy=None) -> dict:
            "logged_ambient_C": ta_log - K0,
            "model_heat_W": q_model, "measured_heat_W": fit.heat,
            "heat_calibration_factor": heat_factor,
-           "heat_calibration_in_file": applied,
+           "file_heat_calibration_factor": applied,
            "model_conductance_W_K": ua_model, "measured_conductance_W_K": fit.conductance,
            "conductance_calibration_factor": ua_factor,
            "design_oil_temperature_C": th.design_oil_temperature - K0,
@@ -294,8 +294,8 @@ def print_text(log, fit, comparison, system, capacity_source, scenario_path=None
               + (f" ({_iv(c['measured_cooler_duty_W_interval'], 'power', system)})"
                  if c.get("measured_cooler_duty_W_interval") else "")
               + "  (heat and UA of the model scaled by the factors above)")
-        if c.get("heat_calibration_in_file", 1.0) != 1.0:
-            print(f"  the file's heat_calibration = {c['heat_calibration_in_file']:.6g} is left "
+        if c.get("file_heat_calibration_factor", 1.0) != 1.0:
+            print(f"  the file's heat_calibration = {c['file_heat_calibration_factor']:.6g} is left "
                   "out of the model figures above")
         for line in calibration_advice(c, fit, scenario_path or "the scenario file"):
             print(f"  {line}")

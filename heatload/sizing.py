@@ -525,6 +525,7 @@ def run_cli(args) -> int:
         rec = sizing_record(sz, unc)
         rec["scenario"] = sc.name
         rec["file"] = str(path)
+        rec["heat_calibration_factor"] = float(sc.heat_calibration)
         if sc.coolers:
             from heatload import cooler_datasheet
             rec["datasheet_coolers"] = cooler_datasheet.selection_record(
@@ -607,5 +608,8 @@ def run_cli(args) -> int:
     if sc.coolers:      # datasheet coolers listed in the file ([[coolers]])
         from heatload import cooler_datasheet
         cooler_datasheet.print_selection(cooler_datasheet.rate_coolers(sc, outcome), s)
+    from heatload.wording import calibration_note
+    if calibration_note(sc.heat_calibration):
+        print(calibration_note(sc.heat_calibration))
     print(sz.caution + " Machine-safety standards for hydraulic systems (e.g. ISO 4413) apply.")
     return 0

@@ -153,6 +153,7 @@ def comparison_dict(cmp, source=None, with_phases=True, present=None, prices=Non
             "design_oil_temperature_C": (ranked[0].thermal.design_oil_temperature - K0
                                          if ranked else None),
             "present_strategy": sc.economics.present_strategy,
+            "heat_calibration_factor": float(sc.heat_calibration),
         },
         "recommended": dec.recommended,
         "decision": {k: v for k, v in dec.as_dict().items() if k != "ranking"},
