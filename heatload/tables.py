@@ -211,6 +211,25 @@ def savings_against(cmp, present: str | None = None) -> dict:
     return out
 
 
+def running_cost_saving(base: dict, candidate: dict) -> float:
+    """Electricity cost a year that *candidate* saves against *base* (strategy
+    records of :func:`comparison_dict`) [currency/year]: the circuit's and the
+    cooler fan's.  Cooling water is not counted (the scenario has no water price)."""
+    def bought(r):
+        yc = r.get("yearly_cost") or {}
+        return float(yc.get("energy", r.get("cost_per_year")) or 0.0) + float(
+            yc.get("fan") or 0.0)
+    return bought(base) - bought(candidate)
+
+
+def cooler_price_difference(base: dict, candidate: dict) -> float:
+    """Price of the cooler *candidate* needs less that of *base*'s [currency]
+    (strategy records of :func:`comparison_dict`; a smaller cooler saves)."""
+    def price(r):
+        return float((r.get("yearly_cost") or {}).get("cooler_price") or 0.0)
+    return price(candidate) - price(base)
+
+
 def payback_years(extra_price, yearly_saving):
     """Simple payback [years] = extra price / yearly saving; inf when nothing is saved."""
     extra = np.asarray(extra_price, float)

@@ -207,6 +207,7 @@ def calibration_note(factor) -> str | None:
     if f == 1.0:
         return None
     return (f"Heat into the oil × {f:.3g} (heat_calibration, measured / model heat of the "
-            "present circuit) for every strategy: oil temperatures and cooler duties include "
-            "it; electricity, costs and the losses per phase and component are the model's "
-            "(at the oil temperature that follows), not scaled.")
+            "present circuit) for every strategy: oil temperatures, cooler duties and the "
+            "cooler's price and fan include it; the circuits' electricity and their losses "
+            "per phase and component are the model's at the oil temperature that follows, "
+            "not scaled.")
