@@ -249,6 +249,12 @@ def test_outputs_state_the_factor_only_when_it_is_not_one(tmp_path, capsys):
         assert main(cmd + [str(cal), "--wide"]) == 0
         out = capsys.readouterr().out
         assert "Heat into the oil × 1.25 (heat_calibration" in out, cmd
+    vary = ["sweep", "--vary", "power_unit.pump.displacement=20 cm^3/rev..40 cm^3/rev:2",
+            "--strategy", "meter-in", "--top", "1"]
+    assert main(vary + [str(cal), "--wide", "-o", str(tmp_path / "s.csv")]) == 0
+    assert "Heat into the oil × 1.25 (heat_calibration" in capsys.readouterr().out
+    import pandas as pd
+    assert (pd.read_csv(tmp_path / "s.csv")["heat_calibration_factor"] == 1.25).all()
     for cmd in (["compare", "--json"], ["thermal", "--json"], ["cooler", "--json",
                                                                  "--samples", "20"]):
         assert main(cmd + [str(cal)]) == 0
