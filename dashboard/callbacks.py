@@ -349,8 +349,8 @@ def shift_view(data: dict, strategy: str, system: str):
         note = (f"Cooler of {figures.fmt(outcome.thermal.cooler_duty, 'power', system)} "
                 "switched by the thermostat" +
                 (f", on {100 * float(frac):.0f} % of the shift." if frac is not None else "."))
-    hours = scenario.shift_duration / 3600.0
-    title = (f"{outcome.name}: oil temperature over a {hours:.3g} h shift from "
+    title = (f"{outcome.name}: oil temperature over "
+             f"{sizing.shift_words(scenario.shift_duration, '.3g')} from "
              f"{figures.fmt(scenario.ambient.cold_start_temperature, 'temperature', system)}, "
              f"ambient {figures.fmt(scenario.ambient.temperature, 'temperature', system)}")
     return figures.shift_figure(prof, system, title), note

@@ -571,9 +571,12 @@ def _cooler_html(rec, sz, unc):
                      f"{'enough' if r['suffices'] else 'not enough'}.</p>")
     t = rec.get("thermostat")
     if t and rec["cooler_needed"]:
+        which = (f"the cooler ({_e(t['cooler'])}, by its datasheet curve)" if t.get("cooler")
+                 else "the cooler")
         parts.append(f"<p>With a thermostat (on at {t['on_temperature_C']:.1f} °C, hysteresis "
-                     f"{t['hysteresis_K']:.0f} K) the cooler switches on {tables.times(t['switch_count'])} "
-                     f"in a {t['shift_duration_s'] / 3600:.1f} h shift and runs "
+                     f"{t['hysteresis_K']:.0f} K) {which} switches on "
+                     f"{tables.times(t['switch_count'])} "
+                     f"in {sizing_mod.shift_words(t['shift_duration_s'])} and runs "
                      f"{100 * t['on_fraction']:.0f} % of the time; the oil peaks at "
                      f"{t['max_temperature_C']:.1f} °C.</p>")
     parts.append("<h3>Uncertainty</h3>")
