@@ -102,7 +102,7 @@ def calibration_advice(comparison, fit, path) -> list:
              if now != 1.0 else f"to apply it, add under [scenario] in {path}:")
     out = [where, f"    {calibration_line(f)}",
            "(every command then scales every strategy's heat into the oil by it; "
-           "electricity and costs stay the model's)"]
+           "the circuits' electricity stays the model's)"]
     ua = comparison.get("conductance_calibration_factor")
     if ua is not None and abs(ua - 1.0) > 0.05:
         out.append(f"the conductance factor {ua:.3g} is not applied by it: the other "
@@ -265,7 +265,8 @@ def print_text(log, fit, comparison, system, capacity_source, scenario_path=None
     rows = summary_rows(fit, system, capacity_source)
     print(_table(["quantity", "fitted", f"{rows[0][4]} interval", ""],
                  [r[:4] for r in rows]))
-    print(f"Residual: RMS {fit.residual_rms:.3g} K, largest {fit.residual_max:.3g} K; "
+    print(f"Residual: RMS {_q(fit.residual_rms, 'temperature_difference', system)}, largest "
+          f"{_q(fit.residual_max, 'temperature_difference', system)}; "
           f"lag-1 autocorrelation {fit.residual_autocorrelation:.2f}"
           + (f" (intervals widened x{fit.interval_widening:.2f} for it)"
              if fit.interval_widening > 1.0 else ""))
@@ -302,12 +303,19 @@ def print_text(log, fit, comparison, system, capacity_source, scenario_path=None
     print(CAUTION)
 
 
-def figure(log, fit):
+def figure(log, fit, system="si"):
     """The log with the fitted model (plotly figure: temperatures, residual,
-    running state)."""
+    running state), temperatures in *system*'s units ("si" or "us")."""
     import plotly.graph_objects as go
     from plotly.subplots import make_subplots
     from heatload.report_assets import PALETTE
+    from heatload.units import display_unit, from_si, pretty_unit
+
+    t_unit = display_unit("temperature", system)
+    dt_unit = display_unit("temperature_difference", system)
+
+    def temp(v):
+        return from_si(np.asarray(v, float), "temperature", t_unit)
 
     n = len(log.time)
     step = max(1, n // 4000)               # a few thousand points draw fast
@@ -316,23 +324,25 @@ def figure(log, fit):
     heights = [0.6, 0.2, 0.2][:rows]
     fig = make_subplots(rows=rows, cols=1, shared_xaxes=True, row_heights=heights,
                         vertical_spacing=0.05)
-    fig.add_trace(go.Scatter(x=th, y=log.values["oil"][::step] - K0, mode="markers",
+    fig.add_trace(go.Scatter(x=th, y=temp(log.values["oil"][::step]), mode="markers",
                              name="oil, logged", marker=dict(size=3, color=PALETTE[0])),
                   row=1, col=1)
-    fig.add_trace(go.Scatter(x=th, y=fit.fitted[::step] - K0, mode="lines", name="oil, fitted",
+    fig.add_trace(go.Scatter(x=th, y=temp(fit.fitted[::step]), mode="lines", name="oil, fitted",
                              line=dict(color=PALETTE[3], width=2)), row=1, col=1)
-    fig.add_trace(go.Scatter(x=th, y=log.values["ambient"][::step] - K0, mode="lines",
+    fig.add_trace(go.Scatter(x=th, y=temp(log.values["ambient"][::step]), mode="lines",
                              name="ambient", line=dict(color=PALETTE[2], width=1)),
                   row=1, col=1)
-    fig.add_trace(go.Scatter(x=th, y=fit.residuals[::step], mode="lines", name="residual",
+    fig.add_trace(go.Scatter(x=th, y=from_si(np.asarray(fit.residuals[::step], float),
+                                             "temperature_difference", dt_unit),
+                             mode="lines", name="residual",
                              line=dict(color=PALETTE[7], width=1)), row=2, col=1)
     if rows == 3:
         fig.add_trace(go.Scatter(x=th, y=log.values["running"][::step], mode="lines",
                                  name="running", line=dict(color=PALETTE[1], shape="hv"),
                                  fill="tozeroy"), row=3, col=1)
         fig.update_yaxes(title_text="running", range=[-0.05, 1.05], row=3, col=1)
-    fig.update_yaxes(title_text="temperature [°C]", row=1, col=1)
-    fig.update_yaxes(title_text="residual [K]", row=2, col=1)
+    fig.update_yaxes(title_text=f"temperature [{pretty_unit(t_unit)}]", row=1, col=1)
+    fig.update_yaxes(title_text=f"residual [{pretty_unit(dt_unit)}]", row=2, col=1)
     fig.update_xaxes(title_text="time [h]", row=rows, col=1)
     fig.update_layout(width=680, height=560, template="plotly_white",
                       margin=dict(l=64, r=20, t=46, b=50),
@@ -372,11 +382,12 @@ def build_html(log, fit, comparison, system="si", capacity_source="given") -> st
                 f"{e(_q(c['model_cooler_duty_W'], 'power', system))}; from the measurement "
                 f"{e(_q(c['measured_cooler_duty_W'], 'power', system))}</td></tr>"
                 "</tbody></table>")
-    div = pio.to_html(figure(log, fit), include_plotlyjs=True, full_html=False,
+    div = pio.to_html(figure(log, fit, system), include_plotlyjs=True, full_html=False,
                       config={"displaylogo": False})
     body = (f"<header class='title'><h1>Temperature log fit — {e(log.source)}</h1>"
             f"<div class='meta'>{fit.samples:,} samples over {fit.duration / 3600:.3g} h; "
-            f"residual RMS {fit.residual_rms:.3g} K</div></header>"
+            f"residual RMS {e(_q(fit.residual_rms, 'temperature_difference', system))}"
+            "</div></header>"
             "<p>Model: C dT/dt = P·running − UA (T − T<sub>ambient</sub>), solved exactly "
             "between samples and fitted by least squares to the logged oil temperature.</p>"
             f"<table><thead><tr><th>quantity</th><th class='num'>fitted</th>"
