@@ -216,6 +216,9 @@ def cmd_check(args):
     print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
     if sc.coolers:
         print(f"  datasheet coolers: " + ", ".join(c.name for c in sc.coolers))
+    if sc.heat_calibration != 1.0:
+        print(f"  heat calibration: × {sc.heat_calibration:.3g} on every strategy's heat "
+              "into the oil (measured / model)")
     return 0
 
 

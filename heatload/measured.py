@@ -381,6 +381,8 @@ def build_html(log, fit, comparison, system="si", capacity_source="given") -> st
                 f"<tr><td>cooler duty at the design point</td><td class='num'>model "
                 f"{e(_q(c['model_cooler_duty_W'], 'power', system))}; from the measurement "
                 f"{e(_q(c['measured_cooler_duty_W'], 'power', system))}</td></tr>"
+                f"<tr><td>to apply the factor</td><td>"
+                f"{e(' '.join(calibration_advice(c, fit, 'the scenario file')))}</td></tr>"
                 "</tbody></table>")
     div = pio.to_html(figure(log, fit, system), include_plotlyjs=True, full_html=False,
                       config={"displaylogo": False})

@@ -233,6 +233,10 @@ def test_logfit_prints_the_line_to_add_and_the_line_applies(tmp_path, capsys):
     out = capsys.readouterr().out
     assert f"replace heat_calibration = {factor:.6g} under [scenario]" in out
     assert line in out                     # the same factor again, not a factor of a factor
+    # the HTML page says it too
+    page = tmp_path / "fit.html"
+    assert main(["logfit", str(log_path), "--scenario", str(scen), "-o", str(page)]) == 0
+    assert line in page.read_text()
 
 
 def test_outputs_state_the_factor_only_when_it_is_not_one(tmp_path, capsys):
@@ -244,6 +248,8 @@ def test_outputs_state_the_factor_only_when_it_is_not_one(tmp_path, capsys):
     text = path.read_text().replace("[scenario]\n", "[scenario]\nheat_calibration = 1.25\n", 1)
     cal = tmp_path / "cal.toml"
     cal.write_text(text)
+    assert main(["check", str(cal)]) == 0
+    assert "heat calibration: × 1.25" in capsys.readouterr().out
     for cmd in (["compare"], ["thermal"], ["phases", "--strategy", "meter-in"], ["cooler",
                                                                                   "--samples", "20"]):
         assert main(cmd + [str(cal), "--wide"]) == 0
