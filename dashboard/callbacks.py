@@ -279,10 +279,6 @@ def payback_choices(results, base, candidate):
     return opts, base, opts, candidate
 
 
-def _yc(rec, part):
-    return float(((rec or {}).get("yearly_cost") or {}).get(part) or 0.0)
-
-
 def default_extra_price(results, base, candidate):
     """Extra price of *candidate* over *base*: the circuits' price difference
     (the scenario's strategy prices) plus the difference of the coolers each
@@ -293,7 +289,7 @@ def default_extra_price(results, base, candidate):
         return None
     # whole currency units: a price field, not a computed figure
     return float(round((c.get("price") or 0.0) - (b.get("price") or 0.0)
-                       + _yc(c, "cooler_price") - _yc(b, "cooler_price")))
+                       + tables.cooler_price_difference(b, c)))
 
 
 def yearly_saving(results, base, candidate):
@@ -301,10 +297,9 @@ def yearly_saving(results, base, candidate):
     included [currency/year]."""
     b = figures.strategy_record(results, base)
     c = figures.strategy_record(results, candidate)
-    sav = results["savings"].get(base, {}).get(candidate)
-    if sav is None or b is None or c is None:
+    if b is None or c is None:
         return None
-    return float(sav["cost_saving"]) + _yc(b, "fan") - _yc(c, "fan")
+    return tables.running_cost_saving(b, c)
 
 
 def payback_view(results, base, candidate, extra_price, system):
@@ -356,11 +351,18 @@ def shift_view(data: dict, strategy: str, system: str):
         note = (f"Cooler of {figures.fmt(outcome.thermal.cooler_duty, 'power', system)} "
                 "switched by the thermostat" +
                 (f", on {100 * float(frac):.0f} % of the shift." if frac is not None else "."))
-    hours = scenario.shift_duration / 3600.0
-    title = (f"{outcome.name}: oil temperature over a {hours:.3g} h shift from "
+    title = (f"{outcome.name}: oil temperature over "
+             f"{sizing.shift_words(scenario.shift_duration, '.3g')} from "
              f"{figures.fmt(scenario.ambient.cold_start_temperature, 'temperature', system)}, "
              f"ambient {figures.fmt(scenario.ambient.temperature, 'temperature', system)}")
     return figures.shift_figure(prof, system, title), note
+
+
+def _calibration_note(scenario) -> list:
+    """The file's heat calibration in words, when it is not 1."""
+    from heatload.outputs.wording import calibration_note
+    note = calibration_note(scenario.heat_calibration)
+    return [html.Div(note, className="note", id="cooler-heat-calibration")] if note else []
 
 
 def cooler_view(data: dict, strategy: str, system: str):
@@ -376,7 +378,7 @@ def cooler_view(data: dict, strategy: str, system: str):
         f"oil at {figures.fmt(sz.design_ambient, 'temperature', system)} ambient; the surfaces "
         f"shed {figures.fmt(sz.surfaces_heat, 'power', system)} of "
         f"{figures.fmt(sz.design_heat, 'power', system)}.", className="msg"), *notes,
-        html.Div(sz.caution, className="caution")])
+        *_calibration_note(scenario), html.Div(sz.caution, className="caution")])
     from .datasheet_view import datasheet_block     # coolers listed by datasheet curves
     listed = datasheet_block(scenario, outcome, system)
     if listed is not None:

@@ -327,6 +327,10 @@ def decision_view(results: dict, system: str):
         kids += [html.H3("Ruled out"), html.Ul(out_rows, id="ruled-out", className="ruled-out")]
     kids += warnings_in_words(comp, dec.get("recommended") or comp.get("recommended"))
     kids += [html.Div(f"Note: {n}.", className="caution") for n in dec.get("notes") or []]
+    from heatload.outputs.wording import calibration_note
+    note = calibration_note(comp["scenario"].get("heat_calibration_factor", 1.0))
+    if note:
+        kids.append(html.Div(note, className="caution", id="heat-calibration"))
     kids.append(html.Div("Rule: circuits that can do the job first (no stall, speed reached, "
                          "within ratings, no runaway without a holding valve, motor not "
                          "overloaded), then by yearly cost of ownership.", className="caution"))

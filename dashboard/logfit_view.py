@@ -72,8 +72,8 @@ def _table(rows):
                       className="comparison")
 
 
-def _comparison(c, system):
-    from heatload.measurement.measured import _q
+def _comparison(c, system, fit=None):
+    from heatload.measurement.measured import _q, calibration_advice, calibration_line
 
     factor = c["heat_calibration_factor"]
     ua_factor = c["conductance_calibration_factor"]
@@ -87,6 +87,16 @@ def _comparison(c, system):
         + ("–" if ua_factor is None else f"{ua_factor:.3g}"),
         f"cooler duty at the design point: model {_q(c['model_cooler_duty_W'], 'power', system)}, "
         f"from the measurement {_q(c['measured_cooler_duty_W'], 'power', system)}"]
+    if fit is not None:
+        advice = calibration_advice(c, fit, "the file")
+        if factor is not None and len(advice) > 1 and advice[1].strip() == calibration_line(
+                factor):
+            items.append(f"to apply it, enter {advice[1].split('=')[1].strip()} as the heat "
+                         "calibration on the 'Cycle and machine' tab (power unit, tank, site), "
+                         f"or add {calibration_line(factor)} under [scenario] in the file; "
+                         + " ".join(advice[2:]))
+        else:
+            items.append(advice[0])
     return html.Div([html.H3("beside the model"), html.Ul([html.Li(i) for i in items])],
                     id="log-compare-list")
 
@@ -135,10 +145,11 @@ def log_view(contents, filename, capacity_text, store, system):
     notes = [html.Div(n, className="note") for n in fit.notes]
     message = html.Div([html.Div(
         f"{name}: {fit.samples} samples over {fit.duration / 3600:.3g} h; residual RMS "
-        f"{fit.residual_rms:.3g} K; heat capacity {source}."), *notes])
+        f"{format_quantity(fit.residual_rms, 'temperature_difference', system)}; heat "
+        f"capacity {source}."), *notes])
     table = _table(measured.summary_rows(fit, system, source))
-    comp = _comparison(comparison, system) if comparison is not None else None
-    fig = measured.figure(log, fit)
+    comp = _comparison(comparison, system, fit) if comparison is not None else None
+    fig = measured.figure(log, fit, system)
     fig.update_layout(width=None, autosize=True)
     return message, table, comp, fig
 

@@ -106,6 +106,9 @@ KEY_FIELDS = (
     KeyField(("economics", "hours_per_year"), "running hours", "dimensionless", "h/year"),
     KeyField(("economics", "electricity_price"), "electricity price",
              "specific_energy_price"),
+    # measured / model heat from a temperature log (the "Temperature log" tab); empty = 1
+    KeyField(("scenario", "heat_calibration"), "heat calibration (measured / model)",
+             "dimensionless", "× model heat", required=False),
 )
 
 

@@ -56,6 +56,8 @@ class ThermalOutcome:
     operating_temperature: float = None  #: oil T the machine runs at: coupled, or held at the design T by the cooler [K]
     phase_heat: np.ndarray = None    #: heat per phase at the coupled T [W]
     phase_durations: np.ndarray = None
+    heat_calibration: float = 1.0    #: measured / model factor in every heat above [-]
+    heat_running: float = None       #: mean heat at the operating T [W]
 
 
 @dataclass
@@ -131,6 +133,8 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
     t_op = float(ev.operating_temperature[0])
     ua_typ = ev.typical_conductance.fn(0)
     # warm-up from a cold start (typical ambient, cycle-averaged heat)
+    f_heat = float(ev.heat_calibration[0])
+    e_op = energy.summarize(res_op, scenario.economics)
     ttl = time_to_temperature(q_c, cap, ua_typ, amb.temperature, amb.cold_start_temperature,
                               scenario.fluid.temperature_max)
     th = ThermalOutcome(
@@ -145,12 +149,12 @@ def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> Strate
         design_ambient=float(ev.design_ambient[0]), design_heat=float(ev.design_heat[0]),
         design_conductance=float(ev.design_conductance[0]), cooler_needed=duty0 > 0.0,
         cooler_duty=duty, cooler_duty_without_margin=duty0, time_to_limit=ttl,
-        phase_heat=res_c.heat_to_oil, phase_durations=res_c.duration,
-        operating_temperature=t_op)
+        phase_heat=f_heat * res_c.heat_to_oil, phase_durations=res_c.duration,
+        operating_temperature=t_op, heat_calibration=f_heat,
+        heat_running=f_heat * float(e_op.average_heat_to_oil))
     warns = (checks.phase_warnings(ev.conditions, scenario, row=0)
              + checks.cycle_warnings(ev.cycle_conditions, row=0))
-    return StrategyOutcome(strategy=ev.strategy, circuit=res_op,
-                           energy=energy.summarize(res_op, scenario.economics),
+    return StrategyOutcome(strategy=ev.strategy, circuit=res_op, energy=e_op,
                            circuit_uncoupled=res_u,
                            energy_uncoupled=energy.summarize(res_u, scenario.economics),
                            thermal=th, warnings=warns)
@@ -175,15 +179,18 @@ def time_to_temperature(heat, capacity, conductance, ambient, start, target, poi
     return float(np.trapezoid(capacity / net, t))
 
 
-def shift_profile(scenario: Scenario, outcome: "StrategyOutcome", cooler_on=False):
+def shift_profile(scenario: Scenario, outcome: "StrategyOutcome", cooler_on=False,
+                  cooler_conductance=None):
     """Oil temperature over a shift from a cold start, segment by segment
     (:func:`heatload.heat.thermal.warm_up`), at typical ambient; with *cooler_on*
     a thermostat-switched cooler of the sized duty is added
-    (:func:`heatload.heat.thermal.thermostat_cooler_run`)."""
+    (:func:`heatload.heat.thermal.thermostat_cooler_run`), or, given
+    *cooler_conductance* [W/K], a cooler taking that much per kelvin of ETD
+    (a datasheet cooler's specific cooling power)."""
     amb = scenario.ambient
     th = outcome.thermal
     ua = conductance_fn(scenario, amb.temperature)
-    if not cooler_on or th.cooler_duty <= 0.0:
+    if not cooler_on or th.cooler_duty <= 0.0 and cooler_conductance is None:
         return thermal.warm_up(th.phase_heat, th.phase_durations, th.capacity, ua,
                                amb.temperature, amb.cold_start_temperature,
                                scenario.shift_duration,
@@ -193,7 +200,9 @@ def shift_profile(scenario: Scenario, outcome: "StrategyOutcome", cooler_on=Fals
     return thermal.thermostat_cooler_run(
         th.phase_heat, th.phase_durations, th.capacity, float(ua(th.steady_coupled)),
         amb.temperature, amb.cold_start_temperature, scenario.shift_duration, on,
-        scenario.cooler.thermostat_hysteresis, cooler_duty=th.cooler_duty)
+        scenario.cooler.thermostat_hysteresis,
+        **({"cooler_conductance": float(cooler_conductance)} if cooler_conductance is not None
+           else {"cooler_duty": th.cooler_duty}))
 
 
 def compare(scenario: Scenario, strategies=None) -> Comparison:

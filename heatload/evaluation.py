@@ -24,6 +24,11 @@ Steps
    where a sized cooler holds it there; warnings are the conditions of
    :func:`heatload.checks.phase_conditions` at that operating point.
 
+The scenario's ``heat_calibration`` (measured / model heat, from ``heatload
+logfit --scenario``) multiplies the heat into the oil in steps 2-4 and in the
+cycle's periodic temperatures, for every strategy alike; the circuits'
+electricity and losses stay the model's.
+
 UA(T) is one table per distinct air temperature and tank
 (:class:`ConductanceTable`: 160 points from T_a - 20 K to 250 degC, linear
 interpolation).
@@ -311,7 +316,7 @@ class _Rows:
 
 
 def coupled_temperature(builder: Builder, rows, ambient, conductance: ConductanceTable,
-                        start_a, start_b):
+                        start_a, start_b, heat_factor=1.0):
     """Self-consistent steady oil temperature [K] of each row: Q(T) = UA(T)(T - T_a).
 
     Q(T) is the strategy's mean heat with the circuit solved at T.  Secant
@@ -320,10 +325,14 @@ def coupled_temperature(builder: Builder, rows, ambient, conductance: Conductanc
     :func:`steady_temperature`, until ``|Q - UA (T - T_a)| < 0.01 K x UA``
     (at most :data:`COUPLING_MAX_ITER` solves).
 
+    *heat_factor* (one per row of *rows*, or one for all) multiplies Q(T):
+    the scenario's ``heat_calibration``; the starts are already scaled.
+
     Returns ``(T, iterations, result)``: *result* solved at T, one row per
     row of *rows*.
     """
     m = len(rows)
+    factor = np.broadcast_to(np.asarray(heat_factor, float), (m,))
     ta_, qa = (np.array(np.broadcast_to(x, (m,)), float) for x in start_a)
     tb_, qb = (np.array(np.broadcast_to(x, (m,)), float) for x in start_b)
     t_c = np.full(m, np.nan)
@@ -338,7 +347,7 @@ def coupled_temperature(builder: Builder, rows, ambient, conductance: Conductanc
         t_new = steady_temperature(qa[todo], ta_[todo], slope, ambient[todo], conductance, todo,
                                    start=tb_[todo])
         r, c = builder.solve(t_new, rows[todo])
-        q_new = mean_heat(r)
+        q_new = factor[todo] * mean_heat(r)
         ua_new, _ = conductance(t_new, todo)
         gap = q_new - ua_new * (t_new - ambient[todo])
         done = (np.abs(gap) < COUPLING_TOLERANCE * np.maximum(ua_new, 1e-9)) | (
@@ -419,6 +428,7 @@ class Evaluation:
     operating: circuits.CircuitResult = None      #: where the machine runs
     operating_inputs: dict = None
     operating_temperature: np.ndarray = None
+    heat_calibration: np.ndarray = None           #: factor on every heat above [-]
     conditions: list = None                       #: heatload.checks.Condition per phase
     cycle_conditions: list = None                 #: ... of the whole cycle (temperatures)
     typical_conductance: ConductanceTable = None  #: UA(T) at the typical ambient
@@ -478,6 +488,10 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
     h_user = _col(g(("reservoir", "heat_transfer_coefficient"),
                     np.nan if h_res is None else h_res), n)
     factor = _col(g(("reservoir", "heat_transfer_factor"), 1.0), n)
+    # measured / model heat ([scenario] heat_calibration): every heat into the oil
+    # below is scaled, the circuit's own figures (electricity, losses) are not
+    f_heat = _col(sc.heat_calibration, n)
+    ev.heat_calibration = f_heat
     ua_typ = ConductanceTable(sc, amb_t, h_user, factor)
     ev.typical_conductance = ua_typ
 
@@ -493,7 +507,7 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
             res_u, c_u = result_row(both, slice(0, 1)), None
         else:
             res_u, c_u = build.solve(t_ref)
-        q_u = mean_heat(res_u)
+        q_u = f_heat * mean_heat(res_u)
         ev.uncoupled, ev.heat_uncoupled = res_u, q_u
         ev.steady_uncoupled = steady_temperature(q_u, t_ref, 0.0, amb_t, ua_typ)
         if not thermal:
@@ -510,7 +524,7 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
         res_d, c_d = result_row(both, slice(1, 2)), None
     else:
         res_d, c_d = build.solve(t_d if np.ndim(t_d_given) else float(t_d_given))
-    q_d = mean_heat(res_d)
+    q_d = f_heat * mean_heat(res_d)
     ua_hot = ConductanceTable(sc, amb_hot, h_user, factor)
     ua_d, _ = ua_hot(t_d)
     margin = g(("cooler", "margin"), sc.cooler.margin)
@@ -536,17 +550,18 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
                                  np.concatenate([factor, factor]))
     t_all, it_all, res_all = coupled_temperature(
         build, rows, ambient, table, (np.full(n, t_ref)[rows], ev.heat_uncoupled[rows]),
-        (t_d[rows], q_d[rows]))
+        (t_d[rows], q_d[rows]), heat_factor=f_heat[rows])
     t_c = t_all[:n]
     res_c = result_row(res_all, slice(0, n)) if hot else res_all
     if hot:
         ev.steady_hot = t_all[n:]
     ev.coupled, ev.steady_coupled, ev.coupling_iterations = res_c, t_c, it_all[:n]
-    ev.heat_coupled = mean_heat(res_c)
+    ev.heat_coupled = f_heat * mean_heat(res_c)
     ev.conductance, _ = ua_typ(t_c)
     ev.capacity = heat_capacity(sc, t_c, val)
     periodic = lumped.periodic_steady_state(
-        res_c.heat_to_oil, res_c.duration, ev.capacity, ev.conductance, amb_t)
+        f_heat[:, None] * res_c.heat_to_oil, res_c.duration, ev.capacity, ev.conductance,
+        amb_t)
     ev.cycle_minimum, ev.cycle_maximum = periodic.minimum, periodic.maximum
 
     # the machine runs at the coupled temperature, unless the sized cooler holds

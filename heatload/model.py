@@ -427,6 +427,11 @@ class Scenario:
     description: str = ""
     #: shift length for warm-up [s]
     shift_duration: float = 8 * 3600.0
+    #: measured / model heat into the oil of the present circuit [-]
+    #: (``heatload logfit --scenario``); multiplies every strategy's heat into
+    #: the oil in the thermal step (:func:`heatload.evaluation.evaluate`), never
+    #: the electrical energy or the per-component losses
+    heat_calibration: float = 1.0
     #: uncertain inputs (:class:`UncertainInput` items)
     uncertainty: tuple = ()
     #: blocks of phases repeated within the cycle (:class:`Repeat` items)

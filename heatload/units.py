@@ -527,7 +527,7 @@ _PRETTY = {"degC": "°C", "degF": "°F", "delta_degF": "°F", "m^2": "m²", "m^3
            "kJ/(kg*K)": "kJ/(kg·K)", "W/(m*K)": "W/(m·K)",
            "Btu/(h*delta_degF)": "Btu/(h·°F)", "Btu/(lb*delta_degF)": "Btu/(lb·°F)",
            "Btu/(h*ft^2*delta_degF)": "Btu/(h·ft²·°F)", "Btu/(h*ft*delta_degF)": "Btu/(h·ft·°F)",
-           "1/delta_degF": "1/°F"}
+           "1/delta_degF": "1/°F", "Btu/delta_degF": "Btu/°F"}
 
 
 def pretty_unit(unit: str) -> str:

@@ -641,3 +641,29 @@ def test_warnings_in_plain_words_and_chosen_units(base):
     words = " ".join(us["meter-out"]["warnings"])
     assert "psi" in words and "°F" in words and "hp" in words
     assert " bar" not in words and "°C" not in words and " kW" not in words
+
+
+def test_heat_calibration_key_field_reaches_the_results_and_is_said(base, examples):
+    # the measured / model heat factor typed in the form: every strategy's heat x f,
+    # the decision view says so; empty is the model as it stands (f = 1)
+    i = [f.field for f in state.KEY_FIELDS].index("scenario.heat_calibration")
+    assert base["form"]["key_values"][i] == ""
+    keys = list(base["form"]["key_values"])
+    keys[i] = "1.4"
+    sc, data, errors = state.apply_form(base["data"], base["form"]["phase_rows"],
+                                        base["form"]["actuator_rows"], keys, "si")
+    assert errors == [] and sc.heat_calibration == 1.4
+    res = compute.compute_results(sc, source="calibrated")
+    raw = {r["label"]: r for r in base["results"]["comparison"]["strategies"]}
+    for r in res["comparison"]["strategies"]:
+        assert r["heat_to_oil_uncoupled_W"] == pytest.approx(
+            1.4 * raw[r["label"]]["heat_to_oil_uncoupled_W"], rel=1e-12)
+    view = figures.decision_view(res, "si")
+    note = next(c for c in view.children if getattr(c, "id", None) == "heat-calibration")
+    assert "× 1.4 (heat_calibration" in note.children
+    assert not any(getattr(c, "id", None) == "heat-calibration"
+                   for c in figures.decision_view(base["results"], "si").children)
+    keys[i] = "9"                                  # beyond 0.2 .. 5: refused, named
+    _, _, errors = state.apply_form(base["data"], base["form"]["phase_rows"],
+                                    base["form"]["actuator_rows"], keys, "si")
+    assert errors and errors[0][0] == "scenario.heat_calibration"

@@ -78,3 +78,31 @@ def test_cooler_view_lists_the_datasheet_coolers():
     assert "datasheet-table" in text and f"Chosen: {sel.chosen}" in text
     for r in sel.ratings:
         assert r.name in text
+
+
+def test_view_in_us_units_and_how_to_apply_the_factor():
+    # US customary: UA in Btu/(h·°F) (1 Btu/(h·°F) = 0.52752793 W/K, NIST SP 811:
+    # 1 Btu_IT/h = 0.29307107 W, times 1.8 per K), temperatures in °F on the plot
+    msg, table, comp, fig = logfit_view.log_view(_upload(LOG), LOG.name, "", _store(), "us")
+    sc = io.load_scenario(LIFT)
+    log = measured.read_temperature_log(LOG)
+    import numpy as np
+    fit = measured.fit_log(log, float(evaluation.heat_capacity(sc, float(np.mean(
+        log.values["oil"])))))
+    ua_us = fit.conductance / 0.52752793
+    assert f"{ua_us:.3g} Btu/(h·°F)" in str(table)
+    assert "W/K" not in str(table) and "W/K" not in str(comp)
+    assert "Btu/°F" in str(table)                       # the heat capacity, written plainly
+    assert "°F" in fig.layout.yaxis.title.text
+    first = (log.values["oil"][0] - 273.15) * 1.8 + 32.0
+    assert float(fig.data[0].y[0]) == pytest.approx(first, rel=1e-12)
+    assert "°F" in str(msg)                              # the residual too
+    # SI: the tank's UA in W/K (tens of W/K read better than hundredths of kW/K)
+    _, table_si, comp_si, fig_si = logfit_view.log_view(_upload(LOG), LOG.name, "", _store(),
+                                                         "si")
+    assert f"{fit.conductance:.3g} W/K" in str(table_si)
+    assert "°C" in fig_si.layout.yaxis.title.text
+    # the factor, and how to apply it in the form or the file
+    c = measured.scenario_comparison(sc, log, fit)
+    assert measured.calibration_line(c["heat_calibration_factor"]) in str(comp_si)
+    assert "heat calibration on the 'Cycle and machine' tab" in str(comp_si)

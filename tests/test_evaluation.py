@@ -45,7 +45,7 @@ def _agree(sc, o, v, rtol):
     e = o.energy
     _close(v.electric_energy_per_cycle[0], e.electric_energy_per_cycle, rtol)
     _close(v.electric_energy_per_year[0], e.electric_energy_per_year, rtol)
-    _close(v.heat_to_oil[0], e.average_heat_to_oil, rtol)
+    _close(v.heat_to_oil[0], th.heat_running, rtol)
     _close(v.cycle_time[0], e.cycle_time, rtol)
     _close(v.peak_pressure[0], e.peak_pressure, rtol)
     _close(v.heat_to_oil_uncoupled[0], th.heat_uncoupled, rtol)

@@ -116,6 +116,14 @@ def _temperature(t_kelvin, system):
     return _fmt(t_kelvin, "temperature", system, 3)
 
 
+def _calibration(scenario):
+    """Say the file's heat calibration, when it has one."""
+    from heatload.outputs.wording import calibration_note
+    note = calibration_note(scenario.heat_calibration)
+    if note:
+        print(note)
+
+
 # ---------------------------------------------------------------------------
 # commands
 # ---------------------------------------------------------------------------
@@ -149,7 +157,7 @@ def cmd_compare(args):
         codes = sorted({w.code for w in o.warnings})
         rows.append([i, o.name, f"{float(e.electric_energy_per_year) / 3.6e6:,.0f}",
                      f"{float(e.cost_per_year):,.0f}", f"{float(e.co2_per_year) / 1000:,.1f}",
-                     _num(e.average_heat_to_oil, "power", s), _num(th.steady_coupled,
+                     _num(th.heat_running, "power", s), _num(th.steady_coupled,
                                                                    "temperature", s),
                      _num(th.cooler_duty, "power", s) if th.cooler_needed else "none",
                      _num(e.peak_pressure, "pressure", s), f"{100 * float(e.overall_efficiency):.0f}",
@@ -171,6 +179,7 @@ def cmd_compare(args):
     print(f"\nCooler duty at the design point: oil at "
           f"{_temperature(cmp.outcomes[0].thermal.design_oil_temperature, s)}, ambient "
           f"{_temperature(sc.ambient.temperature_max, s)}, margin {100 * sc.cooler.margin:.0f} %.")
+    _calibration(sc)
     print(CAUTION)
     return 0
 
@@ -207,6 +216,9 @@ def cmd_check(args):
     print(f"  strategies: " + ", ".join(st.name for st in sc.strategies))
     if sc.coolers:
         print(f"  datasheet coolers: " + ", ".join(c.name for c in sc.coolers))
+    if sc.heat_calibration != 1.0:
+        print(f"  heat calibration: × {sc.heat_calibration:.3g} on every strategy's heat "
+              "into the oil (measured / model)")
     return 0
 
 
@@ -249,6 +261,7 @@ def cmd_phases(args):
                  optional=("largest loss", headers[4], headers[5], headers[9], headers[7])))
     for w in o.warnings:
         print(f"  ! {warning_text(w, s, with_phase=True)}")
+    _calibration(sc)
     return 0
 
 
@@ -263,7 +276,9 @@ def cmd_thermal(args):
         recs = [{k: v for k, v in tables.strategy_record(o, sc, cmp.phase_arrays, False).items()
                  if k.startswith(("oil_", "heat_", "cooler_", "time_", "strategy", "label"))}
                 for o in cmp.outcomes]
-        print(json.dumps({"scenario": sc.name, "strategies": recs}, indent=2, ensure_ascii=False))
+        print(json.dumps({"scenario": sc.name,
+                          "heat_calibration_factor": float(sc.heat_calibration),
+                          "strategies": recs}, indent=2, ensure_ascii=False))
         return 0
     print(f"{sc.name} — oil {sc.fluid.name}, {_fmt(sc.reservoir.oil_volume, 'volume', s)}; "
           f"ambient {_temperature(sc.ambient.temperature, s)}, hot day "
@@ -293,6 +308,7 @@ def cmd_thermal(args):
                 print(f"  ! {o.name}: {warning_text(w, s)}")
     print("Steady temperatures are without a cooler; 'coupled' lets the oil's viscosity "
           "change pump leakage and line losses at that temperature.")
+    _calibration(sc)
     print(CAUTION)
     return 0
 

@@ -348,7 +348,7 @@ def rate_coolers(scenario, outcome, coolers=None) -> DatasheetSelection:
     temps, _, _ = evaluation.coupled_temperature(
         build, np.zeros(m, int), np.full(m, ta), with_cooler,
         (th.reference_temperature, th.heat_uncoupled),
-        (th.design_oil_temperature, th.design_heat))
+        (th.design_oil_temperature, th.design_heat), heat_factor=th.heat_calibration)
     t_d = th.design_oil_temperature
     allowed = scenario.cooler.oil_pressure_drop_max
     ua_hot = chain.conductance_fn(scenario, ta)

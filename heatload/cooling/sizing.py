@@ -80,6 +80,8 @@ class CoolerSizing:
     rating: Optional[dict] = None        #: see :func:`rate_cooler`
     thermostat: Optional[dict] = None    #: see :func:`thermostat_summary`
     notes: list = field(default_factory=list)
+    #: the file's datasheet coolers rated (:func:`heatload.cooling.cooler_datasheet.rate_coolers`)
+    datasheet: Optional[object] = None
     water_inlet_temperature: float = float("nan")  #: coolant inlet of the water-oil sizing [K]
     caution: str = CAUTION
 
@@ -180,21 +182,28 @@ def rate_cooler(sizing: CoolerSizing, rated_duty: float, rated_etd: float) -> di
             "ratio": (delivered / need) if need > 0 else math.inf}
 
 
-def thermostat_summary(scenario, outcome) -> dict:
-    """A shift with the sized cooler switched by its thermostat
-    (:func:`heatload.chain.shift_profile` with ``cooler_on=True``).
+def thermostat_summary(scenario, outcome, datasheet=None) -> dict:
+    """A shift with the cooler switched by its thermostat
+    (:func:`heatload.chain.shift_profile` with ``cooler_on=True``): the sized
+    duty, or with *datasheet* (a :class:`heatload.cooling.cooler_datasheet.CoolerRating`)
+    that cooler's curve, C dT/dt = Q - UA (T - T_a) - S (T - T_a) while on, S the
+    time average over the cycle of the curve at each phase's return flow.
 
     Returns
     -------
     dict
         ``switch_count`` [-], ``on_fraction`` [-], ``max_temperature_K``,
         ``final_temperature_K``, ``on_temperature_K``, ``hysteresis_K``,
-        ``shift_duration_s``; ``switch_count`` is 0 and ``on_fraction`` 0 when no
-        cooler is needed (the shift is then a plain warm-up).
+        ``shift_duration_s``, ``cooler`` (the datasheet cooler's name, or None
+        for the sized duty), ``cooler_specific_power_W_K`` (its S, or None);
+        ``switch_count`` is 0 and ``on_fraction`` 0 when no cooler is needed
+        (the shift is then a plain warm-up).
     """
     from heatload import chain
 
-    run = chain.shift_profile(scenario, outcome, cooler_on=True)
+    s_cooler = None if datasheet is None else float(datasheet.specific_power)
+    run = chain.shift_profile(scenario, outcome, cooler_on=True,
+                              cooler_conductance=s_cooler)
     on = scenario.cooler.thermostat_on or outcome.thermal.design_oil_temperature
     if hasattr(run, "switch_on_times"):
         count, frac = int(len(run.switch_on_times)), float(run.on_fraction)
@@ -205,7 +214,9 @@ def thermostat_summary(scenario, outcome) -> dict:
             "final_temperature_K": float(np.ravel(run.final_temperature)[0]),
             "on_temperature_K": float(on),
             "hysteresis_K": float(scenario.cooler.thermostat_hysteresis),
-            "shift_duration_s": float(scenario.shift_duration)}
+            "shift_duration_s": float(scenario.shift_duration),
+            "cooler": None if datasheet is None else datasheet.name,
+            "cooler_specific_power_W_K": s_cooler}
 
 
 def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None,
@@ -305,7 +316,17 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
                                 field="--rated-duty" if rated_duty is None else "--rated-etd")
         sz.rating = rate_cooler(sz, rated_duty, rated_etd)
     if thermostat:
-        sz.thermostat = thermostat_summary(scenario, outcome)
+        chosen = None
+        if scenario.coolers:
+            # the datasheet coolers of the file: the chosen one's curve runs the shift
+            from heatload.cooling import cooler_datasheet
+            sz.datasheet = cooler_datasheet.rate_coolers(scenario, outcome)
+            chosen = next((r for r in sz.datasheet.ratings if r.name == sz.datasheet.chosen),
+                          None)
+            if chosen is None and sz.cooler_needed:
+                sz.notes.append("no listed datasheet cooler holds the design temperature "
+                                "with the margin: the thermostat shift uses the sized duty")
+        sz.thermostat = thermostat_summary(scenario, outcome, chosen)
     return sz
 
 
@@ -436,7 +457,9 @@ def sizing_record(sz: CoolerSizing, uncertainty_result: Optional[dict] = None) -
             "max_temperature_C": _f(t["max_temperature_K"] - K0),
             "final_temperature_C": _f(t["final_temperature_K"] - K0),
             "on_temperature_C": _f(t["on_temperature_K"] - K0),
-            "hysteresis_K": _f(t["hysteresis_K"]), "shift_duration_s": _f(t["shift_duration_s"])}
+            "hysteresis_K": _f(t["hysteresis_K"]), "shift_duration_s": _f(t["shift_duration_s"]),
+            "cooler": t.get("cooler"),
+            "cooler_specific_power_W_K": _f(t.get("cooler_specific_power_W_K"))}
     if uncertainty_result is not None:
         rec["uncertainty"] = uncertainty_result
     return rec
@@ -490,6 +513,20 @@ def _parse(text, kind, fieldname):
     return v
 
 
+def shift_words(seconds, digits=".1f") -> str:
+    """A shift's length with its article as the number is spoken: "an 8.0 h
+    shift", "a 10.0 h shift", "an 11.0 h shift".
+
+    >>> shift_words(8 * 3600), shift_words(7.5 * 3600), shift_words(18 * 3600, ".3g")
+    ('an 8.0 h shift', 'a 7.5 h shift', 'an 18 h shift')
+    """
+    text = f"{seconds / 3600:{digits}} h"
+    # numbers read with a leading vowel sound: eight, eleven, eighteen, eighty...
+    whole = text.split(" ")[0].split(".")[0]
+    spoken_vowel = whole.startswith("8") or whole in ("11", "18")
+    return f"{'an' if spoken_vowel else 'a'} {text} shift"
+
+
 def run_cli(args) -> int:
     """``heatload cooler [FILE] --coolant air|water --strategy NAME --samples N --seed S
     --rated-duty P --rated-etd DT --json --units si|us``."""
@@ -522,10 +559,10 @@ def run_cli(args) -> int:
         rec = sizing_record(sz, unc)
         rec["scenario"] = sc.name
         rec["file"] = str(path)
-        if sc.coolers:
+        rec["heat_calibration_factor"] = float(sc.heat_calibration)
+        if sz.datasheet is not None:
             from heatload.cooling import cooler_datasheet
-            rec["datasheet_coolers"] = cooler_datasheet.selection_record(
-                cooler_datasheet.rate_coolers(sc, outcome))
+            rec["datasheet_coolers"] = cooler_datasheet.selection_record(sz.datasheet)
         print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
                          default=lambda v: None))
         return 0
@@ -574,7 +611,10 @@ def run_cli(args) -> int:
     if sz.thermostat is not None and sz.cooler_needed:
         t = sz.thermostat
         from heatload.outputs.tables import times
-        print(f"\nThermostat over a {t['shift_duration_s'] / 3600:.1f} h shift: on at "
+        which = (f"{t['cooler']} (S {fq(t['cooler_specific_power_W_K'], 'thermal_conductance', s)}"
+                 " over the cycle, its datasheet curve)" if t.get("cooler") else
+                 f"the sized cooler ({fq(sz.duty, 'power', s)} while on)")
+        print(f"\nThermostat over {shift_words(t['shift_duration_s'])} with {which}: on at "
               f"{fq(t['on_temperature_K'], 'temperature', s)}, switched on {times(t['switch_count'])}, "
               f"on {100 * t['on_fraction']:.0f} % of the time, max "
               f"{fq(t['max_temperature_K'], 'temperature', s)}")
@@ -601,8 +641,11 @@ def run_cli(args) -> int:
         print(unc["note"])
     for n in sz.notes:
         print(f"  note: {n}")
-    if sc.coolers:      # datasheet coolers listed in the file ([[coolers]])
+    if sz.datasheet is not None:      # datasheet coolers listed in the file ([[coolers]])
         from heatload.cooling import cooler_datasheet
-        cooler_datasheet.print_selection(cooler_datasheet.rate_coolers(sc, outcome), s)
+        cooler_datasheet.print_selection(sz.datasheet, s)
+    from heatload.outputs.wording import calibration_note
+    if calibration_note(sc.heat_calibration):
+        print(calibration_note(sc.heat_calibration))
     print(sz.caution)
     return 0

@@ -46,6 +46,9 @@ SCHEMA_EXAMPLE = '''\
 name = "Example press"                 # required, shown in every report
 description = "A small press to show every key of the file format."
 shift_duration = "8 h"                 # length of a shift, for the warm-up from cold
+# heat_calibration = 1.0               # measured / model heat into the oil (heatload
+                                       # logfit --scenario): scales every strategy's heat
+                                       # into the oil; not the electricity
 project = "P-1234 press line"          # cover of the report (or heatload report --project ...)
 customer = "Example Works Ltd."
 prepared_by = "A. Designer"
@@ -388,6 +391,11 @@ _BAR = 1e5
 AMBIENT_RANGE = (213.15, 343.15)
 _AMBIENT_WHY = ("the plausible air temperature range -60 °C .. +70 °C (arctic sites to "
                 "hot process halls)")
+#: Plausible measured / model heat factor [-]: a model off by more than a factor of
+#: five points to a wrong duty cycle or a wrong log, not to losses the model misses.
+HEAT_CALIBRATION_RANGE = (0.2, 5.0)
+_HEAT_CALIBRATION_WHY = ("the plausible range 0.2 .. 5 of a measured / model heat factor "
+                         "(heatload logfit --scenario; dimensionless)")
 #: Least oil a tank may hold [m^3] (0.1 L): the smallest compact power units carry
 #: a few tenths of a litre (common practice, from memory); below this the model of
 #: a well-mixed tank shedding heat through its walls describes no machine.
@@ -449,6 +457,8 @@ _SCENARIO = {
     "name": _F("str", "nonempty", required=True),
     "description": _F("str"),
     "shift_duration": _F("time", "pos"),
+    "heat_calibration": _F("dimensionless", "pos", low=HEAT_CALIBRATION_RANGE[0],
+                           high=HEAT_CALIBRATION_RANGE[1], why=_HEAT_CALIBRATION_WHY),
     "project": _F("str"),
     "customer": _F("str"),
     "prepared_by": _F("str"),

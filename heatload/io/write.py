@@ -151,6 +151,8 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
     for k in ("project", "customer", "prepared_by", "revision"):
         if getattr(s, k):
             d["scenario"][k] = getattr(s, k)
+    if s.heat_calibration != 1.0:
+        d["scenario"]["heat_calibration"] = float(s.heat_calibration)
     d["economics"] = _dump_fields(s.economics, _ECONOMICS)
     if s.repeats:
         d["repeats"] = [{"first": r.first, "last": r.last, "count": r.count}

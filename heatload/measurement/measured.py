@@ -17,6 +17,15 @@ Calibration
   heat, UA = conductance factor x the model's design UA; the duty follows as
   in ``heatload cooler`` (the same function, the scenario's margin).
 
+Applying the factor
+-------------------
+The heat factor goes into the file as ``heat_calibration`` under
+``[scenario]`` (:func:`calibration_line`); every command then multiplies every
+strategy's heat into the oil by it (:func:`heatload.evaluation.evaluate`).
+The factor is always worked out against the *raw* model (the scenario with
+``heat_calibration`` = 1), so a file that already carries one gets the same
+factor again, never the factor of a factor.
+
 Only this module formats; the fit and the physics live in their modules.
 """
 
@@ -74,6 +83,39 @@ def fit_log(log, capacity=None, confidence=0.95):
     return fit
 
 
+def calibration_advice(comparison, fit, path) -> list:
+    """Lines saying how to apply the heat factor of *comparison* to the file
+    *path* (the exact line to add), or why it should not be applied."""
+    from heatload.io import HEAT_CALIBRATION_RANGE
+
+    f = comparison["heat_calibration_factor"]
+    now = comparison.get("file_heat_calibration_factor", 1.0)
+    if f is None:
+        return ["no calibration factor: the log gives no heat (see above)"]
+    if not fit.identified.get("heat", True):
+        return [f"the heat is not identified by this log: do not apply the factor {f:.3g}"]
+    low, high = HEAT_CALIBRATION_RANGE
+    if not low <= float(f"{f:.3g}") <= high:
+        return [f"the factor {f:.3g} lies outside {low:g} .. {high:g}: the duty cycle or the "
+                "log is wrong rather than the losses; check both before calibrating"]
+    where = (f"replace heat_calibration = {now:.6g} under [scenario] in {path} by"
+             if now != 1.0 else f"to apply it, add under [scenario] in {path}:")
+    out = [where, f"    {calibration_line(f)}",
+           "(every command then scales every strategy's heat into the oil by it; "
+           "the circuits' electricity stays the model's)"]
+    ua = comparison.get("conductance_calibration_factor")
+    if ua is not None and abs(ua - 1.0) > 0.05:
+        out.append(f"the conductance factor {ua:.3g} is not applied by it: the other "
+                   "commands keep the model's UA of the surfaces, so their cooler duty "
+                   "differs from the one from the measurement above")
+    return out
+
+
+def calibration_line(factor) -> str:
+    """The file's line that applies a heat factor (3 significant digits)."""
+    return f"heat_calibration = {float(f'{factor:.3g}'):g}"
+
+
 def logged_oil_temperature(log, fit) -> float:
     """Time-averaged logged oil temperature while the machine runs [K] (the
     whole log when it never runs)."""
@@ -90,9 +132,14 @@ def scenario_comparison(scenario, log, fit, strategy=None) -> dict:
     calibration factors and the cooler duty at the design point from the
     measurement (see the module notes).  SI values, unit-suffixed keys.
     *strategy*: the machine's circuit by name; default the scenario's present one."""
+    import dataclasses
+
     from heatload import chain, evaluation
     from heatload.cooling import cooler, sizing
 
+    applied = float(scenario.heat_calibration)
+    # the raw model: a factor already in the file must not feed back into itself
+    scenario = dataclasses.replace(scenario, heat_calibration=1.0)
     strat = sizing._design_strategy(scenario, strategy)
     t_log = logged_oil_temperature(log, fit)
     ta_log = float(np.mean(log.values["ambient"]))
@@ -106,6 +153,7 @@ def scenario_comparison(scenario, log, fit, strategy=None) -> dict:
            "logged_ambient_C": ta_log - K0,
            "model_heat_W": q_model, "measured_heat_W": fit.heat,
            "heat_calibration_factor": heat_factor,
+           "file_heat_calibration_factor": applied,
            "model_conductance_W_K": ua_model, "measured_conductance_W_K": fit.conductance,
            "conductance_calibration_factor": ua_factor,
            "design_oil_temperature_C": th.design_oil_temperature - K0,
@@ -205,7 +253,7 @@ def summary_rows(fit, system="si", capacity_source="given") -> list:
     return [r + (pct,) for r in rows]
 
 
-def print_text(log, fit, comparison, system, capacity_source):
+def print_text(log, fit, comparison, system, capacity_source, scenario_path=None):
     from heatload.cli import CAUTION, _table
 
     dt = np.diff(log.time)
@@ -218,7 +266,8 @@ def print_text(log, fit, comparison, system, capacity_source):
     rows = summary_rows(fit, system, capacity_source)
     print(_table(["quantity", "fitted", f"{rows[0][4]} interval", ""],
                  [r[:4] for r in rows]))
-    print(f"Residual: RMS {fit.residual_rms:.3g} K, largest {fit.residual_max:.3g} K; "
+    print(f"Residual: RMS {_q(fit.residual_rms, 'temperature_difference', system)}, largest "
+          f"{_q(fit.residual_max, 'temperature_difference', system)}; "
           f"lag-1 autocorrelation {fit.residual_autocorrelation:.2f}"
           + (f" (intervals widened x{fit.interval_widening:.2f} for it)"
              if fit.interval_widening > 1.0 else ""))
@@ -247,15 +296,27 @@ def print_text(log, fit, comparison, system, capacity_source):
               + (f" ({_iv(c['measured_cooler_duty_W_interval'], 'power', system)})"
                  if c.get("measured_cooler_duty_W_interval") else "")
               + "  (heat and UA of the model scaled by the factors above)")
+        if c.get("file_heat_calibration_factor", 1.0) != 1.0:
+            print(f"  the file's heat_calibration = {c['file_heat_calibration_factor']:.6g} is left "
+                  "out of the model figures above")
+        for line in calibration_advice(c, fit, scenario_path or "the scenario file"):
+            print(f"  {line}")
     print(CAUTION)
 
 
-def figure(log, fit):
+def figure(log, fit, system="si"):
     """The log with the fitted model (plotly figure: temperatures, residual,
-    running state)."""
+    running state), temperatures in *system*'s units ("si" or "us")."""
     import plotly.graph_objects as go
     from plotly.subplots import make_subplots
     from heatload.outputs.report_assets import PALETTE
+    from heatload.units import display_unit, from_si, pretty_unit
+
+    t_unit = display_unit("temperature", system)
+    dt_unit = display_unit("temperature_difference", system)
+
+    def temp(v):
+        return from_si(np.asarray(v, float), "temperature", t_unit)
 
     n = len(log.time)
     step = max(1, n // 4000)               # a few thousand points draw fast
@@ -264,23 +325,25 @@ def figure(log, fit):
     heights = [0.6, 0.2, 0.2][:rows]
     fig = make_subplots(rows=rows, cols=1, shared_xaxes=True, row_heights=heights,
                         vertical_spacing=0.05)
-    fig.add_trace(go.Scatter(x=th, y=log.values["oil"][::step] - K0, mode="markers",
+    fig.add_trace(go.Scatter(x=th, y=temp(log.values["oil"][::step]), mode="markers",
                              name="oil, logged", marker=dict(size=3, color=PALETTE[0])),
                   row=1, col=1)
-    fig.add_trace(go.Scatter(x=th, y=fit.fitted[::step] - K0, mode="lines", name="oil, fitted",
+    fig.add_trace(go.Scatter(x=th, y=temp(fit.fitted[::step]), mode="lines", name="oil, fitted",
                              line=dict(color=PALETTE[3], width=2)), row=1, col=1)
-    fig.add_trace(go.Scatter(x=th, y=log.values["ambient"][::step] - K0, mode="lines",
+    fig.add_trace(go.Scatter(x=th, y=temp(log.values["ambient"][::step]), mode="lines",
                              name="ambient", line=dict(color=PALETTE[2], width=1)),
                   row=1, col=1)
-    fig.add_trace(go.Scatter(x=th, y=fit.residuals[::step], mode="lines", name="residual",
+    fig.add_trace(go.Scatter(x=th, y=from_si(np.asarray(fit.residuals[::step], float),
+                                             "temperature_difference", dt_unit),
+                             mode="lines", name="residual",
                              line=dict(color=PALETTE[7], width=1)), row=2, col=1)
     if rows == 3:
         fig.add_trace(go.Scatter(x=th, y=log.values["running"][::step], mode="lines",
                                  name="running", line=dict(color=PALETTE[1], shape="hv"),
                                  fill="tozeroy"), row=3, col=1)
         fig.update_yaxes(title_text="running", range=[-0.05, 1.05], row=3, col=1)
-    fig.update_yaxes(title_text="temperature [°C]", row=1, col=1)
-    fig.update_yaxes(title_text="residual [K]", row=2, col=1)
+    fig.update_yaxes(title_text=f"temperature [{pretty_unit(t_unit)}]", row=1, col=1)
+    fig.update_yaxes(title_text=f"residual [{pretty_unit(dt_unit)}]", row=2, col=1)
     fig.update_xaxes(title_text="time [h]", row=rows, col=1)
     fig.update_layout(width=680, height=560, template="plotly_white",
                       margin=dict(l=64, r=20, t=46, b=50),
@@ -319,12 +382,15 @@ def build_html(log, fit, comparison, system="si", capacity_source="given") -> st
                 f"<tr><td>cooler duty at the design point</td><td class='num'>model "
                 f"{e(_q(c['model_cooler_duty_W'], 'power', system))}; from the measurement "
                 f"{e(_q(c['measured_cooler_duty_W'], 'power', system))}</td></tr>"
+                f"<tr><td>to apply the factor</td><td>"
+                f"{e(' '.join(calibration_advice(c, fit, 'the scenario file')))}</td></tr>"
                 "</tbody></table>")
-    div = pio.to_html(figure(log, fit), include_plotlyjs=True, full_html=False,
+    div = pio.to_html(figure(log, fit, system), include_plotlyjs=True, full_html=False,
                       config={"displaylogo": False})
     body = (f"<header class='title'><h1>Temperature log fit — {e(log.source)}</h1>"
             f"<div class='meta'>{fit.samples:,} samples over {fit.duration / 3600:.3g} h; "
-            f"residual RMS {fit.residual_rms:.3g} K</div></header>"
+            f"residual RMS {e(_q(fit.residual_rms, 'temperature_difference', system))}"
+            "</div></header>"
             "<p>Model: C dT/dt = P·running − UA (T − T<sub>ambient</sub>), solved exactly "
             "between samples and fitted by least squares to the logged oil temperature.</p>"
             f"<table><thead><tr><th>quantity</th><th class='num'>fitted</th>"
@@ -384,11 +450,15 @@ def run_logfit(args) -> int:
         rec.update(file=str(args.log), columns=dict(log.headers), units=dict(log.units),
                    start=log.start.isoformat() if log.start else None,
                    scenario=comparison, caution=CAUTION,
+                   heat_calibration_line=(
+                       calibration_line(comparison["heat_calibration_factor"])
+                       if comparison is not None
+                       and comparison["heat_calibration_factor"] is not None else None),
                    heat_capacity_note=CAPACITY_NOTE if fit.capacity is not None else None)
         print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False,
                          default=_json_default))
         return 0
-    print_text(log, fit, comparison, args.units, source)
+    print_text(log, fit, comparison, args.units, source, args.scenario)
     if out:
         print(f"wrote {out}")
     return 0

@@ -103,8 +103,11 @@ def parse_prices(items, scenario) -> dict:
 
 
 def payback_rows(data, present, prices=None) -> list:
-    """Per strategy: price, extra price over the present circuit, yearly cost saving,
-    simple payback (``tables.payback_years``); None where a price is unknown."""
+    """Per strategy: circuit price, extra price over the present circuit (the
+    circuits' difference plus that of the coolers each needs), yearly saving of
+    electricity (circuit and cooler fan, :func:`heatload.outputs.tables.running_cost_saving`;
+    cooling water is not priced), simple payback (``tables.payback_years``);
+    None where a price is unknown."""
     from heatload.outputs import tables
 
     prices = dict(prices or {})
@@ -112,14 +115,15 @@ def payback_rows(data, present, prices=None) -> list:
     base = next(r for r in data["strategies"] if r["label"] == present)
     rows = []
     for r in data["strategies"]:
-        saving = base["cost_per_year"] - r["cost_per_year"]
+        saving = tables.running_cost_saving(base, r)
         # prices are extra prices over the present circuit: the present one's is 0
         # unless the file gives both on one footing
         p, p0 = price[r["label"]], price[present]
         p0 = 0.0 if p0 is None else p0
         if r["label"] == present:
             p = p0
-        extra = (p - p0) if p is not None else None
+        extra = ((p - p0) + tables.cooler_price_difference(base, r)
+                 if p is not None else None)
         if extra is None:
             years = None
         elif extra <= 0:
@@ -478,6 +482,13 @@ def assumptions(scenario, data=None, system="si") -> list:
                   "scenario"))
     A(_assumption("shift length", f"{sc.shift_duration / 3600:.1f} h", "scenario", "time",
                   sc.shift_duration))
+    if sc.heat_calibration != 1.0:
+        from heatload.outputs.wording import calibration_note
+        A(_assumption("heat calibration (measured / model heat)",
+                      f"× {sc.heat_calibration:.3g} on every strategy's heat into the oil",
+                      "scenario (heat_calibration, from a temperature log: heatload logfit); "
+                      + calibration_note(sc.heat_calibration), "dimensionless",
+                      sc.heat_calibration))
     for u in sc.uncertainty:
         kind = None if u.relative else resolve_path(sc, u.path).kind
         span = (f"x {u.low:g} .. {u.high:g} of the nominal" if u.relative
@@ -558,9 +569,12 @@ def _cooler_html(rec, sz, unc):
                      f"{'enough' if r['suffices'] else 'not enough'}.</p>")
     t = rec.get("thermostat")
     if t and rec["cooler_needed"]:
+        which = (f"the cooler ({_e(t['cooler'])}, by its datasheet curve)" if t.get("cooler")
+                 else "the cooler")
         parts.append(f"<p>With a thermostat (on at {t['on_temperature_C']:.1f} °C, hysteresis "
-                     f"{t['hysteresis_K']:.0f} K) the cooler switches on {tables.times(t['switch_count'])} "
-                     f"in a {t['shift_duration_s'] / 3600:.1f} h shift and runs "
+                     f"{t['hysteresis_K']:.0f} K) {which} switches on "
+                     f"{tables.times(t['switch_count'])} "
+                     f"in {sizing_mod.shift_words(t['shift_duration_s'])} and runs "
                      f"{100 * t['on_fraction']:.0f} % of the time; the oil peaks at "
                      f"{t['max_temperature_C']:.1f} °C.</p>")
     parts.append("<h3>Uncertainty</h3>")
@@ -777,9 +791,10 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
             lead += ("<p>Payback: no price is known for this circuit (give one with "
                      f"<code>--price {_e(rec_name)}=AMOUNT</code>).</p>")
         elif pay["payback_years"] is not None:
-            lead += (f"<p>Its extra price of {_grouped(pay['extra_price'])} {_e(cur)} pays back in "
+            lead += (f"<p>Its extra price of {_grouped(pay['extra_price'])} {_e(cur)} (circuit "
+                     "and cooler) pays back in "
                      f"<b>{_num(pay['payback_years'], 2)} years</b> from the electricity "
-                     "saved.</p>")
+                     "saved (circuit and cooler fan).</p>")
     keyfig = (
         '<div class="keyfigures">'
         f'<div class="keyfigure"><div class="label">recommended</div><div class="value">'
@@ -841,6 +856,8 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
                     + _cell(p["price"], _grouped(p["price"]), p["strategy"], "price")
                     + _cell(v.cost.cooler_price, _grouped(v.cost.cooler_price), p["strategy"],
                             "cooler_price")
+                    + _cell(p["extra_price"], _grouped(p["extra_price"]), p["strategy"],
+                            "extra_price")
                     + _cell(v.cost.total, _grouped(v.cost.total), p["strategy"],
                             "yearly_cost_total")
                     + _cell(p["cost_saving_per_year"], _grouped(p["cost_saving_per_year"]),
@@ -850,8 +867,10 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
                             "payback_years") + "</tr>")
     payback = _table([("strategy", ""), (f"circuit price [{cur}]", "num"),
                       (f"cooler price [{cur}]", "num"),
+                      (f"extra price vs {present}, circuit + cooler [{cur}]", "num"),
                       (f"cost of ownership [{cur}/year]", "num"),
-                      (f"electricity saved vs {present} [{cur}/year]", "num"),
+                      (f"electricity saved vs {present}, circuit + cooler fan "
+                       f"[{cur}/year]", "num"),
                       ("simple payback [years]", "num")], prow)
     notes = "".join(f'<p class="note">Note: {_e(n)}.</p>' for n in dec.notes)
 
@@ -875,10 +894,13 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
                          ensure_ascii=True, allow_nan=False).replace("</", "<\\/")
     desc = f"<p>{_e(scenario.description)}</p>" if scenario.description else ""
     unit_word = "US customary" if rd.get("system") == "us" else "SI"
+    from heatload.outputs.wording import calibration_note
+    note = calibration_note(scenario.heat_calibration)
+    calibrated = f'<p class="note" id="heat-calibration">{_e(note)}</p>' if note else ""
     body = f"""
 <header class="title"><h1>{_e(scenario.name)} — heat load and control strategies</h1>
 <div class="meta">{meta}</div>{_cover_html(rd['cover'])}</header>
-<section id="summary"><h2>1 Decision</h2>{lead}{keyfig}{desc}
+<section id="summary"><h2>1 Decision</h2>{lead}{keyfig}{desc}{calibrated}
 <div class="caution">{_e(CAUTION)}</div></section>
 <section id="comparison"><h2>2 Strategies compared</h2>
 <p>Ranked by the decision rule: circuits that can do the job first, then by yearly cost of
@@ -891,7 +913,9 @@ ownership. The recommended row is highlighted; ruled-out rows are grey.</p>
 <section id="payback"><h2>7 Cost of ownership and payback</h2>
 <p>Yearly cost of ownership = electricity of the circuit and of the cooler's fan + (circuit price
 + cooler price) x the capital recovery factor over the service life. Simple payback = extra price
-over the present circuit / yearly electricity saving. Prices are the scenario's or given on the
+over the present circuit (the circuits' price difference plus that of the coolers each needs) /
+yearly saving of electricity (the circuit's and the cooler fan's). Cooling water is not counted:
+the scenario gives no water price. Prices are the scenario's or given on the
 command line.</p>{payback}{notes}</section>
 <section id="warnings"><h2>8 Warnings</h2>{_warnings_html(data, rd.get("system", "si"))}</section>
 <section id="assumptions" class="appendix"><h2>Appendix: assumptions and methods ({unit_word}

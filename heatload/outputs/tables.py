@@ -85,7 +85,9 @@ def strategy_record(outcome, scenario, pa, with_phases=True) -> dict:
     rec = {
         "strategy": outcome.strategy.kind,
         "label": outcome.name,
-        "heat_to_oil_W": _f(e.average_heat_to_oil),
+        # the thermal step's heat (x the file's heat_calibration); the per-cycle
+        # energies below are the model's bookkeeping
+        "heat_to_oil_W": _f(th.heat_running),
         "electric_power_average_W": _f(e.average_electric_power),
         "electric_energy_per_cycle_J": _f(e.electric_energy_per_cycle),
         "heat_to_oil_per_cycle_J": _f(e.heat_to_oil_per_cycle),
@@ -151,6 +153,7 @@ def comparison_dict(cmp, source=None, with_phases=True, present=None, prices=Non
             "design_oil_temperature_C": (ranked[0].thermal.design_oil_temperature - K0
                                          if ranked else None),
             "present_strategy": sc.economics.present_strategy,
+            "heat_calibration_factor": float(sc.heat_calibration),
         },
         "recommended": dec.recommended,
         "decision": {k: v for k, v in dec.as_dict().items() if k != "ranking"},
@@ -206,6 +209,25 @@ def savings_against(cmp, present: str | None = None) -> dict:
                        "cost_saving": float(base.energy.cost_per_year - o.energy.cost_per_year),
                        "co2_saving_kg": float(base.energy.co2_per_year - o.energy.co2_per_year)}
     return out
+
+
+def running_cost_saving(base: dict, candidate: dict) -> float:
+    """Electricity cost a year that *candidate* saves against *base* (strategy
+    records of :func:`comparison_dict`) [currency/year]: the circuit's and the
+    cooler fan's.  Cooling water is not counted (the scenario has no water price)."""
+    def bought(r):
+        yc = r.get("yearly_cost") or {}
+        return float(yc.get("energy", r.get("cost_per_year")) or 0.0) + float(
+            yc.get("fan") or 0.0)
+    return bought(base) - bought(candidate)
+
+
+def cooler_price_difference(base: dict, candidate: dict) -> float:
+    """Price of the cooler *candidate* needs less that of *base*'s [currency]
+    (strategy records of :func:`comparison_dict`; a smaller cooler saves)."""
+    def price(r):
+        return float((r.get("yearly_cost") or {}).get("cooler_price") or 0.0)
+    return price(candidate) - price(base)
 
 
 def payback_years(extra_price, yearly_saving):

@@ -200,3 +200,22 @@ def plain_path(path: str, scenario=None) -> str:
             return f"{_words(key)} of {noun} {parts[1]}"
     words = [w for w in (_PART_WORDS.get(p, _words(p)) for p in parts[:-1]) if w]
     return " ".join(words + [_words(parts[-1])])
+
+
+def calibration_note(factor) -> str | None:
+    """What the file's ``heat_calibration`` does, for every output that uses
+    it; None when it is 1 (the model as it stands).
+
+    >>> calibration_note(1.31)[:52]
+    'Heat into the oil × 1.31 (heat_calibration, measured'
+    >>> calibration_note(1.0) is None
+    True
+    """
+    f = float(factor)
+    if f == 1.0:
+        return None
+    return (f"Heat into the oil × {f:.3g} (heat_calibration, measured / model heat of the "
+            "present circuit) for every strategy: oil temperatures, cooler duties and the "
+            "cooler's price and fan include it; the circuits' electricity and their losses "
+            "per phase and component are the model's at the oil temperature that follows, "
+            "not scaled.")

@@ -371,6 +371,10 @@ def run_cli(args) -> int:
     df = run_sweep(scenario, values, strategies, progress=True,
                    thermal=True if coupled else "design")
     out = sys.stdout
+    from heatload.outputs.wording import calibration_note
+    note = calibration_note(scenario.heat_calibration)
+    if note:        # the file's measured / model heat factor, said in the file too
+        df["heat_calibration_factor"] = float(scenario.heat_calibration)
     if args.output:
         written = write_table(df, args.output, force=args.force)
         print(f"wrote {len(df)} rows to {written}", file=out)
@@ -380,6 +384,8 @@ def run_cli(args) -> int:
           + ("coupled oil temperature" if coupled else
              "figures at the design oil temperature, steady temperature without a cooler "
              "uncoupled (--coupled for the self-consistent one)"), file=out)
+    if note:
+        print(note, file=out)
     top = args.top if args.top is not None else 10
     width = getattr(args, "width", None)
     # The decision rule (heatload.decision): feasible first, then yearly cost of

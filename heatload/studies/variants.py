@@ -93,7 +93,9 @@ def _figures(result, ev, n):
     cycles = hours * 3600.0 / s.cycle_time
     e_year = s.electric_energy_per_cycle * cycles
     col = evaluation._col
-    return {"cycle_time": col(s.cycle_time, n), "heat": col(s.average_heat_to_oil, n),
+    # heat into the oil as the thermal step takes it (x the file's heat_calibration)
+    heat = ev.heat_calibration * s.average_heat_to_oil
+    return {"cycle_time": col(s.cycle_time, n), "heat": col(heat, n),
             "e_cycle": col(s.electric_energy_per_cycle, n), "e_year": col(e_year, n),
             "cost": col(e_year * price, n), "peak": col(s.peak_pressure, n)}
 

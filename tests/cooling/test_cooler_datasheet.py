@@ -155,3 +155,56 @@ def test_cooler_command_lists_the_datasheet_coolers(capsys):
     assert main(["cooler", str(LIFT), "--samples", "20", "--json"]) == 0
     rec = json.loads(capsys.readouterr().out)
     assert rec["datasheet_coolers"]["chosen"] == "AO-2 (invented)"
+
+
+def _by_hand(curve, q):
+    """Linear interpolation in the datasheet points, (0, 0) first, held beyond the last."""
+    pts = [(0.0, 0.0)] + [tuple(p) for p in curve]
+    if q >= pts[-1][0]:
+        return pts[-1][1]
+    for (q1, s1), (q2, s2) in zip(pts, pts[1:]):
+        if q1 <= q <= q2:
+            return s1 + (s2 - s1) * (q - q1) / (q2 - q1)
+    raise AssertionError(q)
+
+
+def test_sizing_thermostat_shift_runs_on_the_chosen_coolers_curve(lift):
+    from heatload.heat import thermal
+    sc, outcome, sel = lift
+    sz = sizing.size_cooler(sc, outcome)
+    t = sz.thermostat
+    assert t["cooler"] == sel.chosen == "AO-2 (invented)"
+    curve = next(c for c in sc.coolers if c.name == t["cooler"]).specific_power
+    # S over the cycle: the curve at each phase's return flow Q_pump - Q_1 + Q_2,
+    # time-averaged over the phases, worked by hand
+    r = outcome.circuit
+    q_ret = np.maximum(r.pump_flow - r.actuator_flow + r.outlet_flow, 0.0)
+    s_hand = sum(_by_hand(curve, q) * d for q, d in zip(q_ret, r.duration)) / sum(r.duration)
+    assert t["cooler_specific_power_W_K"] == pytest.approx(s_hand, rel=1e-12)
+    # the shift with that conductance: C dT/dt = Q - UA (T - Ta) - S (T - Ta) while on
+    th, amb = outcome.thermal, sc.ambient
+    ua = float(chain.conductance_fn(sc, amb.temperature)(th.steady_coupled))
+    run = thermal.thermostat_cooler_run(
+        th.phase_heat, th.phase_durations, th.capacity, ua, amb.temperature,
+        amb.cold_start_temperature, sc.shift_duration,
+        sc.cooler.thermostat_on or th.design_oil_temperature, sc.cooler.thermostat_hysteresis,
+        cooler_conductance=s_hand)
+    assert t["on_fraction"] == pytest.approx(float(run.on_fraction), rel=1e-9)
+    assert t["switch_count"] == len(run.switch_on_times)
+    assert t["max_temperature_K"] == pytest.approx(float(np.max(run.maximum_temperature)),
+                                                   rel=1e-12)
+    # the curve's cooler is not the sized duty: the fan runs for another share
+    duty_run = sizing.thermostat_summary(sc, outcome)
+    assert duty_run["cooler"] is None
+    assert abs(duty_run["on_fraction"] - t["on_fraction"]) > 0.01
+    # the same selection is shown and written (one rating, not two)
+    assert sizing.sizing_record(sz)["thermostat"]["cooler"] == "AO-2 (invented)"
+
+
+def test_sizing_thermostat_falls_back_to_the_duty_when_no_listed_cooler_holds(lift):
+    sc, outcome, _ = lift
+    small = dataclasses.replace(sc, coolers=tuple(c for c in sc.coolers
+                                                  if c.name == "AO-1 (invented)"))
+    sz = sizing.size_cooler(small, outcome)
+    assert sz.datasheet.chosen is None and sz.thermostat["cooler"] is None
+    assert any("uses the sized duty" in n for n in sz.notes)

@@ -192,11 +192,16 @@ def test_payback_by_hand(built):
     r = next(x for x in rows if x["strategy"] == "load-sensing")
     base = next(x for x in data["strategies"] if x["label"] == "meter-in")
     ls = next(x for x in data["strategies"] if x["label"] == "load-sensing")
-    saving = base["cost_per_year"] - ls["cost_per_year"]
+    # electricity saved: the circuit's and the cooler fan's
+    saving = (base["cost_per_year"] + base["yearly_cost"]["fan"]
+              - ls["cost_per_year"] - ls["yearly_cost"]["fan"])
     price0 = base["price"] or 0.0
+    # the extra price: the circuits' difference and the coolers' (a smaller one saves)
+    cooler = ls["yearly_cost"]["cooler_price"] - base["yearly_cost"]["cooler_price"]
     # simple payback = extra price / yearly saving (definition)
-    assert r["extra_price"] == pytest.approx(4200.0 - price0)
-    assert r["payback_years"] == pytest.approx((4200.0 - price0) / saving, rel=1e-12)
+    assert r["extra_price"] == pytest.approx(4200.0 - price0 + cooler)
+    assert r["cost_saving_per_year"] == pytest.approx(saving, rel=1e-12)
+    assert r["payback_years"] == pytest.approx((4200.0 - price0 + cooler) / saving, rel=1e-12)
     with pytest.raises(HeatloadError) as e:
         report.parse_prices(["nothing=3"], sc)
     assert e.value.field == "--price"
@@ -214,10 +219,14 @@ def test_a_price_given_alone_is_the_extra_price_over_the_present(built):
     rows = {r["strategy"]: r for r in report.payback_rows(data, "meter-in",
                                                           {"variable-speed": 6000.0})}
     assert rows["meter-in"]["extra_price"] == 0.0
-    assert rows["variable-speed"]["extra_price"] == 6000.0
+    recs = {r["label"]: r for r in data["strategies"]}
+    cooler = (recs["variable-speed"]["yearly_cost"]["cooler_price"]
+              - recs["meter-in"]["yearly_cost"]["cooler_price"])
+    assert rows["variable-speed"]["extra_price"] == pytest.approx(6000.0 + cooler)
     saving = rows["variable-speed"]["cost_saving_per_year"]
     assert saving > 0
-    assert rows["variable-speed"]["payback_years"] == pytest.approx(6000.0 / saving, rel=1e-12)
+    assert rows["variable-speed"]["payback_years"] == pytest.approx((6000.0 + cooler) / saving,
+                                                                    rel=1e-12)
     assert rows["load-sensing"]["extra_price"] is None
 
 
