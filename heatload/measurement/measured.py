@@ -86,7 +86,7 @@ def fit_log(log, capacity=None, confidence=0.95):
 def calibration_advice(comparison, fit, path) -> list:
     """Lines saying how to apply the heat factor of *comparison* to the file
     *path* (the exact line to add), or why it should not be applied."""
-    from heatload.io import HEAT_CALIBRATION_RANGE
+    from heatload.io.schema import HEAT_CALIBRATION_RANGE
 
     f = comparison["heat_calibration_factor"]
     now = comparison.get("file_heat_calibration_factor", 1.0)
