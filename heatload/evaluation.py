@@ -37,7 +37,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from heatload import checks, circuits, cooler, cycle, heat_transfer, oil
+from heatload import checks, circuits, cooler, cycle, heat_transfer, lines, oil, valves
 from heatload import thermal as lumped
 from heatload.errors import HeatloadError
 from heatload.model import STRATEGIES, Scenario, Strategy, design_oil_temperature
@@ -87,6 +87,21 @@ def _take(c: dict, idx) -> dict:
             for k, v in c.items() if k != "shape"}
 
 
+def check_components(c: dict) -> None:
+    """The checks the solver's inner loop leaves out, once per batch: the valves'
+    and lines' fields of the solver inputs *c* through the checked public
+    functions (at zero flow), so a sweep's override that breaks a rule no single
+    field states (a check valve's rated drop below its cracking pressure) is
+    refused by the same message as a direct call.  The oil's density and
+    viscosity come from the fluid model and are checked there."""
+    valves.check_valve_pressure_drop(0.0, c["check_cracking"], c["check_rated_flow"],
+                                     c["check_rated_drop"])
+    valves.valve_path_pressure_drop(0.0, c["dv_rated_flow"], c["dv_rated_drop"])
+    for side in ("pline", "rline"):
+        lines.line_pressure_drop(0.0, c[f"{side}_d"], c[f"{side}_l"], 1.0, 1.0,
+                                 c[f"{side}_rough"], c[f"{side}_k"])
+
+
 class Builder:
     """Solver inputs of N variants of one strategy with the oil temperature left open.
 
@@ -106,6 +121,7 @@ class Builder:
         base.update(cycle.strategy_arrays(scenario, strategy, values))
         self.base = base
         self.n_phases = len(scenario.phases)
+        check_components(base)
 
     def inputs(self, t_oil, rows=None) -> dict:
         t = np.asarray(t_oil, dtype=float)

@@ -242,10 +242,32 @@ def line_pressure_drop(flow, inner_diameter, length, density, kinematic_viscosit
     shape = np.broadcast_shapes(np.shape(flow), np.shape(inner_diameter), np.shape(length),
                                 np.shape(density), np.shape(kinematic_viscosity),
                                 np.shape(roughness), np.shape(fittings_k))
+    return _out(_line_drop(q, d, ell, rho, nu, eps, k, shape))
+
+
+def line_pressure_drop_unchecked(flow, inner_diameter, length, density, kinematic_viscosity,
+                                 roughness, fittings_k):
+    """:func:`line_pressure_drop` without its input checks, for the solver's inner
+    loop: float arrays whose fields the loader (:mod:`heatload.io`) and the
+    sweep's overrides (:class:`heatload.paths.Overrides`) checked once.
+
+    Returns an array of the broadcast shape of the arguments [Pa].
+    """
+    shape = np.broadcast_shapes(np.shape(flow), np.shape(inner_diameter), np.shape(length),
+                                np.shape(density), np.shape(kinematic_viscosity),
+                                np.shape(roughness), np.shape(fittings_k))
+    c = _compact
+    return _line_drop(np.asarray(flow), c(np.asarray(inner_diameter)), c(np.asarray(length)),
+                      c(np.asarray(density)), c(np.asarray(kinematic_viscosity)),
+                      c(np.asarray(roughness)), c(np.asarray(fittings_k)), shape)
+
+
+def _line_drop(q, d, ell, rho, nu, eps, k, shape):
+    """The equation of :func:`line_pressure_drop` on checked arrays."""
     v = 4.0 * q / (math.pi * d * d)
     re = np.abs(v) * d / nu
     f_re = _friction_times_re(re, eps / d)
     friction = f_re * nu * rho * ell * v / (2.0 * d * d)
     minor = k * rho * v * np.abs(v) / 2.0
     dp = friction + minor
-    return _out(dp if dp.shape == shape else np.broadcast_to(dp, shape))
+    return dp if dp.shape == shape else np.broadcast_to(dp, shape)
