@@ -143,24 +143,35 @@ class Builder:
 # the surfaces' conductance UA(T)
 # ---------------------------------------------------------------------------
 
-def _table_rows(reservoir, altitude, keys):
-    """UA nodes (U, 160) for the distinct (air temperature, user h or -1) *keys*."""
-    uniq = np.asarray(keys, float).reshape(-1, 2)
+def _table_nodes(uniq):
+    """Oil temperatures [K] of the table's nodes (U, 160) for the key rows *uniq* (U, 2)."""
+    return np.linspace(uniq[:, 0] - 20.0, TABLE_TOP, TABLE_POINTS, axis=-1)
+
+
+def _node_values(reservoir, altitude, t, air, h):
+    """UA [W/K] at oil temperatures *t* with air temperatures *air* and user
+    coefficients *h* (-1: none), element by element (same shapes)."""
     pressure = heat_transfer.barometric_pressure(altitude)
-    t = np.linspace(uniq[:, 0] - 20.0, TABLE_TOP, TABLE_POINTS, axis=-1)
-    ta = np.broadcast_to(uniq[:, :1], t.shape)
-    free = uniq[:, 1] < 0.0
+    free = h < 0.0
     ua = np.empty(t.shape)
     if free.any():
-        ua[free] = heat_transfer.reservoir_conductance(reservoir, t[free], ta[free], pressure)
+        ua[free] = heat_transfer.reservoir_conductance(reservoir, t[free], air[free], pressure)
     if (~free).any():
         # a user coefficient h: UA = h A_eff + further surfaces (linear in h)
         unit = heat_transfer.reservoir_heat_transfer(
             dataclasses.replace(reservoir, heat_transfer_coefficient=1.0),
-            t[~free], ta[~free], pressure)
+            t[~free], air[~free], pressure)
         own = unit.conductance - unit.surfaces
-        ua[~free] = uniq[~free, 1:2] * own + unit.surfaces
-    return t, ua
+        ua[~free] = h[~free] * own + unit.surfaces
+    return ua
+
+
+def _table_rows(reservoir, altitude, keys):
+    """UA nodes (U, 160) for the distinct (air temperature, user h or -1) *keys*."""
+    uniq = np.asarray(keys, float).reshape(-1, 2)
+    t = _table_nodes(uniq)
+    return t, _node_values(reservoir, altitude, t, np.broadcast_to(uniq[:, :1], t.shape),
+                           np.broadcast_to(uniq[:, 1:2], t.shape))
 
 
 @lru_cache(maxsize=64)
@@ -190,13 +201,22 @@ class ConductanceTable:
         key = np.stack([air, h], axis=-1).reshape(-1, 2)
         if np.all(key == key[:1]):  # one air temperature and tank for all: no sort
             uniq, inverse = key[:1], np.zeros(len(key), int)
+        elif np.all(key[:, 1] == key[0, 1]):  # one tank: a plain sort of the air
+            air_u, inverse = np.unique(key[:, 0], return_inverse=True)
+            uniq = np.stack([air_u, np.full(len(air_u), key[0, 1])], axis=-1)
         else:
             uniq, inverse = np.unique(key, axis=0, return_inverse=True)
+        self._lazy = None
         if len(uniq) <= 8:
             self.t, self.ua = _cached_rows(scenario.reservoir, float(scenario.ambient.altitude),
                                            tuple(map(tuple, uniq.tolist())))
         else:
-            self.t, self.ua = _table_rows(scenario.reservoir, scenario.ambient.altitude, uniq)
+            # many tables (a Monte Carlo of the ambient): each node computed when a
+            # lookup first reads it, a few per row instead of all 160
+            self.t = _table_nodes(uniq)
+            self.ua = np.empty(self.t.shape)
+            self._lazy = (scenario.reservoir, scenario.ambient.altitude, uniq,
+                          np.zeros(self.t.shape, bool))
         self.row = inverse.reshape(-1)
         self.factor = np.broadcast_to(np.asarray(factor, float), self.row.shape)
         self.t0 = self.t[:, 0]
@@ -214,13 +234,30 @@ class ConductanceTable:
         j = np.where((j > 0) & (t < xs[row, j]), j - 1, j)
         j = np.where((j < m - 2) & (t >= xs[row, j + 1]), j + 1, j)
         x0, x1 = xs[row, j], xs[row, j + 1]
+        below, above = t < xs[row, 0], t >= xs[row, -1]
+        if self._lazy is not None:
+            self._fill(row, j, below, above)
         y0, y1 = ys[row, j], ys[row, j + 1]
         slope = (y1 - y0) / (x1 - x0)
         ua = slope * (t - x0) + y0
-        below, above = t < xs[row, 0], t >= xs[row, -1]
         ua = np.where(below, ys[row, 0], np.where(above, ys[row, -1], ua))
         slope = np.where(below | above, 0.0, slope)
         return ua * f, slope * f
+
+    def _fill(self, row, j, below, above):
+        """Compute the nodes a lookup reads (rows *row*, segments *j*, the ends
+        where *below* / *above*) that are not known yet."""
+        reservoir, altitude, uniq, known = self._lazy
+        m = self.t.shape[1]
+        flat = (row * m)[..., None] + np.stack([j, j + 1, np.where(below, 0, j),
+                                                np.where(above, m - 1, j)], axis=-1)
+        flat = np.unique(flat)
+        flat = flat[~known.reshape(-1)[flat]]
+        if flat.size:
+            r = flat // m
+            self.ua.reshape(-1)[flat] = _node_values(reservoir, altitude, self.t.reshape(-1)[flat],
+                                                     uniq[r, 0], uniq[r, 1])
+            known.reshape(-1)[flat] = True
 
     def fn(self, row=0):
         """UA(T) [W/K] of one row as a plain vectorized function of T."""
