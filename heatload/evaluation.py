@@ -32,6 +32,7 @@ interpolation).
 from __future__ import annotations
 
 import dataclasses
+import math
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -261,11 +262,39 @@ class ConductanceTable:
 
     def fn(self, row=0):
         """UA(T) [W/K] of one row as a plain vectorized function of T."""
+        r = int(self.row[row])
+        scalar = None
+        if self._lazy is None:
+            # one temperature at a time (a warm-up's steps): the same formula as
+            # __call__ in plain floats, without the array passes
+            xs, ys = self.t[r].tolist(), self.ua[r].tolist()
+            scalar = (xs, ys, float(self.t0[r]), float(self.step[r]), float(self.factor[row]))
+
         def ua(t_oil):
+            if scalar is not None and np.ndim(t_oil) == 0 and math.isfinite(t_oil):
+                return _interpolate(float(t_oil), *scalar)
             t = np.asarray(t_oil, float)
             v, _ = self(t.ravel(), np.full(t.size, row))
             return v.reshape(t.shape) if t.ndim else float(v[0])
         return ua
+
+
+def _interpolate(t, xs, ys, t0, step, factor):
+    """:meth:`ConductanceTable.__call__`'s UA of one row at one temperature, in floats."""
+    m = len(xs)
+    j = min(max(math.floor((t - t0) / step), 0), m - 2)
+    if j > 0 and t < xs[j]:
+        j -= 1
+    if j < m - 2 and t >= xs[j + 1]:
+        j += 1
+    if t < xs[0]:
+        v = ys[0]
+    elif t >= xs[-1]:
+        v = ys[-1]
+    else:
+        x0, y0 = xs[j], ys[j]
+        v = (ys[j + 1] - y0) / (xs[j + 1] - x0) * (t - x0) + y0
+    return v * factor
 
 
 steady_temperature = lumped.steady_temperature

@@ -118,3 +118,27 @@ def test_rows_of_a_batch_do_not_depend_on_each_other():
     one = variants.evaluate_variants(sc, "meter-in", {"power_unit.pump.displacement": vals[1:2]})
     for f in ("electric_energy_per_cycle", "oil_temperature_steady", "cooler_duty"):
         _close(getattr(many, f)[1], getattr(one, f)[0], 1e-12)
+
+
+def test_conductance_of_one_temperature_equals_the_table_lookup():
+    # the warm-up's scalar path and the vectorized lookup are one formula:
+    # equal to the last bit, at the nodes, between them and beyond the ends
+    sc = io.load_scenario(io.default_scenario_path())
+    table = evaluation.ConductanceTable(sc, [300.0], np.nan, 1.3)
+    ua = table.fn(0)
+    t = np.concatenate([np.linspace(250.0, 560.0, 4001), table.t[0],
+                        [table.t[0, 0] - 1e-9, evaluation.TABLE_TOP, 600.0]])
+    assert np.array_equal([ua(float(x)) for x in t], ua(t))
+
+
+def test_many_air_temperatures_give_the_lookups_of_their_own_tables():
+    # > 8 air temperatures compute only the nodes a lookup reads; each row
+    # must read what the full table of its own air temperature gives
+    sc = io.load_scenario(io.default_scenario_path())
+    air = np.linspace(280.0, 320.0, 12)
+    many = evaluation.ConductanceTable(sc, air)
+    t_oil = np.linspace(270.0, 540.0, 12)
+    got, slope = many(t_oil)
+    for i, (ta, t) in enumerate(zip(air, t_oil)):
+        one, one_slope = evaluation.ConductanceTable(sc, [ta])(np.array([t]))
+        assert got[i] == one[0] and slope[i] == one_slope[0]
