@@ -7,6 +7,7 @@ Pure, vectorized functions; SI inside: flow [m^3/s], lengths [m], density
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 
 import numpy as np
 
@@ -114,6 +115,8 @@ def _friction_times_re(re, ed):
     """
     re = np.asarray(re, float)
     ed = np.asarray(ed, float)
+    if ed.ndim == 0 and re.size <= _SMALL:
+        return _friction_times_re_small(re, float(ed))
     shape = np.broadcast_shapes(re.shape, ed.shape)
     out = np.full(shape, 64.0)
     f_2000 = 64.0 / RE_LAMINAR
@@ -137,6 +140,32 @@ def _friction_times_re(re, ed):
         w = (r - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
         out[mid] = (f_2000 + (f_4000 - f_2000) * w) * r
     return out
+
+
+#: Up to this many elements the friction factor is computed on whole arrays
+#: (no gathers): a scenario's few phases cost fewer array passes that way.
+_SMALL = 64
+
+
+def _friction_times_re_small(re, ed):
+    """:func:`_friction_times_re` of a few elements and one roughness *ed*:
+    Colebrook on every element (at Re >= 4000, the same steps), kept where
+    turbulent."""
+    f_2000 = 64.0 / RE_LAMINAR
+    turb = re >= RE_TURBULENT
+    out = np.where(turb, _colebrook(np.maximum(re, RE_TURBULENT), ed) * re, 64.0)
+    mid = (re >= RE_LAMINAR) & ~turb
+    if mid.any():
+        w = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
+        out = np.where(mid, (f_2000 + (_colebrook_4000(ed) - f_2000) * w) * re, out)
+    return out
+
+
+@lru_cache(maxsize=64)
+def _colebrook_4000(ed):
+    """Colebrook's factor at Re = 4000 for one relative roughness (the top of the
+    transition's interpolation)."""
+    return _colebrook(np.full(1, RE_TURBULENT), np.full(1, ed))[0]
 
 
 def friction_factor(reynolds, relative_roughness=0.0):
