@@ -2,6 +2,8 @@
 the figures of every example and strategy as this checkout computes them.
 
     .venv/bin/python scripts/make_regression_fixture.py
+    PYTHONPATH=/path/to/other/checkout .venv/bin/python scripts/make_regression_fixture.py
+        (the figures of another checkout's code, e.g. main's)
 
 A regression fixture, not a check value: regenerate it only in a commit that
 means to change the physics.

@@ -1,6 +1,6 @@
 """The figures the speed work must not change: every example and strategy
 through ``chain.compare``, design-variant sweeps in the three thermal modes,
-and a small Monte Carlo.
+the shift's temperature runs and a small Monte Carlo.
 
 ``tests/data/regression_figures.json`` holds these figures as computed by the
 code before the speed changes (``scripts/make_regression_fixture.py``).  It is a
@@ -75,6 +75,15 @@ def figures() -> dict:
                 ex["sweep"][f"{s.name}/{thermal}"] = {
                     f.name: _plain(getattr(r, f.name)) for f in dataclasses.fields(r)
                     if f.name not in ("strategy", "values", "thermal")}
+        ex["shift"] = {}
+        for o in cmp.outcomes:
+            for on in (False, True):
+                r = chain.shift_profile(sc, o, cooler_on=on)
+                # every 50th sample and the last: the run's path, kept small
+                keep = np.r_[np.arange(0, len(r.times), 50), len(r.times) - 1]
+                ex["shift"][f"{o.name}/{'cooler' if on else 'no cooler'}"] = {
+                    "times": _plain(np.asarray(r.times)[keep]),
+                    "temperatures": _plain(np.asarray(r.temperatures)[keep])}
         mc = uncertainty.monte_carlo(sc, sc.strategies[0].name, samples=300, seed=3)
         ex["monte_carlo"] = {"cooler_duty": _plain(mc.cooler_duty),
                              "oil_temperature": _plain(mc.oil_temperature)}

@@ -1,6 +1,6 @@
 """The faster paths give the figures the code gave before them (to 1e-12
 relative), on every example and strategy: compare, sweeps in the three thermal
-modes, a Monte Carlo.
+modes, the shift's temperature runs, a Monte Carlo.
 
 ``tests/data/regression_figures.json`` is a regression fixture written by
 ``scripts/make_regression_fixture.py`` from the code before the speed work,
@@ -60,7 +60,7 @@ def test_fixture_covers_every_example(now, before):
     assert set(now) == set(before)
 
 
-@pytest.mark.parametrize("part", ["compare", "sweep", "monte_carlo"])
+@pytest.mark.parametrize("part", ["compare", "sweep", "shift", "monte_carlo"])
 def test_figures_unchanged(now, before, part):
     out = []
     for ex in before:
