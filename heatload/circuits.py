@@ -546,9 +546,9 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     # drive motor (and converter for variable speed)
     speed_fraction = n_pump / n_nom
-    p_motor_in = motors.motor_input_power(p_shaft, c["motor_rated_power"],
-                                          c["motor_rated_efficiency"],
-                                          speed_fraction if kind.speed_controlled else 1.0)
+    p_motor_in = motors.motor_input_power_unchecked(
+        p_shaft, c["motor_rated_power"], c["motor_rated_efficiency"],
+        speed_fraction if kind.speed_controlled else 1.0)
     losses["drive_motor"] = p_motor_in - p_shaft
     if kind.speed_controlled:
         losses["converter"] = motors.converter_losses(

@@ -38,7 +38,8 @@ from functools import lru_cache
 
 import numpy as np
 
-from heatload import checks, circuits, cooler, cycle, heat_transfer, lines, oil, valves
+from heatload import (checks, circuits, cooler, cycle, heat_transfer, lines, motors, oil,
+                      pumps, valves)
 from heatload import thermal as lumped
 from heatload.errors import HeatloadError
 from heatload.model import STRATEGIES, Scenario, Strategy, design_oil_temperature
@@ -89,8 +90,8 @@ def _take(c: dict, idx) -> dict:
 
 
 def check_components(c: dict) -> None:
-    """The checks the solver's inner loop leaves out, once per batch: the valves'
-    and lines' fields of the solver inputs *c* through the checked public
+    """The checks the solver's inner loop leaves out, once per batch: the valves',
+    lines', pump's and motor's fields of the solver inputs *c* through the checked public
     functions (at zero flow), so a sweep's override that breaks a rule no single
     field states (a check valve's rated drop below its cracking pressure) is
     refused by the same message as a direct call.  The oil's density and
@@ -101,6 +102,9 @@ def check_components(c: dict) -> None:
     for side in ("pline", "rline"):
         lines.line_pressure_drop(0.0, c[f"{side}_d"], c[f"{side}_l"], 1.0, 1.0,
                                  c[f"{side}_rough"], c[f"{side}_k"])
+    pumps.pump_torque(c["pump_displacement"], c["pump_speed"], 0.0, 1.0, c["pump_viscous"],
+                      c["pump_friction"])
+    motors.motor_input_power(0.0, c["motor_rated_power"], c["motor_rated_efficiency"])
 
 
 class Builder:
