@@ -126,7 +126,8 @@ class Builder:
         base.update(cycle.strategy_arrays(scenario, strategy, values))
         self.base = base
         self.n_phases = len(scenario.phases)
-        check_components(base)
+        if not values.nominal:      # the scenario's own fields were checked at load
+            check_components(base)
 
     def inputs(self, t_oil, rows=None) -> dict:
         t = np.asarray(t_oil, dtype=float)
@@ -212,6 +213,7 @@ class ConductanceTable:
         else:
             uniq, inverse = np.unique(key, axis=0, return_inverse=True)
         self._lazy = None
+        self._node_lists = {}
         if len(uniq) <= 8:
             self.t, self.ua = _cached_rows(scenario.reservoir, float(scenario.ambient.altitude),
                                            tuple(map(tuple, uniq.tolist())))
@@ -232,6 +234,12 @@ class ConductanceTable:
         row = self.row if rows is None else self.row[rows]
         f = self.factor if rows is None else self.factor[rows]
         t, row, f = np.broadcast_arrays(np.asarray(t_oil, float), row, f)
+        if self._lazy is None and t.size <= 8 and np.isfinite(t).all():
+            # a scenario's few rows: the same formula in floats, row by row
+            ua, slope = np.empty(t.shape), np.empty(t.shape)
+            for i, (ti, ri, fi) in enumerate(zip(t.flat, row.flat, f.flat)):
+                ua.flat[i], slope.flat[i] = _interpolate(float(ti), *self._nodes(ri), float(fi))
+            return ua, slope
         m = self.t.shape[1]
         xs, ys = self.t, self.ua
         j = np.clip(np.floor((t - self.t0[row]) / self.step[row]), 0, m - 2).astype(int)
@@ -264,6 +272,14 @@ class ConductanceTable:
                                                      uniq[r, 0], uniq[r, 1])
             known.reshape(-1)[flat] = True
 
+    def _nodes(self, r):
+        """(nodes T, nodes UA, first node, step) of table row *r* as floats."""
+        got = self._node_lists.get(r)
+        if got is None:
+            got = self._node_lists[r] = (self.t[r].tolist(), self.ua[r].tolist(),
+                                         float(self.t0[r]), float(self.step[r]))
+        return got
+
     def fn(self, row=0):
         """UA(T) [W/K] of one row as a plain vectorized function of T."""
         r = int(self.row[row])
@@ -271,12 +287,11 @@ class ConductanceTable:
         if self._lazy is None:
             # one temperature at a time (a warm-up's steps): the same formula as
             # __call__ in plain floats, without the array passes
-            xs, ys = self.t[r].tolist(), self.ua[r].tolist()
-            scalar = (xs, ys, float(self.t0[r]), float(self.step[r]), float(self.factor[row]))
+            scalar = self._nodes(r) + (float(self.factor[row]),)
 
         def ua(t_oil):
             if scalar is not None and np.ndim(t_oil) == 0 and math.isfinite(t_oil):
-                return _interpolate(float(t_oil), *scalar)
+                return _interpolate(float(t_oil), *scalar)[0]
             t = np.asarray(t_oil, float)
             v, _ = self(t.ravel(), np.full(t.size, row))
             return v.reshape(t.shape) if t.ndim else float(v[0])
@@ -284,7 +299,8 @@ class ConductanceTable:
 
 
 def _interpolate(t, xs, ys, t0, step, factor):
-    """:meth:`ConductanceTable.__call__`'s UA of one row at one temperature, in floats."""
+    """:meth:`ConductanceTable.__call__` of one row at one temperature, in floats:
+    ``(UA, dUA/dT)``."""
     m = len(xs)
     j = min(max(math.floor((t - t0) / step), 0), m - 2)
     if j > 0 and t < xs[j]:
@@ -292,13 +308,12 @@ def _interpolate(t, xs, ys, t0, step, factor):
     if j < m - 2 and t >= xs[j + 1]:
         j += 1
     if t < xs[0]:
-        v = ys[0]
-    elif t >= xs[-1]:
-        v = ys[-1]
-    else:
-        x0, y0 = xs[j], ys[j]
-        v = (ys[j + 1] - y0) / (xs[j + 1] - x0) * (t - x0) + y0
-    return v * factor
+        return ys[0] * factor, 0.0 * factor
+    if t >= xs[-1]:
+        return ys[-1] * factor, 0.0 * factor
+    x0, y0 = xs[j], ys[j]
+    slope = (ys[j + 1] - y0) / (xs[j + 1] - x0)
+    return (slope * (t - x0) + y0) * factor, slope * factor
 
 
 steady_temperature = lumped.steady_temperature

@@ -129,6 +129,12 @@ def test_conductance_of_one_temperature_equals_the_table_lookup():
     t = np.concatenate([np.linspace(250.0, 560.0, 4001), table.t[0],
                         [table.t[0, 0] - 1e-9, evaluation.TABLE_TOP, 600.0]])
     assert np.array_equal([ua(float(x)) for x in t], ua(t))
+    # a few rows at a time (a scenario's coupled solve) against the whole batch
+    whole = table(t, np.zeros(t.size, int))
+    for i in range(0, t.size, 7):
+        few = table(t[i:i + 7], np.zeros(len(t[i:i + 7]), int))
+        assert np.array_equal(few[0], whole[0][i:i + 7])
+        assert np.array_equal(few[1], whole[1][i:i + 7])
 
 
 def test_many_air_temperatures_give_the_lookups_of_their_own_tables():
@@ -142,3 +148,14 @@ def test_many_air_temperatures_give_the_lookups_of_their_own_tables():
     for i, (ta, t) in enumerate(zip(air, t_oil)):
         one, one_slope = evaluation.ConductanceTable(sc, [ta])(np.array([t]))
         assert got[i] == one[0] and slope[i] == one_slope[0]
+
+
+def test_a_sweep_breaking_a_rule_between_fields_is_refused():
+    # the solver's inner loop skips the component checks; the batch is
+    # checked once: a check valve's rated drop includes its cracking pressure
+    # (0.5 bar in the file), so 0.2 bar at rated flow is refused
+    from heatload.errors import HeatloadError
+    sc = io.load_scenario(io.default_scenario_path())
+    with pytest.raises(HeatloadError, match="cracking"):
+        variants.evaluate_variants(sc, "meter-in",
+                                   {"power_unit.check_valve.pressure_drop": np.array([0.2e5])})
