@@ -154,14 +154,21 @@ def worker(args) -> dict:
     n = args.sweep
     a = floor_inputs(n)
     floor_kernel(a)
-    out["floor"] = _best(lambda: floor_kernel(a), args.repeat) / n
     sc = io.load_scenario(tree / DEFAULT)
     vals = {DISPLACEMENT: np.linspace(16e-6, 40e-6, n)}
+    # the floor timed again beside each mode (best of all): the load of a
+    # shared machine moves between the rows
+    floor = []
     for mode in (False, "design", True):
         variants.evaluate_variants(sc, "meter-in", {DISPLACEMENT: vals[DISPLACEMENT][:100]},
                                    thermal=mode)
-        out[f"sweep {mode}"] = _best(lambda: variants.evaluate_variants(
-            sc, "meter-in", vals, thermal=mode), args.repeat) / n
+        best = float("inf")
+        for _ in range(args.repeat):
+            floor.append(_best(lambda: floor_kernel(a), 2))
+            best = min(best, _best(lambda: variants.evaluate_variants(
+                sc, "meter-in", vals, thermal=mode), 1))
+        out[f"sweep {mode}"] = best / n
+    out["floor"] = min(floor) / n
     chain.compare(sc)
     out["compare"] = statistics.median(
         _best(lambda: chain.compare(sc), 1) for _ in range(max(5, args.repeat)))

@@ -229,7 +229,10 @@ def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK, t
                     bar.update(len(parts[-1]))
             # the chunks' arrays joined first: one table per strategy, not a
             # table per chunk joined by pandas (a copy of every column)
-            df = variants.concat(parts).frame()
+            res = variants.concat(parts)
+            parts.clear()               # the chunks' arrays freed before the frame copies
+            df = res.frame()
+            del res
             df.insert(0, "variant", np.arange(len(df)))
             frames.append(df)
     finally:
