@@ -23,6 +23,7 @@ the form shows it at that cell.
 from __future__ import annotations
 
 import copy
+import functools
 import re
 from dataclasses import dataclass
 
@@ -168,7 +169,23 @@ def parse_text(text, previous, kind: str | None, system: str, field: str, allow_
 
     Returns ``None`` to remove the key.  Raises :class:`HeatloadError` naming
     *field* when the text is not a quantity of *kind*.
+
+    A cell whose text, stored value, kind and units are those of an earlier
+    call is not parsed again (an edit parses only the cells it changed); a
+    refusal is never remembered, so its message always names this *field*.
     """
+    try:
+        return _parse_cached(text, previous, kind, system, field, allow_full)
+    except TypeError:   # an unhashable stored value (a list): parse it afresh
+        return _parse_text(text, previous, kind, system, field, allow_full)
+
+
+@functools.lru_cache(maxsize=4096, typed=True)
+def _parse_cached(text, previous, kind, system, field, allow_full):
+    return _parse_text(text, previous, kind, system, field, allow_full)
+
+
+def _parse_text(text, previous, kind, system, field, allow_full):
     if text is None:
         return None
     if isinstance(text, (int, float)) and not isinstance(text, bool):

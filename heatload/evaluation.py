@@ -37,6 +37,7 @@ interpolation).
 from __future__ import annotations
 
 import dataclasses
+import math
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -48,6 +49,7 @@ from heatload.cooling import cooler
 from heatload.heat import heat_transfer
 from heatload.properties import oil
 from heatload.heat import thermal as lumped
+from heatload.components import lines, motors, pumps, valves
 from heatload.errors import HeatloadError
 from heatload.model import STRATEGIES, Scenario, Strategy, design_oil_temperature
 from heatload.paths import Overrides
@@ -96,6 +98,24 @@ def _take(c: dict, idx) -> dict:
             for k, v in c.items() if k != "shape"}
 
 
+def check_components(c: dict) -> None:
+    """The checks the solver's inner loop leaves out, once per batch: the valves',
+    lines', pump's and motor's fields of the solver inputs *c* through the checked public
+    functions (at zero flow), so a sweep's override that breaks a rule no single
+    field states (a check valve's rated drop below its cracking pressure) is
+    refused by the same message as a direct call.  The oil's density and
+    viscosity come from the fluid model and are checked there."""
+    valves.check_valve_pressure_drop(0.0, c["check_cracking"], c["check_rated_flow"],
+                                     c["check_rated_drop"])
+    valves.valve_path_pressure_drop(0.0, c["dv_rated_flow"], c["dv_rated_drop"])
+    for side in ("pline", "rline"):
+        lines.line_pressure_drop(0.0, c[f"{side}_d"], c[f"{side}_l"], 1.0, 1.0,
+                                 c[f"{side}_rough"], c[f"{side}_k"])
+    pumps.pump_torque(c["pump_displacement"], c["pump_speed"], 0.0, 1.0, c["pump_viscous"],
+                      c["pump_friction"])
+    motors.motor_input_power(0.0, c["motor_rated_power"], c["motor_rated_efficiency"])
+
+
 class Builder:
     """Solver inputs of N variants of one strategy with the oil temperature left open.
 
@@ -115,6 +135,8 @@ class Builder:
         base.update(cycle.strategy_arrays(scenario, strategy, values))
         self.base = base
         self.n_phases = len(scenario.phases)
+        if not values.nominal:      # the scenario's own fields were checked at load
+            check_components(base)
 
     def inputs(self, t_oil, rows=None) -> dict:
         t = np.asarray(t_oil, dtype=float)
@@ -136,24 +158,35 @@ class Builder:
 # the surfaces' conductance UA(T)
 # ---------------------------------------------------------------------------
 
-def _table_rows(reservoir, altitude, keys):
-    """UA nodes (U, 160) for the distinct (air temperature, user h or -1) *keys*."""
-    uniq = np.asarray(keys, float).reshape(-1, 2)
+def _table_nodes(uniq):
+    """Oil temperatures [K] of the table's nodes (U, 160) for the key rows *uniq* (U, 2)."""
+    return np.linspace(uniq[:, 0] - 20.0, TABLE_TOP, TABLE_POINTS, axis=-1)
+
+
+def _node_values(reservoir, altitude, t, air, h):
+    """UA [W/K] at oil temperatures *t* with air temperatures *air* and user
+    coefficients *h* (-1: none), element by element (same shapes)."""
     pressure = heat_transfer.barometric_pressure(altitude)
-    t = np.linspace(uniq[:, 0] - 20.0, TABLE_TOP, TABLE_POINTS, axis=-1)
-    ta = np.broadcast_to(uniq[:, :1], t.shape)
-    free = uniq[:, 1] < 0.0
+    free = h < 0.0
     ua = np.empty(t.shape)
     if free.any():
-        ua[free] = heat_transfer.reservoir_conductance(reservoir, t[free], ta[free], pressure)
+        ua[free] = heat_transfer.reservoir_conductance(reservoir, t[free], air[free], pressure)
     if (~free).any():
         # a user coefficient h: UA = h A_eff + further surfaces (linear in h)
         unit = heat_transfer.reservoir_heat_transfer(
             dataclasses.replace(reservoir, heat_transfer_coefficient=1.0),
-            t[~free], ta[~free], pressure)
+            t[~free], air[~free], pressure)
         own = unit.conductance - unit.surfaces
-        ua[~free] = uniq[~free, 1:2] * own + unit.surfaces
-    return t, ua
+        ua[~free] = h[~free] * own + unit.surfaces
+    return ua
+
+
+def _table_rows(reservoir, altitude, keys):
+    """UA nodes (U, 160) for the distinct (air temperature, user h or -1) *keys*."""
+    uniq = np.asarray(keys, float).reshape(-1, 2)
+    t = _table_nodes(uniq)
+    return t, _node_values(reservoir, altitude, t, np.broadcast_to(uniq[:, :1], t.shape),
+                           np.broadcast_to(uniq[:, 1:2], t.shape))
 
 
 @lru_cache(maxsize=64)
@@ -183,13 +216,23 @@ class ConductanceTable:
         key = np.stack([air, h], axis=-1).reshape(-1, 2)
         if np.all(key == key[:1]):  # one air temperature and tank for all: no sort
             uniq, inverse = key[:1], np.zeros(len(key), int)
+        elif np.all(key[:, 1] == key[0, 1]):  # one tank: a plain sort of the air
+            air_u, inverse = np.unique(key[:, 0], return_inverse=True)
+            uniq = np.stack([air_u, np.full(len(air_u), key[0, 1])], axis=-1)
         else:
             uniq, inverse = np.unique(key, axis=0, return_inverse=True)
+        self._lazy = None
+        self._node_lists = {}
         if len(uniq) <= 8:
             self.t, self.ua = _cached_rows(scenario.reservoir, float(scenario.ambient.altitude),
                                            tuple(map(tuple, uniq.tolist())))
         else:
-            self.t, self.ua = _table_rows(scenario.reservoir, scenario.ambient.altitude, uniq)
+            # many tables (a Monte Carlo of the ambient): each node computed when a
+            # lookup first reads it, a few per row instead of all 160
+            self.t = _table_nodes(uniq)
+            self.ua = np.empty(self.t.shape)
+            self._lazy = (scenario.reservoir, scenario.ambient.altitude, uniq,
+                          np.zeros(self.t.shape, bool))
         self.row = inverse.reshape(-1)
         self.factor = np.broadcast_to(np.asarray(factor, float), self.row.shape)
         self.t0 = self.t[:, 0]
@@ -200,6 +243,12 @@ class ConductanceTable:
         row = self.row if rows is None else self.row[rows]
         f = self.factor if rows is None else self.factor[rows]
         t, row, f = np.broadcast_arrays(np.asarray(t_oil, float), row, f)
+        if self._lazy is None and t.size <= 8 and np.isfinite(t).all():
+            # a scenario's few rows: the same formula in floats, row by row
+            ua, slope = np.empty(t.shape), np.empty(t.shape)
+            for i, (ti, ri, fi) in enumerate(zip(t.flat, row.flat, f.flat)):
+                ua.flat[i], slope.flat[i] = _interpolate(float(ti), *self._nodes(ri), float(fi))
+            return ua, slope
         m = self.t.shape[1]
         xs, ys = self.t, self.ua
         j = np.clip(np.floor((t - self.t0[row]) / self.step[row]), 0, m - 2).astype(int)
@@ -207,21 +256,73 @@ class ConductanceTable:
         j = np.where((j > 0) & (t < xs[row, j]), j - 1, j)
         j = np.where((j < m - 2) & (t >= xs[row, j + 1]), j + 1, j)
         x0, x1 = xs[row, j], xs[row, j + 1]
+        below, above = t < xs[row, 0], t >= xs[row, -1]
+        if self._lazy is not None:
+            self._fill(row, j, below, above)
         y0, y1 = ys[row, j], ys[row, j + 1]
         slope = (y1 - y0) / (x1 - x0)
         ua = slope * (t - x0) + y0
-        below, above = t < xs[row, 0], t >= xs[row, -1]
         ua = np.where(below, ys[row, 0], np.where(above, ys[row, -1], ua))
         slope = np.where(below | above, 0.0, slope)
         return ua * f, slope * f
 
+    def _fill(self, row, j, below, above):
+        """Compute the nodes a lookup reads (rows *row*, segments *j*, the ends
+        where *below* / *above*) that are not known yet."""
+        reservoir, altitude, uniq, known = self._lazy
+        m = self.t.shape[1]
+        flat = (row * m)[..., None] + np.stack([j, j + 1, np.where(below, 0, j),
+                                                np.where(above, m - 1, j)], axis=-1)
+        flat = np.unique(flat)
+        flat = flat[~known.reshape(-1)[flat]]
+        if flat.size:
+            r = flat // m
+            self.ua.reshape(-1)[flat] = _node_values(reservoir, altitude, self.t.reshape(-1)[flat],
+                                                     uniq[r, 0], uniq[r, 1])
+            known.reshape(-1)[flat] = True
+
+    def _nodes(self, r):
+        """(nodes T, nodes UA, first node, step) of table row *r* as floats."""
+        got = self._node_lists.get(r)
+        if got is None:
+            got = self._node_lists[r] = (self.t[r].tolist(), self.ua[r].tolist(),
+                                         float(self.t0[r]), float(self.step[r]))
+        return got
+
     def fn(self, row=0):
         """UA(T) [W/K] of one row as a plain vectorized function of T."""
+        r = int(self.row[row])
+        scalar = None
+        if self._lazy is None:
+            # one temperature at a time (a warm-up's steps): the same formula as
+            # __call__ in plain floats, without the array passes
+            scalar = self._nodes(r) + (float(self.factor[row]),)
+
         def ua(t_oil):
+            if scalar is not None and np.ndim(t_oil) == 0 and math.isfinite(t_oil):
+                return _interpolate(float(t_oil), *scalar)[0]
             t = np.asarray(t_oil, float)
             v, _ = self(t.ravel(), np.full(t.size, row))
             return v.reshape(t.shape) if t.ndim else float(v[0])
         return ua
+
+
+def _interpolate(t, xs, ys, t0, step, factor):
+    """:meth:`ConductanceTable.__call__` of one row at one temperature, in floats:
+    ``(UA, dUA/dT)``."""
+    m = len(xs)
+    j = min(max(math.floor((t - t0) / step), 0), m - 2)
+    if j > 0 and t < xs[j]:
+        j -= 1
+    if j < m - 2 and t >= xs[j + 1]:
+        j += 1
+    if t < xs[0]:
+        return ys[0] * factor, 0.0 * factor
+    if t >= xs[-1]:
+        return ys[-1] * factor, 0.0 * factor
+    x0, y0 = xs[j], ys[j]
+    slope = (ys[j + 1] - y0) / (xs[j + 1] - x0)
+    return (slope * (t - x0) + y0) * factor, slope * factor
 
 
 steady_temperature = lumped.steady_temperature

@@ -667,3 +667,24 @@ def test_heat_calibration_key_field_reaches_the_results_and_is_said(base, exampl
     _, _, errors = state.apply_form(base["data"], base["form"]["phase_rows"],
                                     base["form"]["actuator_rows"], keys, "si")
     assert errors and errors[0][0] == "scenario.heat_calibration"
+
+
+def test_an_edit_parses_only_the_cell_it_changed(monkeypatch):
+    data = io.scenario_to_dict(io.load_scenario(io.default_scenario_path()))
+    form = state.render_form(data, "si")
+    args = (form["actuator_rows"], form["key_values"], "si")
+    state.apply_form(data, form["phase_rows"], *args)          # every cell once
+    calls = []
+    to_si = state.units.to_si
+    monkeypatch.setattr(state.units, "to_si", lambda *a, **k: calls.append(a) or to_si(*a, **k))
+    rows = [dict(r) for r in form["phase_rows"]]
+    rows[2]["load"] = "123.5"
+    sc, _, errors = state.apply_form(data, rows, *args)
+    assert not errors and sc.phases[2].load == pytest.approx(123.5e3)
+    # the new text, and the stored value it replaces shown as text to compare
+    assert len(calls) <= 2 and any("123.5" in str(a[0]) for a in calls)
+    # a refusal names its own cell every time (never answered from the cache)
+    rows[3]["load"] = "12 parsecs"
+    for _ in range(2):
+        _, _, errors = state.apply_form(data, rows, *args)
+        assert errors and errors[0][0].startswith("phases[3]")

@@ -119,3 +119,44 @@ def test_rows_of_a_batch_do_not_depend_on_each_other():
     one = variants.evaluate_variants(sc, "meter-in", {"power_unit.pump.displacement": vals[1:2]})
     for f in ("electric_energy_per_cycle", "oil_temperature_steady", "cooler_duty"):
         _close(getattr(many, f)[1], getattr(one, f)[0], 1e-12)
+
+
+def test_conductance_of_one_temperature_equals_the_table_lookup():
+    # the warm-up's scalar path and the vectorized lookup are one formula:
+    # equal to the last bit, at the nodes, between them and beyond the ends
+    sc = io.load_scenario(io.default_scenario_path())
+    table = evaluation.ConductanceTable(sc, [300.0], np.nan, 1.3)
+    ua = table.fn(0)
+    t = np.concatenate([np.linspace(250.0, 560.0, 4001), table.t[0],
+                        [table.t[0, 0] - 1e-9, evaluation.TABLE_TOP, 600.0]])
+    assert np.array_equal([ua(float(x)) for x in t], ua(t))
+    # a few rows at a time (a scenario's coupled solve) against the whole batch
+    whole = table(t, np.zeros(t.size, int))
+    for i in range(0, t.size, 7):
+        few = table(t[i:i + 7], np.zeros(len(t[i:i + 7]), int))
+        assert np.array_equal(few[0], whole[0][i:i + 7])
+        assert np.array_equal(few[1], whole[1][i:i + 7])
+
+
+def test_many_air_temperatures_give_the_lookups_of_their_own_tables():
+    # > 8 air temperatures compute only the nodes a lookup reads; each row
+    # must read what the full table of its own air temperature gives
+    sc = io.load_scenario(io.default_scenario_path())
+    air = np.linspace(280.0, 320.0, 12)
+    many = evaluation.ConductanceTable(sc, air)
+    t_oil = np.linspace(270.0, 540.0, 12)
+    got, slope = many(t_oil)
+    for i, (ta, t) in enumerate(zip(air, t_oil)):
+        one, one_slope = evaluation.ConductanceTable(sc, [ta])(np.array([t]))
+        assert got[i] == one[0] and slope[i] == one_slope[0]
+
+
+def test_a_sweep_breaking_a_rule_between_fields_is_refused():
+    # the solver's inner loop skips the component checks; the batch is
+    # checked once: a check valve's rated drop includes its cracking pressure
+    # (0.5 bar in the file), so 0.2 bar at rated flow is refused
+    from heatload.errors import HeatloadError
+    sc = io.load_scenario(io.default_scenario_path())
+    with pytest.raises(HeatloadError, match="cracking"):
+        variants.evaluate_variants(sc, "meter-in",
+                                   {"power_unit.check_valve.pressure_drop": np.array([0.2e5])})

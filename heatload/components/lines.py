@@ -7,6 +7,7 @@ Pure, vectorized functions; SI inside: flow [m^3/s], lengths [m], density
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 
 import numpy as np
 
@@ -114,6 +115,8 @@ def _friction_times_re(re, ed):
     """
     re = np.asarray(re, float)
     ed = np.asarray(ed, float)
+    if ed.ndim == 0 and re.size <= _SMALL:
+        return _friction_times_re_small(re, float(ed))
     shape = np.broadcast_shapes(re.shape, ed.shape)
     out = np.full(shape, 64.0)
     f_2000 = 64.0 / RE_LAMINAR
@@ -137,6 +140,32 @@ def _friction_times_re(re, ed):
         w = (r - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
         out[mid] = (f_2000 + (f_4000 - f_2000) * w) * r
     return out
+
+
+#: Up to this many elements the friction factor is computed on whole arrays
+#: (no gathers): a scenario's few phases cost fewer array passes that way.
+_SMALL = 64
+
+
+def _friction_times_re_small(re, ed):
+    """:func:`_friction_times_re` of a few elements and one roughness *ed*:
+    Colebrook on every element (at Re >= 4000, the same steps), kept where
+    turbulent."""
+    f_2000 = 64.0 / RE_LAMINAR
+    turb = re >= RE_TURBULENT
+    out = np.where(turb, _colebrook(np.maximum(re, RE_TURBULENT), ed) * re, 64.0)
+    mid = (re >= RE_LAMINAR) & ~turb
+    if mid.any():
+        w = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)
+        out = np.where(mid, (f_2000 + (_colebrook_4000(ed) - f_2000) * w) * re, out)
+    return out
+
+
+@lru_cache(maxsize=64)
+def _colebrook_4000(ed):
+    """Colebrook's factor at Re = 4000 for one relative roughness (the top of the
+    transition's interpolation)."""
+    return _colebrook(np.full(1, RE_TURBULENT), np.full(1, ed))[0]
 
 
 def friction_factor(reynolds, relative_roughness=0.0):
@@ -242,10 +271,32 @@ def line_pressure_drop(flow, inner_diameter, length, density, kinematic_viscosit
     shape = np.broadcast_shapes(np.shape(flow), np.shape(inner_diameter), np.shape(length),
                                 np.shape(density), np.shape(kinematic_viscosity),
                                 np.shape(roughness), np.shape(fittings_k))
+    return _out(_line_drop(q, d, ell, rho, nu, eps, k, shape))
+
+
+def line_pressure_drop_unchecked(flow, inner_diameter, length, density, kinematic_viscosity,
+                                 roughness, fittings_k):
+    """:func:`line_pressure_drop` without its input checks, for the solver's inner
+    loop: float arrays whose fields the loader (:mod:`heatload.io`) and the
+    sweep's overrides (:class:`heatload.paths.Overrides`) checked once.
+
+    Returns an array of the broadcast shape of the arguments [Pa].
+    """
+    shape = np.broadcast_shapes(np.shape(flow), np.shape(inner_diameter), np.shape(length),
+                                np.shape(density), np.shape(kinematic_viscosity),
+                                np.shape(roughness), np.shape(fittings_k))
+    c = _compact
+    return _line_drop(np.asarray(flow), c(np.asarray(inner_diameter)), c(np.asarray(length)),
+                      c(np.asarray(density)), c(np.asarray(kinematic_viscosity)),
+                      c(np.asarray(roughness)), c(np.asarray(fittings_k)), shape)
+
+
+def _line_drop(q, d, ell, rho, nu, eps, k, shape):
+    """The equation of :func:`line_pressure_drop` on checked arrays."""
     v = 4.0 * q / (math.pi * d * d)
     re = np.abs(v) * d / nu
     f_re = _friction_times_re(re, eps / d)
     friction = f_re * nu * rho * ell * v / (2.0 * d * d)
     minor = k * rho * v * np.abs(v) / 2.0
     dp = friction + minor
-    return _out(dp if dp.shape == shape else np.broadcast_to(dp, shape))
+    return dp if dp.shape == shape else np.broadcast_to(dp, shape)

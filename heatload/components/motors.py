@@ -212,17 +212,27 @@ def motor_losses(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,
     Ind. Appl. 47 (2011) (from memory).
     """
     p = _arr(shaft_power, "shaft_power")
-    if np.any(p < 0):
-        raise HeatloadError("must be >= 0 (generating is not modelled)", field="shaft_power")
     pr = _positive(rated_power, "rated_power")
     er = _efficiency(rated_efficiency, "rated_efficiency")
     s = _positive(speed_fraction, "speed_fraction")
     c = _arr(constant_loss_share, "constant_loss_share")
     if np.any((c < 0) | (c > 1)):
         raise HeatloadError("must be a fraction in [0, 1]", field="constant_loss_share")
+    return _out(motor_losses_unchecked(p, pr, er, s, c))
+
+
+def motor_losses_unchecked(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,
+                           constant_loss_share=CONSTANT_LOSS_SHARE):
+    """:func:`motor_losses` without the checks of the motor's fields, for the
+    solver's inner loop (checked once at load); the shaft power, the solver's
+    own figure, is still refused below zero [W]."""
+    p, pr, er, s, c = (shaft_power, rated_power, rated_efficiency, speed_fraction,
+                       constant_loss_share)
+    if np.any(p < 0):
+        raise HeatloadError("must be >= 0 (generating is not modelled)", field="shaft_power")
     lr = pr * (1.0 / er - 1.0)
     k = SPEED_INDEPENDENT_SHARE
-    return _out(c * lr * (k + (1.0 - k) * s) + (1.0 - c) * lr * (p / (pr * s)) ** 2)
+    return c * lr * (k + (1.0 - k) * s) + (1.0 - c) * lr * (p / (pr * s)) ** 2
 
 
 def motor_input_power(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,
@@ -255,6 +265,14 @@ def motor_input_power(shaft_power, rated_power, rated_efficiency, speed_fraction
     p = _arr(shaft_power, "shaft_power")
     return _out(p + motor_losses(p, rated_power, rated_efficiency, speed_fraction,
                                  constant_loss_share))
+
+
+def motor_input_power_unchecked(shaft_power, rated_power, rated_efficiency, speed_fraction=1.0,
+                                constant_loss_share=CONSTANT_LOSS_SHARE):
+    """:func:`motor_input_power` without the checks of the motor's fields, for the
+    solver's inner loop (see :func:`motor_losses_unchecked`) [W]."""
+    return shaft_power + motor_losses_unchecked(shaft_power, rated_power, rated_efficiency,
+                                                speed_fraction, constant_loss_share)
 
 
 def converter_losses(input_power, rated_input_power, drive_efficiency,

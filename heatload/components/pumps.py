@@ -266,8 +266,18 @@ def pump_torque(displacement, shaft_speed, pressure, dynamic_viscosity, viscous,
     cv = _non_negative(viscous, "viscous")
     cf = _non_negative(friction, "friction")
     x = _fraction(displacement_fraction, "displacement_fraction")
-    omega = TWO_PI * n
-    return _out((x * d * p + cv * d * mu * omega + cf * d * np.abs(p)) / TWO_PI)
+    return _out(pump_torque_unchecked(d, n, p, mu, cv, cf, x))
+
+
+def pump_torque_unchecked(displacement, shaft_speed, pressure, dynamic_viscosity, viscous,
+                          friction, displacement_fraction=1.0):
+    """:func:`pump_torque` without its input checks, for the solver's inner loop
+    (arrays of fields checked once at load, a stroke the strategy keeps in
+    [0, 1]) [N m]."""
+    omega = TWO_PI * shaft_speed
+    d, p = displacement, pressure
+    return (displacement_fraction * d * p + viscous * d * dynamic_viscosity * omega
+            + friction * d * np.abs(p)) / TWO_PI
 
 
 def pump_shaft_power(torque, shaft_speed):
@@ -296,7 +306,13 @@ def pump_shaft_power(torque, shaft_speed):
     >>> round(pump_shaft_power(100.0, 25.0))
     15708
     """
-    return _out(TWO_PI * _arr(shaft_speed, "shaft_speed") * _arr(torque, "torque"))
+    return _out(pump_shaft_power_unchecked(_arr(torque, "torque"),
+                                           _arr(shaft_speed, "shaft_speed")))
+
+
+def pump_shaft_power_unchecked(torque, shaft_speed):
+    """:func:`pump_shaft_power` without its input checks (the solver's arrays) [W]."""
+    return TWO_PI * shaft_speed * torque
 
 
 def displacement_fraction_for_flow(flow, displacement, shaft_speed, pressure,

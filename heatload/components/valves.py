@@ -363,7 +363,13 @@ def power_law_pressure_drop(flow, rated_flow, rated_drop, exponent=2.0):
     """
     q = _arr(flow, "flow")
     qr, dpr, n = _power_law_args(rated_flow, rated_drop, exponent, ideal_allowed=True)
-    return _out(np.sign(q) * dpr * (np.abs(q) / qr) ** n)
+    return _out(power_law_pressure_drop_unchecked(q, qr, dpr, n))
+
+
+def power_law_pressure_drop_unchecked(flow, rated_flow, rated_drop, exponent=2.0):
+    """:func:`power_law_pressure_drop` without its input checks, for the solver's
+    inner loop (float arrays of fields checked once at load) [Pa]."""
+    return np.sign(flow) * rated_drop * (np.abs(flow) / rated_flow) ** exponent
 
 
 def power_law_flow(pressure_drop, rated_flow, rated_drop, exponent=2.0):
@@ -422,6 +428,12 @@ def valve_path_pressure_drop(flow, rated_flow, rated_drop):
     500000.0
     """
     return power_law_pressure_drop(flow, rated_flow, rated_drop, 2.0)
+
+
+def valve_path_pressure_drop_unchecked(flow, rated_flow, rated_drop):
+    """:func:`valve_path_pressure_drop` without its input checks, for the solver's
+    inner loop (float arrays of fields checked once at load) [Pa]."""
+    return power_law_pressure_drop_unchecked(flow, rated_flow, rated_drop, 2.0)
 
 
 def directional_centre_pressure_drop(flow, centre, rated_flow, centre_drop):
@@ -584,8 +596,15 @@ def check_valve_pressure_drop(flow, cracking_pressure, rated_flow, rated_drop):
     if np.any(dpr < pc):
         raise HeatloadError("must be >= the cracking pressure (it includes it)",
                             field="rated_drop")
-    qp = np.maximum(q, 0.0)
-    return _out(np.where(q > 0, pc + (dpr - pc) * (qp / qr) ** 2, 0.0))
+    return _out(check_valve_pressure_drop_unchecked(q, pc, qr, dpr))
+
+
+def check_valve_pressure_drop_unchecked(flow, cracking_pressure, rated_flow, rated_drop):
+    """:func:`check_valve_pressure_drop` without its input checks, for the solver's
+    inner loop (float arrays of fields checked once at load) [Pa]."""
+    qp = np.maximum(flow, 0.0)
+    return np.where(flow > 0, cracking_pressure
+                    + (rated_drop - cracking_pressure) * (qp / rated_flow) ** 2, 0.0)
 
 
 def counterbalance_load_pressure(setting, pilot_pressure, pilot_ratio):

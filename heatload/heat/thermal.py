@@ -55,6 +55,17 @@ def _eval_ua(fn, temperature):
     return ua
 
 
+def _ua_at(fn, temperature) -> float:
+    """UA [W/K] at one temperature as a float (the step-by-step runs): the
+    checks of :func:`_eval_ua` without its array passes."""
+    ua = fn(temperature)
+    if np.ndim(ua) == 0:
+        v = float(ua)
+        if v > 0.0 and math.isfinite(v):
+            return v
+    return float(_eval_ua(fn, temperature))   # its message for a bad value
+
+
 def heat_capacity(oil_volume, oil_density, oil_specific_heat, steel_mass=0.0,
                   steel_specific_heat=490.0):
     """Lumped heat capacity of the oil and the steel that follows its temperature.
@@ -459,12 +470,12 @@ def _warm_up_scalar(q, idx, lengths, times, c, ta, t0, fn, limit_temperature):
     theta = t0 - ta
     heat_in = dissipated = 0.0
     limit_time = 0.0 if (limit_temperature is not None and t0 >= limit_temperature) else None
-    ua = float(_eval_ua(fn, t0))
+    ua = _ua_at(fn, t0)
     t_ua = t0
     for k, (i, dt) in enumerate(zip(idx.tolist(), lengths.tolist())):
         t_now = theta + ta
         if abs(t_now - t_ua) > UA_REFRESH:
-            ua = float(_eval_ua(fn, t_now))
+            ua = _ua_at(fn, t_now)
             t_ua = t_now
         tau = c / ua
         qi = qs[i]
@@ -594,10 +605,10 @@ def thermostat_cooler_run(heat_per_phase, durations, capacity, conductance, ambi
     ons, offs = [], []
     heat_in = dissipated = removed = 0.0
     qs = [float(v) for v in q]
-    ua, t_ua = float(_eval_ua(fn, np.asarray(t))), t
+    ua, t_ua = _ua_at(fn, np.asarray(t)), t
     for i, dt in zip(idx.tolist(), lengths.tolist()):
         if abs(t - t_ua) > UA_REFRESH:  # UA refreshed once the oil has moved
-            ua, t_ua = float(_eval_ua(fn, np.asarray(t))), t
+            ua, t_ua = _ua_at(fn, np.asarray(t)), t
         qi = qs[i]
         left = dt
         while left > 0.0:

@@ -137,26 +137,27 @@ class CircuitResult:
 
 def _supply_drop(q, c):
     """Drop from the pump outlet to the actuator inlet at flow *q* (no throttle)."""
-    return (valves.check_valve_pressure_drop(q, c["check_cracking"], c["check_rated_flow"],
-                                             c["check_rated_drop"])
-            + lines.line_pressure_drop(q, c["pline_d"], c["pline_l"], c["density"],
-                                       c["viscosity"], c["pline_rough"], c["pline_k"])
-            + valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"]))
+    return (valves.check_valve_pressure_drop_unchecked(q, c["check_cracking"],
+                                                       c["check_rated_flow"], c["check_rated_drop"])
+            + lines.line_pressure_drop_unchecked(q, c["pline_d"], c["pline_l"], c["density"],
+                                                 c["viscosity"], c["pline_rough"], c["pline_k"])
+            + valves.valve_path_pressure_drop_unchecked(q, c["dv_rated_flow"],
+                                                        c["dv_rated_drop"]))
 
 
 def _supply_drop_parts(q, c):
-    check = valves.check_valve_pressure_drop(q, c["check_cracking"], c["check_rated_flow"],
-                                             c["check_rated_drop"])
-    line = lines.line_pressure_drop(q, c["pline_d"], c["pline_l"], c["density"],
-                                    c["viscosity"], c["pline_rough"], c["pline_k"])
-    dv = valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"])
+    check = valves.check_valve_pressure_drop_unchecked(q, c["check_cracking"],
+                                                       c["check_rated_flow"], c["check_rated_drop"])
+    line = lines.line_pressure_drop_unchecked(q, c["pline_d"], c["pline_l"], c["density"],
+                                              c["viscosity"], c["pline_rough"], c["pline_k"])
+    dv = valves.valve_path_pressure_drop_unchecked(q, c["dv_rated_flow"], c["dv_rated_drop"])
     return check, line, dv
 
 
 def _return_drop_parts(q, c):
-    dv = valves.valve_path_pressure_drop(q, c["dv_rated_flow"], c["dv_rated_drop"])
-    line = lines.line_pressure_drop(q, c["rline_d"], c["rline_l"], c["density"],
-                                    c["viscosity"], c["rline_rough"], c["rline_k"])
+    dv = valves.valve_path_pressure_drop_unchecked(q, c["dv_rated_flow"], c["dv_rated_drop"])
+    line = lines.line_pressure_drop_unchecked(q, c["rline_d"], c["rline_l"], c["density"],
+                                              c["viscosity"], c["rline_rough"], c["rline_k"])
     return dv, line
 
 
@@ -545,9 +546,9 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     # drive motor (and converter for variable speed)
     speed_fraction = n_pump / n_nom
-    p_motor_in = motors.motor_input_power(p_shaft, c["motor_rated_power"],
-                                          c["motor_rated_efficiency"],
-                                          speed_fraction if kind.speed_controlled else 1.0)
+    p_motor_in = motors.motor_input_power_unchecked(
+        p_shaft, c["motor_rated_power"], c["motor_rated_efficiency"],
+        speed_fraction if kind.speed_controlled else 1.0)
     losses["drive_motor"] = p_motor_in - p_shaft
     if kind.speed_controlled:
         losses["converter"] = motors.converter_losses(

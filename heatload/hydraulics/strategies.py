@@ -99,9 +99,10 @@ class Circuit:
         One pump delivering into the circuit: ``P = 2 pi n T(p)``
         (:func:`heatload.components.pumps.pump_torque`), nothing apart, nothing stored.
         """
-        torque = pumps.pump_torque(c["pump_displacement"], n_pump, np.maximum(p_pump, 0.0),
-                                   c["mu"], c["pump_viscous"], c["pump_friction"], frac)
-        return pumps.pump_shaft_power(torque, n_pump), {}, 0.0, None
+        torque = pumps.pump_torque_unchecked(c["pump_displacement"], n_pump,
+                                             np.maximum(p_pump, 0.0), c["mu"],
+                                             c["pump_viscous"], c["pump_friction"], frac)
+        return pumps.pump_shaft_power_unchecked(torque, n_pump), {}, 0.0, None
 
     # -- reporting --------------------------------------------------------------
     def settings_text(self, sp, q) -> str:

@@ -221,18 +221,25 @@ def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK, t
         bar = tqdm(total=total, unit="variant", file=sys.stderr, desc="sweep")
     try:
         for st in strategies:
+            parts = []
             for start in range(0, n, chunk):
                 part = {k: v[start:start + chunk] for k, v in values.items()}
-                res = variants.evaluate_variants(scenario, st, part, thermal=thermal)
-                df = res.frame()
-                df.insert(0, "variant", np.arange(start, start + len(res)))
-                frames.append(df)
+                parts.append(variants.evaluate_variants(scenario, st, part, thermal=thermal))
                 if bar is not None:
-                    bar.update(len(res))
+                    bar.update(len(parts[-1]))
+            # the chunks' arrays joined first: one table per strategy, not a
+            # table per chunk joined by pandas (a copy of every column)
+            res = variants.concat(parts)
+            parts.clear()               # the chunks' arrays freed before the frame copies
+            df = res.frame()
+            del res
+            df.insert(0, "variant", np.arange(len(df)))
+            frames.append(df)
     finally:
         if bar is not None:
             bar.close()
-    return file_frame(pd.concat(frames, ignore_index=True), scenario, values)
+    df = frames[0] if len(frames) == 1 else pd.concat(frames, ignore_index=True)
+    return file_frame(df, scenario, values)
 
 
 def file_frame(df, scenario, values):
@@ -285,8 +292,13 @@ def write_table(df, path, force=False) -> Path:
         def write(tmp):
             outputs.to_csv(df, tmp)
     else:
+        # dictionary encoding only for the text columns: tried on every float
+        # column it costs most of the write and gives nothing back
+        import pandas as pd
+        text = [c for c in df.columns if not pd.api.types.is_numeric_dtype(df[c])]
+
         def write(tmp):
-            df.to_parquet(tmp, index=False, engine="pyarrow")
+            df.to_parquet(tmp, index=False, engine="pyarrow", use_dictionary=text)
     return outputs.write_atomic(p, write, "--output", force=force)
 
 

@@ -10,6 +10,7 @@ figures into :class:`VariantResults` (a table: one row per variant).
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -81,6 +82,27 @@ class VariantResults:
             cols[f"warnings_{code}"] = n
         return pd.DataFrame(cols)
 
+
+def concat(parts) -> VariantResults:
+    """One :class:`VariantResults` of the rows of *parts* (results of the same
+    strategy and thermal mode over consecutive chunks), in their order."""
+    first = parts[0]
+    if len(parts) == 1:
+        return first
+
+    def cat(get):
+        return np.concatenate([np.asarray(get(r)) for r in parts])
+    out = {}
+    for f in dataclasses.fields(first):
+        v = getattr(first, f.name)
+        if f.name == "values":
+            v = {k: cat(lambda r, k=k: r.values[k]) for k in v}
+        elif f.name == "warnings":
+            v = {k: cat(lambda r, k=k: r.warnings[k]) for k in v}
+        elif isinstance(v, np.ndarray):
+            v = cat(lambda r, name=f.name: getattr(r, name))
+        out[f.name] = v
+    return VariantResults(**out)
 
 
 def _figures(result, ev, n):

@@ -114,3 +114,14 @@ def test_finite_and_monotone(q, d, nu, ed_exp):
     dp2 = line_pressure_drop(q * 1.1 + 1e-7, d, 3.0, 870.0, nu, eps, 1.0)
     assert np.isfinite(dp1) and np.isfinite(dp2)
     assert 0.0 <= dp1 < dp2
+
+
+def test_few_elements_give_the_figures_of_many():
+    # a scenario's few phases take the whole-array path, a sweep the gathered
+    # one: the same Colebrook steps, so equal to the last bit (laminar,
+    # transition and turbulent elements, zero flow included)
+    from heatload.components.lines import line_pressure_drop
+    q = np.concatenate([[0.0, 1e-6], np.geomspace(1e-5, 3e-3, 22)])
+    many = line_pressure_drop(np.tile(q, 10), 0.016, 4.0, 850.0, 32e-6, 1.5e-6, 3.0)
+    few = line_pressure_drop(q, 0.016, 4.0, 850.0, 32e-6, 1.5e-6, 3.0)
+    assert np.array_equal(few, many[:q.size])
