@@ -228,6 +228,9 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
     with np.errstate(divide="ignore", invalid="ignore"):
         speed_ratio = np.where(result.speed_target != 0, result.speed / result.speed_target, 0)
 
+    # phases moving several actuators at once (their flows shared by one rule)
+    shared = full(c.get("flow_total_ratio", 1.0)) > 1.0
+
     def cond(code, mask, value, limit, text):
         return Condition(code, full(mask), full(value), None if limit is None else full(limit),
                          text)
@@ -274,7 +277,10 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
              lambda i: "the load needs more pressure than the supply allows: the actuator "
                        "stalls and the pump flow crosses the relief"),
         cond("speed-not-reached", moving & ~stalled & slow, result.speed, result.speed_target,
-             lambda i: f"speed reaches only {100 * speed_ratio[i]:.0f} % of the set speed"),
+             lambda i: (f"the supply cannot give every motion its set flow: each reaches "
+                        f"only {100 * speed_ratio[i]:.0f} % of its set speed (shared in "
+                        f"proportion to the set flows)") if shared[i] else
+             f"speed reaches only {100 * speed_ratio[i]:.0f} % of the set speed"),
         cond("relief-passing", moving & ~stalled & ~slow & (relief >= pump_flow * 0.999)
              & (pump_flow > 0), relief, None,
              lambda i: "the relief valve passes the whole pump flow"),

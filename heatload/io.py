@@ -1057,8 +1057,92 @@ def _repeats(data, phases, source) -> tuple:
     return tuple(out)
 
 
+#: Keys of a further motion in a phase (``[[phases.simultaneous]]``).
+_MOTION = {k: _PHASE[k] for k in ("actuator", "load", "speed", "hold_pressure",
+                                  "hold_force", "compress", "regeneration")}
+_MOTION["actuator"] = _F("str", "nonempty", required=True)
+_MOTION["motion"] = _F("choice", choices=("extend", "retract", "run", "hold"), required=True)
+
+
+def _named_actuator(item, by_name, p, source):
+    """The actuator *item* names (``<p>.actuator``); a one-line error naming
+    the choices when there is none of that name."""
+    aname = _value(item["actuator"], _PHASE["actuator"], f"{p}.actuator", source)
+    act = by_name.get(aname)
+    if act is None:
+        raise _err(f"no actuator called {aname!r} (actuators: "
+                   f"{', '.join(by_name)}){_suggest(aname, by_name)}",
+                   f"{p}.actuator", source)
+    return act
+
+
+def _simultaneous(items, phase, p, by_name, source) -> tuple:
+    """``[[phases.simultaneous]]``: further actuators' motions in phase *phase*
+    (its own motion read already), on the same supply."""
+    if not isinstance(items, list) or not all(isinstance(x, dict) for x in items):
+        raise _err("expected an array of tables, written as [[phases.simultaneous]] items",
+                   f"{p}.simultaneous", source)
+    if items and (phase.motion not in ("extend", "retract", "run") or phase.speed is None):
+        raise _err("a phase with simultaneous motions needs its own motion at a set speed "
+                   "(the motions share the pump by their set flows)", f"{p}.speed", source)
+    out, seen = [], {phase.actuator}
+    for j, item in enumerate(items):
+        q = f"{p}.simultaneous[{j}]"
+        _table(item, _MOTION, q, source)
+        act = _named_actuator(item, by_name, q, source)
+        aname = act.name
+        if aname in seen:
+            raise _err(f"{aname!r} already moves in this phase; an actuator makes one "
+                       f"motion at a time", f"{q}.actuator", source)
+        seen.add(aname)
+        motion = _value(item["motion"], _MOTION["motion"], f"{q}.motion", source)
+        is_motor = act.kind == "motor"
+        allowed = _MOTOR_MOTIONS if is_motor else _CYLINDER_MOTIONS
+        if motion not in allowed:
+            raise _err(f"a {act.kind} cannot {motion}; use one of {', '.join(allowed)}",
+                       f"{q}.motion", source)
+        vals = {"actuator": aname, "motion": motion}
+        if "load" in item:
+            vals["load"] = _value(item["load"], _MOTION["load"], f"{q}.load", source,
+                                  kind="torque" if is_motor else "force")
+        if motion == "hold":
+            if "speed" in item:
+                raise _err("a hold has no speed", f"{q}.speed", source)
+        elif "speed" not in item or item["speed"] == "full":
+            raise _err(f"give the {motion} motion its set speed (m/s, or rpm for a motor): "
+                       f"simultaneous motions share the pump by their set flows",
+                       f"{q}.speed", source)
+        else:
+            vals["speed"] = _value(item["speed"], _MOTION["speed"], f"{q}.speed", source,
+                                   kind="shaft_speed" if is_motor else "velocity")
+        for key in ("hold_pressure", "hold_force", "compress", "regeneration"):
+            if key in item:
+                vals[key] = _value(item[key], _MOTION[key], f"{q}.{key}", source)
+        for key in ("hold_pressure", "hold_force"):
+            if key in vals and motion != "hold":
+                raise _err(f"only a hold has {key}", f"{q}.{key}", source)
+        if "hold_pressure" in vals and "hold_force" in vals:
+            raise _err("give hold_pressure or hold_force, not both", f"{q}.hold_force",
+                       source)
+        if "hold_force" in vals and is_motor:
+            raise _err("a motor holds a torque (load) or a pressure, not a force",
+                       f"{q}.hold_force", source)
+        if vals.get("regeneration") and (is_motor or motion != "extend"):
+            raise _err("only an extending cylinder can regenerate (its rod side joined to "
+                       "the cap side)", f"{q}.regeneration", source)
+        out.append(m.Motion(**vals))
+    return tuple(out)
+
+
 def _phase(item, i, by_name, source):
     p = f"phases[{i}]"
+    if isinstance(item, dict) and "simultaneous" in item:
+        # further motions at the same time, on the same supply: read after the phase
+        together = item["simultaneous"]
+        item = {k: v for k, v in item.items() if k != "simultaneous"}
+        phase = _phase(item, i, by_name, source)
+        motions = _simultaneous(together, phase, p, by_name, source)
+        return dataclasses.replace(phase, simultaneous=motions)
     _table(item, _PHASE, p, source)
     motion = _value(item["motion"], _PHASE["motion"], f"{p}.motion", source)
     name = _value(item["name"], _PHASE["name"], f"{p}.name", source)
@@ -1072,12 +1156,7 @@ def _phase(item, i, by_name, source):
         if "actuator" not in item:
             raise _err(f"a {motion} phase needs the actuator it drives", f"{p}.actuator",
                        source)
-        aname = _value(item["actuator"], _PHASE["actuator"], f"{p}.actuator", source)
-        act = by_name.get(aname)
-        if act is None:
-            raise _err(f"no actuator called {aname!r} (actuators: "
-                       f"{', '.join(by_name)}){_suggest(aname, by_name)}",
-                       f"{p}.actuator", source)
+        act = _named_actuator(item, by_name, p, source)
         allowed = _MOTOR_MOTIONS if act.kind == "motor" else _CYLINDER_MOTIONS
         if motion not in allowed:
             raise _err(f"a {act.kind} cannot {motion}; use one of {', '.join(allowed)}",
@@ -1665,6 +1744,17 @@ def _dump_fields(obj, spec: dict, kinds: dict | None = None, skip=()) -> dict:
     return out
 
 
+def _dump_motion(x: m.Motion, motor: bool) -> dict:
+    """A further motion of a phase as a TOML table (see :func:`_simultaneous`)."""
+    item = _dump_fields(x, _MOTION, kinds={"load": "torque" if motor else "force",
+                                           "speed": "shaft_speed" if motor else "velocity"})
+    if not x.regeneration:
+        del item["regeneration"]
+    if x.compress:
+        del item["compress"]
+    return item
+
+
 def scenario_to_dict(scenario: m.Scenario) -> dict:
     """The scenario as a TOML-ready dict (quantities as strings with units).
 
@@ -1720,6 +1810,9 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
             item.update({k: v for k, v in _dump_fields(ph, _PHASE).items()
                          if k in ("stroke", "duration", "hold_pressure", "hold_force",
                                   "unloading", "compress")})
+        if ph.simultaneous:
+            item["simultaneous"] = [_dump_motion(x, kinds.get(x.actuator) == "motor")
+                                    for x in ph.simultaneous]
         phases.append(item)
     d["phases"] = phases
     strategies = []

@@ -174,8 +174,13 @@ class BleedOff(Circuit):
         return _c._relief_supply(q, c, c["q_theoretical"]) - (supply + p1)
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
-        return (np.minimum(required, _c._relief_supply(q1, c, self.flow_capacity(c))),
-                np.zeros(np.shape(q1)))
+        # several motions: the pump at the heaviest's need; a lighter one's own
+        # valve throttles the difference (booked on it by the solve)
+        need, _ = _c.governing(required, p1, c)
+        p_pump = np.minimum(need, _c._relief_supply(q1, c, self.flow_capacity(c)))
+        if c.get("need_max") is None:
+            return p_pump, np.zeros(np.shape(q1))
+        return p_pump, np.maximum(p_pump - required, 0.0)
 
     def rest_pressure(self, c, z, use_centre, holding, p_hold, centre_dp, relief_full):
         # the bleed restrictor opens fully: pump at about the centre drop
@@ -251,7 +256,8 @@ class BypassCompensated(MeterIn):
         spring_drop = np.where(moving & ~stalled,
                                c["bypass_spring"] * np.minimum(q1 / c["q_target_safe"], 1.0)
                                ** 2, 0.0)
-        p_pump = np.minimum(required + spring_drop,
+        need, _ = _c.governing(required, p1, c)   # the heaviest motion's need
+        p_pump = np.minimum(need + spring_drop,
                             _c._relief_supply(q1, c, c["q_theoretical"]))
         return p_pump, np.maximum(p_pump - required, 0.0)
 
@@ -340,8 +346,9 @@ class LoadSensing(_VariablePump):
         return avail - (supply + p1)
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
+        _, load = _c.governing(required, p1, c)   # the highest load pressure
         p_pump = np.minimum(_c._compensator_supply(q1, c, c["compensator"], c["q_theoretical"]),
-                            p1 + c["ls_margin"])
+                            load + c["ls_margin"])
         return p_pump, np.maximum(p_pump - required, 0.0)
 
     def rest_pressure(self, c, z, use_centre, holding, p_hold, centre_dp, relief_full):
@@ -635,7 +642,8 @@ class Accumulator(MeterIn):
 
     def extra_conditions(self, c, result):
         from heatload.checks import Condition
-        q1, t = result.actuator_flow, result.duration
+        # what the circuit draws: every motion of a phase (the pump flow booked)
+        q1, t = result.pump_flow, result.duration
         p_m, q_on, _, duty = self.delivery(c, q1, t)
         shape = np.shape(q1)
         usable = np.broadcast_to(_acc.usable_volume(c["acc_p_min"], c["acc_p_max"],
