@@ -1444,6 +1444,23 @@ def _check_phase_durations(scenario: m.Scenario, source: str) -> None:
                    f"m/s) takes {span}; a phase lasts at most 24 h (check the unit of the "
                    f"{'speed' if ph.speed is not None else 'pump displacement'})",
                    f"phases[{i}].{'speed' if ph.speed is not None else 'stroke'}", source)
+    _check_simultaneous_travel(scenario, durations, source)
+
+
+def _check_simultaneous_travel(scenario: m.Scenario, durations, source: str) -> None:
+    """Refuse a simultaneous cylinder motion that would travel beyond its
+    cylinder's stroke in the phase (it runs for the whole phase at its set speed)."""
+    for i, (ph, t) in enumerate(zip(scenario.phases, durations)):
+        for j, x in enumerate(ph.simultaneous):
+            act = scenario.actuator(x.actuator)
+            if act.kind == "motor" or x.speed is None:
+                continue
+            if x.speed * t > act.stroke * (1 + 1e-9):
+                raise _err(f"at its set speed the {x.motion} motion travels "
+                           f"{x.speed * t * 1e3:.4g} mm in the phase's {t:.3g} s, more than "
+                           f"the {act.stroke * 1e3:.4g} mm stroke of {act.name!r} (it moves "
+                           f"for the whole phase: lower its speed or split the phase)",
+                           f"phases[{i}].simultaneous[{j}].speed", source)
 
 
 def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) -> None:

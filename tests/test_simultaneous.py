@@ -329,16 +329,7 @@ def test_file_form_loads_and_writes_back():
     sc = io.loads_scenario(TOML)
     assert sc.phases[0].simultaneous == (m.Motion("door", "extend", load=5e3, speed=0.04),)
     assert sc.phases[0].actuators == ("ram", "door")
-    again = io.loads_scenario(io.dumps_scenario(sc) if hasattr(io, "dumps_scenario")
-                              else _dump(sc))
-    assert again == sc
-
-
-def _dump(sc):
-    import tomli_w
-
-    from heatload import io
-    return tomli_w.dumps(io.scenario_to_dict(sc))
+    assert io.loads_scenario(io.dumps_scenario(sc)) == sc
 
 
 @pytest.mark.parametrize("change, field, fragment", [
@@ -371,3 +362,38 @@ def test_a_phase_at_full_flow_cannot_share():
     text = TOML.replace('actuator = "door"', 'actuator = "ram"')
     with pytest.raises(HeatloadError, match="already moves"):
         io.loads_scenario(text)
+
+
+def test_a_simultaneous_stroke_longer_than_the_cylinder_is_refused():
+    from heatload import io
+    # 0.4 m at 0.05 m/s: 8 s; the door at 0.1 m/s would travel 0.8 m > its 0.6 m
+    text = TOML.replace('speed = "0.04 m/s"', 'speed = "0.1 m/s"')
+    with pytest.raises(HeatloadError, match="more than") as e:
+        io.loads_scenario(text)
+    assert e.value.field == "phases[0].simultaneous[0].speed"
+
+
+def test_bleed_off_speed_drift_of_a_two_motion_phase():
+    # Ideal pump, no drops: the pump at the ram's p = F/A1, the door throttled.  The
+    # bleed restrictor is an orifice, Q_b = Q_b0 sqrt(p/p0) (Merritt 1967); with the
+    # ram's load 10 % up, p' = 1.1 p0 and the motions share Q_th - Q_b0 sqrt(1.1) in
+    # their set proportion: (v' - v)/v = (Q_th - Q_b0 sqrt(1.1)) / (Q_ram + Q_door) - 1
+    from heatload import strategies
+    r, c = _solve(SC, "bleed-off")
+    change = strategies.bleed_off_speed_change(c, r, 1.1)
+    qb0 = Q_TH - Q_RAM - Q_DOOR
+    expected = (Q_TH - qb0 * math.sqrt(1.1)) / (Q_RAM + Q_DOOR) - 1.0
+    assert change[0] == pytest.approx(expected, rel=1e-6)
+
+
+def test_readme_simultaneous_example_loads():
+    from pathlib import Path
+
+    from heatload import io
+    readme = (Path(__file__).parents[1] / "README.md").read_text(encoding="utf-8")
+    block = readme.split("### Simultaneous motions", 1)[1].split("```toml\n", 1)[1]
+    block = block.split("```", 1)[0]
+    head = TOML.split("[[phases]]")[0]
+    sc = io.loads_scenario(head + block, source="README")
+    assert sc.phases[0].simultaneous == (m.Motion("door", "extend", load=4e3, speed=0.04),)
+    assert io.loads_scenario(io.dumps_scenario(sc)) == sc
