@@ -718,9 +718,12 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
                    (0, "useful_power"): useful}
         motions.update({(0, ("loss", k)): _own_loss(k, losses, q1, q2, dv_in_dp, rdv_dp)
                         for k in MOTION_LOSSES})
+        motions[(0, "runaway")], motions[(0, "counterbalance_active")] = runaway, c["cb_active"]
         for b, v in enumerate(views, start=1):
             point = _motion_point(kind, v, q1, p_pump, stalled, t_actual)
             motions.update({(b, k): val for k, val in point.items()})
+            motions[(b, "runaway")] = v["runaway"] & (z == 0.0)
+            motions[(b, "counterbalance_active")] = v["cb_active"] & (z == 0.0)
             useful = useful + point["useful_power"]
             for k in MOTION_LOSSES:
                 losses[k] = losses[k] + point[("loss", k)]

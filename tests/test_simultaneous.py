@@ -397,3 +397,28 @@ def test_readme_simultaneous_example_loads():
     sc = io.loads_scenario(head + block, source="README")
     assert sc.phases[0].simultaneous == (m.Motion("door", "extend", load=4e3, speed=0.04),)
     assert io.loads_scenario(io.dumps_scenario(sc)) == sc
+
+
+def test_a_simultaneous_motion_gets_its_own_chamber_warnings():
+    # the door lowering under its own weight (-3 kN, overrunning) beside the ram:
+    # a meter-in circuit without a counterbalance valve cannot hold it (it runs
+    # away); meter-out throttles its outlet and holds it
+    phase = dataclasses.replace(_phase(), simultaneous=(
+        m.Motion("door", "extend", load=-3e3, speed=0.04),))
+    sc = _scenario([phase])
+    for strategy, expected in (("meter-in", True), ("meter-out", False)):
+        c = cycle.circuit_inputs(sc, strategy)
+        r = circuits.solve_strategy(strategy, c)
+        warnings = checks.phase_warnings(checks.phase_conditions(r, c, sc), sc)
+        runaway = [w for w in warnings if w.code == "overrunning-load"]
+        assert bool(runaway) == expected, strategy
+        if expected:
+            assert "'door' moving with it" in runaway[0].message
+    # its chamber above its rating: a hold at 300 bar in a 250 bar cylinder
+    hold = dataclasses.replace(_phase(), simultaneous=(
+        m.Motion("door", "hold", hold_pressure=300e5),))
+    sc = _scenario([hold])
+    c = cycle.circuit_inputs(sc, "load-sensing")
+    r = circuits.solve_strategy("load-sensing", c)
+    codes = [w.code for w in checks.phase_warnings(checks.phase_conditions(r, c, sc), sc)]
+    assert "pressure-rating" in codes
