@@ -422,3 +422,55 @@ def test_a_simultaneous_motion_gets_its_own_chamber_warnings():
     r = circuits.solve_strategy("load-sensing", c)
     codes = [w.code for w in checks.phase_warnings(checks.phase_conditions(r, c, sc), sc)]
     assert "pressure-rating" in codes
+
+
+def test_report_and_json_list_each_motion():
+    from pathlib import Path
+
+    from heatload import chain, io, report, tables
+    root = Path(__file__).parents[1] / "duty_cycles"
+    sc = io.load_scenario(root / "two_cylinder_baler.toml")
+    data = tables.comparison_dict(chain.compare(sc))
+    rec = {r["strategy"]: r for r in data["strategies"]}["load-sensing"]
+    close = rec["phases"][0]
+    assert close["actuators"] == ["ram", "door"]
+    assert [mo["actuator"] for mo in close["motions"]] == ["ram", "door"]
+    # the phase's flow is its motions' (the pump delivers what they take)
+    assert close["pump_flow_m3_s"] == pytest.approx(
+        sum(mo["flow_m3_s"] for mo in close["motions"]), rel=1e-12)
+    # each motion: p_pump Q_b = useful + its path's losses (compression aside)
+    for mo in close["motions"]:
+        path = sum(v for k, v in mo["losses_W"].items() if k != "compression")
+        assert close["pump_pressure_Pa"] * mo["flow_m3_s"] == pytest.approx(
+            mo["useful_power_W"] + path, rel=1e-9)
+    assert rec["phases"][1]["actuators"] == ["ram"] and len(rec["phases"][1]["motions"]) == 1
+    assert rec["phases"][3]["actuators"] == [] and rec["phases"][3]["motions"] == []
+    html = report.motions_section([rec], ["load-sensing"])
+    assert "door" in html and "close and fill" in html and "<td>press</td>" not in html
+    one = io.load_scenario(root / "forming_press.toml")
+    data = tables.comparison_dict(chain.compare(one))
+    assert report.motions_section(data["strategies"][:1], ["x"]) == ""
+
+
+def test_dashboard_shows_each_motion():
+    from pathlib import Path
+
+    from heatload import io
+    from heatload.dashboard import compute, figures, state
+    sc = io.load_scenario(Path(__file__).parents[1] / "duty_cycles" / "two_cylinder_baler.toml")
+    data = io.scenario_to_dict(sc)
+    form = state.render_form(data, "si")
+    # 4 kN, 0.04 m/s = 40 mm/s (1 m = 1000 mm)
+    assert [r["simultaneous"] for r in form["phase_rows"]][:2] == [
+        "door extend 4 kN at 40 mm/s", ""]
+    # the read-only cell keeps the stored motions when the form is applied
+    again, _, errors = state.apply_form(data, form["phase_rows"], form["actuator_rows"],
+                                        form["key_values"], "si")
+    assert errors == [] and again.phases == sc.phases
+    fig = figures.cycle_figure(compute.compute_results(sc), "load-sensing", "si")
+    names = [t.name for t in fig.data]
+    assert {"ram flow", "door flow", "ram inlet", "door inlet"} <= set(names)
+    door = fig.data[names.index("door flow")]
+    # 7.48 L/min in the first phase (0.04 m/s x 31.17 cm^2), nothing while pressing
+    assert door.y[0] == pytest.approx(0.04 * math.pi / 4 * 0.063**2 * 60000, rel=1e-6)
+    assert door.y[1] == 0.0
