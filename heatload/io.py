@@ -236,6 +236,14 @@ compress = true                        # count the compression energy of the cap
 # regeneration = true                  # extend differentially: the rod side's oil joins
                                        # the cap side; v = Q / A_rod, F = p A_rod (a fast
                                        # approach at low force)
+# Further actuators moving at the same time on the same pump, one item each
+# (the phase's own motion needs a set speed and sets the duration; each moving
+# one needs its set speed and runs for the whole phase; hold: no flow):
+# [[phases.simultaneous]]
+# actuator = "spindle"
+# motion = "run"                       # extend | retract | run | hold
+# load = "40 N*m"
+# speed = "100 rpm"
 
 [[phases]]
 name = "dwell"
