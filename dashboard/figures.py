@@ -411,6 +411,32 @@ def _steps(durations, values):
     return t.tolist(), v
 
 
+def _actuator_traces(fig, ph, dur, phase_names, system):
+    """Where phases move several actuators at once: each actuator's inlet
+    pressure (row 1; a gap where the phase leaves it alone) and flow (row 2,
+    zero where it rests) over the cycle."""
+    if not any(len(p.get("motions") or []) > 1 for p in ph):
+        return
+    names = list(dict.fromkeys(mo["actuator"] for p in ph for mo in p["motions"]))
+    colours = ["#332288", "#88ccee", "#117733", "#999933", "#882255", "#44aa99"]
+    for j, name in enumerate(names):
+        colour = colours[j % len(colours)]
+        for row, key, kind, what in ((1, "inlet_pressure_Pa", "pressure", "inlet"),
+                                     (2, "flow_m3_s", "flow", "flow")):
+            vals = []
+            for p in ph:
+                mo = next((x for x in p["motions"] if x["actuator"] == name), None)
+                v = None if mo is None else mo[key]
+                if v is None and row == 2:
+                    v = 0.0
+                vals.append(None if v is None else conv(v, kind, system))
+            t, v = _steps(dur, vals)
+            fig.add_trace(go.Scatter(x=t, y=v, name=f"{name} {what}", mode="lines",
+                                     line_shape="hv", customdata=phase_names,
+                                     line=dict(color=colour, width=1.5, dash="dashdot"),
+                                     legendgroup=str(row)), row=row, col=1)
+
+
 def cycle_figure(results: dict, strategy: str | None, system: str):
     """Pressures, flows and heat into the oil per phase, against time in the cycle."""
     r = strategy_record(results, strategy)
@@ -441,6 +467,7 @@ def cycle_figure(results: dict, strategy: str | None, system: str):
     trace(2, "bleed_flow_m3_s", "flow", "bled / bypassed", OKABE_ITO["purple"], "dot")
     trace(3, "heat_to_oil_W", "power", "heat into oil", OKABE_ITO["vermillion"])
     trace(3, "electric_power_W", "power", "electric input", OKABE_ITO["grey"], "dot")
+    _actuator_traces(fig, ph, dur, phase_names, system)
     starts = np.r_[0.0, np.cumsum(dur)[:-1]]
     # one shapes list: add_vline per phase re-checks every earlier line (slow)
     fig.update_layout(shapes=[dict(type="line", xref=f"x{k}", yref=f"y{k} domain",

@@ -63,6 +63,9 @@ PHASE_COLUMNS = (
     Column("duration", "duration", "time", "time"),
     Column("hold_pressure", "hold pressure", "pressure", "pressure"),
     Column("unloading", "unloading", choices=("centre", "relief", "held", "pilot-check")),
+    # the further actuators moving in the phase ([[phases.simultaneous]]): shown,
+    # kept as stored (edited in the file)
+    Column("simultaneous", "moving with it", editable=False),
 )
 
 ACTUATOR_COLUMNS = (
@@ -260,13 +263,37 @@ def table_rows(columns, data: dict, system: str, section: str) -> list:
         row = {"_i": i}
         for c in columns:
             kind = c.kind(rk)
-            if c.cylinder is not None or c.motor is not None:
+            if c.key == "simultaneous":
+                row[c.key] = motions_text(item.get(c.key) or [], kinds, system)
+            elif c.cylinder is not None or c.motor is not None:
                 row[c.key] = display_text(item.get(c.key), kind, system) if kind else ""
             else:
                 v = item.get(c.key)
                 row[c.key] = "" if v is None else str(v)
         rows.append(row)
     return rows
+
+
+def motions_text(items: list, kinds: dict, system: str) -> str:
+    """A phase's simultaneous motions in one cell: ``door extend 4 kN at 0.04 m/s``
+    (quantities in *system*'s units), ``;`` between them."""
+    out = []
+    for x in items:
+        motor = kinds.get(x.get("actuator")) == "motor"
+        words = [str(x.get("actuator", "")), str(x.get("motion", ""))]
+        if x.get("load") is not None:
+            words.append(_with_unit(x["load"], "torque" if motor else "force", system))
+        if x.get("speed") is not None:
+            words.append("at " + _with_unit(x["speed"], "shaft_speed" if motor else "velocity",
+                                            system))
+        if x.get("hold_pressure") is not None:
+            words.append("at " + _with_unit(x["hold_pressure"], "pressure", system))
+        out.append(" ".join(words))
+    return "; ".join(out)
+
+
+def _with_unit(raw, kind: str, system: str) -> str:
+    return f"{display_text(raw, kind, system)} {unit_label(kind, system)}"
 
 
 def _get(data: dict, path: tuple):

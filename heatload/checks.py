@@ -228,6 +228,9 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
     with np.errstate(divide="ignore", invalid="ignore"):
         speed_ratio = np.where(result.speed_target != 0, result.speed / result.speed_target, 0)
 
+    # phases moving several actuators at once (their flows shared by one rule)
+    shared = full(c.get("flow_total_ratio", 1.0)) > 1.0
+
     def cond(code, mask, value, limit, text):
         return Condition(code, full(mask), full(value), None if limit is None else full(limit),
                          text)
@@ -274,11 +277,52 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
              lambda i: "the load needs more pressure than the supply allows: the actuator "
                        "stalls and the pump flow crosses the relief"),
         cond("speed-not-reached", moving & ~stalled & slow, result.speed, result.speed_target,
-             lambda i: f"speed reaches only {100 * speed_ratio[i]:.0f} % of the set speed"),
+             lambda i: (f"the supply cannot give every motion its set flow: each reaches "
+                        f"only {100 * speed_ratio[i]:.0f} % of its set speed (shared in "
+                        f"proportion to the set flows)") if shared[i] else
+             f"speed reaches only {100 * speed_ratio[i]:.0f} % of the set speed"),
         cond("relief-passing", moving & ~stalled & ~slow & (relief >= pump_flow * 0.999)
              & (pump_flow > 0), relief, None,
              lambda i: "the relief valve passes the whole pump flow"),
     ]
+    if result.motions is not None:
+        out.extend(motion_conditions(result, c, scenario, full, cond))
+    return out
+
+
+def motion_conditions(result, c, scenario, full, cond) -> list:
+    """The chamber conditions of a phase's further motions (each its own
+    rating, runaway, cavitation and intensification), named by actuator."""
+    from heatload.hydraulics.circuits import motion_views
+    out = []
+    pp = result.pump_pressure
+    for b, v in enumerate(motion_views(c), start=1):
+        p1, p2 = result.motions[(b, "inlet_pressure")], result.motions[(b, "outlet_pressure")]
+        moving = full(v["moving"]) & (result.motions[(b, "speed")] > 0)
+        hi, lo = np.maximum(p1, p2), np.minimum(p1, p2)
+        rating = full(v["max_pressure_inlet"])
+        load = full(v["load"])
+        runaway = result.motions[(b, "runaway")]
+
+        def word(i, b=b):
+            return f"{scenario.phases[i[-1]].simultaneous[b - 1].actuator!r} moving with it"
+        out += [
+            cond("pressure-rating", np.isfinite(rating) & (hi > rating * (1 + 1e-9)), hi,
+                 rating, lambda i, hi=hi, rating=rating, w=word:
+                 f"{w(i)}: chamber at {_bar(hi[i])} above its rating {_bar(rating[i])}"),
+            cond("intensification", moving & (p2 > pp * (1 + 1e-6)) & (p2 > 1e5)
+                 & ~result.motions[(b, "counterbalance_active")], p2, pp,
+                 lambda i, p2=p2, w=word: f"{w(i)}: outlet chamber at {_bar(p2[i])} exceeds "
+                                          f"supply {_bar(pp[i])}: the cylinder intensifies"),
+            cond("overrunning-load", moving & runaway, load, np.zeros(np.shape(load)),
+                 lambda i, load=load, w=word: f"{w(i)}: overrunning load "
+                 f"{mark(load[i], 'force')} this circuit cannot hold: the actuator runs "
+                 f"away (fit a counterbalance valve, or throttle the outlet)"),
+            cond("cavitation", moving & (lo < CAVITATION_THRESHOLD), lo,
+                 np.full(np.shape(lo), CAVITATION_THRESHOLD),
+                 lambda i, lo=lo, w=word: f"{w(i)}: a chamber would fall to "
+                 f"{mark(lo[i], 'pressure', 2)} gauge: cavitation risk"),
+        ]
     return out
 
 

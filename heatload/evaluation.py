@@ -397,7 +397,9 @@ class _Rows:
     def put(self, where, result, c, sel):
         shape = c["shape"]
         flat = {n: v for n, v in _fields(result) if isinstance(v, np.ndarray)}
-        flat.update({("losses", k): v for k, v in result.losses.items()})
+        # the dicts of arrays (losses, each motion's figures) by their field's name
+        flat.update({(name, k): v for name, d in _fields(result) if isinstance(d, dict)
+                     for k, v in d.items()})
         flat = {k: np.broadcast_to(v, shape) for k, v in flat.items()}
         if self.data is None:
             self.data = self._alloc(flat, self.m)
@@ -411,7 +413,7 @@ class _Rows:
             if isinstance(v, np.ndarray):
                 v = self.data[name]
             elif isinstance(v, dict):
-                v = {k: self.data[("losses", k)] for k in v}
+                v = {k: self.data[(name, k)] for k in v}
             out[name] = v
         return type(self.template)(**out)
 

@@ -224,6 +224,27 @@ class HydraulicMotor:
 
 
 @dataclass(frozen=True)
+class Motion:
+    """A further actuator's motion in a phase, on the same supply as the
+    phase's own (``[[phases.simultaneous]]``).
+
+    It runs for the whole phase (the phase's own motion sets the duration;
+    split the phase where a motion ends earlier).  A moving one needs its set
+    ``speed`` [m/s] or [rev/s]: the motions share the pump by their set flows.
+    A ``hold`` keeps its pressure behind its closed valve section (no flow).
+    """
+
+    actuator: str
+    motion: str = "extend"                 #: extend | retract | run | hold
+    load: float = 0.0                      #: [N] or [N m]
+    speed: Optional[float] = None          #: [m/s] or [rev/s]; needed when it moves
+    hold_pressure: Optional[float] = None  #: [Pa], a hold
+    hold_force: Optional[float] = None     #: [N], a hold
+    compress: bool = True                  #: count compression energy of the chamber
+    regeneration: bool = False             #: see :attr:`Phase.regeneration`
+
+
+@dataclass(frozen=True)
 class Phase:
     """One step of the duty cycle.
 
@@ -248,6 +269,15 @@ class Phase:
     #: an extending cylinder connected differentially: the rod side's oil joins the
     #: cap side, so speed and force follow the rod area (v = Q / A_rod, F = p A_rod)
     regeneration: bool = False
+    #: further actuators' motions at the same time, on the same supply
+    #: (:class:`Motion` items; empty: the phase moves one actuator)
+    simultaneous: tuple = ()
+
+    @property
+    def actuators(self) -> tuple:
+        """Names of every actuator the phase drives (its own first)."""
+        own = (self.actuator,) if self.actuator else ()
+        return own + tuple(m.actuator for m in self.simultaneous)
 
 
 @dataclass(frozen=True)

@@ -113,6 +113,11 @@ class CircuitResult:
     stored_power: np.ndarray = None
     #: an accumulator circuit's pump on-time over the cycle [-] (None: not one)
     pump_duty: np.ndarray = None
+    #: each motion's figures where phases move several actuators at once:
+    #: ``(b, name) -> array`` with b = 0 the phase's own motion and 1, 2, ...
+    #: its further ones (:data:`MOTION_FIGURES`, ``("loss", component)`` for its
+    #: share of the losses); None where every phase moves one actuator
+    motions: dict = None
 
     @property
     def heat_to_oil(self) -> np.ndarray:
@@ -183,10 +188,87 @@ def _flow_drops(q1, c, rec=None):
 
 
 def _supply_and_inlet(q, c, outlet_extra, rec=None):
-    """(supply drop, p1) at inlet flow *q* with *outlet_extra* on the outlet path."""
+    """(supply drop, p1) at inlet flow *q* with *outlet_extra* on the outlet path.
+
+    Where the phase moves further actuators at once (:func:`motion_views`),
+    the governing pair: ``p1`` the highest load pressure of its motions and
+    ``supply + p1`` the highest pressure any of them needs at the pump, each at
+    its share of the flow (the outlet throttles at the same fraction of their
+    setting)."""
     check, pline, dv_in, rdv, rline = _flow_drops(q, c, rec)
     p1, _, _ = _inlet_pressure_at(rdv + rline + outlet_extra, c)
-    return check + pline + dv_in, p1
+    supply = check + pline + dv_in
+    views = motion_views(c)
+    if not views:
+        return supply, p1
+    need, load = supply + p1, p1
+    others = False
+    for v in views:
+        qb = q * v["flow_share"]
+        check, pline, dv_in, rdv, rline = _flow_drops(qb, v)
+        p1b, _, _ = _inlet_pressure_at(rdv + rline + outlet_extra, v)
+        moving = v["moving"]
+        need = np.where(moving, np.maximum(need, check + pline + dv_in + p1b), need)
+        load = np.where(moving, np.maximum(load, p1b), load)
+        others = others | moving
+    return np.where(others, need - load, supply), np.where(others, load, p1)
+
+
+def _total_flow(q, c):
+    """The circuit's flow when the motion solved for takes *q*: times
+    ``flow_total_ratio`` where a phase moves several actuators (their set flows
+    over its own), else *q* itself."""
+    ratio = c.get("flow_total_ratio")
+    return q if ratio is None else q * ratio
+
+
+class _LazyView(dict):
+    """A dict whose entries are taken from elsewhere when first read
+    (``__missing__``); ``get`` goes through it too."""
+
+    def get(self, key, default=None):
+        try:
+            return self[key]
+        except KeyError:
+            return default
+
+
+class _MotionView(_LazyView):
+    """A circuit dict seen from a phase's further motion *b*: its own entries
+    (``motion<b>:<key>``, see :data:`heatload.hydraulics.cycle.MOTION_KEYS`), the supply's
+    and the phase's shared."""
+
+    def __init__(self, c, b):
+        super().__init__()
+        self._c, self._prefix = c, f"motion{b}:"
+
+    def __missing__(self, key):
+        try:
+            v = self._c[self._prefix + key]
+        except KeyError:
+            v = self._c[key]
+        self[key] = v
+        return v
+
+
+def motion_views(c) -> list:
+    """Views of a circuit dict for each of its phases' further motions (empty
+    when every phase moves one actuator)."""
+    out = []
+    while c.get(f"motion{len(out) + 1}:moving") is not None:
+        out.append(_MotionView(c, len(out) + 1))
+    return out
+
+
+def governing(required, p1, c):
+    """``(required, p1)`` raised to the phase's heaviest motion where it moves
+    several actuators: the pump pressure the heaviest needs and the highest
+    load pressure (a load-sensing signal), set by the solve at the solved
+    flow (``need_max``, ``load_max``); unchanged elsewhere."""
+    need = c.get("need_max")
+    if need is None:
+        return required, p1
+    return np.maximum(required, need), np.maximum(p1, c["load_max"])
 
 
 def _inlet_pressure(q1, c, outlet_extra):
@@ -234,6 +316,7 @@ def _relief_supply(q, c, theoretical_flow):
     Pump branch (relief shut, the pump delivers all it can):
     ``p = (Q_th - q) / L``.
     """
+    q = _total_flow(q, c)
     leak = _leak_conductance(c)
     k = c["relief_override"] / c["relief_rated_flow"]
     q_crack = theoretical_flow - leak * c["relief_cracking"]
@@ -246,6 +329,7 @@ def _relief_supply(q, c, theoretical_flow):
 
 def _compensator_supply(q, c, setting, theoretical_flow):
     """Variable pump at its compensator *setting* until full stroke, then its curve."""
+    q = _total_flow(q, c)
     leak = _leak_conductance(c)
     q_full = theoretical_flow - leak * setting
     pump_branch = setting - (q - q_full) / np.maximum(leak, 1e-30)
@@ -257,7 +341,7 @@ def _compensator_supply(q, c, setting, theoretical_flow):
 # the solve
 # ---------------------------------------------------------------------------
 
-class _Subset(dict):
+class _Subset(_LazyView):
     """Entries of a circuit dict restricted to the elements *idx*, taken only
     when a residual first reads them (most entries are never read)."""
 
@@ -271,12 +355,6 @@ class _Subset(dict):
             v = v[self._idx]
         self[key] = v
         return v
-
-    def get(self, key, default=None):
-        try:
-            return self[key]
-        except KeyError:
-            return default
 
 
 def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
@@ -372,6 +450,104 @@ def _solve_flow(residual, c, q_target, q_kink=None):
     return q, short & ~stalled, stalled, drops
 
 
+def _holding_valves(v, moving, meters_out):
+    """``(cb_fitted, cb_setting, cb_ratio, cb_active, runaway)`` of the motion
+    *v* sees: its actuator's own counterbalance valve replaces the strategy's;
+    an overrunning load no valve holds runs away (its figures assume one set
+    at :data:`COUNTERBALANCE_FACTOR` x the load-induced pressure); an outlet
+    throttle needs none."""
+    # the load overruns where it beats the seal friction: the effective force pulls
+    overrun = moving & (v["load"] < 0.0) & (v["force"] < 0.0)
+    fitted, setting, ratio = v["cb_fitted"], v["cb_setting"], v["cb_ratio"]
+    if v.get("cb_own") is not None:
+        own = v["cb_own"]
+        fitted = fitted | own
+        setting = np.where(own, v["cb_own_setting"], setting)
+        ratio = np.where(own, v["cb_own_ratio"], ratio)
+    runaway = overrun & ~fitted & (not meters_out)
+    active = overrun & (fitted | runaway) & (not meters_out)
+    setting = np.where(runaway, COUNTERBALANCE_FACTOR * np.abs(v["force"]) / v["a_out"],
+                       setting)
+    return fitted, setting, ratio, active, runaway
+
+
+def _compression_power(c, p1, p2, t_actual):
+    """Compression energy of the motion's chambers per phase [W] (the inlet
+    one filled at p1, the outlet one pressed to p2, from the pressures of the
+    previous phase where it pressurised the same chamber)."""
+    prev = c["previous_phase"]
+    # prev and p1 may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
+    shape = np.broadcast_shapes(np.shape(prev), np.shape(p1))
+    at = np.broadcast_to(np.maximum(prev, 0), shape or (1,))
+    p_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p1, shape or (1,)), at,
+                                                    axis=-1).reshape(shape), 0.0)
+    p2_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p2, shape or (1,)), at,
+                                                     axis=-1).reshape(shape), 0.0)
+    # E = V (p^2 - p_prev^2) / (2 K) in each chamber: the inlet one filled at p1, and
+    # the outlet one, pressed to p2 when the motion starts (a meter-out circuit's
+    # intensified chamber stores as much as the inlet)
+    e_in = c["compression_volume"] * (np.maximum(p1, 0.0) ** 2 - np.maximum(p_prev, 0.0) ** 2)
+    e_out = c["compression_volume_outlet"] * (np.maximum(p2, 0.0) ** 2
+                                              - np.maximum(p2_prev, 0.0) ** 2)
+    e_comp = np.maximum(e_in, 0.0) + np.maximum(e_out, 0.0)
+    e_comp = np.where(c["compress"], e_comp / (2.0 * c["bulk_modulus"]), 0.0)
+    # once per pass: a repeated phase's duration holds all its passes
+    return e_comp * c.get("repeats", 1.0) / t_actual
+
+
+#: Figures of each motion in :attr:`CircuitResult.motions` (flows [m^3/s],
+#: pressures [Pa], speeds [m/s] or [rev/s], powers [W]).
+MOTION_FIGURES = ("flow", "outlet_flow", "inlet_pressure", "outlet_pressure", "speed",
+                  "speed_target", "throttle_drop", "useful_power")
+#: The losses booked on a motion's own path (the rest belong to the supply).
+MOTION_LOSSES = ("flow_control", "directional_valve", "check_valve", "lines",
+                 "counterbalance", "actuator", "compression")
+
+
+def _motion_point(kind, v, q1, p_pump, stalled, t_actual):
+    """A further motion's operating point at the phase's solved own flow *q1*
+    and the shared pump pressure *p_pump*: its figures and its losses (keys of
+    :data:`MOTION_FIGURES`, ``("loss", component)``).
+
+    Its flow is its share, ``Q_b = r_b Q1`` (proportional flow sharing); its
+    pressures follow from its own force balance and path, exactly as the
+    phase's own motion's (``kind.operating_pressures``); what the pump pressure
+    gives beyond its need is its own flow control's throttling, booked on it:
+    ``Q_b (p_pump - drops - p1)``, so ``p_pump Q_b = losses + useful``.
+    """
+    moving = np.broadcast_to(v["moving"], np.shape(q1))
+    q = np.where(moving, q1 * v["flow_share"], 0.0)
+    check, pline, dv_in, rdv, rline = _flow_drops(q, v)
+    supply = check + pline + dv_in
+    q2 = q * v["q_ratio"]
+    _, p1, p2, dp_cb, fc_in, fc_out = kind.operating_pressures(q, v, supply, rdv + rline,
+                                                               moving, stalled)
+    stuck = moving & stalled
+    fc_in = np.where(stalled, 0.0, fc_in)
+    p1 = np.where(stuck, np.maximum(p_pump - v["check_cracking"], 0.0), p1)
+    p2 = np.where(stuck, 0.0, p2)
+    p1 = np.where(moving, p1, v["hold_pressure"])
+    p2 = np.where(moving, p2, 0.0)
+    speed = np.where(moving, q * v["speed_per_flow"], 0.0)
+    useful = v["load"] * speed * v["work_per_load_speed"]
+    mismatch = np.maximum(p_pump, 0.0) * q - q * (fc_in + check + pline + dv_in) - p1 * q
+    losses = {
+        "flow_control": q * fc_in + q2 * fc_out + mismatch,
+        "directional_valve": q * dv_in + q2 * rdv,
+        "check_valve": q * check,
+        "lines": q * pline + q2 * rline,
+        "counterbalance": q2 * dp_cb,
+        "actuator": p1 * q - p2 * q2 - useful,
+        "compression": _compression_power(v, p1, p2, t_actual),
+    }
+    out = {"flow": q, "outlet_flow": q2, "inlet_pressure": p1, "outlet_pressure": p2,
+           "speed": speed,
+           "speed_target": np.where(moving, v["q_target"] * v["speed_per_flow"], 0.0),
+           "throttle_drop": fc_out if kind.meters_out else fc_in, "useful_power": useful}
+    out.update({("loss", k): losses[k] for k in MOTION_LOSSES})
+    return out
+
+
 def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     """Solve every phase for one *strategy*.
 
@@ -393,28 +569,27 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     shape = c["shape"]
     z = np.zeros(shape)
     moving = c["moving"]
-    # the load overruns where it beats the seal friction: the effective force pulls
-    overrun = moving & (c["load"] < 0.0) & (c["force"] < 0.0)
     # A counterbalance valve acts only on an overrunning load; an outlet
     # throttle needs none.  Where none is fitted the load would run away: the
     # phase is flagged and its figures assume one set at 1.3 x the load-induced
-    # pressure.
-    # an actuator's own counterbalance valve (phase entries) replaces the strategy's
-    if "cb_own" in c:
-        own = c["cb_own"]
-        c["cb_fitted"] = c["cb_fitted"] | own
-        c["cb_setting"] = np.where(own, c["cb_own_setting"], c["cb_setting"])
-        c["cb_ratio"] = np.where(own, c["cb_own_ratio"], c["cb_ratio"])
-    runaway = overrun & ~c["cb_fitted"] & (not kind.meters_out)
-    c["cb_active"] = overrun & (c["cb_fitted"] | runaway) & (not kind.meters_out)
-    c["cb_setting"] = np.where(runaway, COUNTERBALANCE_FACTOR * np.abs(c["force"]) / c["a_out"],
-                               c["cb_setting"])
+    # pressure.  Each motion its own (the further ones first: they read the
+    # strategy's valve before the phase's own motion's replaces it in c)
+    views = motion_views(c)
+    for b, v in enumerate(views, start=1):
+        for key, val in zip(("cb_fitted", "cb_setting", "cb_ratio", "cb_active", "runaway"),
+                            _holding_valves(v, v["moving"], kind.meters_out)):
+            c[f"motion{b}:{key}"] = val
+        c[f"motion{b}:q_target_safe"] = np.where(v["q_target"] > 0, v["q_target"], 1.0)
+    c["cb_fitted"], c["cb_setting"], c["cb_ratio"], c["cb_active"], runaway = \
+        _holding_valves(c, moving, kind.meters_out)
 
     n_nom = c["pump_speed"]
     c["q_theoretical"] = c["pump_displacement"] * n_nom
     c["q_theoretical_max"] = c["pump_displacement"] * n_nom * c["vs_max_fraction"]
     q_cap = kind.flow_capacity(c)
     c["q_reach"] = q_cap  # beyond it the pump cannot deliver: keeps the root bracket smooth
+    if views:   # the phase's own motion takes 1 / R of the circuit's flow
+        c["q_reach"] = q_cap / c["flow_total_ratio"]
     q_target = np.where(np.isfinite(c["q_target"]), c["q_target"], q_cap)
     q_target = np.where(moving, np.maximum(q_target, 0.0), 0.0)
     if "shape" in c:            # a single phase may arrive as 0-d; the flow solve
@@ -425,6 +600,8 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # (fixed pumps) or compensator setting (variable pumps)
     leak0 = _leak_conductance(c)
     q_kink = kind.kink(c, q_cap, leak0)
+    if views:
+        q_kink = q_kink / c["flow_total_ratio"]
     q1, flow_limited, stalled, drops_set = _solve_flow(kind.residual, c, q_target, q_kink)
     full_flow = moving & ~np.isfinite(c["q_target"])
     flow_limited = flow_limited & ~full_flow
@@ -445,6 +622,10 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     supply = check_dp + pline_dp + dv_in_dp
     q2 = q1 * c["q_ratio"]
     p_back = rdv_dp + rline_dp
+    q_all = q1      # into the actuators: the phase's own motion and its further ones
+    if views:
+        q_all = _total_flow(q1, c)
+        _set_governing(c, views, q1, supply, p_back, moving)
     p_pump, p1, p2, dp_cb, dp_fc_in, dp_fc_out = kind.operating_pressures(
         q1, c, supply, p_back, moving, stalled)
     # stalled actuators: the pump sits at what its supply gives at zero flow
@@ -480,8 +661,9 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # ---- pump flow, stroke and speed --------------------------------------
     leakage = leak * np.maximum(p_pump, 0.0)
     c["pump_pressure"] = p_pump
-    frac, n_pump, q_pump = kind.pump_state(c, q1, leakage, moving, stalled, use_centre, shape)
-    surplus = np.maximum(q_pump - q1, 0.0)
+    frac, n_pump, q_pump = kind.pump_state(c, q_all, leakage, moving, stalled, use_centre,
+                                           shape)
+    surplus = np.maximum(q_pump - q_all, 0.0)
     at_relief = p_pump >= c["relief_cracking"] * (1.0 - 1e-12)
     to_centre, to_relief = kind.surplus_routing(moving, holding, use_centre, centre_ok,
                                                 at_relief, shape)
@@ -494,7 +676,8 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     t_actual = _actual_duration(c, speed, stalled)
     # shaft power, losses of pumps run apart from the circuit (an unloaded pump),
     # and power into an accumulator (zero for most circuits)
-    p_shaft_hyd, apart, stored, duty = kind.pump_power(c, n_pump, p_pump, frac, q1, t_actual)
+    p_shaft_hyd, apart, stored, duty = kind.pump_power(c, n_pump, p_pump, frac, q_all,
+                                                       t_actual)
     useful = c["load"] * speed * c["work_per_load_speed"]
     # what the actuator does not turn into load work: friction, motor efficiencies
     actuator_loss = p1 * q1 - p2 * q2 - useful
@@ -510,7 +693,7 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         "actuator": actuator_loss,
     }
     # pump: shaft power less what it delivers to the circuit
-    p_out = np.maximum(p_pump, 0.0) * (q1 + relief_q + bleed_q + centre_q)
+    p_out = np.maximum(p_pump, 0.0) * (q_all + relief_q + bleed_q + centre_q)
     # the solved root leaves rounding between q_pump and the flows booked: the
     # pump term takes it so the balance closes exactly
     losses["pump"] = p_shaft_hyd - p_out - stored
@@ -524,24 +707,27 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     bookkeeping = np.abs(mismatch)
 
     # compression of the oil in the pressurised chamber, released as heat
-    prev = c["previous_phase"]
-    # prev and p1 may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
-    shape = np.broadcast_shapes(np.shape(prev), np.shape(p1))
-    at = np.broadcast_to(np.maximum(prev, 0), shape or (1,))
-    p_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p1, shape or (1,)), at,
-                                                    axis=-1).reshape(shape), 0.0)
-    p2_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p2, shape or (1,)), at,
-                                                     axis=-1).reshape(shape), 0.0)
-    # E = V (p^2 - p_prev^2) / (2 K) in each chamber: the inlet one filled at p1, and
-    # the outlet one, pressed to p2 when the motion starts (a meter-out circuit's
-    # intensified chamber stores as much as the inlet)
-    e_in = c["compression_volume"] * (np.maximum(p1, 0.0) ** 2 - np.maximum(p_prev, 0.0) ** 2)
-    e_out = c["compression_volume_outlet"] * (np.maximum(p2, 0.0) ** 2
-                                              - np.maximum(p2_prev, 0.0) ** 2)
-    e_comp = np.maximum(e_in, 0.0) + np.maximum(e_out, 0.0)
-    e_comp = np.where(c["compress"], e_comp / (2.0 * c["bulk_modulus"]), 0.0)
-    # once per pass: a repeated phase's duration holds all its passes
-    losses["compression"] = e_comp * c.get("repeats", 1.0) / t_actual
+    losses["compression"] = _compression_power(c, p1, p2, t_actual)
+    motions = None
+    if views:
+        # each motion's figures; the further ones' losses and useful power join the
+        # phase's (they draw p_pump Q_b of the pump's output booked above)
+        motions = {(0, "flow"): q1, (0, "outlet_flow"): q2, (0, "inlet_pressure"): p1,
+                   (0, "outlet_pressure"): p2, (0, "speed"): speed,
+                   (0, "speed_target"): np.where(moving, q_target * c["speed_per_flow"], 0.0),
+                   (0, "throttle_drop"): dp_fc_out if kind.meters_out else dp_fc_in,
+                   (0, "useful_power"): useful}
+        motions.update({(0, ("loss", k)): _own_loss(k, losses, q1, q2, dv_in_dp, rdv_dp)
+                        for k in MOTION_LOSSES})
+        motions[(0, "runaway")], motions[(0, "counterbalance_active")] = runaway, c["cb_active"]
+        for b, v in enumerate(views, start=1):
+            point = _motion_point(kind, v, q1, p_pump, stalled, t_actual)
+            motions.update({(b, k): val for k, val in point.items()})
+            motions[(b, "runaway")] = v["runaway"] & (z == 0.0)
+            motions[(b, "counterbalance_active")] = v["cb_active"] & (z == 0.0)
+            useful = useful + point["useful_power"]
+            for k in MOTION_LOSSES:
+                losses[k] = losses[k] + point[("loss", k)]
     p_shaft = p_shaft_hyd + losses["compression"]
 
     # drive motor (and converter for variable speed)
@@ -561,7 +747,7 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     return CircuitResult(
         strategy=strategy, pump_pressure=p_pump, inlet_pressure=p1, outlet_pressure=p2,
-        pump_flow=q1 + relief_q + bleed_q + centre_q, actuator_flow=q1, outlet_flow=q2,
+        pump_flow=q_all + relief_q + bleed_q + centre_q, actuator_flow=q1, outlet_flow=q2,
         relief_flow=relief_q, bleed_flow=bleed_q, speed=speed,
         speed_target=np.where(moving, q_target * c["speed_per_flow"], 0.0),
         pump_shaft_speed=n_pump, displacement_fraction=frac,
@@ -572,7 +758,32 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         counterbalance_setting=np.where(c["cb_active"], c["cb_setting"], 0.0),
         bookkeeping_residual=bookkeeping,
         stored_power=None if np.ndim(stored) == 0 and stored == 0 else stored + z,
-        pump_duty=None if duty is None else np.asarray(duty)[..., None] + z)
+        pump_duty=None if duty is None else np.asarray(duty)[..., None] + z, motions=motions)
+
+
+def _own_loss(k, losses, q1, q2, dv_in_dp, rdv_dp):
+    """The phase's own motion's share of loss *k* (its path; the directional
+    valve's centre flow belongs to the supply)."""
+    if k == "directional_valve":
+        return q1 * dv_in_dp + q2 * rdv_dp
+    return losses[k]
+
+
+def _set_governing(c, views, q1, supply, p_back, moving):
+    """``need_max`` / ``load_max`` in *c* (see :func:`governing`): the highest
+    pump pressure any motion of the phase needs and its highest load pressure,
+    each at its share of the solved flow *q1*."""
+    p1, _, _ = _inlet_pressure_at(p_back, c)
+    need = np.where(moving, supply + p1, -np.inf)
+    load = np.where(moving, p1, -np.inf)
+    for v in views:
+        qb = q1 * v["flow_share"]
+        check, pline, dv_in, rdv, rline = _flow_drops(qb, v)
+        p1b, _, _ = _inlet_pressure_at(rdv + rline, v)
+        on = v["moving"] & moving
+        need = np.where(on, np.maximum(need, check + pline + dv_in + p1b), need)
+        load = np.where(on, np.maximum(load, p1b), load)
+    c["need_max"], c["load_max"] = need, load
 
 
 def _actual_duration(c, speed, stalled):

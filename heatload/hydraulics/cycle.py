@@ -191,6 +191,91 @@ def phase_arrays(scenario: Scenario, values: Overrides | None = None) -> dict:
     # many of its single pass
     out["repeats"] = np.asarray(scenario.phase_repeats(), float)
     out.update(_actuator_valves(scenario, phases, out["moving"]))
+    if any(ph.simultaneous for ph in phases):
+        out.update(motion_arrays(scenario, out, values))
+    return out
+
+
+#: Entries that belong to one actuator's motion (the rest belong to the phase:
+#: duration, stroke, unloading, repeats, ...): a phase's further motions carry
+#: their own under the prefix ``motion<b>:`` (b = 1, 2, ...).
+MOTION_KEYS = ("a_in", "a_out", "q_ratio", "speed_per_flow", "force", "load", "q_target",
+               "hold_pressure", "compression_volume", "compression_volume_outlet",
+               "work_per_load_speed", "max_pressure_inlet", "max_pressure_outlet",
+               "moving", "compress", "extending", "previous_phase",
+               "cb_own", "cb_own_setting", "cb_own_ratio", "back_pressure")
+
+
+class _LeadOnly:
+    """Overrides seen from a phase's further motions: a varied field of a phase
+    (``phases[i].load``) is its own motion's, not theirs."""
+
+    def __init__(self, values):
+        self._values = values
+
+    def get(self, key, default):
+        if key[0] == "phase" or self._values is None:
+            return default
+        return self._values.get(key, default)
+
+
+def motion_arrays(scenario: Scenario, lead: dict, values: Overrides | None = None) -> dict:
+    """Entries of the phases' further motions (``[[phases.simultaneous]]``).
+
+    The b-th further motion of every phase is one more set of the per-motion
+    entries (:data:`MOTION_KEYS`), built by :func:`phase_arrays` itself (one
+    description of an actuator's relations), under the prefix ``motion<b>:``;
+    a phase with fewer motions has an idle filler there (not moving).  With
+    them: each further motion's set flow as a share of the phase's own
+    (``motion<b>:flow_share`` r_b), and the circuit's total per unit of the
+    own flow, ``flow_total_ratio`` R = 1 + sum(r_b) (``motion<b>:`` R / r_b:
+    the same total per unit of that motion's flow).  Motions share the supply
+    in proportion to their set flows (every one reaches the same fraction of
+    its set speed), so the solve needs the phase's own flow only.
+
+    A further motion's chamber is counted from tank pressure each phase it
+    moves (``previous_phase`` -1), and a further hold stores nothing (its
+    chamber was filled when it moved).
+    """
+    from dataclasses import replace
+
+    from heatload.model import Phase
+    phases = scenario.phases
+    count = max(len(ph.simultaneous) for ph in phases)
+    q_own = np.asarray(lead["q_target"], float)
+    total = np.ones(np.shape(q_own))
+    out, shares = {}, []
+    for b in range(1, count + 1):
+        rows = []
+        for ph in phases:
+            if len(ph.simultaneous) < b:
+                rows.append(Phase(name=ph.name, motion="idle", duration=1.0))
+                continue
+            x = ph.simultaneous[b - 1]
+            rows.append(Phase(name=ph.name, actuator=x.actuator, motion=x.motion,
+                              load=x.load, speed=x.speed, duration=1.0,
+                              hold_pressure=x.hold_pressure, hold_force=x.hold_force,
+                              unloading="centre", compress=x.compress and x.motion != "hold",
+                              regeneration=x.regeneration))
+        sub = phase_arrays(replace(scenario, phases=tuple(rows), repeats=()),
+                           _LeadOnly(values))
+        n = len(phases)
+        sub.setdefault("cb_own", np.zeros(n, bool))
+        sub.setdefault("cb_own_setting", np.zeros(n))
+        sub.setdefault("cb_own_ratio", np.full(n, 3.0))
+        sub.setdefault("back_pressure", np.zeros(n))
+        sub["previous_phase"] = -np.ones(n, dtype=int)
+        sub["compress"] = sub["compress"] & sub["moving"]
+        for k in MOTION_KEYS:
+            out[f"motion{b}:{k}"] = sub[k]
+        share = np.where(sub["moving"], np.asarray(sub["q_target"], float)
+                         / np.where(q_own > 0, q_own, 1.0), 0.0)
+        shares.append(share)
+        total = total + share
+    out["flow_total_ratio"] = total
+    for b, share in enumerate(shares, start=1):
+        out[f"motion{b}:flow_share"] = share
+        out[f"motion{b}:flow_total_ratio"] = total / np.where(share > 0, share, 1.0)
     return out
 
 

@@ -68,6 +68,35 @@ def circuit_violations(result, label: str = "") -> list:
     for name in ("pump_flow", "relief_flow", "bleed_flow", "duration"):
         if np.any(getattr(result, name) < -1e-15):
             out.append(f"{tag}{name} is negative")
+    if result.motions is not None:
+        out.extend(motion_violations(result, tag))
+    return out
+
+
+def motion_violations(result, tag: str = "") -> list:
+    """Violations of the balance of each motion where phases move several
+    actuators at once: what a motion draws at the pump outlet, ``p_pump Q_b``,
+    is its useful power plus its path's losses (the compression of its
+    chambers comes from the shaft besides), and the motions' losses add up
+    to no more than the phase's of each component."""
+    from heatload.hydraulics.circuits import MOTION_LOSSES
+    out = []
+    p = np.maximum(result.pump_pressure, 0.0)
+    scale = np.maximum(np.abs(result.electric_power), 1.0)
+    count = 1 + max(b for b, _ in result.motions)
+    summed = {k: 0.0 for k in MOTION_LOSSES}
+    for b in range(count):
+        fig = {k: v for (i, k), v in result.motions.items() if i == b}
+        path = sum(fig[("loss", k)] for k in MOTION_LOSSES if k != "compression")
+        residual = p * fig["flow"] - fig["useful_power"] - path
+        if np.any(np.abs(residual) > _REL * scale + 1e-9):
+            out.append(f"{tag}motion {b}: its power balance does not close (max residual "
+                       f"{float(np.max(np.abs(residual))):.3g} W)")
+        for k in MOTION_LOSSES:
+            summed[k] = summed[k] + fig[("loss", k)]
+    for k in MOTION_LOSSES:
+        if np.any(summed[k] > result.losses[k] + _REL * scale + 1e-9):
+            out.append(f"{tag}the motions' {k} losses exceed the phase's")
     return out
 
 

@@ -21,6 +21,25 @@ Each class holds what is particular to its circuit; the shared solve
 Adding a strategy is one class here (plus its test); the file schema, the
 report, the sweep keys and the dashboard read :data:`REGISTRY`.
 
+Several motions at once (``[[phases.simultaneous]]``)
+------------------------------------------------------
+Where a phase moves several actuators on one supply, each class's docstring
+states where its pump sits; common to all:
+
+- the circuit's flow is the sum of the motions' flows (the supply
+  characteristics see ``Q1 R``, R = 1 + the other set flows over the phase's
+  own, :func:`heatload.hydraulics.circuits._total_flow`);
+- each motion has its own path (check valve, line, valve section, return)
+  at its own flow, its own force balance and its own throttle; what the pump
+  pressure gives beyond a motion's need is that motion's throttling loss,
+  ``Q_b (p_pump - drops_b - p1_b)``, booked on it (``CircuitResult.motions``);
+- saturation (the pump or the pressure cannot give every set flow): the flow
+  is shared **in proportion to the set flows**, every motion reaching the
+  same fraction of its set speed (as a load-sensing valve bank with flow
+  sharing, post-compensated, does); flagged ``speed-not-reached``, naming
+  the rule.  A valve bank without flow sharing would starve the heaviest
+  motion first: not modelled.
+
 References
 ----------
 H. E. Merritt, *Hydraulic Control Systems*, Wiley, 1967, ch. 3-5 (valve and
@@ -124,6 +143,12 @@ def _throttle(c, q, setting):
 
 
 class MeterIn(Circuit):
+    """Fixed pump, relief, a 2-way flow control in each inlet line.
+
+    Several motions: the pump at the relief (or, short of flow, its curve) for
+    the sum of their flows; each flow control throttles relief - its need.
+    """
+
     kind = "meter-in"
     description = ("fixed pump, relief sets the pump pressure, a 2-way compensated flow "
                    "control in the inlet line; surplus flow crosses the relief")
@@ -141,6 +166,12 @@ class MeterIn(Circuit):
 
 
 class MeterOut(MeterIn):
+    """As :class:`MeterIn` with the flow control in the outlet line.
+
+    Several motions: the pump at the relief for the sum of their flows; each
+    outlet flow control takes what its force balance leaves at that pressure.
+    """
+
     kind = "meter-out"
     description = ("as meter-in with the flow control in the outlet line: the outlet "
                    "pressure is (p1 A1 - F)/A2 and may exceed supply by the area ratio")
@@ -165,6 +196,13 @@ class MeterOut(MeterIn):
 
 
 class BleedOff(Circuit):
+    """Fixed pump at the working pressure; the surplus bled to tank.
+
+    Several motions: the pump at the heaviest motion's need (relief at most);
+    the surplus is bled at that pressure and each lighter motion's own valve
+    throttles the difference (it needs one, or it would take all the flow).
+    """
+
     kind = "bleed-off"
     description = ("fixed pump at the working pressure; the surplus is bled to tank at "
                    "that pressure by a restrictor set for the phase's speed")
@@ -175,8 +213,13 @@ class BleedOff(Circuit):
         return _c._relief_supply(q, c, c["q_theoretical"]) - (supply + p1)
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
-        return (np.minimum(required, _c._relief_supply(q1, c, self.flow_capacity(c))),
-                np.zeros(np.shape(q1)))
+        # several motions: the pump at the heaviest's need; a lighter one's own
+        # valve throttles the difference (booked on it by the solve)
+        need, _ = _c.governing(required, p1, c)
+        p_pump = np.minimum(need, _c._relief_supply(q1, c, self.flow_capacity(c)))
+        if c.get("need_max") is None:
+            return p_pump, np.zeros(np.shape(q1))
+        return p_pump, np.maximum(p_pump - required, 0.0)
 
     def rest_pressure(self, c, z, use_centre, holding, p_hold, centre_dp, relief_full):
         # the bleed restrictor opens fully: pump at about the centre drop
@@ -212,7 +255,20 @@ def bleed_off_speed_change(c: dict, result, load_factor: float = 1.1,
     qb0 = result.bleed_flow
     leak = _c._leak_conductance(c)
     q = result.actuator_flow.copy()
-    for _ in range(iterations):
+    views = _c.motion_views(c)
+    if views:
+        # several motions (the phase's own load changed): the pump at the heaviest
+        # need, their flows in their set proportion, Q1 = total / R
+        for b, v in enumerate(views, start=1):
+            for key, val in zip(("cb_fitted", "cb_setting", "cb_ratio", "cb_active"),
+                                _c._holding_valves(v, v["moving"], False)[:4]):
+                c[f"motion{b}:{key}"] = val
+        for _ in range(iterations):
+            supply, p1 = _c._supply_and_inlet(q, c, 0.0)
+            p = np.maximum(supply + p1, 0.0)
+            q_new = np.maximum(c["q_theoretical"] - leak * p - qb0 * np.sqrt(p / p0), 0.0)
+            q = 0.5 * (q + q_new / c["flow_total_ratio"])
+    for _ in range(0 if views else iterations):
         p1, _, _ = _c._inlet_pressure(q, c, 0.0)
         p = np.maximum(_c._supply_drop(q, c) + p1, 0.0)
         q_new = np.maximum(c["q_theoretical"] - leak * p - qb0 * np.sqrt(p / p0), 0.0)
@@ -242,6 +298,12 @@ def speed_drift_condition(change, c):
 
 
 class BypassCompensated(MeterIn):
+    """3-way compensated flow control: the pump at the load + its spring.
+
+    Several motions: the 3-way compensator at the heaviest motion's need + its
+    spring; each lighter motion's valve throttles the difference.
+    """
+
     kind = "bypass-compensated"
     description = ("3-way compensated flow control: surplus leaves at working pressure + "
                    "the compensator spring")
@@ -252,7 +314,8 @@ class BypassCompensated(MeterIn):
         spring_drop = np.where(moving & ~stalled,
                                c["bypass_spring"] * np.minimum(q1 / c["q_target_safe"], 1.0)
                                ** 2, 0.0)
-        p_pump = np.minimum(required + spring_drop,
+        need, _ = _c.governing(required, p1, c)   # the heaviest motion's need
+        p_pump = np.minimum(need + spring_drop,
                             _c._relief_supply(q1, c, c["q_theoretical"]))
         return p_pump, np.maximum(p_pump - required, 0.0)
 
@@ -291,6 +354,12 @@ class _VariablePump(Circuit):
 
 
 class PressureCompensated(_VariablePump):
+    """Variable pump at its compensator setting, meter-in flow controls.
+
+    Several motions: the pump at its setting delivering the sum of their
+    flows; each flow control throttles setting - its need.
+    """
+
     kind = "pressure-compensated"
     description = ("variable pump held at its compensator setting, delivering only the flow "
                    "used; a meter-in flow control sets the speed")
@@ -328,6 +397,14 @@ class PressureCompensated(_VariablePump):
 
 
 class LoadSensing(_VariablePump):
+    """Load-sensing variable pump at the highest load pressure + its margin.
+
+    Several motions: the pump at the highest load pressure of the motions +
+    the margin, delivering the sum of their flows; the heaviest meters with
+    the margin, each lighter one's compensator throttles the difference
+    (loss on that motion).
+    """
+
     kind = "load-sensing"
     description = ("variable pump at the highest load pressure + margin; the proportional "
                    "valve meters with the margin; standby pressure when idle")
@@ -341,8 +418,9 @@ class LoadSensing(_VariablePump):
         return avail - (supply + p1)
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
+        _, load = _c.governing(required, p1, c)   # the highest load pressure
         p_pump = np.minimum(_c._compensator_supply(q1, c, c["compensator"], c["q_theoretical"]),
-                            p1 + c["ls_margin"])
+                            load + c["ls_margin"])
         return p_pump, np.maximum(p_pump - required, 0.0)
 
     def rest_pressure(self, c, z, use_centre, holding, p_hold, centre_dp, relief_full):
@@ -355,6 +433,13 @@ class LoadSensing(_VariablePump):
 
 
 class VariableSpeed(Circuit):
+    """Fixed pump on a speed-controlled motor, at the working pressure.
+
+    Several motions: the pump turns for the sum of their flows at the
+    heaviest motion's need; each lighter motion's valve throttles the
+    difference.
+    """
+
     kind = "variable-speed"
     description = ("fixed pump on a speed-controlled motor delivering the flow used at the "
                    "working pressure; surplus below its minimum speed is bled at the working "
@@ -443,6 +528,9 @@ class HiLo(MeterIn):
 
     Shaft power: each pump's torque at its own pressure,
     ``P = 2 pi n (T(x D, p) + T((1 - x) D, p_L))``, p_L = p or dp_u.
+
+    Several motions: the supply above at the sum of their flows; each flow
+    control throttles the system pressure down to its need.
 
     References
     ----------
@@ -552,6 +640,9 @@ class Accumulator(MeterIn):
 
     so each phase closes ``P_el = useful + losses + stored``.
 
+    Several motions: the accumulator gives the sum of their flows (the duty
+    counts every motion's volume); each flow control throttles p_m - its need.
+
     Notes
     -----
     The drive motor's part-load loss is taken at the averaged shaft power, not
@@ -636,7 +727,8 @@ class Accumulator(MeterIn):
 
     def extra_conditions(self, c, result):
         from heatload.checks import Condition
-        q1, t = result.actuator_flow, result.duration
+        # what the circuit draws: every motion of a phase (the pump flow booked)
+        q1, t = result.pump_flow, result.duration
         p_m, q_on, _, duty = self.delivery(c, q1, t)
         shape = np.shape(q1)
         usable = np.broadcast_to(_acc.usable_volume(c["acc_p_min"], c["acc_p_max"],

@@ -18,7 +18,7 @@ from pathlib import Path
 from heatload import model as m
 from heatload.errors import HeatloadError
 from heatload.cooling.cooler_types import cooler_type
-from heatload.io.schema import (MAX_AREA_RATIO, MAX_PHASE_DURATION, MIN_OIL_VOLUME,
+from heatload.io.schema import (_MOTION, MAX_AREA_RATIO, MAX_PHASE_DURATION, MIN_OIL_VOLUME,
                                 _AMBIENT, _COOLER, _CYLINDER, _ECONOMICS, _F, _FLUID,
                                 _HYDRAULIC_MOTOR, _PARAMETERS, _PHASE, _POWER_UNIT, _REPEAT,
                                 _RESERVOIR, _SCENARIO, _STRATEGY, _SURFACE, _TOP,
@@ -254,8 +254,85 @@ def _repeats(data, phases, source) -> tuple:
     return tuple(out)
 
 
+def _named_actuator(item, by_name, p, source):
+    """The actuator *item* names (``<p>.actuator``); a one-line error naming
+    the choices when there is none of that name."""
+    aname = _value(item["actuator"], _PHASE["actuator"], f"{p}.actuator", source)
+    act = by_name.get(aname)
+    if act is None:
+        raise _err(f"no actuator called {aname!r} (actuators: "
+                   f"{', '.join(by_name)}){_suggest(aname, by_name)}",
+                   f"{p}.actuator", source)
+    return act
+
+
+def _simultaneous(items, phase, p, by_name, source) -> tuple:
+    """``[[phases.simultaneous]]``: further actuators' motions in phase *phase*
+    (its own motion read already), on the same supply."""
+    if not isinstance(items, list) or not all(isinstance(x, dict) for x in items):
+        raise _err("expected an array of tables, written as [[phases.simultaneous]] items",
+                   f"{p}.simultaneous", source)
+    if items and (phase.motion not in ("extend", "retract", "run") or phase.speed is None):
+        raise _err("a phase with simultaneous motions needs its own motion at a set speed "
+                   "(the motions share the pump by their set flows)", f"{p}.speed", source)
+    out, seen = [], {phase.actuator}
+    for j, item in enumerate(items):
+        q = f"{p}.simultaneous[{j}]"
+        _table(item, _MOTION, q, source)
+        act = _named_actuator(item, by_name, q, source)
+        aname = act.name
+        if aname in seen:
+            raise _err(f"{aname!r} already moves in this phase; an actuator makes one "
+                       f"motion at a time", f"{q}.actuator", source)
+        seen.add(aname)
+        motion = _value(item["motion"], _MOTION["motion"], f"{q}.motion", source)
+        is_motor = act.kind == "motor"
+        allowed = _MOTOR_MOTIONS if is_motor else _CYLINDER_MOTIONS
+        if motion not in allowed:
+            raise _err(f"a {act.kind} cannot {motion}; use one of {', '.join(allowed)}",
+                       f"{q}.motion", source)
+        vals = {"actuator": aname, "motion": motion}
+        if "load" in item:
+            vals["load"] = _value(item["load"], _MOTION["load"], f"{q}.load", source,
+                                  kind="torque" if is_motor else "force")
+        if motion == "hold":
+            if "speed" in item:
+                raise _err("a hold has no speed", f"{q}.speed", source)
+        elif "speed" not in item or item["speed"] == "full":
+            raise _err(f"give the {motion} motion its set speed (m/s, or rpm for a motor): "
+                       f"simultaneous motions share the pump by their set flows",
+                       f"{q}.speed", source)
+        else:
+            vals["speed"] = _value(item["speed"], _MOTION["speed"], f"{q}.speed", source,
+                                   kind="shaft_speed" if is_motor else "velocity")
+        for key in ("hold_pressure", "hold_force", "compress", "regeneration"):
+            if key in item:
+                vals[key] = _value(item[key], _MOTION[key], f"{q}.{key}", source)
+        for key in ("hold_pressure", "hold_force"):
+            if key in vals and motion != "hold":
+                raise _err(f"only a hold has {key}", f"{q}.{key}", source)
+        if "hold_pressure" in vals and "hold_force" in vals:
+            raise _err("give hold_pressure or hold_force, not both", f"{q}.hold_force",
+                       source)
+        if "hold_force" in vals and is_motor:
+            raise _err("a motor holds a torque (load) or a pressure, not a force",
+                       f"{q}.hold_force", source)
+        if vals.get("regeneration") and (is_motor or motion != "extend"):
+            raise _err("only an extending cylinder can regenerate (its rod side joined to "
+                       "the cap side)", f"{q}.regeneration", source)
+        out.append(m.Motion(**vals))
+    return tuple(out)
+
+
 def _phase(item, i, by_name, source):
     p = f"phases[{i}]"
+    if isinstance(item, dict) and "simultaneous" in item:
+        # further motions at the same time, on the same supply: read after the phase
+        together = item["simultaneous"]
+        item = {k: v for k, v in item.items() if k != "simultaneous"}
+        phase = _phase(item, i, by_name, source)
+        motions = _simultaneous(together, phase, p, by_name, source)
+        return dataclasses.replace(phase, simultaneous=motions)
     _table(item, _PHASE, p, source)
     motion = _value(item["motion"], _PHASE["motion"], f"{p}.motion", source)
     name = _value(item["name"], _PHASE["name"], f"{p}.name", source)
@@ -269,12 +346,7 @@ def _phase(item, i, by_name, source):
         if "actuator" not in item:
             raise _err(f"a {motion} phase needs the actuator it drives", f"{p}.actuator",
                        source)
-        aname = _value(item["actuator"], _PHASE["actuator"], f"{p}.actuator", source)
-        act = by_name.get(aname)
-        if act is None:
-            raise _err(f"no actuator called {aname!r} (actuators: "
-                       f"{', '.join(by_name)}){_suggest(aname, by_name)}",
-                       f"{p}.actuator", source)
+        act = _named_actuator(item, by_name, p, source)
         allowed = _MOTOR_MOTIONS if act.kind == "motor" else _CYLINDER_MOTIONS
         if motion not in allowed:
             raise _err(f"a {act.kind} cannot {motion}; use one of {', '.join(allowed)}",
@@ -562,6 +634,23 @@ def _check_phase_durations(scenario: m.Scenario, source: str) -> None:
                    f"m/s) takes {span}; a phase lasts at most 24 h (check the unit of the "
                    f"{'speed' if ph.speed is not None else 'pump displacement'})",
                    f"phases[{i}].{'speed' if ph.speed is not None else 'stroke'}", source)
+    _check_simultaneous_travel(scenario, durations, source)
+
+
+def _check_simultaneous_travel(scenario: m.Scenario, durations, source: str) -> None:
+    """Refuse a simultaneous cylinder motion that would travel beyond its
+    cylinder's stroke in the phase (it runs for the whole phase at its set speed)."""
+    for i, (ph, t) in enumerate(zip(scenario.phases, durations)):
+        for j, x in enumerate(ph.simultaneous):
+            act = scenario.actuator(x.actuator)
+            if act.kind == "motor" or x.speed is None:
+                continue
+            if x.speed * t > act.stroke * (1 + 1e-9):
+                raise _err(f"at its set speed the {x.motion} motion travels "
+                           f"{x.speed * t * 1e3:.4g} mm in the phase's {t:.3g} s, more than "
+                           f"the {act.stroke * 1e3:.4g} mm stroke of {act.name!r} (it moves "
+                           f"for the whole phase: lower its speed or split the phase)",
+                           f"phases[{i}].simultaneous[{j}].speed", source)
 
 
 def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) -> None:

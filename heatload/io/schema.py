@@ -217,6 +217,14 @@ compress = true                        # count the compression energy of the cap
 # regeneration = true                  # extend differentially: the rod side's oil joins
                                        # the cap side; v = Q / A_rod, F = p A_rod (a fast
                                        # approach at low force)
+# Further actuators moving at the same time on the same pump, one item each
+# (the phase's own motion needs a set speed and sets the duration; each moving
+# one needs its set speed and runs for the whole phase; hold: no flow):
+# [[phases.simultaneous]]
+# actuator = "spindle"
+# motion = "run"                       # extend | retract | run | hold
+# load = "40 N*m"
+# speed = "100 rpm"
 
 [[phases]]
 name = "dwell"
@@ -415,6 +423,11 @@ MIN_RELIEF_SETTING = 1e5
 #: (d/D = 0.95, an annulus of a tenth of the bore) is twice the largest, and beyond
 #: it the rod side would intensify the supply more than tenfold.
 MAX_AREA_RATIO = 10.0
+#: Lowest efficiency of a pump, motor or converter at its rated point [-]: gear
+#: and piston pumps reach 0.8-0.95 volumetric and hydromechanical, electric
+#: motors and converters 0.7-0.98 (common practice, from memory); below 0.3 the
+#: figure is a slipped percentage (0.9 written as 0.009) or no working machine.
+MIN_EFFICIENCY = 0.3
 #: Longest phase [s]: a duty cycle's step lasts at most a day (the same limit
 #: as a given duration); a longer one is a unit slip in a speed or a stroke.
 MAX_PHASE_DURATION = 86400.0
@@ -619,6 +632,13 @@ _PHASE = {
     "compress": _F("bool"),
     "regeneration": _F("bool"),
 }
+#: Keys of a further motion in a phase (``[[phases.simultaneous]]``).
+_MOTION = {k: _PHASE[k] for k in ("actuator", "load", "speed", "hold_pressure",
+                                  "hold_force", "compress", "regeneration")}
+_MOTION["actuator"] = _F("str", "nonempty", required=True)
+_MOTION["motion"] = _F("choice", choices=("extend", "retract", "run", "hold"), required=True)
+
+
 _PARAMETERS = {
     "flow_control_min_drop": _F("pressure", "nonneg"),
     "bypass_spring": _F("pressure", "nonneg"),
@@ -718,6 +738,10 @@ def _check(value: float, raw, spec: _F, kind: str, field: str, source: str) -> f
         raise _err(f"must not be negative, got {shown}", field, source)
     if c == "eff" and not 0.0 < value <= 1.0:
         raise _err(f"an efficiency must lie in (0, 1], got {shown}", field, source)
+    if c == "eff" and value < MIN_EFFICIENCY:
+        raise _err(f"{shown} is below {MIN_EFFICIENCY:g}, less than any working pump, "
+                   f"motor or converter gives at its rated point (a percentage? write 0.9 "
+                   f"for 90 %)", field, source)
     if c == "frac" and not 0.0 <= value <= 1.0:
         raise _err(f"a fraction must lie in [0, 1], got {shown}", field, source)
     if c == "frac_pos" and not 0.0 < value <= 1.0:

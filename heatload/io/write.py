@@ -16,7 +16,7 @@ from heatload import model as m
 from heatload.io import files as outputs
 from heatload.errors import HeatloadError
 from heatload.units import KINDS, from_si
-from heatload.io.schema import (_AMBIENT, _COOLER, _CYLINDER, _ECONOMICS, _FLUID,
+from heatload.io.schema import (_MOTION, _AMBIENT, _COOLER, _CYLINDER, _ECONOMICS, _FLUID,
                                 _HYDRAULIC_MOTOR, _PARAMETERS, _PHASE, _POWER_UNIT,
                                 _RESERVOIR, _SURFACE, _to_si_cached)
 from heatload.io.read import (_path_ref, loads_scenario)
@@ -139,6 +139,17 @@ def _dump_fields(obj, spec: dict, kinds: dict | None = None, skip=()) -> dict:
     return out
 
 
+def _dump_motion(x: m.Motion, motor: bool) -> dict:
+    """A further motion of a phase as a TOML table (see :func:`_simultaneous`)."""
+    item = _dump_fields(x, _MOTION, kinds={"load": "torque" if motor else "force",
+                                           "speed": "shaft_speed" if motor else "velocity"})
+    if not x.regeneration:
+        del item["regeneration"]
+    if x.compress:
+        del item["compress"]
+    return item
+
+
 def scenario_to_dict(scenario: m.Scenario) -> dict:
     """The scenario as a TOML-ready dict (quantities as strings with units).
 
@@ -196,6 +207,9 @@ def scenario_to_dict(scenario: m.Scenario) -> dict:
             item.update({k: v for k, v in _dump_fields(ph, _PHASE).items()
                          if k in ("stroke", "duration", "hold_pressure", "hold_force",
                                   "unloading", "compress")})
+        if ph.simultaneous:
+            item["simultaneous"] = [_dump_motion(x, kinds.get(x.actuator) == "motor")
+                                    for x in ph.simultaneous]
         phases.append(item)
     d["phases"] = phases
     strategies = []

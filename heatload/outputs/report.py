@@ -193,6 +193,40 @@ def cycle_chart(records, names, colours, dashes=None):
                       "Heat and pressure over one cycle")
 
 
+def motions_section(records, names, system="si") -> str:
+    """The phases that move several actuators at once: each motion's flow, inlet
+    pressure, speed reached and throttling loss under each shown strategy
+    (*records*: ``compare --json`` strategy records); empty text when every
+    phase moves one actuator."""
+    from heatload.units import format_quantity as fq
+    rows = []
+    for name, rec in zip(names, records):
+        for ph in rec["phases"]:
+            if len(ph["motions"]) < 2:
+                continue
+            for j, mo in enumerate(ph["motions"]):
+                target = mo["speed_target"]
+                reached = (f"{100 * mo['speed'] / target:.0f} %" if target else "–")
+                rows.append("<tr>" + "".join(
+                    f"<td>{_e(t)}</td>" for t in ((name, ph["phase"]) if j == 0 else ("", ""))
+                    + (mo["actuator"], mo["motion"])) + "".join(
+                    f'<td class="num">{_e(t)}</td>' for t in (
+                        fq(mo["flow_m3_s"], "flow", system),
+                        fq(mo["inlet_pressure_Pa"], "pressure", system), reached,
+                        # rounding of the solve (~1e-16 W) shown as the zero it is
+                        fq(mo["throttle_loss_W"] if mo["throttle_loss_W"] > 1e-6 else 0.0,
+                           "power", system))) + "</tr>")
+    if not rows:
+        return ""
+    return ("<h3>Actuators moving together</h3><p>Phases that move several actuators on "
+            "the one supply: each motion's flow, inlet pressure, share of its set speed "
+            "and the throttling loss booked on it (its valve takes what the pump "
+            "pressure gives beyond its need).</p>"
+            + _table([("strategy", ""), ("phase", ""), ("actuator", ""), ("motion", ""),
+                      ("flow", "num"), ("inlet pressure", "num"), ("speed / set", "num"),
+                      ("throttling", "num")], rows, "motions"))
+
+
 def _thin(times, temps, limit=400):
     t = np.asarray(times, float).ravel()
     y = np.asarray(temps, float).ravel()
@@ -829,6 +863,7 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
                               [n == present and n != rec_name for n in show]),
                   "Steps per phase, at the operating oil temperature; phases numbered in "
                   "cycle order.")
+    motions = motions_section([recs[n] for n in show], show, rd.get("system", "si"))
     curves = []
     o_rec = comparison.outcome(rec_name)
     c_rec, c_pre = ROLE_COLOURS["recommended"], ROLE_COLOURS["present"]
@@ -907,7 +942,7 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
 ownership. The recommended row is highlighted; ruled-out rows are grey.</p>
 {comparison_section(data, rec_name, present, dec, rd.get("system", "si"))}{cost_fig}</section>
 <section id="energy"><h2>3 Where the energy goes</h2>{flow}</section>
-<section id="cycle"><h2>4 Heat and pressure over the cycle</h2>{cyc}</section>
+<section id="cycle"><h2>4 Heat and pressure over the cycle</h2>{cyc}{motions}</section>
 <section id="shift"><h2>5 Oil temperature over a shift</h2>{shift}</section>
 <section id="cooler"><h2>6 Cooler</h2>{_cooler_html(cooler, rd['sizing'], rd['uncertainty'])}</section>
 <section id="payback"><h2>7 Cost of ownership and payback</h2>
@@ -988,6 +1023,10 @@ def export_tables(scenario, comparison, prepared=None, present=None, prices=None
             r = dict(r)
             for k, v in r.pop("losses_W").items():
                 r[f"loss_{k}_W"] = v
+            # a cell holds one value: the actuators as text; each motion's
+            # figures are in compare --json (and the report's phase table)
+            r.pop("motions")
+            r["actuators"] = ", ".join(r["actuators"])
             rows.append(r)
         out[f"phases {o.name}"] = pd.DataFrame(rows)
     crow = []

@@ -55,6 +55,46 @@ def phase_records(outcome, scenario, pa) -> list:
             "stalled": bool(r.stalled[i]), "flow_limited": bool(r.flow_limited[i]),
             "runaway": bool(r.runaway[i]),
         }
+        rec["actuators"] = list(ph.actuators)
+        rec["motions"] = motion_records(r, scenario, i)
+        out.append(rec)
+    return out
+
+
+def motion_records(r, scenario, i) -> list:
+    """Each actuator's figures in phase *i* of a solved result: its own motion
+    first, then its simultaneous ones (SI, unit-suffixed keys; an idle phase
+    has none).  ``throttle_loss_W`` is its flow control's (or, where the pump
+    serves a heavier motion, its valve's) throttling, Q dp."""
+    from heatload.hydraulics.circuits import MOTION_FIGURES, MOTION_LOSSES
+    ph = scenario.phases[i]
+    if not ph.actuator:
+        return []
+    names = {"flow": "flow_m3_s", "outlet_flow": "outlet_flow_m3_s",
+             "inlet_pressure": "inlet_pressure_Pa", "outlet_pressure": "outlet_pressure_Pa",
+             "speed": "speed", "speed_target": "speed_target",
+             "throttle_drop": "throttle_drop_Pa", "useful_power": "useful_power_W"}
+    if r.motions is None:
+        # one actuator: the phase's figures are its own (the valve's centre
+        # flow moves no actuator: it is in no moving phase)
+        own = {"flow": r.actuator_flow, "outlet_flow": r.outlet_flow,
+               "inlet_pressure": r.inlet_pressure, "outlet_pressure": r.outlet_pressure,
+               "speed": r.speed, "speed_target": r.speed_target,
+               "throttle_drop": r.throttle_drop, "useful_power": r.useful_power}
+        figures = [({k: own[k][i] for k in MOTION_FIGURES},
+                    {k: r.losses[k][i] for k in MOTION_LOSSES})]
+    else:
+        figures = [({k: r.motions[(b, k)][i] for k in MOTION_FIGURES},
+                    {k: r.motions[(b, ("loss", k))][i] for k in MOTION_LOSSES})
+                   for b in range(len(ph.simultaneous) + 1)]
+    motions = [(ph.actuator, ph.motion)] + [(x.actuator, x.motion) for x in ph.simultaneous]
+    out = []
+    for (name, motion), (fig, loss) in zip(motions, figures):
+        rec = {"actuator": name, "motion": motion}
+        rec.update({names[k]: _f(v) for k, v in fig.items()})
+        rec["speed_unit"] = "rev/s" if scenario.actuator(name).kind == "motor" else "m/s"
+        rec["throttle_loss_W"] = _f(loss["flow_control"])
+        rec["losses_W"] = {k: _f(v) for k, v in loss.items()}
         out.append(rec)
     return out
 

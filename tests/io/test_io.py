@@ -726,3 +726,15 @@ def test_readme_actuator_valves_example_loads():
     assert lift.back_pressure == pytest.approx(4e5, rel=1e-15)
     assert s.phases[-1].unloading == "pilot-check"
     assert io.loads_scenario(io.dumps_scenario(s)) == s
+
+
+def test_an_efficiency_below_any_working_machine_is_refused():
+    # pumps 0.8-0.95 at their rated point (common practice, from memory): 0.009 is a
+    # slipped percentage, and 1e-300 would make every power infinite
+    for value in ("0.009", "1e-300"):
+        text = MINIMAL + f"\n[power_unit.pump]\nhydromechanical_efficiency = {value}\n"
+        with pytest.raises(HeatloadError, match="below 0.3") as info:
+            io.loads_scenario(text, source="bad.toml")
+        assert "power_unit.pump.hydromechanical_efficiency" in str(info.value)
+    text = MINIMAL + "\n[power_unit.pump]\nhydromechanical_efficiency = 0.3\n"
+    assert io.loads_scenario(text).power_unit.pump.hydromechanical_efficiency == 0.3
