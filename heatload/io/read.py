@@ -70,6 +70,12 @@ def _fluid(data, source: str) -> m.Fluid:
     if not nu100 < nu40:
         raise _err(f"nu100 ({nu100 * 1e6:.4g} mm^2/s) must be below nu40 "
                    f"({nu40 * 1e6:.4g} mm^2/s)", "fluid.nu100", source)
+    if "name" not in vals:
+        # the default name says the default grade: a file giving another grade, or
+        # its own viscosity, without a name must not be printed as ISO VG 46
+        g = vals.get("iso_grade", base.iso_grade)
+        vals["name"] = (f"ISO VG {g:g} mineral oil" if g is not None
+                        else f"mineral oil of {nu40 * 1e6:.4g} mm²/s at 40 °C")
     fluid = dataclasses.replace(base, **vals, viscosity_points=points)
     if not fluid.temperature_min < fluid.temperature_max:
         raise _err("temperature_min must be below temperature_max",

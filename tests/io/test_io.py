@@ -738,3 +738,13 @@ def test_an_efficiency_below_any_working_machine_is_refused():
         assert "power_unit.pump.hydromechanical_efficiency" in str(info.value)
     text = MINIMAL + "\n[power_unit.pump]\nhydromechanical_efficiency = 0.3\n"
     assert io.loads_scenario(text).power_unit.pump.hydromechanical_efficiency == 0.3
+
+
+def test_fluid_name_follows_the_grade_when_none_is_given():
+    # ISO 3448: a VG 68 oil given by its grade alone is named VG 68, not the default VG 46
+    text = io.default_scenario_path().read_text(encoding="utf-8")
+    import re
+    body = re.sub(r"(?ms)^\[fluid\].*?(?=^\[)", '[fluid]\niso_grade = 68\n\n', text)
+    sc = io.loads_scenario(body)
+    assert sc.fluid.iso_grade == 68 and sc.fluid.name == "ISO VG 68 mineral oil"
+    assert io.loads_scenario(io.dumps_scenario(sc)) == sc
