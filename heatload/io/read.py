@@ -15,6 +15,8 @@ import re
 import stat
 from pathlib import Path
 
+import numpy as np
+
 from heatload import model as m
 from heatload.errors import HeatloadError
 from heatload.cooling.cooler_types import cooler_type
@@ -495,6 +497,23 @@ def _path_ref(path: str, scenario: m.Scenario, field: str, source):
 _PERCENT = re.compile(r"^\s*([+-]?\d+(?:\.\d*)?(?:[eE][+-]?\d+)?)\s*%\s*$")
 
 
+def _bounds_hold_the_field(u: m.UncertainInput, ref, p: str, source) -> None:
+    """The values an uncertain input's bounds give must be values its field may
+    take (the file's sign rule: an efficiency within (0, 1], a length above 0),
+    or the Monte Carlo would sample machines that cannot exist."""
+    from heatload import paths
+
+    for key in ("low", "high"):
+        bound = getattr(u, key)
+        values = ([v * bound for v in ref.nominal if v is not None] if u.relative
+                  else [bound])
+        try:
+            paths._check_values(ref, np.asarray(values, float))
+        except HeatloadError as e:
+            raise _err(f"this bound gives {u.path} a value it cannot take: {e.message}",
+                       f"{p}.{key}", source) from None
+
+
 def _uncertainty(data, scenario: m.Scenario, source):
     items = _array(data, "uncertainty", source)
     out = []
@@ -538,6 +557,7 @@ def _uncertainty(data, scenario: m.Scenario, source):
             raise _err("mode must lie between low and high", f"{p}.mode", source)
         if u.mode is not None and dist != "triangular":
             raise _err("only a triangular distribution has a mode", f"{p}.mode", source)
+        _bounds_hold_the_field(u, ref, p, source)
         out.append(u)
     return tuple(out)
 

@@ -61,3 +61,18 @@ def test_defaults_when_none_given():
     r = uncertainty.monte_carlo(_only(), "variable-speed", samples=300, seed=1)
     assert r.defaults_used and len(r.inputs) == len(uncertainty.DEFAULT_INPUTS)
     assert np.all(np.isfinite(r.cooler_duty)) and np.all(r.oil_temperature > 273.15)
+
+
+def test_bounds_beyond_the_fields_rule_are_refused_at_load():
+    # an efficiency cannot exceed 1 (its definition, ISO 4409): +20 % on 0.93 gives 1.116
+    import pytest as _pytest
+    from heatload import io as _io
+    from heatload.errors import HeatloadError as _E
+    text = _io.default_scenario_path().read_text(encoding="utf-8")
+    bad = text + ('\n[[uncertainty]]\npath = "power_unit.pump.volumetric_efficiency"\n'
+                  'distribution = "normal"\nlow = "-20 %"\nhigh = "+20 %"\n')
+    with _pytest.raises(_E, match=r"uncertainty\[\d+\]\.high: .*within \(0, 1\]"):
+        _io.loads_scenario(bad)
+    ok = text + ('\n[[uncertainty]]\npath = "power_unit.pump.volumetric_efficiency"\n'
+                 'low = "-5 %"\nhigh = "+5 %"\n')
+    _io.loads_scenario(ok)
