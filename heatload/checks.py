@@ -173,6 +173,7 @@ class Condition:
     text: object
     listed_last: bool = False   #: listed after every phase's other warnings
     per_phase: bool = True      #: masks (N, phases); False: of the whole cycle, (N,)
+    kinds: object = None        #: i -> the kind of value and limit where not the code's
 
     def counts(self) -> np.ndarray:
         """Phases (or cycles) per variant where the condition holds (N,)."""
@@ -219,6 +220,18 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
     fraction = result.pump_shaft_speed / full(c["pump_speed"])
     hold = full(c["hold_pressure"])
     load = full(c["load"])
+    # the phase's own load as the file gives it: a force on a cylinder, a torque on
+    # a hydraulic motor (the solver's "load" is the motor's equivalent force)
+    on_motor = np.array([scenario.actuator(ph.actuator).kind == "motor"
+                         if ph.actuator else False for ph in scenario.phases])
+    own_load = np.stack(np.broadcast_arrays(*[np.asarray(g(("phase", j, "load"), ph.load),
+                                                         float)
+                                              for j, ph in enumerate(scenario.phases)]),
+                        axis=-1)
+    own_load = np.where(on_motor, own_load, load) if own_load.shape[-1] == shape[-1] else load
+
+    def own_kind(i):
+        return "torque" if on_motor[i[-1]] else "force"
     hi = np.maximum(pp, np.maximum(p1, p2))
     chamber_hi = np.maximum(p1, p2)
     chamber_lo = np.minimum(p1, p2)
@@ -264,11 +277,12 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
              lambda i: f"outlet chamber at {_bar(p2[i])} exceeds supply {_bar(pp[i])}"
                        + (f" (x{p2[i] / pp[i]:.2f})" if pp[i] >= 1e5 else "")
                        + ": the cylinder intensifies"),
-        cond("overrunning-load", moving & result.runaway, load, zero,
-             lambda i: f"overrunning load {mark(load[i], 'force')} this circuit cannot hold: the "
-                       f"actuator runs away; figures assume a counterbalance valve at "
-                       f"{_bar(result.counterbalance_setting[i])} (fit one, or throttle "
-                       f"the outlet)"),
+        Condition("overrunning-load", full(moving & result.runaway), own_load, full(zero),
+                  lambda i: f"overrunning load {mark(own_load[i], own_kind(i))} this circuit "
+                            f"cannot hold: the {'motor' if on_motor[i[-1]] else 'cylinder'} "
+                            f"runs away; figures assume a counterbalance valve at "
+                            f"{_bar(result.counterbalance_setting[i])} (fit one, or throttle "
+                            f"the outlet)", kinds=lambda i: own_kind(i)),
         cond("cavitation", moving & (chamber_lo < CAVITATION_THRESHOLD), chamber_lo,
              np.full(shape, CAVITATION_THRESHOLD),
              lambda i: f"a chamber would fall to {mark(chamber_lo[i], 'pressure', 2)} gauge: "
@@ -362,7 +376,9 @@ def phase_warnings(conditions, scenario, row=None) -> list:
                 i = (j,) if row is None else (row, j)
                 if cd.mask[i]:
                     limit = None if cd.limit is None else float(cd.limit[i])
-                    out.append(Warning_(cd.code, name, float(cd.value[i]), limit, cd.text(i)))
+                    kind = cd.kinds(i) if cd.kinds is not None else None
+                    out.append(Warning_(cd.code, name, float(cd.value[i]), limit, cd.text(i),
+                                        kind))
     return out
 
 

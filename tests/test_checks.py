@@ -5,7 +5,7 @@ import math
 
 import pytest
 
-from heatload import checks, model as m
+from heatload import chain, checks, io, model as m
 from heatload.hydraulics import circuits, cycle
 
 BORE, ROD = 0.100, 0.070
@@ -273,3 +273,13 @@ def test_oil_temperature_warning_judged_on_the_hottest_day():
     q = float((res.heat_to_oil * res.duration).sum() / res.duration.sum())
     ua = float(heat_transfer.reservoir_conductance(sc.reservoir, t_hot, 308.15))
     assert q == pytest.approx(ua * (t_hot - 308.15), rel=0.02)
+
+
+def test_overrunning_motor_load_is_a_torque():
+    # a hydraulic motor's load is a torque (N*m), said as such, not its equivalent force
+    text = io.default_scenario_path().with_name("conveyor_winch.toml").read_text(encoding="utf-8")
+    sc = io.loads_scenario(text.replace('load = "120 N*m"', 'load = "-120 N*m"'))
+    ws = [w for o in chain.compare(sc).outcomes for w in o.warnings
+          if w.code == "overrunning-load"]
+    assert ws and all(w.kind == "torque" and w.value == -120.0 for w in ws)
+    assert all("motor runs away" in w.message and "N·m" in w.message for w in ws)
