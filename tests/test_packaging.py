@@ -120,3 +120,14 @@ def test_every_engine_subpackage_is_packaged():
     found = {".".join(p.relative_to(ROOT).parent.parts)
              for p in (ROOT / "heatload").rglob("__init__.py")}
     assert found <= listed, found - listed
+
+
+def test_engine_modules_do_not_print():
+    # printing is the command line's job (heatload/cli/); engine modules return data
+    import re
+    for path in (ROOT / "heatload").rglob("*.py"):
+        if "cli" in path.relative_to(ROOT / "heatload").parts:
+            continue
+        code = "\n".join(line for line in path.read_text(encoding="utf-8").splitlines()
+                         if not line.lstrip().startswith((">>>", "#")))
+        assert not re.search(r"(?<![\w.])print\(", code), path.name

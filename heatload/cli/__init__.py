@@ -314,8 +314,8 @@ def cmd_thermal(args):
 
 
 def cmd_cooler(args):
-    from heatload.cooling import sizing
-    return sizing.run_cli(args)
+    from heatload.cli import cooler
+    return cooler.run(args)
 
 
 def cmd_report(args):
@@ -324,13 +324,13 @@ def cmd_report(args):
 
 
 def cmd_sweep(args):
-    from heatload.studies import sweep
-    return sweep.run_cli(args)
+    from heatload.cli import sweep
+    return sweep.run(args)
 
 
 def cmd_logfit(args):
-    from heatload.measurement import measured
-    return measured.run_logfit(args)
+    from heatload.cli import logfit
+    return logfit.run(args)
 
 
 def cmd_trace(args):

@@ -439,38 +439,3 @@ def rating_texts(r: CoolerRating, system="si") -> dict:
              f"{fq(r.shift_max_temperature, 'temperature', system)}, fan on "
              f"{100 * r.shift_on_fraction:.0f} %")
     return {"verdict": verdict, "drop": drop, "shift": shift}
-
-
-def print_selection(sel: DatasheetSelection, system="si") -> None:
-    """The selection as a table for the command line."""
-    from heatload.cli import _table
-    from heatload.units import format_quantity as fq
-
-    print(f"\nDatasheet coolers on the hottest day ({fq(sel.design_ambient, 'temperature', system)}), "
-          f"{sel.strategy}: oil must stay at or below "
-          f"{fq(sel.design_oil_temperature, 'temperature', system)} (without a cooler it "
-          f"settles at {fq(sel.settled_without_cooler, 'temperature', system)}); duty with "
-          f"margin {fq(sel.required_duty, 'power', system)}")
-    print(f"  return flow through the cooler: mean {fq(sel.mean_return_flow, 'flow', system)}, "
-          f"peak {fq(sel.peak_return_flow, 'flow', system)}; allowed drop "
-          f"{fq(sel.allowed_pressure_drop, 'pressure', system)}")
-    rows = []
-    for r in sel.ratings:
-        txt = rating_texts(r, system)
-        rows.append([("* " if r.name == sel.chosen else "  ") + r.name,
-                     fq(r.specific_power, "thermal_conductance", system),
-                     fq(r.settled_temperature, "temperature", system),
-                     fq(r.duty_at_design, "power", system), txt["verdict"], txt["drop"],
-                     fq(r.fan_power, "power", system) if r.fan_power is not None else "-",
-                     txt["shift"]])
-    # on a narrow terminal the less decisive columns go first, so names stay whole
-    print(_table(["cooler", "S over the cycle", "settles at", "duty at design", "limit",
-                  "drop at peak flow", "fan", "shift: max, fan on"], rows,
-                 optional=("shift: max, fan on", "fan", "duty at design", "S over the cycle",
-                           "drop at peak flow")))
-    print(f"  chosen: {sel.chosen}" if sel.chosen else "  chosen: none")
-    for n in sel.notes:
-        print(f"  ! {n}")
-    for r in sel.ratings:
-        for n in r.notes:
-            print(f"  ! {r.name}: {n}")

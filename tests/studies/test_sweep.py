@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 
 from heatload import io, paths
+from heatload.cli import sweep as sweep_cli
 from heatload.studies import sweep, variants
 from heatload.errors import HeatloadError
 
@@ -85,15 +86,15 @@ def _args(tmp_path, **kw):
 
 
 def test_cli_writes_and_refuses_overwrite(tmp_path, capsys):
-    assert sweep.run_cli(_args(tmp_path)) == 0
+    assert sweep_cli.run(_args(tmp_path)) == 0
     out = capsys.readouterr().out
     assert "Pareto front" in out
     import pandas as pd
     assert len(pd.read_csv(tmp_path / "out.csv")) == 3
     with pytest.raises(HeatloadError):
-        sweep.run_cli(_args(tmp_path))
-    assert sweep.run_cli(_args(tmp_path, force=True)) == 0
-    assert sweep.run_cli(_args(tmp_path, output=str(tmp_path / "o.parquet"), samples=4,
+        sweep_cli.run(_args(tmp_path))
+    assert sweep_cli.run(_args(tmp_path, force=True)) == 0
+    assert sweep_cli.run(_args(tmp_path, output=str(tmp_path / "o.parquet"), samples=4,
                                vary=["actuators.main.bore=95..105mm"])) == 0
     assert len(pd.read_parquet(tmp_path / "o.parquet")) == 4
 
