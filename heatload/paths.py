@@ -188,7 +188,10 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
             raise _unknown(path, scenario)
         n = len(scenario.phases)
         if hidx == "*":
-            idx = [i for i, ph in enumerate(scenario.phases) if getattr(ph, key) is not None]
+            # every phase that has the key; an idle phase moves no actuator, so only
+            # its duration can vary
+            idx = [i for i, ph in enumerate(scenario.phases) if getattr(ph, key) is not None
+                   and (ph.actuator is not None or key == "duration")]
             if not idx:
                 raise _unknown(path, scenario, f"no phase has a {key}")
         else:

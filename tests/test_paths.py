@@ -81,3 +81,14 @@ def test_a_path_varies_a_field_with_the_files_own_rule():
     assert len(ov.by_path) == 2
     with pytest.raises(HeatloadError, match="pressure_line.length"):
         paths.Overrides(PRESS, overrides={"power_unit.pressure_line.length": [-1.0, 2.0]})
+
+
+def test_every_phase_skips_idle_phases_for_what_they_do_not_have():
+    # phases[*].load on a cycle with an idle phase: the idle phase moves nothing, so
+    # only the moving and holding phases vary (a sweep corner must not load it)
+    idle = [i for i, ph in enumerate(PRESS.phases) if ph.actuator is None]
+    assert idle
+    ref = paths.resolve_path(PRESS, "phases[*].load")
+    assert not {t[1] for t in ref.targets} & set(idle)
+    assert set(idle) <= {t[1] for t in paths.resolve_path(PRESS, "phases[*].duration").targets
+                         } | {i for i, ph in enumerate(PRESS.phases) if ph.duration is None}
