@@ -38,8 +38,9 @@ SECURITY_HEADERS = {
 #: What the app serves: Dash's own routes, its scripts and the assets folder.
 SERVED_PREFIXES = ("/_dash-", "/_favicon.ico", "/assets/", "/_reload-hash")
 UPDATE_ROUTE = "/_dash-update-component"
-#: Exceptions a malformed callback request raises inside the framework or a callback.
-_CLIENT_ERRORS = (KeyError, TypeError, ValueError, IndexError, AttributeError)
+#: Exceptions a malformed callback request raises inside the framework or a callback
+#: (RecursionError: a body nested too deep for the JSON reader).
+_CLIENT_ERRORS = (KeyError, TypeError, ValueError, IndexError, AttributeError, RecursionError)
 
 
 def _harden(server) -> None:
