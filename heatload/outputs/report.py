@@ -700,6 +700,12 @@ def cover_data(scenario, source=None, cover=None) -> dict:
     for k, v in (cover or {}).items():
         if v and k != "sha256":
             c[k] = str(v)
+    if cover and cover.get("date"):
+        try:   # a date a customer reads must be a real one (ISO 8601, YYYY-MM-DD)
+            datetime.date.fromisoformat(str(cover["date"]))
+        except ValueError:
+            raise HeatloadError(f"expected a date such as 2026-12-03 (ISO 8601), got "
+                                f"{str(cover['date'])[:40]!r}", field="--date") from None
     return c
 
 

@@ -550,3 +550,12 @@ def test_warnings_in_words_and_customer_units(built):
         assert unit not in _visible(part), unit
     # the uncertain inputs in plain words, the file's path beside them
     assert "phase loads" in seen and "phases[*].load" in text
+
+
+def test_cover_date_must_be_a_real_date():
+    # ISO 8601 calendar date: month 13 does not exist
+    from heatload.errors import HeatloadError as _E
+    sc = io.load_scenario(io.default_scenario_path())
+    assert report.cover_data(sc, cover={"date": "2026-12-03"})["date"] == "2026-12-03"
+    with pytest.raises(_E, match="--date"):
+        report.cover_data(sc, cover={"date": "2026-13-45"})
