@@ -331,3 +331,13 @@ def test_a_fifo_or_device_as_the_input_is_refused_at_once(tmp_path):
         r = subprocess.run([sys.executable, "-m", "heatload.cli", "check", str(path)],
                            capture_output=True, text=True, timeout=60)   # hang guard
         assert r.returncode == 2 and "not a regular file" in r.stderr
+
+
+def test_schema_command_prints_a_file_that_loads(capsys):
+    # a newcomer's first step: the commented example, straight from the command line
+    assert main(["schema"]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("# A heatload duty-cycle file")
+    assert max(len(line) for line in out.splitlines()) <= 100
+    sc = io.loads_scenario(out)
+    assert sc.name == "Example press"

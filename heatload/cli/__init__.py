@@ -184,6 +184,12 @@ def cmd_compare(args):
     return 0
 
 
+def cmd_schema(args):
+    from heatload.io.schema import SCHEMA_EXAMPLE
+    print(SCHEMA_EXAMPLE, end="")
+    return 0
+
+
 def cmd_check(args):
     from heatload import io
     sc = io.load_scenario(args.file)
@@ -390,6 +396,9 @@ def build_parser() -> argparse.ArgumentParser:
                     help="only this strategy (repeatable)")
 
     add("check", cmd_check, "validate a duty-cycle file and summarise it", file_required=True)
+    sp = sub.add_parser("schema", help="print a commented duty-cycle file that documents "
+                        "every key (copy it to start a machine of your own)")
+    sp.set_defaults(func=cmd_schema)
 
     sp = add("phases", cmd_phases, "per-phase breakdown of one strategy")
     sp.add_argument("--strategy", required=True, metavar="NAME", help="strategy name or label")

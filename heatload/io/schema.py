@@ -39,8 +39,9 @@ from heatload.units import KINDS, to_si
 SCHEMA_EXAMPLE = '''\
 # A heatload duty-cycle file.  Quantities are strings with a unit ("160 bar",
 # "40 L/min", "35 degC", "1450 rpm"): one number with a decimal point, then the
-# unit; efficiencies, counts and factors are plain numbers.  Only [scenario], [[actuators]] and [[phases]] are required; every
-# other table and key has the default shown here.  Pressures are gauge.
+# unit; efficiencies, counts and factors are plain numbers.  Only [scenario],
+# [[actuators]] and [[phases]] are required; every other table and key has the
+# default shown here.  Pressures are gauge.
 
 [scenario]
 name = "Example press"                 # required, shown in every report
@@ -172,7 +173,7 @@ bore = "63 mm"
 rod = "36 mm"                          # smaller than the bore; the area ratio
                                        # D^2/(D^2 - d^2) at most 10 (ISO 7181 lists up to 5)
 stroke = "400 mm"
-friction_force = "500 N"               # seal friction, opposes motion
+friction_force = "500 N"               # seal friction, opposes motion (default 0 N)
 max_pressure = "250 bar"
 dead_volume = "0.3 L"                  # oil in the hoses, each side
 # counterbalance_setting = "120 bar"   # its own counterbalance valve in the outlet line
