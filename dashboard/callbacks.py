@@ -417,7 +417,13 @@ def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
         return html.Div("The scenario lists no uncertain inputs ([[uncertainty]] in the "
                         "file).", className="note", id="mc-note")
     st = scenario.strategy(strategy)
+    asked = samples
     n = int(min(max(int(samples or 2000), 100), 20000))
+    # a count outside 100 .. 20,000 is run at the nearest end, and said so
+    clamp = (None if asked in (None, "") or float(asked) == n else
+             html.P(f"Samples: {n:,} (asked {float(asked):,.0f}; the dashboard runs 100 to "
+                    f"20,000; the command line runs up to 1,000,000).", id="mc-clamped",
+                    className="note"))
     try:
         mc = _call(unc.monte_carlo, scenario, st, samples=n, seed=1, progress=False)
         sens = list(_call(unc.sensitivity, scenario, st)) if hasattr(unc, "sensitivity") else []
@@ -452,7 +458,7 @@ def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
     inputs = html.P(["Uncertain inputs: "] + [x for i, sp in enumerate(names)
                                               for x in ([", "] if i else []) + [sp]],
                     id="mc-inputs", className="note")
-    return html.Div(([line] if line else []) + [inputs]
+    return html.Div(([clamp] if clamp else []) + ([line] if line else []) + [inputs]
                     + [dcc.Graph(figure=f, id=f"mc-graph-{i}") for i, f in enumerate(figs)],
                     id="mc-result")
 
