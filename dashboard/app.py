@@ -160,7 +160,8 @@ def run_cli(args) -> int:
     """``heatload dashboard [FILE] [--port N] [--host H] [--threads N] [--debug]``."""
     file = getattr(args, "file", None) or getattr(args, "scenario", None)
     host = getattr(args, "host", None) or "127.0.0.1"
-    port = int(getattr(args, "port", None) or 8050)
+    port = getattr(args, "port", None)
+    port = 8050 if port is None else int(port)     # 0 is refused below, not 8050
     threads = getattr(args, "threads", None)
     threads = 8 if threads is None else int(threads)
     debug = bool(getattr(args, "debug", False))

@@ -571,6 +571,8 @@ def test_run_cli_binds_loopback_and_warns_otherwise(monkeypatch, capsys, host, w
     with pytest.raises(HeatloadError) as e:
         dash_app.run_cli(_Args(threads=0))
     assert e.value.field == "--threads"
+    with pytest.raises(HeatloadError, match="1..65535"):    # 0 is no port, not the default
+        dash_app.run_cli(_Args(port=0))
 
 
 def test_run_cli_debug_only_when_asked(monkeypatch):
