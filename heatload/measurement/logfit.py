@@ -56,6 +56,10 @@ from heatload.errors import HeatloadError
 #: is within this fraction of the value (a choice of ours: +-25 % still sizes a
 #: cooler; wider says the log does not carry the information).
 IDENTIFIED_WITHIN = 0.25
+#: Smallest swing of the oil temperature over a log that can carry the tank's
+#: dynamics [K]: about the resolution of a process temperature sensor and logger
+#: (0.1 K, common practice); a flatter log shows only the steady rise P/UA.
+FLAT_SWING = 0.1
 #: Fewest samples a fit accepts (three unknowns and a residual to judge them by).
 MIN_SAMPLES = 10
 #: Largest exponent used inside one block of the recurrence (exp(500) ~ 1e217).
@@ -348,7 +352,13 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
     def ok(v, s):
         return bool(math.isfinite(s) and v != 0.0 and tq * s <= IDENTIFIED_WITHIN * abs(v))
 
-    identified = {"conductance": ok(k, sd_k), "heat": fit_heat and ok(q, sd_q),
+    # a log that never leaves one temperature, with no running/stopped contrast,
+    # carries P/UA only, however small its residual (a perfect fit of a flat line)
+    contrast = 0.0 < running_fraction < 1.0 and np.ptp(r) > 0
+    flat = (not contrast and float(np.ptp(y)) <= max(FLAT_SWING,
+                                                     10.0 * math.sqrt(float(res @ res) / n)))
+    identified = {"conductance": ok(k, sd_k) and not flat,
+                  "heat": fit_heat and ok(q, sd_q) and not flat and q > 0.0,
                   "initial_temperature": bool(math.isfinite(sd_t0)
                                               and tq * sd_t0 < 0.5 * scale_t + 1.0)}
     heat = conductance = None
@@ -384,7 +394,7 @@ def _diagnose(fit: TankFit, running) -> list:
     contrast = fit.running_fraction not in (0.0, 1.0) and np.ptp(running) > 0
     swing = float(np.ptp(fit.fitted))
     if not fit.identified["conductance"]:
-        if swing < 10.0 * fit.residual_rms and not contrast:
+        if swing <= max(FLAT_SWING, 10.0 * fit.residual_rms) and not contrast:
             out.append(f"the conductance is not identified: the oil temperature hardly "
                        f"changes ({swing:.2g} K over the log against {fit.residual_rms:.2g} K "
                        f"of noise) and the log has no running/stopped contrast; log a stop "
@@ -402,7 +412,11 @@ def _diagnose(fit: TankFit, running) -> list:
             out.append("the conductance is not identified: the noise hides the bend of the "
                        "curve; a longer log or a steadier sensor helps")
     if fit.running_fraction > 0.0 and not fit.identified["heat"]:
-        if not contrast and not fit.identified["conductance"]:
+        if fit.heat_rate <= 0.0:
+            out.append("the heat is not identified: the fit gives no heat (or a negative "
+                       "one) while the machine runs, which losses cannot do; check the "
+                       "running column, the sensors' places and the ambient column")
+        elif not contrast and not fit.identified["conductance"]:
             out.append("the heat is not identified: with no running/stopped contrast only "
                        "the steady rise P/UA or the initial slope P/C shows in the log")
         else:

@@ -253,3 +253,22 @@ def test_scenario_gives_capacity_calibration_and_duty(capsys):
         other["measured_heat_W"] / other["model_heat_W"])
     assert main(["logfit", str(log), "--scenario", str(scen), "--strategy", "nozzle"]) == 2
     assert "unknown strategy" in capsys.readouterr().err
+
+
+def test_a_flat_log_identifies_neither_heat_nor_conductance():
+    # a log at one steady temperature without stops carries only P/UA (the steady
+    # rise), however perfectly a flat line fits it (first-order tank model)
+    t = np.arange(200) * 60.0
+    fit = logfit.fit_tank_log(t, np.full(200, 298.15), 293.15, np.ones(200), capacity=1e5)
+    assert not fit.identified["heat"] and not fit.identified["conductance"]
+    assert any("hardly changes" in n or "steady rise" in n for n in fit.notes)
+
+
+def test_negative_heat_while_running_is_not_identified():
+    # the oil cooling while the machine runs: losses cannot take heat out of the oil
+    t = np.arange(300) * 60.0
+    oil = 283.15 + 50.0 * np.exp(-t / 3600.0)       # settles 10 K below the air
+    fit = logfit.fit_tank_log(t, oil, 293.15, np.ones(300), capacity=1e5)
+    assert fit.heat_rate < 0.0
+    assert not fit.identified["heat"]
+    assert any("negative" in n for n in fit.notes)
