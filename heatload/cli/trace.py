@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from heatload.errors import HeatloadError
-from heatload.measurement.trace import (MIN_ROWS, _fmt, cycle_record, draft_toml,
+from heatload.measurement.trace import (MIN_ROWS, check_trace, _fmt, cycle_record, draft_toml,
                                         segment_trace, trace_columns)
 
 
@@ -25,6 +25,7 @@ def run(args) -> int:
     log = logs.read_log(args.trace, trace_columns(),
                         logs.parse_assignments(args.column, "--column"),
                         logs.parse_assignments(args.unit, "--unit"), min_rows=MIN_ROWS)
+    check_trace(log)
     cycle = segment_trace(log.time, log.values["pressure"], log.values.get("flow"),
                           log.values.get("position"), min_d)
     cycle.notes[:0] = log.notes

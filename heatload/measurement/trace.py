@@ -64,6 +64,31 @@ def trace_columns():
             "position": ColumnSpec(("position", "stroke", "travel"), "distance", False, "mm")}
 
 
+#: Plausible range of each trace column (SI): a gauge pressure between full
+#: vacuum (-1.013 bar) and the loader's 2000 bar; flows and travel within the
+#: loader's limits (6000 L/min, 1000 m).  A value outside is a unit slip or a
+#: broken sensor, not a machine.
+TRACE_LIMITS = {"pressure": (-1.01325e5, 2000e5, "-1.013 .. 2000 bar", 1e5, "bar"),
+                "flow": (-0.1, 0.1, "-6000 .. 6000 L/min", 1.0 / 60000.0, "L/min"),
+                "position": (-1000.0, 1000.0, "-1000 .. 1000 m", 1.0, "m")}
+
+
+def check_trace(log) -> None:
+    """Refuse a trace value no machine gives, naming the file, line and column."""
+    from heatload.measurement.logs import _err
+
+    for key, (low, high, shown, per_unit, unit) in TRACE_LIMITS.items():
+        v = log.values.get(key)
+        if v is None:
+            continue
+        bad = np.flatnonzero((v < low) | (v > high))
+        if bad.size:
+            i = int(bad[0])
+            raise _err(f"{v[i] / per_unit:.4g} {unit} is outside the plausible {shown}; check the "
+                       f"unit of the column", log.source, int(log.lines[i]),
+                       log.headers.get(key, key))
+
+
 @dataclass
 class TracePhase:
     """One phase found in the trace (SI; medians over the cycles)."""

@@ -143,3 +143,17 @@ def test_any_trace_gives_a_draft_that_loads_once_completed():
         cy = trace.segment_trace(t, p, q, x)
         assert cy.phases and cy.period > 0
         io.loads_scenario(trace.fill_examples(trace.draft_toml(cy, "random.csv")), "d.toml")
+
+
+def test_implausible_trace_values_are_refused_with_file_and_line(tmp_path):
+    # a gauge pressure below full vacuum (-1.013 bar) is no pressure a pump gives
+    path = tmp_path / "t.csv"
+    rows = ["time [s],pump pressure [bar],flow [L/min]"]
+    rows += [f"{i},{-50 if i == 3 else 100},20" for i in range(40)]
+    path.write_text("\n".join(rows) + "\n", encoding="utf-8")
+    from heatload.errors import HeatloadError
+    from heatload.measurement import logs
+    log = logs.read_log(str(path), trace.trace_columns(), min_rows=trace.MIN_ROWS)
+    with pytest.raises(HeatloadError, match=r"-50 bar is outside the plausible") as e:
+        trace.check_trace(log)
+    assert e.value.line == 5                     # header on line 1, the row of t = 3 s
