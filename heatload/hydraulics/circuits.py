@@ -303,9 +303,20 @@ def _inlet_pressure_at(p_back, c):
 # supply characteristics: pump outlet pressure available at circuit flow q
 # ---------------------------------------------------------------------------
 
+#: Least leakage of a pump at its relief setting, as a share of its theoretical
+#: flow [-]: a pump given 100 % volumetric efficiency (an ideal pump, for hand
+#: checks) still has a characteristic the flow solve can resolve; with none, a
+#: phase taking the whole flow would sit undecided between its load pressure and
+#: the relief.  1e-12 changes no figure beyond that relative size.
+IDEAL_PUMP_LEAK = 1e-12
+
+
 def _leak_conductance(c):
-    """Pump leakage per pressure L = Cs D / (2 pi mu) [m^3/(s Pa)] (Wilson slip term)."""
-    return c["pump_slip"] * c["pump_displacement"] / (TWO_PI * c["mu"])
+    """Pump leakage per pressure L = Cs D / (2 pi mu) [m^3/(s Pa)] (Wilson slip term),
+    at least ``IDEAL_PUMP_LEAK`` of the theoretical flow at the relief setting."""
+    leak = c["pump_slip"] * c["pump_displacement"] / (TWO_PI * c["mu"])
+    q_th = c["pump_displacement"] * c["pump_speed"]
+    return np.maximum(leak, IDEAL_PUMP_LEAK * q_th / c["relief_cracking"])
 
 
 def _relief_supply(q, c, theoretical_flow):

@@ -1142,3 +1142,20 @@ def test_hold_on_a_pilot_operated_check_variable_pump_destrokes(strategy):
     assert _close(r.pump_pressure[1], 150e5 if strategy == "pressure-compensated" else 25e5)
     assert abs(r.pump_flow[1]) < 1e-12 and abs(r.heat_to_oil[1]) < 1e-6
     assert _close(r.inlet_pressure[1], 160e5)               # the check holds 160 bar
+
+
+def test_an_ideal_pump_is_the_limit_of_a_real_one():
+    # volumetric efficiency 0.999 -> 1.0 moves the heat by about the 0.1 % more flow,
+    # not by the relief's whole drop (a zero-leak pump once sat a full-flow phase at
+    # the relief: 17 bar -> 180 bar on the forming press)
+    import dataclasses
+    from heatload import chain, io
+    sc = io.load_scenario(io.default_scenario_path())
+    heat = []
+    for eff in (0.999, 1.0):
+        pu = sc.power_unit
+        pump = dataclasses.replace(pu.pump, volumetric_efficiency=eff)
+        s2 = dataclasses.replace(sc, power_unit=dataclasses.replace(pu, pump=pump))
+        o = chain.evaluate_strategy(s2, s2.strategies[0])
+        heat.append(o.thermal.heat_uncoupled)
+    assert heat[1] == pytest.approx(heat[0], rel=2e-3)
