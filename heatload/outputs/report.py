@@ -932,7 +932,9 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
     payload = json.dumps({"comparison": _jsonable(data), "cooler": _jsonable(cooler),
                           "present": present, "recommended": rec_name,
                           "cover": rd["cover"], "quote": rd["quote"]},
-                         ensure_ascii=True, allow_nan=False).replace("</", "<\\/")
+                         ensure_ascii=True, allow_nan=False).replace("<", "\\u003c")
+    # every "<" escaped: no "</script" or "<!--" inside the data block can change how
+    # the page parses (JSON reads \u003c back as "<")
     desc = f"<p>{_e(scenario.description)}</p>" if scenario.description else ""
     unit_word = "US customary" if rd.get("system") == "us" else "SI"
     from heatload.outputs.wording import calibration_note
