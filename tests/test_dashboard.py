@@ -693,9 +693,9 @@ def test_an_edit_parses_only_the_cell_it_changed(monkeypatch):
 
 
 def test_uncertainty_view_says_when_it_runs_another_count(base):
-    # 1e12 asked: run at 20,000 and said, never silently
-    out = callbacks.uncertainty_view(base["data"], "load-sensing", 1e12, "si")
+    # 10 asked: run at the least, 100, and said, never silently (1e12 runs 20,000)
+    out = callbacks.uncertainty_view(base["data"], "load-sensing", 10, "si")
     note = next(g for g in out.children if getattr(g, "id", None) == "mc-clamped")
-    assert "20,000" in note.children and "asked" in note.children
+    assert "Samples: 100 (asked 10" in note.children
     out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
     assert not any(getattr(g, "id", None) == "mc-clamped" for g in out.children)
