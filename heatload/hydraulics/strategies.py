@@ -48,6 +48,8 @@ actuator steady-state relations); circuit descriptions: common practice.
 
 from __future__ import annotations
 
+import abc
+
 import numpy as np
 
 from heatload.components import accumulator as _acc
@@ -55,7 +57,7 @@ from heatload.hydraulics import circuits as _c
 from heatload.components import pumps
 
 
-class Circuit:
+class Circuit(abc.ABC):
     """A fixed pump with its relief valve: the defaults the circuits share."""
 
     kind: str = ""
@@ -75,8 +77,10 @@ class Circuit:
         """Inlet flow at the corner of the supply characteristic [m^3/s]."""
         return q_cap - leak * c["relief_cracking"]
 
+    @abc.abstractmethod
     def residual(self, q, c, rec=None):
-        raise NotImplementedError
+        """Available minus required pump pressure at inlet flow *q* [Pa],
+        decreasing in *q* (the flow solve finds its root)."""
 
     # -- the operating point ----------------------------------------------------
     def operating_pressures(self, q1, c, supply, p_back, moving, stalled):
@@ -85,9 +89,9 @@ class Circuit:
         p_pump, dp_fc_in = self.pump_pressure(q1, c, supply + p1, p1, moving, stalled)
         return p_pump, p1, p2, dp_cb, dp_fc_in, np.zeros(np.shape(q1))
 
+    @abc.abstractmethod
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
         """``(p_pump, dp_fc_in)``: pump pressure and inlet throttle drop [Pa]."""
-        raise NotImplementedError
 
     def stall_pressure(self, c, z):
         """Pump pressure where the load stalls the actuator [Pa]."""
