@@ -92,18 +92,38 @@ def reynolds_number(flow, inner_diameter, kinematic_viscosity):
 
 def _colebrook(re, ed):
     """Darcy factor from Colebrook-White by Newton's method on x = 1/sqrt(f),
-    started from Swamee-Jain; re >= 4000 expected (callers clip)."""
-    f0 = 0.25 / np.log10(ed / 3.7 + 5.74 / re**0.9) ** 2
-    x = 1.0 / np.sqrt(f0)
-    a = ed / 3.7
+    started from Swamee-Jain (``x0 = -2 log10(ed/3.7 + 5.74 Re^-0.9)``); re >=
+    4000 expected (callers clip).  Natural logs and in-place steps: the
+    turbulent elements of a large sweep are its costliest line arithmetic."""
+    re, ed = np.broadcast_arrays(np.asarray(re, float), np.asarray(ed, float))
+    shape = re.shape
+    re, a = np.atleast_1d(re), np.atleast_1d(ed) / 3.7
     b = 2.51 / re
-    ln10 = math.log(10.0)
+    x = np.log(re)                       # Re^-0.9 = exp(-0.9 ln Re)
+    x *= -0.9
+    np.exp(x, out=x)
+    x *= 5.74
+    x += a
+    np.log(x, out=x)
+    x *= -_TWO_OVER_LN10                 # Swamee-Jain's 1/sqrt(f)
+    arg, step = np.empty_like(x), np.empty_like(x)
     for _ in range(_NEWTON_STEPS):
-        arg = a + b * x
-        g = x + 2.0 * np.log10(arg)
-        dg = 1.0 + 2.0 * b / (ln10 * arg)
-        x = x - g / dg
-    return 1.0 / (x * x)
+        # g = x + 2 log10(a + b x),  g' = 1 + 2 b / (ln 10 (a + b x))
+        np.multiply(b, x, out=arg)
+        arg += a
+        np.log(arg, out=step)
+        step *= _TWO_OVER_LN10
+        step += x
+        np.divide(b, arg, out=arg)
+        arg *= _TWO_OVER_LN10
+        arg += 1.0
+        step /= arg
+        x -= step
+    x *= x
+    return (1.0 / x).reshape(shape)
+
+
+_TWO_OVER_LN10 = 2.0 / math.log(10.0)
 
 
 def _friction_times_re(re, ed):
@@ -153,7 +173,10 @@ def _friction_times_re_small(re, ed):
     turbulent."""
     f_2000 = 64.0 / RE_LAMINAR
     turb = re >= RE_TURBULENT
-    out = np.where(turb, _colebrook(np.maximum(re, RE_TURBULENT), ed) * re, 64.0)
+    if not turb.any():              # laminar lines, the usual case: no Newton steps
+        out = np.full(re.shape, 64.0)
+    else:
+        out = np.where(turb, _colebrook(np.maximum(re, RE_TURBULENT), ed) * re, 64.0)
     mid = (re >= RE_LAMINAR) & ~turb
     if mid.any():
         w = (re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR)

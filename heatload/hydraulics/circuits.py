@@ -70,6 +70,7 @@ COUNTERBALANCE_FACTOR = 1.3
 _INFEASIBLE = -1e12  # "pressure" of a flow the pump cannot deliver [Pa]
 
 _ROOT_STEPS = 60  # Illinois steps at most (typically 4-8)
+_COMPACT_MIN = 256  # working sets smaller than this are not shrunk (numpy's call cost rules)
 _ROOT_PRESSURE_TOL = 1e-7  # |residual| that counts as solved [Pa] (~1e-14 of the pressures)
 
 
@@ -402,11 +403,16 @@ def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
             hi, r_hi = np.where(down, k, hi), np.where(down, r_k, r_hi)
     side = np.zeros(lo.shape)
     active = np.ones(lo.shape, dtype=bool)
+    # the elements still iterating (most converge in a few steps; a few need
+    # many): once they are half the working set or fewer, the working set
+    # shrinks to them, so the late steps cost only what is left.  Each element's
+    # iteration is its own, so the roots are the same
+    root, work, wsub = lo, None, sub
     for _ in range(_ROOT_STEPS):
         with np.errstate(divide="ignore", invalid="ignore"):  # flat ends: bisect below
             q = (lo * r_hi - hi * r_lo) / (r_hi - r_lo)
         q = np.where(np.isfinite(q) & (q > lo) & (q < hi), q, 0.5 * (lo + hi))
-        r = residual(q, sub)
+        r = residual(q, wsub)
         hit = active & (np.abs(r) <= _ROOT_PRESSURE_TOL)  # solved: keep q itself
         lo = np.where(hit, q, lo)
         active &= ~hit
@@ -419,9 +425,21 @@ def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
         hi, r_hi = np.where(neg, q, hi), np.where(neg, r, r_hi)
         side = np.where(pos, 1.0, np.where(neg, -1.0, side))
         active &= hi - lo > 1e-13 * np.maximum(hi, 1e-12)
-        if not active.any():
+        n_active = int(np.count_nonzero(active))
+        if not n_active:
             break
-    return lo
+        if active.size >= _COMPACT_MIN and 2 * n_active <= active.size:
+            if work is None:
+                root, work = lo, np.arange(lo.size)
+            else:
+                root[work] = lo
+            work, wsub = work[active], _Subset(wsub, active)
+            lo, hi, r_lo, r_hi, side = (x[active] for x in (lo, hi, r_lo, r_hi, side))
+            active = np.ones(n_active, dtype=bool)
+    if work is None:
+        return lo
+    root[work] = lo
+    return root
 
 
 def _solve_flow(residual, c, q_target, q_kink=None):
