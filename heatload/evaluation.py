@@ -134,6 +134,7 @@ class Builder:
         base.update(cycle.power_unit_constants(scenario, values))
         base.update(cycle.strategy_arrays(scenario, strategy, values))
         self.base = base
+        self._base_all = None
         self.n_phases = len(scenario.phases)
         if not values.nominal:      # the scenario's own fields were checked at load
             check_components(base)
@@ -141,13 +142,16 @@ class Builder:
     def inputs(self, t_oil, rows=None) -> dict:
         t = np.asarray(t_oil, dtype=float)
         if rows is None:
-            c = dict(self.base)
             shape = (self.n, self.n_phases)
+            # the temperature-free entries broadcast once for every solve of all rows
+            if self._base_all is None:
+                self._base_all = _compact(self.base, shape)
+            c = dict(self._base_all)
         else:
-            c = _take(self.base, rows)
             shape = (int(np.size(rows)), self.n_phases)
-        c.update(cycle.oil_entries(self.scenario, t))
-        return _compact(c, shape)
+            c = _compact(_take(self.base, rows), shape)
+        c.update(_compact(cycle.oil_entries(self.scenario, t), shape))
+        return c
 
     def solve(self, t_oil, rows=None):
         c = self.inputs(t_oil, rows)

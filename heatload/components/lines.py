@@ -95,9 +95,11 @@ def _colebrook(re, ed):
     started from Swamee-Jain (``x0 = -2 log10(ed/3.7 + 5.74 Re^-0.9)``); re >=
     4000 expected (callers clip).  Natural logs and in-place steps: the
     turbulent elements of a large sweep are its costliest line arithmetic."""
-    re, ed = np.broadcast_arrays(np.asarray(re, float), np.asarray(ed, float))
+    re, ed = np.asarray(re, float), np.asarray(ed, float)
+    if ed.ndim and ed.shape != re.shape:
+        re, ed = np.broadcast_arrays(re, ed)
     shape = re.shape
-    re, a = np.atleast_1d(re), np.atleast_1d(ed) / 3.7
+    re, a = np.atleast_1d(re), ed / 3.7
     b = 2.51 / re
     x = np.log(re)                       # Re^-0.9 = exp(-0.9 ln Re)
     x *= -0.9

@@ -293,6 +293,8 @@ def _inlet_pressure_at(p_back, c):
     bp = c.get("back_pressure", 0.0)
     p_back = p_back + bp
     p1_open = (f + a2 * p_back) / a1
+    if c.get("cb_idle") is True:        # no counterbalance acts in any phase (the solve knows)
+        return p1_open, p_back + 0.0, 0.0 + bp
     setting = np.where(c["cb_active"], c["cb_setting"], 0.0)
     p1_active = (f + a2 * (p_back + setting)) / (a1 + c["cb_ratio"] * a2)
     p1 = np.where(c["cb_active"], np.maximum(p1_open, p1_active), p1_open)
@@ -314,7 +316,14 @@ IDEAL_PUMP_LEAK = 1e-12
 
 def _leak_conductance(c):
     """Pump leakage per pressure L = Cs D / (2 pi mu) [m^3/(s Pa)] (Wilson slip term),
-    at least ``IDEAL_PUMP_LEAK`` of the theoretical flow at the relief setting."""
+    at least ``IDEAL_PUMP_LEAK`` of the theoretical flow at the relief setting
+    (``pump_leak`` of *c* where the solve has set it: once per solve)."""
+    leak = c.get("pump_leak")
+    return pump_leak_conductance(c) if leak is None else leak
+
+
+def pump_leak_conductance(c):
+    """:func:`_leak_conductance` computed from *c*'s pump entries."""
     leak = c["pump_slip"] * c["pump_displacement"] / (TWO_PI * c["mu"])
     q_th = c["pump_displacement"] * c["pump_speed"]
     return np.maximum(leak, IDEAL_PUMP_LEAK * q_th / c["relief_cracking"])
@@ -367,6 +376,40 @@ class _Subset(_LazyView):
             v = v[self._idx]
         self[key] = v
         return v
+
+
+class _Columns(_LazyView):
+    """Entries of a circuit dict restricted to the phases *cols* (last axis),
+    taken when first read: where a mask is the same in every variant (the
+    phases that move), a sweep's phase constants stay broadcast views and
+    only its varied entries are copied."""
+
+    def __init__(self, c, cols, shape):
+        super().__init__()
+        self._c, self._cols, self._full = c, cols, shape
+        self._shape = shape[:-1] + (len(cols),)
+
+    def __missing__(self, key):
+        v = self._c[key]
+        if isinstance(v, np.ndarray) and v.shape == self._full:
+            if v.ndim > 1 and not any(v.strides[:-1]):     # one row, broadcast
+                v = np.broadcast_to(v[(0,) * (v.ndim - 1)][self._cols], self._shape)
+            else:
+                v = v[..., self._cols]
+        self[key] = v
+        return v
+
+
+#: Below this many elements a subset is a boolean gather (fewer numpy calls)
+_COLUMNS_MIN = 256
+
+
+def _phase_columns(mask):
+    """The phases (last-axis indices) where *mask* holds, when it is the same in
+    every variant (a broadcast row) and large enough to pay; else None."""
+    if mask.ndim < 2 or mask.size < _COLUMNS_MIN or any(mask.strides[:-1]):
+        return None
+    return np.flatnonzero(mask[(0,) * (mask.ndim - 1)])
 
 
 def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
@@ -449,10 +492,16 @@ def _solve_flow(residual, c, q_target, q_kink=None):
     moving = np.asarray(c["moving"])
     r_target = np.full(q_target.shape, np.nan)
     rec = []
+    cols = None
     if moving.all():
         r_target = residual(q_target, c, rec)
     elif moving.any():  # hold and idle phases need no flow solve
-        r_target[moving] = residual(q_target[moving], _Subset(c, moving), rec)
+        cols = _phase_columns(moving)
+        if cols is None:
+            r_target[moving] = residual(q_target[moving], _Subset(c, moving), rec)
+        else:
+            r_target[..., cols] = residual(q_target[..., cols],
+                                           _Columns(c, cols, q_target.shape), rec)
     short = moving & (r_target < 0.0)
     stalled = np.zeros_like(short)
     r_zero = np.full(q_target.shape, np.nan)
@@ -472,8 +521,10 @@ def _solve_flow(residual, c, q_target, q_kink=None):
         drops = []
         for part in rec[0]:
             full = np.full(q_target.shape, np.nan)
-            full[moving] = np.broadcast_to(part, q_target.shape)[moving] if np.shape(part) \
-                == q_target.shape else part
+            if cols is not None:
+                full[..., cols] = part
+            else:
+                full[moving] = part[moving] if np.shape(part) == q_target.shape else part
             full[short] = np.nan
             drops.append(full)
     return q, short & ~stalled, stalled, drops
@@ -504,24 +555,34 @@ def _compression_power(c, p1, p2, t_actual):
     """Compression energy of the motion's chambers per phase [W] (the inlet
     one filled at p1, the outlet one pressed to p2, from the pressures of the
     previous phase where it pressurised the same chamber)."""
-    prev = c["previous_phase"]
-    # prev and p1 may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
-    shape = np.broadcast_shapes(np.shape(prev), np.shape(p1))
-    at = np.broadcast_to(np.maximum(prev, 0), shape or (1,))
-    p_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p1, shape or (1,)), at,
-                                                    axis=-1).reshape(shape), 0.0)
-    p2_prev = np.where(prev >= 0, np.take_along_axis(np.broadcast_to(p2, shape or (1,)), at,
-                                                     axis=-1).reshape(shape), 0.0)
+    prev = np.asarray(c["previous_phase"])
     # E = V (p^2 - p_prev^2) / (2 K) in each chamber: the inlet one filled at p1, and
     # the outlet one, pressed to p2 when the motion starts (a meter-out circuit's
     # intensified chamber stores as much as the inlet)
-    e_in = c["compression_volume"] * (np.maximum(p1, 0.0) ** 2 - np.maximum(p_prev, 0.0) ** 2)
-    e_out = c["compression_volume_outlet"] * (np.maximum(p2, 0.0) ** 2
-                                              - np.maximum(p2_prev, 0.0) ** 2)
+    sq1 = np.maximum(p1, 0.0) ** 2
+    sq2 = np.maximum(p2, 0.0) ** 2
+    e_in = c["compression_volume"] * (sq1 - _at_previous(sq1, prev))
+    e_out = c["compression_volume_outlet"] * (sq2 - _at_previous(sq2, prev))
     e_comp = np.maximum(e_in, 0.0) + np.maximum(e_out, 0.0)
     e_comp = np.where(c["compress"], e_comp / (2.0 * c["bulk_modulus"]), 0.0)
     # once per pass: a repeated phase's duration holds all its passes
     return e_comp * c.get("repeats", 1.0) / t_actual
+
+
+def _at_previous(x, prev):
+    """*x* of the phase each phase follows (``prev``, the phase index on the last
+    axis; -1: none, giving 0)."""
+    # the map is one row in every variant (a broadcast): gather along the phases
+    if prev.ndim and not any(prev.strides[:-1]) and np.ndim(x) >= 1 \
+            and np.shape(x)[-1] == prev.shape[-1]:
+        row = prev[(0,) * (prev.ndim - 1)]
+        shape = np.broadcast_shapes(prev.shape, np.shape(x))
+        return np.where(row >= 0, np.broadcast_to(x, shape)[..., np.maximum(row, 0)], 0.0)
+    # prev and x may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
+    shape = np.broadcast_shapes(np.shape(prev), np.shape(x))
+    at = np.broadcast_to(np.maximum(prev, 0), shape or (1,))
+    return np.where(prev >= 0, np.take_along_axis(np.broadcast_to(x, shape or (1,)), at,
+                                                  axis=-1).reshape(shape), 0.0)
 
 
 #: Figures of each motion in :attr:`CircuitResult.motions` (flows [m^3/s],
@@ -608,11 +669,14 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         for key, val in zip(("cb_fitted", "cb_setting", "cb_ratio", "cb_active", "runaway"),
                             _holding_valves(v, v["moving"], kind.meters_out)):
             c[f"motion{b}:{key}"] = val
+        c[f"motion{b}:cb_idle"] = not np.any(c[f"motion{b}:cb_active"])
         c[f"motion{b}:q_target_safe"] = np.where(v["q_target"] > 0, v["q_target"], 1.0)
     c["cb_fitted"], c["cb_setting"], c["cb_ratio"], c["cb_active"], runaway = \
         _holding_valves(c, moving, kind.meters_out)
+    c["cb_idle"] = not np.any(c["cb_active"])
 
     n_nom = c["pump_speed"]
+    c["pump_leak"] = pump_leak_conductance(c)
     c["q_theoretical"] = c["pump_displacement"] * n_nom
     c["q_theoretical_max"] = c["pump_displacement"] * n_nom * c["vs_max_fraction"]
     q_cap = kind.flow_capacity(c)

@@ -250,6 +250,7 @@ def bleed_off_speed_change(c: dict, result, load_factor: float = 1.1,
     """
     c = dict(c)
     c["cb_active"] = result.counterbalance_active
+    c.pop("cb_idle", None)
     c["cb_setting"] = np.where(result.counterbalance_active, result.counterbalance_setting,
                                c["cb_setting"])
     c["q_theoretical"] = c["pump_displacement"] * c["pump_speed"]
@@ -267,6 +268,7 @@ def bleed_off_speed_change(c: dict, result, load_factor: float = 1.1,
             for key, val in zip(("cb_fitted", "cb_setting", "cb_ratio", "cb_active"),
                                 _c._holding_valves(v, v["moving"], False)[:4]):
                 c[f"motion{b}:{key}"] = val
+            c.pop(f"motion{b}:cb_idle", None)
         for _ in range(iterations):
             supply, p1 = _c._supply_and_inlet(q, c, 0.0)
             p = np.maximum(supply + p1, 0.0)
@@ -500,6 +502,7 @@ class _Share(dict):
     def __init__(self, c, share):
         super().__init__(pump_displacement=c["pump_displacement"] * share)
         self._c = c
+        self["pump_leak"] = _c.pump_leak_conductance(self)   # its own, not the set's
 
     def __missing__(self, key):
         return self._c[key]
