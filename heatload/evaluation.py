@@ -43,7 +43,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from heatload import checks
+from heatload import _memory, checks
 from heatload.hydraulics import circuits, cycle
 from heatload.cooling import cooler
 from heatload.heat import heat_transfer
@@ -57,6 +57,10 @@ from heatload.hydraulics.strategies import circuit
 
 COUPLING_TOLERANCE = 0.01   # [K]
 COUPLING_MAX_ITER = 20
+#: Elements (variants x phases) from which a batch's arrays are large enough
+#: for the C library to map each from the system (128 KiB / 8 B)
+_LARGE_BATCH = 16384
+
 #: Points of the UA(T) table and its top [K] (UA varies slowly and smoothly with T)
 TABLE_POINTS = 160
 TABLE_TOP = 523.15
@@ -584,6 +588,8 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
     val = overrides if isinstance(overrides, Overrides) else Overrides(sc, st, overrides)
     n = val.n
     g = val.get
+    if n * len(sc.phases) >= _LARGE_BATCH:
+        _memory.keep_freed_memory()     # temporaries of MB each: no page faults per array
     build = Builder(sc, st, val, phases)
     t_ref = (cycle.reference_oil_temperature(sc) if oil_temperature is None
              else float(oil_temperature))
