@@ -194,11 +194,15 @@ def pareto_front(x, y) -> np.ndarray:
     ok = np.isfinite(x) & np.isfinite(y)
     if not ok.any():
         return out
-    pts = np.stack([x[ok], y[ok]], axis=1)
-    uniq, inverse = np.unique(pts, axis=0, return_inverse=True)
-    prev_min = np.concatenate([[np.inf], np.minimum.accumulate(uniq[:-1, 1])])
-    front_u = uniq[:, 1] < prev_min
-    out[np.nonzero(ok)[0]] = front_u[inverse.reshape(-1)]
+    idx = np.nonzero(ok)[0]
+    order = np.lexsort((y[idx], x[idx]))           # by x, then y
+    xs, ys = x[idx][order], y[idx][order]
+    # each point against the lowest y of the points before its group of equals
+    new = np.ones(xs.size, dtype=bool)
+    new[1:] = (xs[1:] != xs[:-1]) | (ys[1:] != ys[:-1])
+    start = np.maximum.accumulate(np.where(new, np.arange(xs.size), 0))
+    prev_min = np.concatenate([[np.inf], np.minimum.accumulate(ys)[:-1]])
+    out[idx[order]] = ys < prev_min[start]
     return out
 
 
@@ -221,12 +225,9 @@ def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK, t
         bar = tqdm(total=total, unit="variant", file=sys.stderr, desc="sweep")
     try:
         for st in strategies:
-            parts = []
-            for start in range(0, n, chunk):
-                part = {k: v[start:start + chunk] for k, v in values.items()}
-                parts.append(variants.evaluate_variants(scenario, st, part, thermal=thermal))
-                if bar is not None:
-                    bar.update(len(parts[-1]))
+            parts = variants.evaluate_chunks(scenario, st, values, n, chunk,
+                                             done=None if bar is None else bar.update,
+                                             thermal=thermal)
             # the chunks' arrays joined first: one table per strategy, not a
             # table per chunk joined by pandas (a copy of every column)
             res = variants.concat(parts)

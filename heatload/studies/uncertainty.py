@@ -149,13 +149,11 @@ def _evaluate(scenario, strategy, ov, n, progress=False):
         from tqdm import tqdm
         bar = tqdm(total=n, unit="sample", file=sys.stderr, desc="Monte Carlo")
     try:
-        for s in range(0, n, CHUNK):
-            part = {k: v[s:s + CHUNK] for k, v in ov.items()}
-            r = variants.evaluate_variants(scenario, strategy, part)
+        parts = variants.evaluate_chunks(scenario, strategy, ov, n, CHUNK,
+                                         done=None if bar is None else bar.update)
+        for s, r in zip(range(0, n, CHUNK), parts):
             duty[s:s + CHUNK] = r.cooler_duty
             temp[s:s + CHUNK] = r.oil_temperature_steady
-            if bar is not None:
-                bar.update(len(r))
     finally:
         if bar is not None:
             bar.close()

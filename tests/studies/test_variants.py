@@ -107,3 +107,21 @@ def test_sweeps_count_the_correlation_range():
               for w in o.warnings if w.code == "correlation-range"]
     assert len(listed) == 1
     assert res.warnings["correlation-range"][0] == 1
+
+
+def test_chunks_on_two_threads_give_the_same_figures(monkeypatch):
+    """evaluate_chunks: each chunk is evaluated on its own, so running them on
+    two threads (HEATLOAD_THREADS=2) gives the figures of one thread, in order."""
+    from heatload import io
+    from heatload.studies import variants as vr
+
+    sc = io.load_scenario(io.default_scenario_path())
+    vals = {"power_unit.pump.displacement": np.linspace(16e-6, 40e-6, 23)}
+    monkeypatch.setenv("HEATLOAD_THREADS", "1")
+    one = vr.concat(vr.evaluate_chunks(sc, "meter-in", vals, 23, 5))
+    monkeypatch.setenv("HEATLOAD_THREADS", "2")
+    done = []
+    two = vr.concat(vr.evaluate_chunks(sc, "meter-in", vals, 23, 5, done=done.append))
+    assert done == [5, 5, 5, 5, 3]
+    np.testing.assert_array_equal(one.cooler_duty, two.cooler_duty)
+    np.testing.assert_array_equal(one.electric_energy_per_cycle, two.electric_energy_per_cycle)
