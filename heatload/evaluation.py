@@ -59,7 +59,7 @@ COUPLING_TOLERANCE = 0.01   # [K]
 COUPLING_MAX_ITER = 20
 #: Elements (variants x phases) from which a batch's arrays are large enough
 #: for the C library to map each from the system (128 KiB / 8 B)
-_LARGE_BATCH = 16384
+LARGE_BATCH = 16384
 
 #: Points of the UA(T) table and its top [K] (UA varies slowly and smoothly with T)
 TABLE_POINTS = 160
@@ -583,13 +583,18 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
     -------
     Evaluation
     """
-    sc = scenario
-    st = strategy_of(sc, strategy)
-    val = overrides if isinstance(overrides, Overrides) else Overrides(sc, st, overrides)
+    st = strategy_of(scenario, strategy)
+    val = overrides if isinstance(overrides, Overrides) else Overrides(scenario, st, overrides)
+    if val.n * len(scenario.phases) < LARGE_BATCH:
+        return _evaluate(scenario, st, val, oil_temperature, thermal, hot, phases)
+    with _memory.batch():       # temporaries of MB each: no page faults per array
+        return _evaluate(scenario, st, val, oil_temperature, thermal, hot, phases)
+
+
+def _evaluate(sc, st, val, oil_temperature, thermal, hot, phases) -> Evaluation:
+    """:func:`evaluate` of the strategy *st* and the variants *val*."""
     n = val.n
     g = val.get
-    if n * len(sc.phases) >= _LARGE_BATCH:
-        _memory.keep_freed_memory()     # temporaries of MB each: no page faults per array
     build = Builder(sc, st, val, phases)
     t_ref = (cycle.reference_oil_temperature(sc) if oil_temperature is None
              else float(oil_temperature))

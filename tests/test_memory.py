@@ -54,3 +54,30 @@ def test_applied_once_and_switchable_off(monkeypatch):
     assert _memory.keep_freed_memory() is False
     monkeypatch.setenv("HEATLOAD_KEEP_MEMORY", "1")
     assert _memory.keep_freed_memory() is False      # decided once per process
+
+
+_RELEASE = textwrap.dedent("""
+    import numpy as np
+    from heatload import _memory
+
+    def rss_mb():
+        with open("/proc/self/statm") as f:
+            return int(f.read().split()[1]) * 4096 / 2**20
+
+    a = np.ones(600_000)
+    with _memory.batch():
+        with _memory.batch():                # nested: nothing handed back here
+            b = [a * 2.0 for _ in range(40)]  # 190 MB
+            del b
+        inside = rss_mb()
+    after = rss_mb()
+    print(inside, after)
+""")
+
+
+@glibc
+def test_memory_kept_during_a_batch_and_handed_back_after():
+    out = subprocess.run([sys.executable, "-c", _RELEASE], capture_output=True, text=True,
+                         check=True, env={"HEATLOAD_KEEP_MEMORY": "1", "PATH": ""})
+    inside, after = map(float, out.stdout.split())
+    assert inside > after + 150      # the 190 MB of freed arrays kept, then returned

@@ -10,13 +10,14 @@ figures into :class:`VariantResults` (a table: one row per variant).
 
 from __future__ import annotations
 
+import contextlib
 import dataclasses
 import os
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from heatload import checks, evaluation
+from heatload import _memory, checks, evaluation
 from heatload.hydraulics import energy
 from heatload.model import Scenario
 
@@ -111,20 +112,22 @@ def evaluate_chunks(scenario: Scenario, strategy, overrides: dict, n: int, chunk
         return evaluate_variants(scenario, strategy, part, **kwargs)
 
     workers = min(threads(), len(starts))
-    if workers <= 1:
-        out = []
-        for start in starts:
-            out.append(one(start))
-            if done is not None:
-                done(len(out[-1]))
-        return out
-    from concurrent.futures import ThreadPoolExecutor
     out = []
-    with ThreadPoolExecutor(max_workers=workers) as pool:
-        for res in pool.map(one, starts):
-            out.append(res)
-            if done is not None:
-                done(len(res))
+    # one batch for the memory: the chunks reuse each other's freed arrays
+    large = n * len(scenario.phases) >= evaluation.LARGE_BATCH
+    with _memory.batch() if large else contextlib.nullcontext():
+        if workers <= 1:
+            for start in starts:
+                out.append(one(start))
+                if done is not None:
+                    done(len(out[-1]))
+            return out
+        from concurrent.futures import ThreadPoolExecutor
+        with ThreadPoolExecutor(max_workers=workers) as pool:
+            for res in pool.map(one, starts):
+                out.append(res)
+                if done is not None:
+                    done(len(res))
     return out
 
 
