@@ -125,3 +125,16 @@ def test_chunks_on_two_threads_give_the_same_figures(monkeypatch):
     assert done == [5, 5, 5, 5, 3]
     np.testing.assert_array_equal(one.cooler_duty, two.cooler_duty)
     np.testing.assert_array_equal(one.electric_energy_per_cycle, two.electric_energy_per_cycle)
+
+
+@pytest.mark.parametrize("given", ["two", "0", "-1", "1.5"])
+def test_a_thread_count_that_is_not_one_is_refused(monkeypatch, given):
+    monkeypatch.setenv("HEATLOAD_THREADS", given)
+    with pytest.raises(HeatloadError, match="HEATLOAD_THREADS"):
+        variants.threads()
+
+
+def test_threads_never_exceed_the_cores(monkeypatch):
+    import os
+    monkeypatch.setenv("HEATLOAD_THREADS", "1000")
+    assert variants.threads() == (os.cpu_count() or 1)
