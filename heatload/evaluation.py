@@ -85,13 +85,16 @@ def strategy_of(scenario: Scenario, strategy) -> Strategy:
 # ---------------------------------------------------------------------------
 
 def _compact(c: dict, shape) -> dict:
-    """Broadcast entries to *shape*, keeping single values 0-d: the solvers
-    then compute uniform terms once (values identical to
-    :func:`heatload.hydraulics.cycle.finalize`, which broadcasts every entry)."""
+    """Entries at their own shapes, broadcastable to *shape* (single values 0-d,
+    a phase constant ``(P,)``, a variant's value ``(N, 1)``): numpy's
+    broadcasting then computes a term of phase constants once per phase, not
+    once per variant (values identical to
+    :func:`heatload.hydraulics.cycle.finalize`, which broadcasts every entry).
+    ``shape`` is the batch's full shape."""
     out = {}
     for k, v in c.items():
         a = np.asarray(v)
-        out[k] = a.reshape(()) if a.size == 1 else np.broadcast_to(a, shape)
+        out[k] = a.reshape(()) if a.size == 1 else a
     out["shape"] = shape
     return out
 

@@ -363,8 +363,9 @@ def _compensator_supply(q, c, setting, theoretical_flow):
 # ---------------------------------------------------------------------------
 
 class _Subset(_LazyView):
-    """Entries of a circuit dict restricted to the elements *idx*, taken only
-    when a residual first reads them (most entries are never read)."""
+    """Entries of a circuit dict restricted to the elements *idx* (a mask of the
+    full shape), taken only when a residual first reads them (most entries are
+    never read); an entry of its own smaller shape is broadcast first."""
 
     def __init__(self, c, idx):
         super().__init__()
@@ -372,8 +373,14 @@ class _Subset(_LazyView):
 
     def __missing__(self, key):
         v = self._c[key]
-        if isinstance(v, np.ndarray) and v.shape == self._shape:
-            v = v[self._idx]
+        if isinstance(v, np.ndarray) and v.ndim:
+            if v.shape == self._shape:
+                v = v[self._idx]
+            elif np.ndim(v) <= len(self._shape):
+                try:
+                    v = np.broadcast_to(v, self._shape)[self._idx]
+                except ValueError:      # not an entry of the batch's shape: as it is
+                    pass
         self[key] = v
         return v
 
@@ -391,7 +398,11 @@ class _Columns(_LazyView):
 
     def __missing__(self, key):
         v = self._c[key]
-        if isinstance(v, np.ndarray) and v.shape == self._full:
+        if isinstance(v, np.ndarray) and v.ndim and v.shape != self._full:
+            if v.shape[-1] == self._full[-1]:      # a row of phases (or variants x phases)
+                v = v[..., self._cols]
+            # else (N, 1): one value per variant, broadcasts as it is
+        elif isinstance(v, np.ndarray) and v.shape == self._full:
             if v.ndim > 1 and not any(v.strides[:-1]):     # one row, broadcast
                 v = np.broadcast_to(v[(0,) * (v.ndim - 1)][self._cols], self._shape)
             else:
@@ -657,6 +668,12 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     kind = circuit(strategy)
     c = dict(c)
     shape = c["shape"]
+    # masks and maps at the full shape (views: no copy), for they index; the float
+    # entries keep their own shapes ((P,) phase constants, (N, 1) variant values),
+    # so a term of phase constants is computed once per phase
+    for k, v in c.items():
+        if isinstance(v, np.ndarray) and v.ndim and v.dtype.kind in "bi" and v.shape != shape:
+            c[k] = np.broadcast_to(v, shape)
     z = np.zeros(shape)
     moving = c["moving"]
     # A counterbalance valve acts only on an overrunning load; an outlet
