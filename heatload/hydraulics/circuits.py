@@ -496,9 +496,26 @@ def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
     return root
 
 
-def _solve_flow(residual, c, q_target, q_kink=None):
+def _phase_row(a):
+    """*a* as one row of phases when it is the same in every variant (a
+    broadcast view, or no variant axis), else None."""
+    a = np.asarray(a)
+    if a.ndim == 0:
+        return None
+    if a.ndim == 1:
+        return a
+    if all(n == 1 or st == 0 for n, st in zip(a.shape[:-1], a.strides[:-1])):
+        return a[(0,) * (a.ndim - 1)]
+    return None
+
+
+def _solve_flow(residual, c, q_target, q_kink=None, q_row=None):
     """Inlet flow reached: the set flow where the residual allows it, else the
-    root of the residual (flow-limited), zero where even q = 0 fails (stall)."""
+    root of the residual (flow-limited), zero where even q = 0 fails (stall).
+
+    *q_row*: the set flow as one row of phases where it is the same in every
+    variant; the set-flow pass then computes the terms of that flow once per
+    phase."""
     q = q_target.copy()
     moving = np.asarray(c["moving"])
     r_target = np.full(q_target.shape, np.nan)
@@ -511,8 +528,8 @@ def _solve_flow(residual, c, q_target, q_kink=None):
         if cols is None:
             r_target[moving] = residual(q_target[moving], _Subset(c, moving), rec)
         else:
-            r_target[..., cols] = residual(q_target[..., cols],
-                                           _Columns(c, cols, q_target.shape), rec)
+            q_cols = q_target[..., cols] if q_row is None else q_row[cols]
+            r_target[..., cols] = residual(q_cols, _Columns(c, cols, q_target.shape), rec)
     short = moving & (r_target < 0.0)
     stalled = np.zeros_like(short)
     r_zero = np.full(q_target.shape, np.nan)
@@ -700,11 +717,19 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     c["q_reach"] = q_cap  # beyond it the pump cannot deliver: keeps the root bracket smooth
     if views:   # the phase's own motion takes 1 / R of the circuit's flow
         c["q_reach"] = q_cap / c["flow_total_ratio"]
-    q_target = np.where(np.isfinite(c["q_target"]), c["q_target"], q_cap)
-    q_target = np.where(moving, np.maximum(q_target, 0.0), 0.0)
+    # the set flows as one row of phases where no variant changes them (a sweep of
+    # the power unit): their drops are then computed once per phase
+    row, moving_row = _phase_row(c["q_target"]), _phase_row(moving)
+    q_row = None
+    if row is not None and moving_row is not None and np.isfinite(row).all():
+        q_row = np.where(moving_row, np.maximum(row, 0.0), 0.0)
+        q_target = q_row
+    else:
+        q_target = np.where(np.isfinite(c["q_target"]), c["q_target"], q_cap)
+        q_target = np.where(moving, np.maximum(q_target, 0.0), 0.0)
+    c["q_target_safe"] = np.where(q_target > 0, q_target, 1.0)
     if "shape" in c:            # a single phase may arrive as 0-d; the flow solve
         q_target = np.broadcast_to(q_target, c["shape"]).copy()   # needs every row
-    c["q_target_safe"] = np.where(q_target > 0, q_target, 1.0)
 
     # the corner of the supply characteristic: full pump flow at the relief
     # (fixed pumps) or compensator setting (variable pumps)
@@ -712,7 +737,8 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     q_kink = kind.kink(c, q_cap, leak0)
     if views:
         q_kink = q_kink / c["flow_total_ratio"]
-    q1, flow_limited, stalled, drops_set = _solve_flow(kind.residual, c, q_target, q_kink)
+    q1, flow_limited, stalled, drops_set = _solve_flow(kind.residual, c, q_target, q_kink,
+                                                       q_row)
     full_flow = moving & ~np.isfinite(c["q_target"])
     flow_limited = flow_limited & ~full_flow
     q_target = np.where(full_flow, q1, q_target)
