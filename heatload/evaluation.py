@@ -588,10 +588,9 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
     """
     st = strategy_of(scenario, strategy)
     val = overrides if isinstance(overrides, Overrides) else Overrides(scenario, st, overrides)
-    if val.n * len(scenario.phases) < LARGE_BATCH:
-        return _evaluate(scenario, st, val, oil_temperature, thermal, hot, phases)
-    with _memory.batch():       # temporaries of MB each: no page faults per array
-        return _evaluate(scenario, st, val, oil_temperature, thermal, hot, phases)
+    if val.n * len(scenario.phases) >= LARGE_BATCH:
+        _memory.keep_freed_memory()     # temporaries of MB each: no page faults per array
+    return _evaluate(scenario, st, val, oil_temperature, thermal, hot, phases)
 
 
 def _evaluate(sc, st, val, oil_temperature, thermal, hot, phases) -> Evaluation:
