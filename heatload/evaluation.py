@@ -458,6 +458,12 @@ def coupled_temperature(builder: Builder, rows, ambient, conductance: Conductanc
             break
         dt = tb_[todo] - ta_[todo]
         slope = np.where(dt != 0, (qb[todo] - qa[todo]) / np.where(dt != 0, dt, 1.0), 0.0)
+        # a heat that grows faster with T than the surfaces shed it (a regime
+        # changing between the two points, e.g. a pump at 100 % volumetric
+        # efficiency) leaves the linear model no root: a fixed-heat step there
+        ua_b, dua_b = conductance(tb_[todo], todo)
+        rises = ua_b + dua_b * (tb_[todo] - ambient[todo]) - slope > 0.0
+        slope = np.where(np.isfinite(slope) & rises, slope, 0.0)
         t_new = steady_temperature(qa[todo], ta_[todo], slope, ambient[todo], conductance, todo,
                                    start=tb_[todo])
         r, c = builder.solve(t_new, rows[todo])

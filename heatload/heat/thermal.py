@@ -141,7 +141,7 @@ def steady_temperature(q0, t0, slope, ambient, conductance, rows=None, start=Non
     Returns
     -------
     ndarray
-        T [K]; never below ``T_a - 19 K``.
+        T [K]; never below ``T_a - 19 K`` nor above ``T_a + 2000 K``.
 
     Notes
     -----
@@ -163,7 +163,9 @@ def steady_temperature(q0, t0, slope, ambient, conductance, rows=None, start=Non
         g = ua * (t - ta) - q0 - slope * (t - t0)
         dg = ua + dua * (t - ta) - slope
         step = g / np.where(dg > 0, dg, 1.0)
-        t_new = np.maximum(t - step, ta - 19.0)
+        # kept finite (no machine's oil is 2000 K above its air): a row without
+        # a root cannot run off to overflow and poison its neighbours
+        t_new = np.clip(t - step, ta - 19.0, ta + 2000.0)
         done = np.abs(t_new - t) <= 1e-11 * np.abs(t)
         t = t_new
         if np.all(done):

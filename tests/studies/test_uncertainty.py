@@ -76,3 +76,23 @@ def test_bounds_beyond_the_fields_rule_are_refused_at_load():
     ok = text + ('\n[[uncertainty]]\npath = "power_unit.pump.volumetric_efficiency"\n'
                  'low = "-5 %"\nhigh = "+5 %"\n')
     _io.loads_scenario(ok)
+
+
+def test_samples_at_an_ideal_pump_do_not_break_the_coupled_temperature(tmp_path):
+    """A piston pump (volumetric efficiency 0.97) with a normal spread whose tail
+    passes 1 (clipped to 1: an ideal pump): the heat's secant model between two
+    coupling points could rise faster with T than the surfaces shed it, and the
+    steady temperature ran off to overflow (an internal error).  Every sample
+    now ends finite and hot, as its neighbours."""
+    text = io.default_scenario_path().read_text()
+    text = text.replace("volumetric_efficiency = 0.93", "volumetric_efficiency = 0.97", 1)
+    text = text.replace('distribution = "normal"           # low/high are the 5th and 95th '
+                        'percentiles\nlow = 0.97', 'distribution = "normal"\nlow = 0.95', 1)
+    assert "low = 0.95" in text
+    path = tmp_path / "piston.toml"
+    path.write_text(text)
+    sc = io.load_scenario(path)
+    res = uncertainty.monte_carlo(sc, "meter-in", samples=10000, seed=1)
+    t = res.percentiles["oil_temperature_C"]
+    assert all(np.isfinite(v) for v in t.values())
+    assert 150.0 < t["P50"] < 260.0    # the meter-in press without a cooler: ~200 degC
