@@ -36,6 +36,7 @@ import math
 
 import numpy as np
 
+from heatload.errors import HeatloadError
 
 K0 = 273.15
 
@@ -63,20 +64,58 @@ def read_temperature_log(path, columns=None, units=None, ambient_temperature=Non
     if ambient_temperature is not None:
         specs["ambient"] = logs.ColumnSpec(("ambient",), "temperature", False, "degC")
     log = logs.read_log(path, specs, columns, units, min_rows=logfit.MIN_SAMPLES, text=text)
+    check_temperatures(log)
     if "ambient" not in log.values:
+        from heatload.io import schema
+        schema._check(float(ambient_temperature), f"{ambient_temperature - K0:.4g} °C",
+                      schema._AMBIENT["temperature"], "temperature", "--ambient-temperature",
+                      None)
         log.values["ambient"] = np.full(len(log), float(ambient_temperature))
         log.notes.append(f"no ambient column: the air taken at a constant "
                          f"{ambient_temperature - K0:.4g} °C")
     return log
 
 
+def check_temperatures(log) -> None:
+    """Refuse a logged temperature no machine gives, naming the file, line and
+    column: the ambient column is held to the scenario file's rule for the air
+    (``[ambient] temperature``), the oil column to the loader's limit for any
+    temperature and, below, to the coldest air of that rule (oil in a tank
+    without a chiller is never colder than the air around it)."""
+    from heatload.errors import HeatloadError
+    from heatload.io import schema
+    from heatload.measurement.logs import _err
+
+    air = schema._AMBIENT["temperature"]
+    oil = schema._F("temperature", "pos", low=air.low,
+                    why=f"the coldest air of {air.why}; oil in a tank is not colder")
+    for key, spec in (("ambient", air), ("oil", oil)):
+        v = log.values.get(key)
+        if v is None:
+            continue
+        for i in (int(np.argmin(v)), int(np.argmax(v))):
+            try:
+                schema._check(float(v[i]), f"{v[i] - K0:.4g} °C", spec, "temperature",
+                              None, None)
+            except HeatloadError as e:
+                raise _err(e.message, log.source, int(log.lines[i]),
+                           log.headers.get(key, key)) from None
+
+
 def fit_log(log, capacity=None, confidence=0.95):
     """:func:`heatload.measurement.logfit.fit_tank_log` on a read :class:`~heatload.measurement.logs.Log`."""
     from heatload.measurement import logfit
 
-    fit = logfit.fit_tank_log(log.time, log.values["oil"], log.values["ambient"],
-                              log.values.get("running"), capacity=capacity,
-                              confidence=confidence)
+    try:
+        fit = logfit.fit_tank_log(log.time, log.values["oil"], log.values["ambient"],
+                                  log.values.get("running"), capacity=capacity,
+                                  confidence=confidence)
+    except HeatloadError as e:
+        # whatever the fit refuses, the reader must know which log it was
+        raise e.located(file=log.source) from None
+    except (ArithmeticError, ValueError, np.linalg.LinAlgError) as e:
+        raise HeatloadError(f"the tank model cannot be fitted to this log ({e}); check the "
+                            "oil, ambient and running columns", file=log.source) from None
     fit.notes[:0] = log.notes
     return fit
 
