@@ -24,9 +24,14 @@ def print_text(log, fit, comparison, system, capacity_source, scenario_path=None
     print("Columns: " + ", ".join(f"{k} = {h!r}" for k, h in log.headers.items()))
     print("Model: C dT/dt = P·running − UA (T − T_ambient), exact between samples, "
           "least squares on the logged oil temperature")
-    rows = summary_rows(fit, system, capacity_source)
+    # the table names where C came from in a word; the whole source on its own line
+    short = "from the scenario" if scenario_path and fit.capacity is not None else \
+        capacity_source
+    rows = summary_rows(fit, system, short)
     print(_table(["quantity", "fitted", f"{rows[0][4]} interval", ""],
                  [r[:4] for r in rows]))
+    if short != capacity_source:
+        print(f"Heat capacity C {capacity_source}")
     print(f"Residual: RMS {_q(fit.residual_rms, 'temperature_difference', system)}, largest "
           f"{_q(fit.residual_max, 'temperature_difference', system)}; "
           f"lag-1 autocorrelation {fit.residual_autocorrelation:.2f}"

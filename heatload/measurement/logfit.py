@@ -413,7 +413,10 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
     identified = {"conductance": ok(k, sd_k) and not flat,
                   "heat": fit_heat and ok(q, sd_q) and not flat and q > 0.0,
                   "initial_temperature": bool(math.isfinite(sd_t0)
-                                              and tq * sd_t0 < 0.5 * scale_t + 1.0)}
+                                              and tq * sd_t0 < 0.5 * scale_t + 1.0),
+                  # a flat log fits k -> 0 with no heat as well as a steady rise:
+                  # then P/UA is no better known than P or UA
+                  "temperature_rise": fit_heat and ok(rise, sd_rise) and rise > 0.0}
     heat = conductance = None
     if capacity is not None:
         heat, conductance = (capacity * q if fit_heat else None), capacity * k
@@ -506,7 +509,8 @@ def fit_record(fit: TankFit, capacity_source: str = "given") -> dict:
         "confidence": fit.confidence,
         "identified": {"heat_W": bool(fit.identified["heat"]),
                        "conductance_W_K": bool(fit.identified["conductance"]),
-                       "initial_temperature_C": bool(fit.identified["initial_temperature"])},
+                       "initial_temperature_C": bool(fit.identified["initial_temperature"]),
+                       "temperature_rise_K": bool(fit.identified["temperature_rise"])},
         "residual_rms_K": f(fit.residual_rms), "residual_max_K": f(fit.residual_max),
         "residual_autocorrelation": f(fit.residual_autocorrelation),
         "interval_widening": f(fit.interval_widening),

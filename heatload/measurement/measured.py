@@ -269,22 +269,29 @@ def summary_rows(fit, system="si", capacity_source="given") -> list:
 
     def status(key):
         return "identified" if fit.identified.get(key, True) else "NOT identified"
-    rows = [("heat into the oil while running, P", _q(fit.heat, "power", system),
-             _iv(fit.intervals.get("heat"), "power", system),
-             status("heat") if fit.capacity is not None else "needs the heat capacity"),
-            ("conductance to the air, UA", _q(fit.conductance, "thermal_conductance", system, 3),
-             _iv(fit.intervals.get("conductance"), "thermal_conductance", system),
-             status("conductance") if fit.conductance is not None
-             else "needs the heat capacity"),
+
+    def spread(value, pair, kind):
+        # an interval a hundred times wider than its value says only "unknown"
+        if (value is not None and pair is not None and math.isfinite(value)
+                and max(abs(pair[0] - value), abs(pair[1] - value)) > 100.0 * abs(value)):
+            return "wider than ±100x"
+        return _iv(pair, kind, system)
+    rows = [("heat while running, P", _q(fit.heat, "power", system),
+             spread(fit.heat, fit.intervals.get("heat"), "power"),
+             status("heat") if fit.capacity is not None else "needs C"),
+            ("conductance to air, UA", _q(fit.conductance, "thermal_conductance", system, 3),
+             spread(fit.conductance, fit.intervals.get("conductance"), "thermal_conductance"),
+             status("conductance") if fit.conductance is not None else "needs C"),
             ("heat capacity, C", _q(fit.capacity, "heat_capacity", system), "", capacity_source
              if fit.capacity is not None else "not given"),
             ("time constant, C/UA", f"{fit.time_constant / 3600:.3g} h"
              if math.isfinite(fit.time_constant) else "∞",
              _iv([v / 3600 for v in fit.intervals["time_constant"]], "dimensionless",
                  system) + " h", status("conductance")),
-            ("steady rise while running, P/UA", _q(fit.temperature_rise,
-                                                   "temperature_difference", system),
-             _iv(fit.intervals["temperature_rise"], "temperature_difference", system), ""),
+            ("steady rise, P/UA", _q(fit.temperature_rise, "temperature_difference", system),
+             spread(fit.temperature_rise, fit.intervals["temperature_rise"],
+                    "temperature_difference"),
+             status("temperature_rise")),
             ("initial oil temperature", _q(fit.initial_temperature, "temperature", system),
              "", status("initial_temperature"))]
     return [r + (pct,) for r in rows]
