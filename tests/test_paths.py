@@ -71,6 +71,11 @@ def test_replaced_scenario_and_get_agree():
     sc = paths.replaced_scenario(PRESS, {"actuators.main.bore": 0.11, "phases[3].load": 1e5})
     assert paths.resolve_path(sc, "actuators.main.bore").nominal == (0.11,)
     assert paths.resolve_path(sc, "phases[3].load").nominal == (1e5,)
+    # one value per target of a path; None leaves that target as it is
+    ref = paths.resolve_path(PRESS, "phases[*].load")
+    given = [None] + [1e3 * (k + 1) for k in range(1, len(ref.targets))]
+    got = paths.resolve_path(paths.replaced_scenario(PRESS, {ref.path: given}), ref.path)
+    assert got.nominal == (ref.nominal[0],) + tuple(given[1:])
 
 
 def test_a_path_varies_a_field_with_the_files_own_rule():
