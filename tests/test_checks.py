@@ -283,3 +283,44 @@ def test_overrunning_motor_load_is_a_torque():
           if w.code == "overrunning-load"]
     assert ws and all(w.kind == "torque" and w.value == -120.0 for w in ws)
     assert all("motor runs away" in w.message and "N·m" in w.message for w in ws)
+
+
+# ---------------------------------------------------------------------------
+# flow-rating: a directional valve far past its rated flow
+# ---------------------------------------------------------------------------
+
+def test_flow_rating_counts_the_return_of_a_retracting_cylinder():
+    # retracting a 100/70 mm cylinder at 0.2 m/s: the rod side takes v A2 and the
+    # cap side returns v A1 (continuity), 94 L/min through B->T of the valve
+    pump = m.Pump(displacement=45e-6)                    # 65 L/min at 1450 rpm
+    ret = m.Phase("ret", "c", "retract", load=5e3, speed=0.2, stroke=0.3)
+    q_return = 0.2 * A1
+    for rated, flagged in ((60 / 60000, True), (64 / 60000, False)):
+        # 94 L/min is 1.57 x a 60 L/min valve (past 1.5 x) and 1.47 x a 64 L/min one
+        sc = _sc([ret], pump=pump, dv=m.DirectionalValve(rated_flow=rated))
+        ws = [w for w in _warn(sc, "load-sensing") if w.code == "flow-rating"]
+        assert bool(ws) is flagged
+        if ws:
+            assert ws[0].value == pytest.approx(q_return, rel=1e-9)
+            assert ws[0].limit == pytest.approx(checks.VALVE_FLOW_FACTOR * rated)
+            assert "94 L/min" in ws[0].message and "1.6 x" in ws[0].message
+
+
+def test_flow_rating_of_a_large_pump_on_a_small_valve_in_compare_and_sweep():
+    # a 250 cm^3/rev pump on the press's 60 L/min valve: every strategy flags it,
+    # and a sweep's warnings_flow-rating column counts the same phases
+    import dataclasses
+
+    from heatload.studies import variants
+    sc = io.load_scenario(io.default_scenario_path())
+    pu = sc.power_unit
+    sc = dataclasses.replace(sc, power_unit=dataclasses.replace(
+        pu, pump=dataclasses.replace(pu.pump, displacement=250e-6)))
+    o = chain.compare(sc, ["meter-in"]).outcomes[0]
+    ws = [w for w in o.warnings if w.code == "flow-rating"]
+    assert ws and max(w.value for w in ws) > 4 * pu.directional_valve.rated_flow
+    v = variants.evaluate_variants(sc, "meter-in")
+    assert int(v.warnings["flow-rating"][0]) == len(ws)
+    # a caution, not a circuit that cannot work: the valve's drop is still counted
+    from heatload import decision
+    assert "flow-rating" not in decision.BLOCKING
