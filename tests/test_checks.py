@@ -324,3 +324,41 @@ def test_flow_rating_of_a_large_pump_on_a_small_valve_in_compare_and_sweep():
     # a caution, not a circuit that cannot work: the valve's drop is still counted
     from heatload import decision
     assert "flow-rating" not in decision.BLOCKING
+
+
+# ---------------------------------------------------------------------------
+# hold-at-limit: a supply within a setting's tolerance of the pressure to hold
+# ---------------------------------------------------------------------------
+
+HOLD = m.Phase("hold", "c", "hold", hold_pressure=150e5, duration=5.0, unloading="held")
+
+
+def _relief(cracking):
+    import dataclasses
+    sc = _sc([EXT, HOLD])
+    return dataclasses.replace(sc, power_unit=dataclasses.replace(
+        sc.power_unit, relief=m.ReliefValve(cracking_pressure=cracking)))
+
+
+@pytest.mark.parametrize("strategy", ["load-sensing", "pressure-compensated"])
+def test_hold_one_millibar_either_side_of_the_need_flips_nothing(strategy):
+    # the compensator defaults to the relief less 10 bar: a relief at 160 bar gives
+    # exactly the 150 bar to hold, at 159.999 bar 1 mbar less; a class 1.0 gauge
+    # reads within 1 % of its span (EN 837-1, from memory): both are "at the limit"
+    from heatload import decision
+    for cracking in (160e5, 159.999e5):
+        ws = [w for w in _warn(_relief(cracking), strategy) if w.phase == "hold"]
+        assert _codes(ws) == {"hold-at-limit"}, (cracking, _codes(ws))
+        assert ws[0].limit == pytest.approx(cracking - 10e5)
+    assert "hold-at-limit" not in decision.BLOCKING
+    # 2 bar short (1.3 %) is past the band: the circuit cannot hold the load
+    assert "hold-pressure" in _codes(_warn(_relief(158e5), strategy))
+    # 5 bar of margin (3 %) is clear of it
+    assert not {"hold-pressure", "hold-at-limit"} & _codes(_warn(_relief(165e5), strategy))
+
+
+def test_a_speed_controlled_pump_at_the_pressure_it_is_asked_for_is_not_at_the_limit():
+    # variable speed holds at exactly the pressure asked for, the relief 30 bar above
+    assert not {"hold-pressure", "hold-at-limit"} & _codes(_warn(_relief(180e5),
+                                                                 "variable-speed"))
+    assert "hold-at-limit" in _codes(_warn(_relief(151e5), "variable-speed"))
