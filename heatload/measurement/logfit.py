@@ -112,6 +112,20 @@ def _scan(decay, drive, x0):
     return out
 
 
+#: Samples above which the scan for the time constant runs on a thinned log.
+_SCAN_SAMPLES = 200_000
+
+
+def _thinned(t, ta, r, y, samples=_SCAN_SAMPLES // 2):
+    """Every m-th sample of a log (and the last), with the running fraction
+    held over each longer step the time-weighted mean of the steps it spans."""
+    m = -(-t.size // samples)
+    idx = np.unique(np.append(np.arange(0, t.size, m), t.size - 1))
+    h = np.diff(t)
+    on = np.add.reduceat(r[:-1] * h, idx[:-1]) / np.add.reduceat(h, idx[:-1])
+    return t[idx], ta[idx], np.append(on, r[-1]), y[idx]
+
+
 def _steps(t, ta, r):
     """What the responses need of a log whatever k is: steps [s], the air's
     slope over each [K/s], the running fraction held over each [-]."""
@@ -343,17 +357,25 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
     taus = np.geomspace(max(float(h.min()), 1e-3) * 0.1, 100.0 * span, 30)
     grid = -np.log(taus)                                 # log k, decreasing
     steps = _steps(t, ta, r)
-    scores = [_profile(t, ta, r, y, math.exp(g), fit_heat, steps)[2] for g in grid]
+    # a long log is scanned on every m-th sample (the running fraction averaged
+    # over each longer step): the scan only brackets the minimum, which is then
+    # found on the whole log, two grid cells either side for the thinning's sake
+    coarse = _thinned(t, ta, r, y) if n > _SCAN_SAMPLES else None
+    sub = coarse if coarse is not None else (t, ta, r, y)
+    sub_steps = _steps(*sub[:3]) if coarse is not None else steps
+    scores = [_profile(*sub, math.exp(g), fit_heat, sub_steps)[2] for g in grid]
     best = int(np.argmin(scores))
-    bracket = (grid[best + 1] if best + 1 < grid.size else logk_low,
-               grid[best - 1] if best > 0 else logk_high)
+    wide = 2 if coarse is not None else 1
+    bracket = (grid[best + wide] if best + wide < grid.size else logk_low,
+               grid[best - wide] if best >= wide else logk_high)
 
     def sse(logk):
         return _profile(t, ta, r, y, math.exp(logk), fit_heat, steps)[2]
 
     sol = optimize.minimize_scalar(sse, bounds=bracket, method="bounded",
                                    options={"xatol": 1e-7, "maxiter": 200})
-    logk = float(sol.x) if sol.fun <= scores[best] else float(grid[best])
+    logk = (float(sol.x) if coarse is not None or sol.fun <= scores[best]
+            else float(grid[best]))
     k = math.exp(logk)
     q, t0, _, (base, uh, us) = _profile(t, ta, r, y, k, fit_heat, steps)
     fitted = base + q * uh + (t0 - ta[0]) * us

@@ -329,3 +329,25 @@ def test_chunked_recurrence_matches_the_one_step_formula_at_every_time_constant(
         one_step = ta[1:] + inf + (theta - inf) * np.exp(-k * h)
         scale = max(1.0, float(np.max(np.abs(inf))))
         assert np.max(np.abs(model[1:] - one_step)) < 1e-9 * scale, k
+
+
+def test_a_long_log_scanned_thinned_fits_as_the_whole_log(monkeypatch):
+    # 250,000 samples at 1 s (three shifts with stops and nights): the scan for the
+    # time constant runs on a thinned log, the fit itself on every sample; it must
+    # recover the invented machine and land where a scan of the whole log does
+    rng = np.random.default_rng(31)
+    t = np.arange(250_000) * 1.0
+    ta = _drifting_ambient(t)
+    day = t % 86400.0
+    run = ((day < 4 * 3600) | ((day >= 4.5 * 3600) & (day < 9 * 3600))).astype(float)
+    y = logfit.tank_temperatures(t, ta, run, P / C, UA / C, K0 + 15) + rng.normal(0, 0.2, t.size)
+    assert t.size > logfit._SCAN_SAMPLES
+    fit = logfit.fit_tank_log(t, y, ta, run, capacity=C)
+    assert fit.heat == pytest.approx(P, rel=0.03) and fit.conductance == pytest.approx(UA, rel=0.03)
+    for name, true in (("heat", P), ("conductance", UA)):
+        lo, hi = fit.intervals[name]
+        assert lo <= true <= hi
+    monkeypatch.setattr(logfit, "_SCAN_SAMPLES", 10 ** 9)
+    whole = logfit.fit_tank_log(t, y, ta, run, capacity=C)
+    assert fit.conductance == pytest.approx(whole.conductance, rel=1e-5)
+    assert fit.heat == pytest.approx(whole.heat, rel=1e-5)
