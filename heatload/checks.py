@@ -9,7 +9,7 @@ through :func:`heatload.outputs.wording.warning_text`.
 Codes: ``pressure-rating``, ``intensification``, ``overrunning-load``,
 ``cavitation``, ``relief-passing``, ``speed-not-reached``, ``stall``,
 ``viscosity-window``, ``oil-temperature``, ``hold-pressure``, ``speed-drift``,
-``motor-overload``, ``correlation-range``.
+``motor-overload``, ``correlation-range``, ``flow-rating``, ``hold-at-limit``.
 """
 
 from __future__ import annotations
@@ -19,6 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from heatload.hydraulics.circuits import CAVITATION_THRESHOLD, UNLOAD_CENTRE, UNLOAD_CHECK, CircuitResult
+from heatload.hydraulics.strategies import circuit
 from heatload.units import mark
 
 
@@ -30,7 +31,8 @@ CODE_KINDS = {"motor-overload": "power", "pressure-rating": "pressure",
               "cavitation": "pressure", "stall": "speed", "speed-not-reached": "speed",
               "speed-drift": "dimensionless", "oil-temperature": "temperature",
               "viscosity-window": "kinematic_viscosity",
-              "correlation-range": "dimensionless"}
+              "correlation-range": "dimensionless", "flow-rating": "flow",
+              "hold-at-limit": "pressure"}
 
 
 @dataclass(frozen=True)
@@ -89,6 +91,22 @@ MOTOR_SERVICE_FACTOR = 1.0
 #: without stalling: 160 % of rated torque for 15 s (from memory) [-], [s].
 MOTOR_EXCESS_TORQUE = 1.6
 MOTOR_EXCESS_TORQUE_TIME = 15.0
+#: Flow through a directional valve's working path (P->A, B->T) above which the
+#: valve is undersized, as a multiple of its rated flow (the flow its pressure
+#: drop is given at) [-]: makers' curves commonly end at about 1.5 x the flow
+#: their drop is quoted at; beyond it the Q^2 drop is an extrapolation and the
+#: flow forces on the spool pass the power limit the maker states (common
+#: practice, from memory).
+VALVE_FLOW_FACTOR = 1.5
+#: Band around a pressure to hold, as a fraction of it, inside which the supply
+#: is "at the limit" [-]: a relief valve or a compensator is set by a gauge, and
+#: a class 1.0 gauge (EN 837-1) reads within 1 % of its span, so a supply within
+#: 1 % of the need is not known to be above or below it (common practice, from
+#: memory).  A hold whose supply ceiling (relief or compensator setting) lies
+#: inside the band gets a caution (``hold-at-limit``) on either side of the
+#: need; only a supply short by more rules the circuit out (``hold-pressure``),
+#: so 1 mbar either side of the need flips nothing.
+HOLD_AT_LIMIT = 0.01
 #: Beyond this multiple of its rated torque a standard induction motor has passed
 #: its breakdown torque (about 2 to 3 x rated in catalogues, common practice, from
 #: memory) and stalls: figures above it describe no real drive [-].
@@ -215,6 +233,14 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
     still = ~moving
     pump_max = col(g(("pump", "max_pressure"), pu.pump.max_pressure))
     dv_max = col(g(("directional_valve", "max_pressure"), pu.directional_valve.max_pressure))
+    dv_rated = col(g(("directional_valve", "rated_flow"), pu.directional_valve.rated_flow))
+    # the largest flow of any working path of the phase: P->A carries the inlet
+    # flow, B->T the outlet's (twice it, retracting a 2:1 cylinder); each further
+    # motion has its own valve of the same size
+    flows = [result.actuator_flow, result.outlet_flow]
+    if result.motions is not None:
+        flows += [v for k, v in result.motions.items() if k[1] in ("flow", "outlet_flow")]
+    dv_flow = np.max(np.abs(np.stack(np.broadcast_arrays(*flows))), axis=0)
     rating = full(c["max_pressure_inlet"])
     rated_power = full(c["motor_rated_power"])
     fraction = result.pump_shaft_speed / full(c["pump_speed"])
@@ -241,6 +267,19 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
     with np.errstate(divide="ignore", invalid="ignore"):
         speed_ratio = np.where(result.speed_target != 0, result.speed / result.speed_target, 0)
 
+    # phases that hold a pressure from the pump (not unloaded through the centre
+    # or held by a check valve)
+    holding = (still & (hold > 0) & (full(c["unloading"]) != UNLOAD_CENTRE)
+               & (full(c["unloading"]) != UNLOAD_CHECK))
+
+    # the most the supply gives in a hold: a variable pump's compensator setting;
+    # else its relief (a fixed pump holds at the relief; a speed-controlled one
+    # at the pressure it is asked for, which the relief caps)
+    if circuit(result.strategy).variable_pump:
+        ceiling = full(c["compensator"])
+    else:
+        ceiling = np.maximum(pp, full(c["relief_cracking"]))
+
     # phases moving several actuators at once (their flows shared by one rule)
     shared = full(c.get("flow_total_ratio", 1.0)) > 1.0
 
@@ -260,15 +299,26 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
         cond("pressure-rating", hi > dv_max * (1 + 1e-9), hi, dv_max,
              lambda i: f"pressure {_bar(hi[i])} above the directional valve's rating "
                        f"{_bar(dv_max[i])}"),
+        cond("flow-rating", dv_flow > VALVE_FLOW_FACTOR * dv_rated * (1 + 1e-9), dv_flow,
+             VALVE_FLOW_FACTOR * dv_rated,
+             lambda i: f"the directional valve carries {mark(dv_flow[i], 'flow', 0)}, "
+                       f"{dv_flow[i] / dv_rated[i]:.2g} x its rated "
+                       f"{mark(dv_rated[i], 'flow', 0)}: past {VALVE_FLOW_FACTOR:g} x its "
+                       f"drop is an extrapolation and the flow forces on the spool may "
+                       f"exceed the maker's limit; choose a larger valve"),
         cond("pressure-rating", np.isfinite(rating) & (chamber_hi > rating * (1 + 1e-9)),
              chamber_hi, rating,
              lambda i: f"actuator chamber at {_bar(chamber_hi[i])} above its rating "
                        f"{_bar(rating[i])}"),
-        cond("hold-pressure", still & (hold > 0) & (full(c["unloading"]) != UNLOAD_CENTRE)
-             & (full(c["unloading"]) != UNLOAD_CHECK)
-             & (pp < hold * (1 - 1e-6)), hold, pp,
+        cond("hold-pressure", holding & (pp < hold * (1 - HOLD_AT_LIMIT)), hold, pp,
              lambda i: f"the pressure to hold {_bar(hold[i])} is more than the pump "
                        f"supplies here ({_bar(max(pp[i], 0.0))})"),
+        cond("hold-at-limit", holding & (pp >= hold * (1 - HOLD_AT_LIMIT))
+             & (np.abs(ceiling - hold) <= HOLD_AT_LIMIT * hold), hold, ceiling,
+             lambda i: f"the pump can supply at most {mark(ceiling[i], 'pressure', 1)} "
+                       f"to hold {mark(hold[i], 'pressure', 1)}: within "
+                       f"{100 * HOLD_AT_LIMIT:g} % of it, closer than a relief or "
+                       f"compensator setting is known; set it higher"),
         cond("relief-passing", still & (relief > 1e-9) & (pump_flow > 0), relief, None,
              lambda i: f"the relief valve passes {mark(relief[i], 'flow', 1)} at "
                        f"{_bar(pp[i])} for the whole phase"),
@@ -341,7 +391,8 @@ def motion_conditions(result, c, scenario, full, cond) -> list:
 
 
 #: Codes of the per-phase conditions, in the order sweeps list their counts
-PHASE_CODES = ("motor-overload", "pressure-rating", "hold-pressure", "relief-passing",
+PHASE_CODES = ("motor-overload", "pressure-rating", "flow-rating", "hold-pressure",
+               "hold-at-limit", "relief-passing",
                "intensification", "overrunning-load", "cavitation", "stall",
                "speed-not-reached", "speed-drift")
 

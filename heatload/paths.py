@@ -293,14 +293,20 @@ class Overrides:
 
 
 def replaced_scenario(scenario: Scenario, values: dict) -> Scenario:
-    """The scenario with the fields of *values* (path -> one SI value) set,
-    by :func:`dataclasses.replace` (the single-scenario twin of a variant;
+    """The scenario with the fields of *values* (path -> one SI value, or a
+    sequence of one per target of the path, None leaving that target as it is)
+    set, by :func:`dataclasses.replace` (the single-scenario twin of a variant;
     ``reservoir.heat_transfer_factor`` has none and is refused)."""
     sc = scenario
     for path, value in values.items():
         ref = resolve_path(sc, path)
-        for t in ref.targets:
-            x = float(value)
+        for k, t in enumerate(ref.targets):
+            if isinstance(value, (list, tuple)):
+                if value[k] is None:
+                    continue
+                x = float(value[k])
+            else:
+                x = float(value)
             if t[0] == "phase":
                 phases = list(sc.phases)
                 phases[t[1]] = dataclasses.replace(phases[t[1]], **{t[2]: x})

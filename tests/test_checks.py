@@ -283,3 +283,82 @@ def test_overrunning_motor_load_is_a_torque():
           if w.code == "overrunning-load"]
     assert ws and all(w.kind == "torque" and w.value == -120.0 for w in ws)
     assert all("motor runs away" in w.message and "N·m" in w.message for w in ws)
+
+
+# ---------------------------------------------------------------------------
+# flow-rating: a directional valve far past its rated flow
+# ---------------------------------------------------------------------------
+
+def test_flow_rating_counts_the_return_of_a_retracting_cylinder():
+    # retracting a 100/70 mm cylinder at 0.2 m/s: the rod side takes v A2 and the
+    # cap side returns v A1 (continuity), 94 L/min through B->T of the valve
+    pump = m.Pump(displacement=45e-6)                    # 65 L/min at 1450 rpm
+    ret = m.Phase("ret", "c", "retract", load=5e3, speed=0.2, stroke=0.3)
+    q_return = 0.2 * A1
+    for rated, flagged in ((60 / 60000, True), (64 / 60000, False)):
+        # 94 L/min is 1.57 x a 60 L/min valve (past 1.5 x) and 1.47 x a 64 L/min one
+        sc = _sc([ret], pump=pump, dv=m.DirectionalValve(rated_flow=rated))
+        ws = [w for w in _warn(sc, "load-sensing") if w.code == "flow-rating"]
+        assert bool(ws) is flagged
+        if ws:
+            assert ws[0].value == pytest.approx(q_return, rel=1e-9)
+            assert ws[0].limit == pytest.approx(checks.VALVE_FLOW_FACTOR * rated)
+            assert "94 L/min" in ws[0].message and "1.6 x" in ws[0].message
+
+
+def test_flow_rating_of_a_large_pump_on_a_small_valve_in_compare_and_sweep():
+    # a 250 cm^3/rev pump on the press's 60 L/min valve: every strategy flags it,
+    # and a sweep's warnings_flow-rating column counts the same phases
+    import dataclasses
+
+    from heatload.studies import variants
+    sc = io.load_scenario(io.default_scenario_path())
+    pu = sc.power_unit
+    sc = dataclasses.replace(sc, power_unit=dataclasses.replace(
+        pu, pump=dataclasses.replace(pu.pump, displacement=250e-6)))
+    o = chain.compare(sc, ["meter-in"]).outcomes[0]
+    ws = [w for w in o.warnings if w.code == "flow-rating"]
+    assert ws and max(w.value for w in ws) > 4 * pu.directional_valve.rated_flow
+    v = variants.evaluate_variants(sc, "meter-in")
+    assert int(v.warnings["flow-rating"][0]) == len(ws)
+    # a caution, not a circuit that cannot work: the valve's drop is still counted
+    from heatload import decision
+    assert "flow-rating" not in decision.BLOCKING
+
+
+# ---------------------------------------------------------------------------
+# hold-at-limit: a supply within a setting's tolerance of the pressure to hold
+# ---------------------------------------------------------------------------
+
+HOLD = m.Phase("hold", "c", "hold", hold_pressure=150e5, duration=5.0, unloading="held")
+
+
+def _relief(cracking):
+    import dataclasses
+    sc = _sc([EXT, HOLD])
+    return dataclasses.replace(sc, power_unit=dataclasses.replace(
+        sc.power_unit, relief=m.ReliefValve(cracking_pressure=cracking)))
+
+
+@pytest.mark.parametrize("strategy", ["load-sensing", "pressure-compensated"])
+def test_hold_one_millibar_either_side_of_the_need_flips_nothing(strategy):
+    # the compensator defaults to the relief less 10 bar: a relief at 160 bar gives
+    # exactly the 150 bar to hold, at 159.999 bar 1 mbar less; a class 1.0 gauge
+    # reads within 1 % of its span (EN 837-1, from memory): both are "at the limit"
+    from heatload import decision
+    for cracking in (160e5, 159.999e5):
+        ws = [w for w in _warn(_relief(cracking), strategy) if w.phase == "hold"]
+        assert _codes(ws) == {"hold-at-limit"}, (cracking, _codes(ws))
+        assert ws[0].limit == pytest.approx(cracking - 10e5)
+    assert "hold-at-limit" not in decision.BLOCKING
+    # 2 bar short (1.3 %) is past the band: the circuit cannot hold the load
+    assert "hold-pressure" in _codes(_warn(_relief(158e5), strategy))
+    # 5 bar of margin (3 %) is clear of it
+    assert not {"hold-pressure", "hold-at-limit"} & _codes(_warn(_relief(165e5), strategy))
+
+
+def test_a_speed_controlled_pump_at_the_pressure_it_is_asked_for_is_not_at_the_limit():
+    # variable speed holds at exactly the pressure asked for, the relief 30 bar above
+    assert not {"hold-pressure", "hold-at-limit"} & _codes(_warn(_relief(180e5),
+                                                                 "variable-speed"))
+    assert "hold-at-limit" in _codes(_warn(_relief(151e5), "variable-speed"))

@@ -240,6 +240,30 @@ def test_output_fits_80_columns(path, command, capsys, monkeypatch):
     assert lines and too_long == []
 
 
+LOGS = Path(__file__).resolve().parents[1] / "duty_cycles" / "logs"
+
+
+@pytest.mark.parametrize("argv", [
+    ["logfit", str(LOGS / "platform_lift_day.csv"), "--scenario",
+     str(Path(__file__).resolve().parents[1] / "duty_cycles" / "platform_lift.toml")],
+    ["logfit", str(LOGS / "platform_lift_day.csv")],
+    ["trace", str(LOGS / "press_trace.csv")]], ids=["logfit-scenario", "logfit", "trace"])
+def test_measured_logs_output_fits_80_columns(argv, capsys, monkeypatch):
+    # 80 columns: the classic terminal width (common practice); the trace's draft
+    # (printed without -o) is a file and fits by its own line breaks
+    lines = _lines_of(argv, capsys, monkeypatch)
+    assert lines and [x for x in lines if len(x) > 80] == []
+    if argv[0] == "logfit":
+        assert max(len(x) for x in _lines_of(argv + ["--wide"], capsys, monkeypatch)) > 80
+
+
+def test_trace_table_says_which_figures_are_medians_and_which_a_mean(capsys, monkeypatch):
+    text = "\n".join(_lines_of(["trace", str(LOGS / "press_trace.csv")], capsys, monkeypatch))
+    head = text.split("\n-")[0]
+    assert "(median)" in head and "power (mean)" in head
+    assert "the median of its samples" in text and "mean of p x Q" in text
+
+
 def test_compare_keeps_key_columns_and_wide_shows_all(capsys, monkeypatch):
     narrow = "\n".join(_lines_of(["compare"], capsys, monkeypatch))
     for key in ("strategy", "[kWh/yr]", "cooler", "meter-in", "variable-speed"):

@@ -45,7 +45,9 @@ def test_every_path_the_loader_accepts_can_be_varied(example):
         # the loader accepts it ...
         text = open(example, encoding="utf-8").read()
         if relative:
-            text += f'\n[[uncertainty]]\npath = "{p}"\nlow = 0.95\nhigh = 1.0\n'
+            # a sliver below the nominal: the bounds must give a machine the file could
+            # hold (a stroke 5 % short may no longer hold a simultaneous motion's travel)
+            text += f'\n[[uncertainty]]\npath = "{p}"\nlow = 0.9999999999\nhigh = 1.0\n'
             loaded = io.loads_scenario(text)
         else:
             loaded = None
@@ -69,6 +71,11 @@ def test_replaced_scenario_and_get_agree():
     sc = paths.replaced_scenario(PRESS, {"actuators.main.bore": 0.11, "phases[3].load": 1e5})
     assert paths.resolve_path(sc, "actuators.main.bore").nominal == (0.11,)
     assert paths.resolve_path(sc, "phases[3].load").nominal == (1e5,)
+    # one value per target of a path; None leaves that target as it is
+    ref = paths.resolve_path(PRESS, "phases[*].load")
+    given = [None] + [1e3 * (k + 1) for k in range(1, len(ref.targets))]
+    got = paths.resolve_path(paths.replaced_scenario(PRESS, {ref.path: given}), ref.path)
+    assert got.nominal == (ref.nominal[0],) + tuple(given[1:])
 
 
 def test_a_path_varies_a_field_with_the_files_own_rule():

@@ -487,6 +487,9 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--force", action="store_true", help="overwrite an existing output")
     sp.add_argument("--units", choices=("si", "us"), default="si",
                     help="units of the printed tables (default: si)")
+    sp.add_argument("--wide", action="store_true",
+                    help="every column of the tables, long lines unwrapped (default: "
+                         "fit the terminal, 80 columns in a pipe)")
     sp.set_defaults(func=cmd_logfit)
 
     help_ = "segment a pressure trace (CSV) into phases and write a draft duty-cycle file"

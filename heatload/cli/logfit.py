@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import json
 
 import numpy as np
@@ -23,9 +24,14 @@ def print_text(log, fit, comparison, system, capacity_source, scenario_path=None
     print("Columns: " + ", ".join(f"{k} = {h!r}" for k, h in log.headers.items()))
     print("Model: C dT/dt = P·running − UA (T − T_ambient), exact between samples, "
           "least squares on the logged oil temperature")
-    rows = summary_rows(fit, system, capacity_source)
+    # the table names where C came from in a word; the whole source on its own line
+    short = "from the scenario" if scenario_path and fit.capacity is not None else \
+        capacity_source
+    rows = summary_rows(fit, system, short)
     print(_table(["quantity", "fitted", f"{rows[0][4]} interval", ""],
                  [r[:4] for r in rows]))
+    if short != capacity_source:
+        print(f"Heat capacity C {capacity_source}")
     print(f"Residual: RMS {_q(fit.residual_rms, 'temperature_difference', system)}, largest "
           f"{_q(fit.residual_max, 'temperature_difference', system)}; "
           f"lag-1 autocorrelation {fit.residual_autocorrelation:.2f}"
@@ -64,6 +70,18 @@ def print_text(log, fit, comparison, system, capacity_source, scenario_path=None
     print(CAUTION)
 
 
+@contextlib.contextmanager
+def _naming(source):
+    """An error of the scenario's model at the log's temperatures names the log
+    (the scenario itself was checked when it was loaded)."""
+    try:
+        yield
+    except HeatloadError as e:
+        if e.file is None:
+            raise e.located(file=source) from None
+        raise
+
+
 def run(args) -> int:
     """``heatload logfit LOG.csv [--scenario FILE | --heat-capacity Q] [--column KEY=NAME]
     [--unit KEY=UNIT] [--ambient-temperature T] [--json] [-o report.html] [--force]``."""
@@ -87,10 +105,11 @@ def run(args) -> int:
     capacity = None
     source = "not given"
     if args.scenario:
-        from heatload import chain, evaluation, io
+        from heatload import evaluation, io
         scenario = io.load_scenario(args.scenario)
         mean_oil = float(np.mean(log.values["oil"]))
-        capacity = float(evaluation.heat_capacity(scenario, mean_oil))
+        with _naming(log.source):
+            capacity = float(evaluation.heat_capacity(scenario, mean_oil))
         source = (f"from {args.scenario}: oil and steel at {mean_oil - K0:.3g} °C")
     elif args.heat_capacity:
         capacity = to_si(args.heat_capacity, "heat_capacity", field="--heat-capacity")
@@ -98,8 +117,9 @@ def run(args) -> int:
             raise HeatloadError("must be positive", field="--heat-capacity")
         source = "given"
     fit = fit_log(log, capacity, args.confidence)
-    comparison = (scenario_comparison(scenario, log, fit, getattr(args, "strategy", None))
-                  if scenario is not None else None)
+    with _naming(log.source):
+        comparison = (scenario_comparison(scenario, log, fit, getattr(args, "strategy", None))
+                      if scenario is not None else None)
     if out:
         text = build_html(log, fit, comparison, args.units, source)
         from heatload.outputs.report import write_html

@@ -42,24 +42,32 @@ def run(args) -> int:
         print(json.dumps(rec, indent=2, ensure_ascii=False, allow_nan=False))
         return 0
     from heatload.cli import _table
-    print(f"{args.trace} — {len(log)} samples over {log.time[-1]:.4g} s; {cycle.cycles} "
-          f"cycle{'s' if cycle.cycles != 1 else ''} of {cycle.period:.4g} s recognised")
+    from heatload.measurement.trace import LEVELS
+    from heatload.outputs.tables import terminal_width, wrap_line
+
+    def say(line):
+        # the summary fits the terminal; the draft below keeps its own lines (a file)
+        print("\n".join(wrap_line(line, terminal_width())))
+
+    say(f"{args.trace} — {len(log)} samples over {log.time[-1]:.4g} s; {cycle.cycles} "
+        f"cycle{'s' if cycle.cycles != 1 else ''} of {cycle.period:.4g} s recognised")
     rows = []
     for i, ph in enumerate(cycle.phases, 1):
         rows.append([i, ph.kind, f"{ph.duration:.3g}", _fmt(ph.pressure, "pressure"),
                      _fmt(ph.flow, "flow") if ph.flow is not None else "-",
                      _fmt(abs(ph.travel), "length") if ph.kind in ("extend", "retract") else "-",
                      _fmt(ph.power, "power") if ph.power is not None else "-"])
-    print(_table(["#", "phase", "t [s]", "pressure", "flow", "travel", "hydraulic power"],
-                 rows))
+    print(_table(["#", "phase", "t [s]", "pressure\n(median)", "flow\n(median)", "travel",
+                  "hydraulic\npower (mean)"], rows))
+    say(LEVELS)
     if cycle.energy_per_cycle is not None:
-        print(f"Hydraulic energy per cycle {_fmt(cycle.energy_per_cycle, 'energy')}, mean "
-              f"power {_fmt(cycle.mean_power, 'power')} (p x Q integrated over the trace)")
+        say(f"Hydraulic energy per cycle {_fmt(cycle.energy_per_cycle, 'energy')}, mean "
+            f"power {_fmt(cycle.mean_power, 'power')} (p x Q integrated over the trace)")
     for n in cycle.notes:
-        print(f"  ! {n}")
+        say(f"  ! {n}")
     if out:
-        print(f"wrote {out}: complete the values marked TO COMPLETE, then run "
-              f"`heatload check {out}`")
+        say(f"wrote {out}: complete the values marked TO COMPLETE, then run "
+            f"`heatload check {out}`")
     else:
         print(text)
     return 0

@@ -497,20 +497,38 @@ def _path_ref(path: str, scenario: m.Scenario, field: str, source):
 _PERCENT = re.compile(r"^\s*([+-]?\d+(?:\.\d*)?(?:[eE][+-]?\d+)?)\s*%\s*$")
 
 
-def _bounds_hold_the_field(u: m.UncertainInput, ref, p: str, source) -> None:
+def _bounds_hold_the_field(u: m.UncertainInput, ref, p: str, source, scenario) -> None:
     """The values an uncertain input's bounds give must be values its field may
-    take (the file's sign rule: an efficiency within (0, 1], a length above 0),
-    or the Monte Carlo would sample machines that cannot exist."""
+    take, or the Monte Carlo would sample machines that cannot exist: the
+    file's sign rule (an efficiency within (0, 1], a length above 0), then the
+    machine with the field at each bound goes through this loader's own checks
+    (the field's plausible range and magnitude limit, and the rules between
+    fields such as oil within its tank), as ``sweep --vary`` does with its ranges."""
     from heatload import paths
+    from heatload.io.write import scenario_to_dict
+    from heatload.units import format_quantity
 
     for key in ("low", "high"):
         bound = getattr(u, key)
-        values = ([v * bound for v in ref.nominal if v is not None] if u.relative
-                  else [bound])
+        values = ([None if v is None else v * bound for v in ref.nominal] if u.relative
+                  else [bound] * len(ref.targets))
         try:
-            paths._check_values(ref, np.asarray(values, float))
+            paths._check_values(ref, np.asarray([v for v in values if v is not None], float))
         except HeatloadError as e:
             raise _err(f"this bound gives {u.path} a value it cannot take: {e.message}",
+                       f"{p}.{key}", source) from None
+        if ref.targets == (("reservoir", "heat_transfer_factor"),):
+            continue            # a factor on the computed UA: no file field to hold
+        variant = paths.replaced_scenario(dataclasses.replace(scenario, uncertainty=()),
+                                          {ref.path: values})
+        try:
+            scenario_from_dict(scenario_to_dict(variant), source)
+        except HeatloadError as e:
+            shown = sorted({v for v in values if v is not None})
+            shown = (", ".join(format_quantity(v, ref.kind) for v in shown[:3])
+                     + (" ..." if len(shown) > 3 else "") if ref.kind else "")
+            raise _err(f"this bound gives {u.path} {shown or 'values'} the file itself could "
+                       f"not hold: {e.field + ': ' if e.field else ''}{e.message}",
                        f"{p}.{key}", source) from None
 
 
@@ -557,7 +575,7 @@ def _uncertainty(data, scenario: m.Scenario, source):
             raise _err("mode must lie between low and high", f"{p}.mode", source)
         if u.mode is not None and dist != "triangular":
             raise _err("only a triangular distribution has a mode", f"{p}.mode", source)
-        _bounds_hold_the_field(u, ref, p, source)
+        _bounds_hold_the_field(u, ref, p, source, scenario)
         out.append(u)
     return tuple(out)
 
@@ -629,12 +647,13 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
     if "repeats" in data:
         scenario = dataclasses.replace(scenario,
                                        repeats=_repeats(data["repeats"], phases, source))
-    if "uncertainty" in data:
-        scenario = dataclasses.replace(
-            scenario, uncertainty=_uncertainty(data["uncertainty"], scenario, source))
     _check_phase_durations(scenario, source)
     _check_cooler_design(scenario, "cooler" in data and "oil_temperature_max" in data["cooler"],
                          source)
+    # after the machine's own checks: a bound is judged against a machine that loads
+    if "uncertainty" in data:
+        scenario = dataclasses.replace(
+            scenario, uncertainty=_uncertainty(data["uncertainty"], scenario, source))
     return scenario
 
 

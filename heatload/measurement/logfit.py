@@ -13,8 +13,8 @@ s_k = dT_a/dt) the solution is exact:
     theta = T - T_a,  tau = C / UA,  theta_inf,k = P r_k / UA - tau s_k
     theta_k+1 = theta_inf,k + (theta_k - theta_inf,k) exp(-h / tau)
 
-so a whole log is one linear recurrence, evaluated here without time
-stepping.  The unknowns are fitted by least squares on the logged oil
+so a whole log is one linear recurrence, evaluated here in vectorized
+chunks (no Python step per sample).  The unknowns are fitted by least squares on the logged oil
 temperatures (output error: the model runs from its own initial temperature,
 never reset to the measurement, so sensor noise does not enter the dynamics).
 
@@ -37,7 +37,9 @@ References
 Incropera et al., Fundamentals of Heat and Mass Transfer, 6th ed., Sec. 5.3
 (lumped capacitance with a heat source); Bates and Watts, Nonlinear
 Regression Analysis and Its Applications (1988), Sec. 2.3 (linear
-approximation intervals, s^2 (J^T J)^-1 with Student's t); the variance
+approximation intervals, s^2 (J^T J)^-1 with Student's t); Golub and
+Pereyra, SIAM J. Numer. Anal. 10 (1973) 413-432 (variable projection:
+separable least squares); the variance
 inflation (1 + rho) / (1 - rho) of AR(1) residuals: Box, Jenkins and Reinsel,
 Time Series Analysis (any edition), on the variance of the mean of an
 autocorrelated series.
@@ -62,34 +64,92 @@ IDENTIFIED_WITHIN = 0.25
 FLAT_SWING = 0.1
 #: Fewest samples a fit accepts (three unknowns and a residual to judge them by).
 MIN_SAMPLES = 10
-#: Largest exponent used inside one block of the recurrence (exp(500) ~ 1e217).
-_BLOCK_EXPONENT = 500.0
+#: Shortest recurrence evaluated by a plain loop; longer ones go in chunks.
+_SHORT = 64
+#: Bounds of the fitted time constant, as multiples of the shortest sample step
+#: and of the log's span: well outside anything a log can show, so the bound
+#: never decides a fit the log determines, yet the loss rate stays a positive,
+#: finite number when a flat log lets the fit wander (k -> 0 or k -> inf fit a
+#: flat line equally well).
+_TAU_BOUNDS = (1e-3, 1e6)
 
 
-def _recurrence(log_decay, drive, x0):
-    """x_0 = x0, x_{n+1} = exp(log_decay_n) x_n + drive_n for n = 0..N-1 (N + 1 values).
+def _scan(decay, drive, x0):
+    """x_0 = x0, x_{n+1} = decay_n x_n + drive_n for n = 0..N-1 (N + 1 values),
+    0 <= decay_n <= 1; *drive* may carry further axes (several recurrences with
+    the same decays, side by side).
 
-    Evaluated by blocks in closed form: inside a block starting at s,
-    x_n = D_n (x_s + sum_{k<n} drive_k / D_{k+1}) with D_n = prod_{s<=j<n} decay_j,
-    each block kept short enough that 1 / D stays finite."""
-    n = len(log_decay)
-    out = np.empty(n + 1)
+    Evaluated in chunks of about sqrt(N) steps, all chunks side by side: each
+    chunk runs from zero (one vectorized step per position in the chunk), the
+    chunks' start values follow from the same recurrence over the chunks
+    (decay = the chunk's product of decays), and
+    x = (product of the decays so far in the chunk) x_start + the chunk's own
+    run.  Only products of decays <= 1 are formed (no division), so no step
+    size or time constant overflows it, and the work is O(N) in numpy with
+    about 2 sqrt(N) Python steps (the few steps past the last whole chunk run
+    one by one)."""
+    n = len(decay)
+    tail = drive.shape[1:]
+    out = np.empty((n + 1,) + tail)
     out[0] = x0
-    cum = np.concatenate(([0.0], np.cumsum(log_decay)))   # log D from the start
-    s = 0
-    while s < n:
-        # the block ends before the decay since its start passes exp(-_BLOCK_EXPONENT)
-        e = int(np.searchsorted(-cum, -cum[s] + _BLOCK_EXPONENT, side="right")) - 1
-        e = min(max(e, s + 1), n)
-        if e == s + 1:
-            out[s + 1] = math.exp(log_decay[s]) * out[s] + drive[s]
-            s += 1
-            continue
-        rel = cum[s + 1:e + 1] - cum[s]                  # log D_{k+1}, k = s..e-1
-        acc = np.cumsum(drive[s:e] * np.exp(-rel))
-        out[s + 1:e + 1] = np.exp(rel) * (out[s] + acc)
-        s = e
+    width = math.isqrt(n) if n > _SHORT else 0
+    chunks = n // width if width else 0
+    m = chunks * width
+    if chunks:
+        grow = (1,) * len(tail)          # decays broadcast over the drive's further axes
+        a = decay[:m].reshape((chunks, width) + grow)
+        run = out[1:m + 1].reshape((chunks, width) + tail)     # a view: filled in place
+        run[...] = drive[:m].reshape((chunks, width) + tail)
+        for j in range(1, width):        # each chunk's run from zero
+            run[:, j] += a[:, j] * run[:, j - 1]
+        gain = np.cumprod(a, axis=1)
+        starts = _scan(gain[:, -1].reshape(chunks), np.ascontiguousarray(run[:, -1]), x0)
+        run += gain * starts[:-1, None]
+    x = out[m]
+    for i in range(m, n):
+        x = decay[i] * x + drive[i]
+        out[i + 1] = x
     return out
+
+
+#: Samples above which the scan for the time constant runs on a thinned log.
+_SCAN_SAMPLES = 200_000
+
+
+def _thinned(t, ta, r, y, samples=_SCAN_SAMPLES // 2):
+    """Every m-th sample of a log (and the last), with the running fraction
+    held over each longer step the time-weighted mean of the steps it spans."""
+    m = -(-t.size // samples)
+    idx = np.unique(np.append(np.arange(0, t.size, m), t.size - 1))
+    h = np.diff(t)
+    on = np.add.reduceat(r[:-1] * h, idx[:-1]) / np.add.reduceat(h, idx[:-1])
+    return t[idx], ta[idx], np.append(on, r[-1]), y[idx]
+
+
+def _steps(t, ta, r):
+    """What the responses need of a log whatever k is: steps [s], the air's
+    slope over each [K/s], the running fraction held over each [-]."""
+    h = np.diff(t)
+    return h, np.diff(ta) / h, r[:-1]
+
+
+def _responses(t, ta, r, k, steps=None):
+    """The tank's three responses at loss rate k, whose combination is the model:
+
+        T = ta + theta_air + q theta_heat + (T_0 - ta_0) exp(-k (t - t_0))
+
+    theta_air: the lag behind a moving air temperature (from T_0 = ta_0, no
+    heat); theta_heat: the rise from a unit heat rate q = 1 K/s (from zero);
+    each by the exact one-interval solution (module notes), both in one scan.
+    *steps*: :func:`_steps` of the log, when already at hand."""
+    h, slope, held = steps if steps is not None else _steps(t, ta, r)
+    decay = np.exp(-h * k)
+    settle = -np.expm1(-h * k)                 # 1 - exp(-h k): how far one step goes
+    drive = np.empty((h.size, 2))
+    np.multiply(settle, -slope / k, out=drive[:, 0])
+    np.multiply(settle, held / k, out=drive[:, 1])
+    theta = _scan(decay, drive, np.zeros(2))
+    return ta + theta[:, 0], theta[:, 1], np.exp(-k * (t - t[0]))
 
 
 def tank_temperatures(time, ambient, running, heat_rate, loss_rate, initial_temperature):
@@ -146,13 +206,8 @@ def tank_temperatures(time, ambient, running, heat_rate, loss_rate, initial_temp
     r = np.broadcast_to(np.asarray(running, float), t.shape)
     if not loss_rate > 0.0:
         raise HeatloadError("the loss rate UA / C must be positive [1/s]", field="loss_rate")
-    h = np.diff(t)
-    tau = 1.0 / loss_rate
-    slope = np.diff(ta) / h
-    theta_inf = heat_rate * r[:-1] * tau - tau * slope
-    drive = -np.expm1(-h * loss_rate) * theta_inf
-    theta = _recurrence(-h * loss_rate, drive, initial_temperature - ta[0])
-    return ta + theta
+    base, heat, start = _responses(t, ta, r, loss_rate)
+    return base + heat_rate * heat + (initial_temperature - ta[0]) * start
 
 
 @dataclass
@@ -190,24 +245,22 @@ class TankFit:
         return all(self.identified.values())
 
 
-def _basis(t, ta, r, k):
-    """Responses whose combination is the model at loss rate k:
-    T = base + q * unit_heat + T0_offset * unit_start."""
-    base = tank_temperatures(t, ta, r, 0.0, k, ta[0])
-    unit_heat = tank_temperatures(t, ta, r, 1.0, k, ta[0]) - base
-    unit_start = np.exp(-k * (t - t[0]))
-    return base, unit_heat, unit_start
-
-
-def _profile(t, ta, r, y, k, fit_heat):
-    """Best q and T0 at a fixed k (linear least squares) and the residual sum."""
-    base, uh, us = _basis(t, ta, r, k)
-    cols = [uh, us] if fit_heat else [us]
-    a = np.column_stack(cols)
-    coef, *_ = np.linalg.lstsq(a, y - base, rcond=None)
-    res = y - base - a @ coef
+def _profile(t, ta, r, y, k, fit_heat, steps=None):
+    """Best q and T0 at a fixed k (linear least squares: the model is linear in
+    both), the residual sum of squares and the responses."""
+    base, uh, us = _responses(t, ta, r, k, steps)
+    a = np.column_stack([uh, us] if fit_heat else [us])
+    b = y - base
+    # normal equations on unit-norm columns (two columns, well apart: the heat's
+    # response rises from zero, the start's decays from one): a 2 x 2 solve
+    # instead of a decomposition of the whole log
+    norm = np.sqrt(np.einsum("ij,ij->j", a, a))
+    norm[norm == 0.0] = 1.0
+    gram = (a.T @ a) / np.outer(norm, norm)
+    coef = np.linalg.lstsq(gram, (a.T @ b) / norm, rcond=1e-13)[0] / norm
+    res = b - a @ coef
     q = float(coef[0]) if fit_heat else 0.0
-    return q, float(ta[0] + coef[-1]), float(res @ res)
+    return q, float(ta[0] + coef[-1]), float(res @ res), (base, uh, us)
 
 
 def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
@@ -215,9 +268,12 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
     """Fit heat, conductance and initial temperature of the lumped tank model
     to a logged oil temperature (see the module notes).
 
-    Minimises sum (T_measured - T_model)^2 over q = P / C, k = UA / C and T_0
-    with :func:`scipy.optimize.least_squares` (trust region), started from the
-    best k of a logarithmic scan on which q and T_0 are solved linearly.
+    Minimises sum (T_measured - T_model)^2 over q = P / C, k = UA / C and T_0.
+    The model is linear in q and T_0, so they are solved by linear least
+    squares at each k and the search runs over k alone (variable projection):
+    a logarithmic scan, then :func:`scipy.optimize.minimize_scalar` (bounded
+    Brent) between the best scan point's neighbours.  Each trial k costs one
+    vectorized pass over the log, so millions of samples fit in seconds.
 
     Parameters
     ----------
@@ -291,31 +347,48 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
     if running is None:
         notes.append("no running column: the machine is taken to run throughout the log")
 
-    # a scan of tau from a tenth of the shortest step to 100 x the span
+    # k on a log scale, bounded far outside what the log can show (a flat log
+    # lets k run off to 0 or inf); q and T_0 enter linearly and are solved
+    # exactly at each k (variable projection), so the search is over k alone:
+    # a scan of tau from a tenth of the shortest step to 100 x the span, then
+    # Brent's bounded method between the best point's neighbours
+    logk_low = -math.log(_TAU_BOUNDS[1] * span)
+    logk_high = -math.log(_TAU_BOUNDS[0] * float(h.min()))
     taus = np.geomspace(max(float(h.min()), 1e-3) * 0.1, 100.0 * span, 30)
-    scores = [_profile(t, ta, r, y, 1.0 / tau, fit_heat)[2] for tau in taus]
-    k0 = 1.0 / taus[int(np.argmin(scores))]
-    q0, t00, _ = _profile(t, ta, r, y, k0, fit_heat)
+    grid = -np.log(taus)                                 # log k, decreasing
+    steps = _steps(t, ta, r)
+    # a long log is scanned on every m-th sample (the running fraction averaged
+    # over each longer step): the scan only brackets the minimum, which is then
+    # found on the whole log, two grid cells either side for the thinning's sake
+    coarse = _thinned(t, ta, r, y) if n > _SCAN_SAMPLES else None
+    sub = coarse if coarse is not None else (t, ta, r, y)
+    sub_steps = _steps(*sub[:3]) if coarse is not None else steps
+    scores = [_profile(*sub, math.exp(g), fit_heat, sub_steps)[2] for g in grid]
+    best = int(np.argmin(scores))
+    wide = 2 if coarse is not None else 1
+    bracket = (grid[best + wide] if best + wide < grid.size else logk_low,
+               grid[best - wide] if best >= wide else logk_high)
 
-    scale_t = max(float(np.ptp(y)), 1.0)
+    def sse(logk):
+        return _profile(t, ta, r, y, math.exp(logk), fit_heat, steps)[2]
 
-    def residuals(p):
-        q, logk, t0 = (p[0], p[1], p[2]) if fit_heat else (0.0, p[0], p[1])
-        return (tank_temperatures(t, ta, r, q, math.exp(logk), t0) - y)
-
-    # k on a log scale: positive by construction and of even sensitivity
-    x0 = [q0, math.log(k0), t00] if fit_heat else [math.log(k0), t00]
-    sol = optimize.least_squares(residuals, x0, method="trf", x_scale="jac",
-                                 xtol=1e-12, ftol=1e-12, gtol=1e-12, max_nfev=400)
-    p = sol.x
-    q, logk, t0 = (p[0], p[1], p[2]) if fit_heat else (0.0, p[0], p[1])
+    sol = optimize.minimize_scalar(sse, bounds=bracket, method="bounded",
+                                   options={"xatol": 1e-7, "maxiter": 200})
+    logk = (float(sol.x) if coarse is not None or sol.fun <= scores[best]
+            else float(grid[best]))
     k = math.exp(logk)
-    res = -sol.fun                         # measured - fitted
-    m = len(p)
+    q, t0, _, (base, uh, us) = _profile(t, ta, r, y, k, fit_heat, steps)
+    fitted = base + q * uh + (t0 - ta[0]) * us
+    res = y - fitted                       # measured - fitted
+    # the model's derivatives: q and T_0 exactly (their responses), k by a
+    # central difference in log k
+    step = 1e-5
+    up, down = (tank_temperatures(t, ta, r, q, k * math.exp(e), t0) for e in (step, -step))
+    d_k = (up - down) / (k * 2.0 * math.sinh(step))
+    jac = np.column_stack([uh, d_k, us] if fit_heat else [d_k, us])
+    m = jac.shape[1]
     dof = max(n - m, 1)
     s2 = float(res @ res) / dof
-    jac = sol.jac.copy()
-    jac[:, 1 if fit_heat else 0] /= k       # d/dk from d/dlogk
     jtj = jac.T @ jac
     try:
         cov = s2 * np.linalg.inv(jtj)
@@ -349,6 +422,8 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
                  "initial_temperature": interval(t0, sd_t0), "time_constant": tau_iv,
                  "temperature_rise": interval(rise, sd_rise)}
 
+    scale_t = max(float(np.ptp(y)), 1.0)
+
     def ok(v, s):
         return bool(math.isfinite(s) and v != 0.0 and tq * s <= IDENTIFIED_WITHIN * abs(v))
 
@@ -360,7 +435,10 @@ def fit_tank_log(time, oil_temperature, ambient, running=None, capacity=None,
     identified = {"conductance": ok(k, sd_k) and not flat,
                   "heat": fit_heat and ok(q, sd_q) and not flat and q > 0.0,
                   "initial_temperature": bool(math.isfinite(sd_t0)
-                                              and tq * sd_t0 < 0.5 * scale_t + 1.0)}
+                                              and tq * sd_t0 < 0.5 * scale_t + 1.0),
+                  # a flat log fits k -> 0 with no heat as well as a steady rise:
+                  # then P/UA is no better known than P or UA
+                  "temperature_rise": fit_heat and ok(rise, sd_rise) and rise > 0.0}
     heat = conductance = None
     if capacity is not None:
         heat, conductance = (capacity * q if fit_heat else None), capacity * k
@@ -453,7 +531,8 @@ def fit_record(fit: TankFit, capacity_source: str = "given") -> dict:
         "confidence": fit.confidence,
         "identified": {"heat_W": bool(fit.identified["heat"]),
                        "conductance_W_K": bool(fit.identified["conductance"]),
-                       "initial_temperature_C": bool(fit.identified["initial_temperature"])},
+                       "initial_temperature_C": bool(fit.identified["initial_temperature"]),
+                       "temperature_rise_K": bool(fit.identified["temperature_rise"])},
         "residual_rms_K": f(fit.residual_rms), "residual_max_K": f(fit.residual_max),
         "residual_autocorrelation": f(fit.residual_autocorrelation),
         "interval_widening": f(fit.interval_widening),

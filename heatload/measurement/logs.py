@@ -31,6 +31,7 @@ import csv
 import io as _io
 import math
 import re
+import warnings
 from dataclasses import dataclass, field
 from datetime import datetime
 from pathlib import Path
@@ -162,6 +163,31 @@ def _number(cell: str, decimal_comma: bool) -> float:
     return v
 
 
+def _read_clean(body, delim, n_cols, found, specs, conv):
+    """key -> SI array of a log whose every row is a full row of finite
+    numbers (no gap, blank or comment line, no timestamp), read by numpy's
+    reader at once; None where any row needs the row-by-row reader, which then
+    finds the line and says what is wrong (so both give the same messages)."""
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")          # "input contained no data"
+            table = np.loadtxt(body, delimiter=delim, comments=None, quotechar='"',
+                               ndmin=2, dtype=float)
+    except ValueError:
+        return None
+    if table.shape != (len(body), n_cols):
+        return None                      # a blank line was skipped: line numbers move
+    out = {}
+    for key, i in found.items():
+        v = table[:, i]
+        if not np.all(np.isfinite(v)) or (specs[key].kind == "fraction"
+                                          and not np.all((v >= 0.0) & (v <= 1.0))):
+            return None
+        off, fac, _ = conv[key]
+        out[key] = off + fac * v
+    return out
+
+
 def read_log(path, specs: dict, columns: dict | None = None, units: dict | None = None,
              min_rows: int = 2, text: str | None = None) -> Log:
     """Read a CSV log, find the columns of *specs* and convert them to SI.
@@ -250,7 +276,10 @@ def read_log(path, specs: dict, columns: dict | None = None, units: dict | None 
     lines = []
     gaps = 0
     start = None
-    for offset, cells in enumerate(reader):
+    body = all_lines[first + 1:]
+    arrays = (None if stamps or decimal_comma or not body or len(body) > MAX_ROWS
+              else _read_clean(body, delim, n_cols, found, specs, conv))
+    for offset, cells in enumerate(reader if arrays is None else ()):
         line = header_line + 1 + offset
         if not cells or all(not c.strip() for c in cells):
             continue
@@ -260,7 +289,8 @@ def read_log(path, specs: dict, columns: dict | None = None, units: dict | None 
             raise HeatloadError(f"{len(cells)} cells, the header has {n_cols} (separator "
                                 f"{delim!r})", file=source, line=line)
         if len(lines) >= MAX_ROWS:
-            raise HeatloadError(f"more than {MAX_ROWS:,} data rows; resample the log",
+            raise HeatloadError(f"more than {MAX_ROWS:,} data rows; thin the log first "
+                                f"(keep every n-th row, or a mean per minute)",
                                 file=source, line=line)
         values = {}
         gap = False
@@ -305,10 +335,13 @@ def read_log(path, specs: dict, columns: dict | None = None, units: dict | None 
             rows[key].append(values[key])
         lines.append(line)
 
+    if arrays is None:
+        arrays = {k: np.asarray(v, float) for k, v in rows.items()}
+    else:
+        lines = list(range(header_line + 1, header_line + 1 + len(body)))
     if len(lines) < min_rows:
         raise HeatloadError(f"{len(lines)} data row{'s' if len(lines) != 1 else ''}; this "
                             f"needs at least {min_rows}", file=source)
-    arrays = {k: np.asarray(v, float) for k, v in rows.items()}
     t = arrays.pop("time")
     step = np.diff(t)
     bad = np.nonzero(~(step > 0.0))[0]

@@ -36,6 +36,7 @@ import math
 
 import numpy as np
 
+from heatload.errors import HeatloadError
 
 K0 = 273.15
 
@@ -63,20 +64,58 @@ def read_temperature_log(path, columns=None, units=None, ambient_temperature=Non
     if ambient_temperature is not None:
         specs["ambient"] = logs.ColumnSpec(("ambient",), "temperature", False, "degC")
     log = logs.read_log(path, specs, columns, units, min_rows=logfit.MIN_SAMPLES, text=text)
+    check_temperatures(log)
     if "ambient" not in log.values:
+        from heatload.io import schema
+        schema._check(float(ambient_temperature), f"{ambient_temperature - K0:.4g} °C",
+                      schema._AMBIENT["temperature"], "temperature", "--ambient-temperature",
+                      None)
         log.values["ambient"] = np.full(len(log), float(ambient_temperature))
         log.notes.append(f"no ambient column: the air taken at a constant "
                          f"{ambient_temperature - K0:.4g} °C")
     return log
 
 
+def check_temperatures(log) -> None:
+    """Refuse a logged temperature no machine gives, naming the file, line and
+    column: the ambient column is held to the scenario file's rule for the air
+    (``[ambient] temperature``), the oil column to the loader's limit for any
+    temperature and, below, to the coldest air of that rule (oil in a tank
+    without a chiller is never colder than the air around it)."""
+    from heatload.errors import HeatloadError
+    from heatload.io import schema
+    from heatload.measurement.logs import _err
+
+    air = schema._AMBIENT["temperature"]
+    oil = schema._F("temperature", "pos", low=air.low,
+                    why=f"the coldest air of {air.why}; oil in a tank is not colder")
+    for key, spec in (("ambient", air), ("oil", oil)):
+        v = log.values.get(key)
+        if v is None:
+            continue
+        for i in (int(np.argmin(v)), int(np.argmax(v))):
+            try:
+                schema._check(float(v[i]), f"{v[i] - K0:.4g} °C", spec, "temperature",
+                              None, None)
+            except HeatloadError as e:
+                raise _err(e.message, log.source, int(log.lines[i]),
+                           log.headers.get(key, key)) from None
+
+
 def fit_log(log, capacity=None, confidence=0.95):
     """:func:`heatload.measurement.logfit.fit_tank_log` on a read :class:`~heatload.measurement.logs.Log`."""
     from heatload.measurement import logfit
 
-    fit = logfit.fit_tank_log(log.time, log.values["oil"], log.values["ambient"],
-                              log.values.get("running"), capacity=capacity,
-                              confidence=confidence)
+    try:
+        fit = logfit.fit_tank_log(log.time, log.values["oil"], log.values["ambient"],
+                                  log.values.get("running"), capacity=capacity,
+                                  confidence=confidence)
+    except HeatloadError as e:
+        # whatever the fit refuses, the reader must know which log it was
+        raise e.located(file=log.source) from None
+    except (ArithmeticError, ValueError, np.linalg.LinAlgError) as e:
+        raise HeatloadError(f"the tank model cannot be fitted to this log ({e}); check the "
+                            "oil, ambient and running columns", file=log.source) from None
     fit.notes[:0] = log.notes
     return fit
 
@@ -230,22 +269,29 @@ def summary_rows(fit, system="si", capacity_source="given") -> list:
 
     def status(key):
         return "identified" if fit.identified.get(key, True) else "NOT identified"
-    rows = [("heat into the oil while running, P", _q(fit.heat, "power", system),
-             _iv(fit.intervals.get("heat"), "power", system),
-             status("heat") if fit.capacity is not None else "needs the heat capacity"),
-            ("conductance to the air, UA", _q(fit.conductance, "thermal_conductance", system, 3),
-             _iv(fit.intervals.get("conductance"), "thermal_conductance", system),
-             status("conductance") if fit.conductance is not None
-             else "needs the heat capacity"),
+
+    def spread(value, pair, kind):
+        # an interval a hundred times wider than its value says only "unknown"
+        if (value is not None and pair is not None and math.isfinite(value)
+                and max(abs(pair[0] - value), abs(pair[1] - value)) > 100.0 * abs(value)):
+            return "wider than ±100x"
+        return _iv(pair, kind, system)
+    rows = [("heat while running, P", _q(fit.heat, "power", system),
+             spread(fit.heat, fit.intervals.get("heat"), "power"),
+             status("heat") if fit.capacity is not None else "needs C"),
+            ("conductance to air, UA", _q(fit.conductance, "thermal_conductance", system, 3),
+             spread(fit.conductance, fit.intervals.get("conductance"), "thermal_conductance"),
+             status("conductance") if fit.conductance is not None else "needs C"),
             ("heat capacity, C", _q(fit.capacity, "heat_capacity", system), "", capacity_source
              if fit.capacity is not None else "not given"),
             ("time constant, C/UA", f"{fit.time_constant / 3600:.3g} h"
              if math.isfinite(fit.time_constant) else "∞",
              _iv([v / 3600 for v in fit.intervals["time_constant"]], "dimensionless",
                  system) + " h", status("conductance")),
-            ("steady rise while running, P/UA", _q(fit.temperature_rise,
-                                                   "temperature_difference", system),
-             _iv(fit.intervals["temperature_rise"], "temperature_difference", system), ""),
+            ("steady rise, P/UA", _q(fit.temperature_rise, "temperature_difference", system),
+             spread(fit.temperature_rise, fit.intervals["temperature_rise"],
+                    "temperature_difference"),
+             status("temperature_rise")),
             ("initial oil temperature", _q(fit.initial_temperature, "temperature", system),
              "", status("initial_temperature"))]
     return [r + (pct,) for r in rows]

@@ -129,6 +129,13 @@ class TraceCycle:
         return None if self.energy_per_cycle is None else self.energy_per_cycle / self.period
 
 
+#: What the phase figures are, for the reader of the table and the draft.
+LEVELS = ("A phase's pressure and flow are its steady level (the median of its samples: "
+          "the spikes at the valve switches do not count); its hydraulic power is the mean "
+          "of p x Q over the phase (its energy / duration, so that the phases add up to the "
+          "energy per cycle); each figure is the median over the cycles.")
+
+
 def _running_median(x, width):
     if width <= 1 or x.size < width:
         return x.copy()
@@ -392,14 +399,36 @@ def _fmt(value, kind, digits=3):
     return format_quantity(value, kind, "si", digits)
 
 
+#: Width of the draft's lines (the classic terminal's 80 columns, common practice).
+DRAFT_WIDTH = 80
+
+
+def _file_name(path):
+    import pathlib
+    return pathlib.PurePath(path).name or path
+
+
+def _comment(text):
+    """*text* as comment lines of at most :data:`DRAFT_WIDTH` characters."""
+    import textwrap
+    return "\n".join("# " + part for part in textwrap.wrap(
+        text, DRAFT_WIDTH - 2, break_on_hyphens=False, break_long_words=False))
+
+
 def _todo(key, what, example, width=34):
+    """``key = "?"  # TO COMPLETE: what, e.g. "example"``; where that is wider than
+    the draft's lines, *what* goes on comment lines above it."""
     left = f'{key} = "?"'
-    return f'{left.ljust(width)}# TO COMPLETE: {what}, e.g. "{example}"'
+    line = f'{left.ljust(width)}# TO COMPLETE: {what}, e.g. "{example}"'
+    if len(line) <= DRAFT_WIDTH:
+        return line
+    return f'{_comment(what)}\n{left.ljust(width)}# TO COMPLETE: e.g. "{example}"'
 
 
 def _measured(key, value_text, note, width=34):
     left = f'{key} = "{value_text}"'
-    return f"{left.ljust(width)}# {note}"
+    line = f"{left.ljust(width)}# {note}"
+    return line if len(line) <= DRAFT_WIDTH else f"{_comment(note)}\n{left}"
 
 
 #: Example cylinder offered in the draft (bore, rod) [m]: completes the file
@@ -426,19 +455,24 @@ def draft_toml(cycle: TraceCycle, source: str, name: str | None = None) -> str:
     a_ann = a_cap - math.pi / 4 * EXAMPLE_ROD ** 2
     L = ["# Draft duty cycle from a pressure trace (heatload trace); complete it, then",
          "# run `heatload check` on it.",
-         f"# Trace: {src}; {cycle.cycles} cycle{'s' if cycle.cycles != 1 else ''} "
-         f"recognised, cycle time {cycle.period:.3g} s.",
+         _comment(f"Trace: {src}; {cycle.cycles} cycle{'s' if cycle.cycles != 1 else ''} "
+                  f"recognised, cycle time {cycle.period:.3g} s."),
          "# '# measured' = read from the trace (median over the cycles); '# TO COMPLETE' =",
          "# replace \"?\" with the machine's value",
-         "# (the example after 'e.g.' only makes the file load: it is not a design value)."]
+         "# (the example after 'e.g.' only makes the file load: it is not a design value).",
+         _comment(LEVELS)]
     if cycle.energy_per_cycle is not None:
-        L.append(f"# Hydraulic power from the trace (p x Q): {_fmt(cycle.energy_per_cycle, 'energy')} "
-                 f"per cycle, mean {_fmt(cycle.mean_power, 'power')}, phases below.")
+        L.append(_comment(f"Hydraulic power from the trace (p x Q): "
+                          f"{_fmt(cycle.energy_per_cycle, 'energy')} per cycle, mean "
+                          f"{_fmt(cycle.mean_power, 'power')}, phases below."))
     for n in cycle.notes:
-        L.append(f"# Note: {n}")
+        L.append(_comment(f"Note: {n}"))
     # JSON strings are TOML basic strings (the same escapes)
     L += ["", "[scenario]", f"name = {json.dumps(name or 'Draft from a pressure trace')}",
-          f"description = {json.dumps(f'Duty cycle drafted from {src}', ensure_ascii=False)}",
+          # the file's name only: the whole path is in the comment above (a string
+          # cannot wrap to the draft's width)
+          "description = " + json.dumps(f"Duty cycle drafted from {_file_name(src)}",
+                                        ensure_ascii=False),
           ""]
     L.append("[power_unit.pump]")
     if cycle.peak_flow is not None:
@@ -453,8 +487,8 @@ def draft_toml(cycle: TraceCycle, source: str, name: str | None = None) -> str:
     L.append(_todo("cracking_pressure", f"relief setting (the trace peaks at "
                                         f"{_fmt(cycle.peak_pressure, 'pressure')})",
                    _fmt(relief, "pressure")))
-    L += ["", "[[actuators]]", 'name = "main"                     # the actuator the phases '
-          'drive; rename as you like', 'kind = "cylinder"']
+    L += ["", "[[actuators]]", "# the actuator the phases drive; rename as you like",
+          'name = "main"', 'kind = "cylinder"']
     L.append(_todo("bore", "cylinder bore", "100 mm"))
     L.append(_todo("rod", "rod diameter", "70 mm"))
     if cycle.position_range:
@@ -474,10 +508,10 @@ def draft_toml(cycle: TraceCycle, source: str, name: str | None = None) -> str:
             measured.append(f"flow {_fmt(ph.flow, 'flow')}")
         if ph.energy is not None:
             measured.append(f"hydraulic power {_fmt(ph.power, 'power')}")
-        L.append("# measured: " + ", ".join(measured))
+        L.append(_comment("measured: " + ", ".join(measured)))
         if ph.kind == "idle":
-            L.append('motion = "idle"                   # measured: pump near its lowest '
-                     'pressure, nothing moves')
+            L.append(_measured("motion", "idle", "measured: pump near its lowest pressure, "
+                               "nothing moves"))
             L.append(_measured("duration", _fmt(ph.duration, "time"), "measured"))
             continue
         L.append('actuator = "main"')
@@ -507,9 +541,9 @@ def draft_toml(cycle: TraceCycle, source: str, name: str | None = None) -> str:
                                    f"{_fmt(ph.pressure, 'pressure')})",
                            _fmt(EXAMPLE_LOAD_SHARE * ph.pressure * a_cap, "force")))
             L.append(_measured("duration", _fmt(ph.duration, "time"), "measured"))
-    L += ["", "# Complete the fluid, reservoir, ambient and cooler sections as in "
-          "duty_cycles/forming_press.toml;", "# until then heatload's documented defaults "
-          "apply (heatload.io.SCHEMA_EXAMPLE).", ""]
+    L += ["", _comment("Complete the fluid, reservoir, ambient and cooler sections as in "
+                       "duty_cycles/forming_press.toml; until then heatload's documented "
+                       "defaults apply (heatload.io.SCHEMA_EXAMPLE)."), ""]
     return "\n".join(L)
 
 

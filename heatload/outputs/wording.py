@@ -36,9 +36,12 @@ SENTENCES = {
     "stall": "The actuator stalls: the load needs more pressure than the supply allows.",
     "speed-not-reached": "The actuator does not reach its set speed.",
     "pressure-rating": "A pressure exceeds the rating of a pump, valve or cylinder.",
+    "flow-rating": "The directional valve carries far more flow than it is rated for.",
     "overrunning-load": "A load that pulls the actuator would run away without a "
                         "counterbalance valve.",
     "hold-pressure": "The pump does not supply the pressure needed to hold the load.",
+    "hold-at-limit": "The pump supplies just the pressure needed to hold the load, with no "
+                     "margin for how exactly a valve can be set.",
     "motor-overload": "The drive motor is loaded beyond its rating.",
     "oil-temperature": "Without a cooler the oil would run hotter than its limit on "
                        "the hottest day.",

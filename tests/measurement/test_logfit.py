@@ -272,3 +272,82 @@ def test_negative_heat_while_running_is_not_identified():
     assert fit.heat_rate < 0.0
     assert not fit.identified["heat"]
     assert any("negative" in n for n in fit.notes)
+
+
+@pytest.mark.parametrize("seed", range(1, 9))
+def test_a_flat_hot_log_with_noise_never_ends_in_an_error(tmp_path, capsys, seed):
+    # oil held at 55 degC by a running pump, a 0.2 K sensor noise, 0.01 K logger
+    # resolution: k -> 0 and k -> inf fit such a line equally well, and the fit
+    # must stay finite and say the log does not identify UA or P (first-order tank)
+    rng = np.random.default_rng(seed)
+    t = np.arange(500) * 10.0
+    oil = K0 + 55.0 + np.round(rng.normal(0.0, 0.2, t.size), 2)
+    p = _csv(tmp_path / "flat.csv", t, oil, np.full(t.size, K0 + 20.0), np.ones(t.size))
+    assert main(["logfit", str(p), "--heat-capacity", "600 kJ/K", "--json"]) == 0
+    import json
+    rec = json.loads(capsys.readouterr().out)
+    assert not rec["identified"]["conductance_W_K"] and not rec["identified"]["heat_W"]
+    assert rec["time_constant_s"] > 0.0
+
+
+def test_an_error_inside_the_fit_names_the_log(tmp_path, monkeypatch):
+    # whatever the fit refuses, the message names the file it came from
+    from heatload.measurement import measured
+    t, y, ta, run = _warm_up_cool_down(seed=24, step=600.0)
+    p = _csv(tmp_path / "log.csv", t, y, ta, run)
+    log = measured.read_temperature_log(p)
+
+    def refuse(*args, **kwargs):
+        raise HeatloadError("the loss rate UA / C must be positive [1/s]", field="loss_rate")
+
+    monkeypatch.setattr(logfit, "fit_tank_log", refuse)
+    with pytest.raises(HeatloadError) as e:
+        measured.fit_log(log, C)
+    assert e.value.one_line().startswith(f"{p}: loss_rate:")
+
+    def overflow(*args, **kwargs):
+        raise FloatingPointError("overflow encountered in exp")
+
+    monkeypatch.setattr(logfit, "fit_tank_log", overflow)
+    with pytest.raises(HeatloadError) as e:
+        measured.fit_log(log, C)
+    assert e.value.one_line().startswith(f"{p}: ") and "\n" not in e.value.one_line()
+
+
+def test_chunked_recurrence_matches_the_one_step_formula_at_every_time_constant():
+    # uneven steps; from a time constant far below the step (exp(-hk) underflows)
+    # to one far above the log (hk ~ 1e-9): each step the exact one-step formula
+    rng = np.random.default_rng(5)
+    t = np.cumsum(np.concatenate(([0.0], rng.uniform(0.5, 30.0, 20000))))
+    ta = _drifting_ambient(t)
+    run = (np.sin(t / 700.0) > 0).astype(float)
+    for k in (1e3, 1.0, 1e-3, 1e-9):
+        model = logfit.tank_temperatures(t, ta, run, 0.002, k, K0 + 30)
+        theta = model[:-1] - ta[:-1]
+        h = np.diff(t)
+        inf = 0.002 * run[:-1] / k - np.diff(ta) / h / k
+        one_step = ta[1:] + inf + (theta - inf) * np.exp(-k * h)
+        scale = max(1.0, float(np.max(np.abs(inf))))
+        assert np.max(np.abs(model[1:] - one_step)) < 1e-9 * scale, k
+
+
+def test_a_long_log_scanned_thinned_fits_as_the_whole_log(monkeypatch):
+    # 250,000 samples at 1 s (three shifts with stops and nights): the scan for the
+    # time constant runs on a thinned log, the fit itself on every sample; it must
+    # recover the invented machine and land where a scan of the whole log does
+    rng = np.random.default_rng(31)
+    t = np.arange(250_000) * 1.0
+    ta = _drifting_ambient(t)
+    day = t % 86400.0
+    run = ((day < 4 * 3600) | ((day >= 4.5 * 3600) & (day < 9 * 3600))).astype(float)
+    y = logfit.tank_temperatures(t, ta, run, P / C, UA / C, K0 + 15) + rng.normal(0, 0.2, t.size)
+    assert t.size > logfit._SCAN_SAMPLES
+    fit = logfit.fit_tank_log(t, y, ta, run, capacity=C)
+    assert fit.heat == pytest.approx(P, rel=0.03) and fit.conductance == pytest.approx(UA, rel=0.03)
+    for name, true in (("heat", P), ("conductance", UA)):
+        lo, hi = fit.intervals[name]
+        assert lo <= true <= hi
+    monkeypatch.setattr(logfit, "_SCAN_SAMPLES", 10 ** 9)
+    whole = logfit.fit_tank_log(t, y, ta, run, capacity=C)
+    assert fit.conductance == pytest.approx(whole.conductance, rel=1e-5)
+    assert fit.heat == pytest.approx(whole.heat, rel=1e-5)

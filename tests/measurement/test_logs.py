@@ -129,3 +129,28 @@ def test_any_text_gives_a_log_or_one_line_error():
         else:
             assert np.all(np.diff(log.time) > 0)
     check()
+
+
+def test_more_rows_than_the_limit_refused_with_how_to_thin(tmp_path, monkeypatch):
+    monkeypatch.setattr(logs, "MAX_ROWS", 50)
+    rows = "\n".join(f"{60 * i},{40 + 0.01 * i:.2f},20" for i in range(60))
+    p = _write(tmp_path, "time [s],oil [degC],ambient [degC]\n" + rows)
+    with pytest.raises(HeatloadError) as e:
+        measured.read_temperature_log(p)
+    msg = e.value.one_line()
+    assert msg.startswith(f"{p}:52: ") and "thin the log" in msg
+
+
+def test_clean_and_row_by_row_reading_agree(tmp_path):
+    # a clean log is read at once; a blank line sends it to the row-by-row reader:
+    # the same values, and line numbers that follow the file's own lines
+    rows = [f"{30 * i},{40 + 0.37 * i:.2f},{20 + 0.01 * i:.2f},{i % 2}" for i in range(40)]
+    head = "# invented\ntime [min],oil [degF],ambient [degC],running\n"
+    clean = measured.read_temperature_log(_write(tmp_path, head + "\n".join(rows)))
+    gapped = measured.read_temperature_log(
+        _write(tmp_path, head + "\n".join(rows[:20] + [""] + rows[20:]), "b.csv"))
+    for key in ("oil", "ambient", "running"):
+        assert np.array_equal(clean.values[key], gapped.values[key])
+    assert np.array_equal(clean.time, gapped.time)
+    assert list(clean.lines[:3]) == [3, 4, 5]
+    assert gapped.lines[19] == 22 and gapped.lines[20] == 24
