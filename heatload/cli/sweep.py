@@ -106,6 +106,11 @@ def run(args) -> int:
           + ("coupled oil temperature" if coupled else
              "figures at the design oil temperature, steady temperature without a cooler "
              "uncoupled (--coupled for the self-consistent one)"), file=out)
+    if not coupled:
+        # compare ranks at the temperature each machine settles at; a machine that
+        # runs cooler than the design temperature can rank otherwise here
+        print("ranked at the design oil temperature: a machine that settles cooler may "
+              "rank otherwise in compare (--coupled ranks as compare does)", file=out)
     if note:
         print(note, file=out)
     top = args.top if args.top is not None else 10

@@ -197,8 +197,10 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
         call with the oil at the cooler's design temperature -- heat, energy,
         cost, peak pressure and warnings there (where the machine runs once
         its cooler holds it), the exact cooler duty, and the steady oil
-        temperature without a cooler estimated from that heat (uncoupled);
-        the coupled figures are NaN.  False: only the circuit at the
+        temperature without a cooler estimated from that heat
+        (``oil_temperature_uncoupled``: from the design-point heat, not the
+        reference temperature's as in the other modes); the coupled figures
+        and ``heat_to_oil_uncoupled`` (not solved) are NaN.  False: only the circuit at the
         uncoupled temperature (one call); the design figures NaN.
 
     Returns
@@ -240,7 +242,9 @@ def evaluate_variants(scenario: Scenario, strategy, overrides: dict | None = Non
                   for k, v in checks.condition_counts(
                       ev.conditions + [cd for cd in ev.cycle_conditions
                                        if cd.code in checks.CYCLE_CODES]).items()},
-        heat_to_oil_uncoupled=arr(ev.heat_uncoupled),
+        # at the design point the heat is design_heat; "uncoupled" means at the
+        # reference temperature, as compare says it: not solved there
+        heat_to_oil_uncoupled=(nan if thermal == "design" else arr(ev.heat_uncoupled)),
         oil_temperature_uncoupled=arr(ev.steady_uncoupled),
         oil_temperature_steady=arr(ev.steady_coupled),
         oil_temperature_operating=(arr(ev.operating_temperature) if thermal else nan),

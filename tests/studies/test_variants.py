@@ -138,3 +138,14 @@ def test_threads_never_exceed_the_cores(monkeypatch):
     import os
     monkeypatch.setenv("HEATLOAD_THREADS", "1000")
     assert variants.threads() == (os.cpu_count() or 1)
+
+
+def test_design_mode_does_not_call_the_design_heat_uncoupled():
+    """One name, one quantity: 'uncoupled' heat is the heat at the reference
+    temperature (as compare reports it); the design-point sweep does not solve
+    there, so the column is empty rather than the design heat again."""
+    d = variants.evaluate_variants(SC, "load-sensing", thermal="design")
+    full = variants.evaluate_variants(SC, "load-sensing")
+    assert np.isnan(d.heat_to_oil_uncoupled[0])
+    assert np.isfinite(full.heat_to_oil_uncoupled[0])
+    np.testing.assert_allclose(d.design_heat, full.design_heat, rtol=1e-12)
