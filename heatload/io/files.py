@@ -337,7 +337,28 @@ def to_csv(frame, path) -> None:
     has it — with a bare line feed ending rows, Python's csv writer would
     leave a carriage return inside a cell unquoted, and a spreadsheet would
     start a new row (and read a formula) there."""
-    csv_safe(frame).to_csv(path, index=False, encoding="utf-8", lineterminator="\r\n")
+    safe = csv_safe(frame)
+    if len(safe) >= _ARROW_ROWS:
+        # a large table through pyarrow's writer (C++): pandas formats each float
+        # in Python, about a minute for a 10^6-variant sweep; the same cells (NaN
+        # empty, text quoted where needed, CR LF)
+        try:
+            import pyarrow as pa
+            from pyarrow import csv as pa_csv
+        except ImportError:
+            pa = None
+        if pa is not None:
+            try:
+                table = pa.Table.from_pandas(safe, preserve_index=False)
+                pa_csv.write_csv(table, str(path), pa_csv.WriteOptions(eol="\r\n"))
+                return
+            except (TypeError, pa.ArrowException):  # an older pyarrow (no eol), an odd column
+                pass
+    safe.to_csv(path, index=False, encoding="utf-8", lineterminator="\r\n")
+
+
+#: From this many rows a CSV is written by pyarrow
+_ARROW_ROWS = 10_000
 
 
 def csv_safe(frame):
