@@ -349,22 +349,31 @@ def to_csv(frame, path) -> None:
             pa = None
         if pa is not None:
             try:
-                table = pa.Table.from_pandas(safe, preserve_index=False)
-                pa_csv.write_csv(table, str(path), pa_csv.WriteOptions(eol="\r\n"))
+                # in slices: one slice's copy at a time, not the whole table's
+                first = pa.Table.from_pandas(safe.iloc[:_ARROW_ROWS], preserve_index=False)
+                with pa_csv.CSVWriter(str(path), first.schema,
+                                      write_options=pa_csv.WriteOptions(eol="\r\n")) as w:
+                    w.write_table(first)
+                    for start in range(_ARROW_ROWS, len(safe), _ARROW_SLICE):
+                        w.write_table(pa.Table.from_pandas(
+                            safe.iloc[start:start + _ARROW_SLICE], preserve_index=False,
+                            schema=first.schema))
                 return
             except (TypeError, pa.ArrowException):  # an older pyarrow (no eol), an odd column
                 pass
     safe.to_csv(path, index=False, encoding="utf-8", lineterminator="\r\n")
 
 
-#: From this many rows a CSV is written by pyarrow
+#: From this many rows a CSV is written by pyarrow, in slices of _ARROW_SLICE
 _ARROW_ROWS = 10_000
+_ARROW_SLICE = 100_000
 
 
 def csv_safe(frame):
     """A copy of the DataFrame *frame* with every text cell (and column name)
-    passed through :func:`csv_text`; numeric columns are not touched."""
-    out = frame.copy()
+    passed through :func:`csv_text`; numeric columns are not touched (nor
+    copied: copy-on-write keeps the caller's frame as it was)."""
+    out = frame.copy(deep=False)
     for col in out.columns:
         if out[col].dtype.kind not in "biufcmM":     # text or mixed columns only
             out[col] = out[col].map(csv_text)
