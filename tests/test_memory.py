@@ -81,3 +81,14 @@ def test_memory_kept_during_a_batch_and_handed_back_after():
                          check=True, env={"HEATLOAD_KEEP_MEMORY": "1", "PATH": ""})
     inside, after = map(float, out.stdout.split())
     assert inside > after + 150      # the 190 MB of freed arrays kept, then returned
+
+
+@pytest.mark.parametrize("name,value", [("HEATLOAD_THREADS", "two"), ("HEATLOAD_THREADS", "0"),
+                                        ("HEATLOAD_KEEP_MEMORY", "abc")])
+def test_a_bad_switch_is_refused_before_any_work(monkeypatch, capsys, name, value):
+    from heatload.cli import main
+
+    monkeypatch.setenv(name, value)
+    assert main(["compare"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and name in err[0]

@@ -585,6 +585,8 @@ def main(argv=None) -> int:
     stdout = sys.stdout
     sys.stdout = _TerminalText(stdout, json_mode=json_mode, width=args.width)
     try:
+        from heatload import _memory
+        _memory.check_environment()     # a bad switch refused before any work
         with warnings.catch_warnings():
             warnings.showwarning = _one_line_warning(set())
             return int(args.func(args) or 0)

@@ -12,14 +12,12 @@ from __future__ import annotations
 
 import contextlib
 import dataclasses
-import os
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from heatload import _memory, checks, evaluation
 from heatload.hydraulics import energy
-from heatload.errors import HeatloadError
 from heatload.model import Scenario
 
 
@@ -89,21 +87,8 @@ class VariantResults:
 
 
 def threads() -> int:
-    """Worker threads for chunked batches: ``HEATLOAD_THREADS`` (default 1).
-
-    numpy's array loops release the interpreter lock, so two threads can run
-    two chunks on two cores; measured on a shared 2-core machine the gain was
-    small (a sweep of 10^6 variants 24.5 -> 22.5 s) for a peak memory 17 %
-    higher (each chunk's arrays at once), and a Monte Carlo was slower, so
-    it is left to the user to ask for.  At most one per core."""
-    given = os.environ.get("HEATLOAD_THREADS", "").strip()
-    if not given:
-        return 1
-    if not given.isdigit() or int(given) < 1:
-        raise HeatloadError(f"expected a whole number of threads >= 1, got {given!r}",
-                            field="HEATLOAD_THREADS")
-    # never more than the cores: each thread holds a chunk's arrays
-    return min(int(given), os.cpu_count() or 1)
+    """Worker threads for chunked batches (:func:`heatload._memory.threads_setting`)."""
+    return _memory.threads_setting()
 
 
 def evaluate_chunks(scenario: Scenario, strategy, overrides: dict, n: int, chunk: int,
