@@ -766,7 +766,8 @@ def cooler_spec_sheet(coolant, duty, oil_inlet_temperature, coolant_inlet_temper
                       oil_density, oil_specific_heat, oil_viscosity, margin=0.2,
                       oil_pressure_drop_max=1.0e5, air_temperature_rise=10.0, water_flow=None,
                       water_temperature_rise=5.0, glycol_fraction=0.0,
-                      arrangement="shell-and-tube", shell_passes=1) -> CoolerSpec:
+                      arrangement="shell-and-tube", shell_passes=1,
+                      air_pressure=101325.0) -> CoolerSpec:
     """Collect a cooler's quotable requirement, margin applied, sized at the design point.
 
     duty = P (1 + margin); air: P_spec = duty / ETD; water: UA by eps-NTU
@@ -802,6 +803,9 @@ def cooler_spec_sheet(coolant, duty, oil_inlet_temperature, coolant_inlet_temper
         (water).
     shell_passes : int, optional
         (water).
+    air_pressure : float, optional
+        Absolute air pressure at the site [Pa] (air: the volume flow is at
+        the air's density there; :func:`heatload.heat.heat_transfer.barometric_pressure`).
 
     Returns
     -------
@@ -831,6 +835,6 @@ def cooler_spec_sheet(coolant, duty, oil_inlet_temperature, coolant_inlet_temper
     options = dict(air_temperature_rise=air_temperature_rise, water_flow=water_flow,
                    water_temperature_rise=water_temperature_rise,
                    glycol_fraction=glycol_fraction, arrangement=arrangement,
-                   shell_passes=shell_passes)
+                   shell_passes=shell_passes, air_pressure=air_pressure)
     return kind.spec_sheet(p, oil_inlet_temperature, coolant_inlet_temperature, oil_flow,
                            oil_density, oil_specific_heat, common, options)

@@ -105,7 +105,7 @@ class AirOil(CoolerType):
         try:
             sz.air = _k.size_air_cooler(sz.duty, sz.design_oil_temperature, sz.design_ambient,
                                         sz.oil_flow, sz.oil_density, sz.oil_specific_heat,
-                                        cd.air_temperature_rise)
+                                        cd.air_temperature_rise, pressure=sz.air_pressure)
         except HeatloadError as exc:
             sz.notes.append(f"air-oil not possible: {exc.one_line()}")
 
@@ -116,7 +116,8 @@ class AirOil(CoolerType):
                    oil_density, oil_specific_heat, common, options):
         s = _k.size_air_cooler(duty, oil_inlet_temperature, coolant_inlet_temperature, oil_flow,
                                oil_density, oil_specific_heat,
-                               options.get("air_temperature_rise", 10.0))
+                               options.get("air_temperature_rise", 10.0),
+                               pressure=options.get("air_pressure", 101325.0))
         return _k.CoolerSpec(etd=float(s.etd),
                              oil_outlet_temperature=float(s.oil_outlet_temperature),
                              coolant_flow=float(s.air_volume_flow),

@@ -39,6 +39,7 @@ from heatload.cooling import cooler
 from heatload.model import design_oil_temperature
 from heatload.cooling.cooler_types import TYPES, cooler_type
 from heatload.errors import HeatloadError
+from heatload.heat.heat_transfer import barometric_pressure
 from heatload.outputs.wording import CAUTION
 
 K0 = 273.15
@@ -81,6 +82,9 @@ class CoolerSizing:
     #: the file's datasheet coolers rated (:func:`heatload.cooling.cooler_datasheet.rate_coolers`)
     datasheet: Optional[object] = None
     water_inlet_temperature: float = float("nan")  #: coolant inlet of the water-oil sizing [K]
+    #: the site's air pressure (its altitude, standard atmosphere) [Pa]: the air
+    #: cooler's volume flow is at the air's density there
+    air_pressure: float = 101325.0
     caution: str = CAUTION
 
 
@@ -279,7 +283,8 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
         surfaces_heat=float(th.design_conductance) * (t_d - t_a),
         cooler_needed=bool(th.cooler_needed), duty_without_margin=duty0, margin=float(cd.margin),
         duty=float(th.cooler_duty), oil_flow=q_oil, oil_density=rho, oil_specific_heat=cp,
-        oil_viscosity=nu, water_inlet_temperature=float(cd.water_inlet_temperature))
+        oil_viscosity=nu, water_inlet_temperature=float(cd.water_inlet_temperature),
+        air_pressure=float(barometric_pressure(scenario.ambient.altitude)))
     sz.notes.append(ASSUMPTION_OIL_FLOW)
     if not sz.cooler_needed:
         sz.notes.append("no cooler needed: the surfaces shed "
@@ -299,7 +304,8 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
                 q_oil, rho, cp, nu, margin=cd.margin, oil_pressure_drop_max=cd.oil_pressure_drop_max,
                 air_temperature_rise=cd.air_temperature_rise, water_flow=cd.water_flow,
                 water_temperature_rise=cd.water_temperature_rise,
-                glycol_fraction=cd.water_glycol_fraction, arrangement=arrangement, shell_passes=1)
+                glycol_fraction=cd.water_glycol_fraction, arrangement=arrangement, shell_passes=1,
+                air_pressure=sz.air_pressure)
             if sz.spec.arrangement == "counterflow":
                 sz.notes.append("spec sheet for a counterflow unit: one-shell shell-and-tube "
                                 "cannot reach the effectiveness")

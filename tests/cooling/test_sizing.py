@@ -318,3 +318,22 @@ def test_air_coolant_hotter_than_the_design_refused(winch):
         sizing.size_cooler(sc, dataclasses.replace(o, thermal=hot_day), coolant="air",
                            thermostat=False)
     assert e.value.field == "cooler.oil_temperature_max" and "air cooler" in e.value.message
+
+
+def test_air_flow_is_at_the_sites_air_density():
+    """The air cooler's air flow is a volume at the air inlet: at the site's
+    altitude the air is thinner and the same mass flow takes more volume.
+    ISO 2533 standard atmosphere: 98.945 kPa at 200 m against 101.325 kPa at
+    sea level (from memory), so 2.41 % more volume at 200 m."""
+    import dataclasses
+
+    sc = io.load_scenario(io.default_scenario_path())       # the press stands at 200 m
+    assert sc.ambient.altitude == pytest.approx(200.0)
+    sea = dataclasses.replace(sc, ambient=dataclasses.replace(sc.ambient, altitude=0.0))
+    at_site = sizing.size_cooler(sc, chain.compare(sc).outcome("meter-in"), coolant="air",
+                                 thermostat=False)
+    at_sea = sizing.size_cooler(sea, chain.compare(sea).outcome("meter-in"), coolant="air",
+                                thermostat=False)
+    assert at_site.air.air_mass_flow == pytest.approx(at_sea.air.air_mass_flow, rel=1e-3)
+    assert at_site.spec.coolant_flow / at_sea.spec.coolant_flow == pytest.approx(
+        101.325 / 98.945, rel=2e-3)
