@@ -116,10 +116,11 @@ def valid_paths(scenario: Scenario) -> list:
     for i, a in enumerate(scenario.actuators):
         out += [f"actuators.{a.name}.{k}" for k in _actuator_keys(a)]
     for k in _PHASE_KEYS:
-        if any(getattr(ph, k) is not None for ph in scenario.phases):
+        if any(getattr(ph, k) is not None and _inert(ph, k) is None for ph in scenario.phases):
             out.append(f"phases[*].{k}")
         out += [f"phases[{i}].{k}" for i, ph in enumerate(scenario.phases)
-                if getattr(ph, k) is not None or k in ("load", "speed")]
+                if (getattr(ph, k) is not None or k in ("load", "speed"))
+                and _inert(ph, k) is None]
     for s in scenario.strategies:
         out += [f"strategies.{s.name}.{k}" for k in circuit(s.kind).settings]
     for head, keys in _TABLE_KEYS.items():
@@ -188,15 +189,18 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
             raise _unknown(path, scenario)
         n = len(scenario.phases)
         if hidx == "*":
-            # every phase that has the key; an idle phase moves no actuator, so only
-            # its duration can vary
+            # every phase that has the key and where it acts
             idx = [i for i, ph in enumerate(scenario.phases) if getattr(ph, key) is not None
-                   and (ph.actuator is not None or key == "duration")]
+                   and _inert(ph, key) is None]
             if not idx:
                 raise _unknown(path, scenario, f"no phase has a {key}")
         else:
             if int(hidx) >= n:
                 raise _unknown(path, scenario, f"index {hidx} is out of range (there are {n})")
+            why = _inert(scenario.phases[int(hidx)], key)
+            if why:       # varying it would give identical variants
+                raise HeatloadError(f"phase {hidx} '{scenario.phases[int(hidx)].name}': {why}",
+                                    field=path)
             idx = [int(hidx)]
         kinds = {_phase_kind(scenario, scenario.phases[i], key) for i in idx}
         return FieldRef(path, tuple(("phase", i, key) for i in idx),
@@ -228,6 +232,18 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
         nominal = 1.0 if key == "heat_transfer_factor" else getattr(getattr(scenario, head), key)
         return FieldRef(path, ((head, key),), kind, check, (nominal,))
     raise _unknown(path, scenario)
+
+
+def _inert(phase, key):
+    """Why *key* does nothing in *phase* (None where it acts): an idle phase moves
+    no actuator, so only its duration counts; a hold given its pressure or force
+    holds that, whatever its load."""
+    if phase.actuator is None and key != "duration":
+        return f"an idle phase moves no actuator: only its duration can vary, not its {key}"
+    if key == "load" and phase.motion == "hold" and (
+            phase.hold_pressure is not None or getattr(phase, "hold_force", None) is not None):
+        return "the hold is set by its hold_pressure / hold_force: its load does nothing"
+    return None
 
 
 def _check_values(ref: FieldRef, values):

@@ -99,3 +99,22 @@ def test_every_phase_skips_idle_phases_for_what_they_do_not_have():
     assert not {t[1] for t in ref.targets} & set(idle)
     assert set(idle) <= {t[1] for t in paths.resolve_path(PRESS, "phases[*].duration").targets
                          } | {i for i, ph in enumerate(PRESS.phases) if ph.duration is None}
+
+
+@pytest.mark.parametrize("path,words", [("phases[4].load", "hold_pressure"),
+                                        ("phases[11].load", "idle phase")])
+def test_a_field_that_does_nothing_in_its_phase_is_refused(path, words):
+    """The press's dwell holds 150 bar by its hold_pressure and its part change
+    is idle: varying either's load gave identical variants; refused, saying why,
+    by the sweep and by the file's [[uncertainty]] alike."""
+    sc = io.load_scenario(io.default_scenario_path())
+    with pytest.raises(HeatloadError, match=words):
+        paths.resolve_path(sc, path)
+    assert path not in paths.valid_paths(sc)
+    text = io.default_scenario_path().read_text() + (
+        f'\n[[uncertainty]]\npath = "{path}"\nlow = "-10 %"\nhigh = "+10 %"\n')
+    with pytest.raises(HeatloadError, match=words):
+        io.loads_scenario(text)
+    # phases[*] passes over them (the other phases' loads still vary)
+    ref = paths.resolve_path(sc, "phases[*].load")
+    assert ("phase", 4, "load") not in ref.targets and ("phase", 11, "load") not in ref.targets
