@@ -250,6 +250,23 @@ def _sync(path, directory=False):
         os.close(fd)
 
 
+def _place_new(tmp, target, field, hint) -> None:
+    """Move the finished *tmp* to *target* only if no file is there: a hard
+    link fails where a file appeared while computing (another run's), so it is
+    refused, not replaced; where the file system has no hard links, checked
+    once more and replaced."""
+    try:
+        os.link(tmp, target)
+    except FileExistsError:
+        check_output(target, field, force=False, hint=hint)   # the one-line refusal
+        raise
+    except OSError:
+        check_output(target, field, force=False, hint=hint)
+        os.replace(tmp, target)
+        return
+    os.unlink(tmp)
+
+
 def write_atomic(target, write, field: str | None = None, *, force: bool = False,
                  hint: str = "use --force to overwrite it") -> Path:
     """Write a file atomically through *write(tmp_path)*.
@@ -267,7 +284,8 @@ def write_atomic(target, write, field: str | None = None, *, force: bool = False
     field : str, optional
         Option named in error messages (see :func:`check_output`).
     force : bool
-        Replace an existing regular file.
+        Replace an existing regular file.  Without it a file that appears
+        while *write* runs is not replaced either (refused).
     hint : str
         How to allow overwriting, said when the file exists.
 
@@ -296,7 +314,10 @@ def write_atomic(target, write, field: str | None = None, *, force: bool = False
         _sync(tmp)
         if _special(target):    # became a folder or a pipe meanwhile
             check_output(target, field, force=True, hint=hint)
-        os.replace(tmp, target)
+        if force:
+            os.replace(tmp, target)
+        else:
+            _place_new(tmp, target, field, hint)
         tmp_done = tmp
         tmp = None
         with _lock:

@@ -460,3 +460,21 @@ def test_a_large_csv_holds_the_same_cells_as_a_small_one(tmp_path):
     assert a["strategy"][0] == "'=HYPERLINK(1)"
     raw = big.read_bytes()
     assert raw.count(b"\r\n") == 2 * n + 1     # each row's end and each cell's break
+
+
+def test_a_file_made_while_computing_is_not_replaced_without_force(tmp_path):
+    """The output was checked before computing; another run (or the user) made
+    the file meanwhile: without --force it is kept and the write refused, with
+    the same one-line message; with --force it is replaced."""
+    target = tmp_path / "sweep.csv"
+
+    def write(tmp):
+        target.write_text("the other run's table\n")     # appears while we compute
+        Path(tmp).write_text("ours\n")
+
+    with pytest.raises(HeatloadError, match="--force"):
+        outputs.write_atomic(target, write, "--output")
+    assert target.read_text() == "the other run's table\n"
+    assert [p.name for p in tmp_path.iterdir()] == ["sweep.csv"]   # no temporary left
+    outputs.write_atomic(target, write, "--output", force=True)
+    assert target.read_text() == "ours\n"
