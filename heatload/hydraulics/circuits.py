@@ -385,11 +385,25 @@ class _Subset(_LazyView):
         return v
 
 
+def _phase_row(a):
+    """*a* as one row of phases when it is the same in every variant (a
+    broadcast view, or no variant axis), else None."""
+    a = np.asarray(a)
+    if a.ndim == 0:
+        return None
+    if a.ndim == 1:
+        return a
+    if all(n == 1 or st == 0 for n, st in zip(a.shape[:-1], a.strides[:-1])):
+        return a[(0,) * (a.ndim - 1)]
+    return None
+
+
 class _Columns(_LazyView):
     """Entries of a circuit dict restricted to the phases *cols* (last axis),
     taken when first read: where a mask is the same in every variant (the
-    phases that move), a sweep's phase constants stay broadcast views and
-    only its varied entries are copied."""
+    phases that move), a phase constant stays one row (or a broadcast view of
+    it), a variant's own value (N, 1) stays as it is, and only entries that
+    vary by variant and phase are copied."""
 
     def __init__(self, c, cols, shape):
         super().__init__()
@@ -403,10 +417,9 @@ class _Columns(_LazyView):
                 v = v[..., self._cols]
             # else (N, 1): one value per variant, broadcasts as it is
         elif isinstance(v, np.ndarray) and v.shape == self._full:
-            if v.ndim > 1 and not any(v.strides[:-1]):     # one row, broadcast
-                v = np.broadcast_to(v[(0,) * (v.ndim - 1)][self._cols], self._shape)
-            else:
-                v = v[..., self._cols]
+            row = _phase_row(v)
+            v = v[..., self._cols] if row is None else np.broadcast_to(row[self._cols],
+                                                                        self._shape)
         self[key] = v
         return v
 
@@ -418,9 +431,8 @@ _COLUMNS_MIN = 256
 def _phase_columns(mask):
     """The phases (last-axis indices) where *mask* holds, when it is the same in
     every variant (a broadcast row) and large enough to pay; else None."""
-    if mask.ndim < 2 or mask.size < _COLUMNS_MIN or any(mask.strides[:-1]):
-        return None
-    return np.flatnonzero(mask[(0,) * (mask.ndim - 1)])
+    row = _phase_row(mask) if mask.ndim > 1 and mask.size >= _COLUMNS_MIN else None
+    return None if row is None else np.flatnonzero(row)
 
 
 def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
@@ -494,19 +506,6 @@ def _root_flow(residual, c, q_hi, idx, q_kink=None, r_lo=None, r_hi=None):
         return lo
     root[work] = lo
     return root
-
-
-def _phase_row(a):
-    """*a* as one row of phases when it is the same in every variant (a
-    broadcast view, or no variant axis), else None."""
-    a = np.asarray(a)
-    if a.ndim == 0:
-        return None
-    if a.ndim == 1:
-        return a
-    if all(n == 1 or st == 0 for n, st in zip(a.shape[:-1], a.strides[:-1])):
-        return a[(0,) * (a.ndim - 1)]
-    return None
 
 
 def _solve_flow(residual, c, q_target, q_kink=None, q_row=None):
@@ -601,9 +600,8 @@ def _at_previous(x, prev):
     """*x* of the phase each phase follows (``prev``, the phase index on the last
     axis; -1: none, giving 0)."""
     # the map is one row in every variant (a broadcast): gather along the phases
-    if prev.ndim and not any(prev.strides[:-1]) and np.ndim(x) >= 1 \
-            and np.shape(x)[-1] == prev.shape[-1]:
-        row = prev[(0,) * (prev.ndim - 1)]
+    row = _phase_row(prev)
+    if row is not None and np.ndim(x) >= 1 and np.shape(x)[-1] == prev.shape[-1]:
         shape = np.broadcast_shapes(prev.shape, np.shape(x))
         return np.where(row >= 0, np.broadcast_to(x, shape)[..., np.maximum(row, 0)], 0.0)
     # prev and x may differ in rank (a sweep's (N, P) against a (P,) map; P = 1 too)
