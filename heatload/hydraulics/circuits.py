@@ -358,6 +358,183 @@ def _compensator_supply(q, c, setting, theoretical_flow):
     return np.where(q <= q_full, setting, pump_branch)
 
 
+class _Rows(_LazyView):
+    """Entries of a circuit dict restricted to the rows *idx* (leading axis of a
+    batch of *n* rows), taken when first read; entries without a row axis
+    (phase constants, single values) as they are."""
+
+    def __init__(self, c, idx, n):
+        super().__init__()
+        self._c, self._idx, self._n = c, idx, n
+
+    def __missing__(self, key):
+        v = self._c[key]
+        if key == "shape":
+            v = (len(self._idx),) + tuple(v[1:])
+        elif isinstance(v, np.ndarray) and v.ndim >= 2 and v.shape[0] == self._n:
+            v = v[self._idx]
+        self[key] = v
+        return v
+
+
+def _take_rows(x, idx, n):
+    """Rows *idx* of *x* where it has a row axis of *n* rows (else *x* itself)."""
+    if isinstance(x, np.ndarray) and x.ndim >= 2 and x.shape[0] == n:
+        return x[idx]
+    return x
+
+
+class Kinds:
+    """The strategy of each row of a batch: one circuit for every row (the
+    usual case: each call goes to it), or a circuit per row (a comparison of
+    strategies solved at once; each call goes to each circuit with its rows,
+    and the pieces are put back in place).
+
+    Each row is computed exactly as the one strategy would compute it alone
+    (the relations are element by element), so the figures do not depend on
+    which strategies share a batch."""
+
+    def __init__(self, strategy):
+        from heatload.hydraulics.strategies import circuit
+        if isinstance(strategy, str):
+            names = [strategy]
+        else:
+            names = list(dict.fromkeys(np.asarray(strategy).tolist()))
+        self.circuits = [circuit(n) for n in names]
+        self.one = self.circuits[0] if len(names) == 1 else None
+        self.groups = None
+        if self.one is None:
+            rows = np.asarray(strategy)
+            self.n = len(rows)
+            self.groups = [(k, np.flatnonzero(rows == n)) for k, n in zip(self.circuits, names)]
+            self.code = np.empty((self.n, 1), int)
+            for i, (_, idx) in enumerate(self.groups):
+                self.code[idx] = i
+
+    @property
+    def name(self):
+        """The strategy's name, or the names of the rows' strategies."""
+        if self.one is not None:
+            return self.one.kind
+        names = np.empty(self.n, object)
+        for k, idx in self.groups:
+            names[idx] = k.kind
+        return tuple(names)
+
+    def flag(self, attr):
+        """A circuit's class flag (``meters_out``, ...): a bool, or one per row (n, 1)."""
+        if self.one is not None:
+            return getattr(self.one, attr)
+        out = np.zeros((self.n, 1), bool)
+        for k, idx in self.groups:
+            out[idx] = getattr(k, attr)
+        return out
+
+    def prepare(self, c):
+        """Per-row entries the mixed batch needs in *c* (the row's strategy code
+        and its flow controls' settings)."""
+        if self.one is not None:
+            return
+        c["kind_code"] = self.code
+        for side in ("inlet_throttle", "outlet_throttle"):
+            keys = [getattr(k, side) for k, _ in self.groups]
+            if all(key is None for key in keys):
+                c[f"{side}_setting"] = None
+                continue
+            full = np.broadcast_shapes((self.n, 1), *(np.shape(c[key]) for key in keys
+                                                       if key is not None))
+            setting = np.zeros(full)     # no flow control: no drop
+            for key, (_, idx) in zip(keys, self.groups):
+                if key is not None:
+                    setting[idx] = np.broadcast_to(c[key], full)[idx]
+            c[f"{side}_setting"] = setting
+
+    def throttle_settings(self, c):
+        """(outlet, inlet) flow control settings [Pa] of *c*'s elements, None where no
+        row has that flow control."""
+        if self.one is not None:
+            out, inl = self.one.outlet_throttle, self.one.inlet_throttle
+            return (None if out is None else c[out]), (None if inl is None else c[inl])
+        return c["outlet_throttle_setting"], c["inlet_throttle_setting"]
+
+    def available(self, q, c, p1):
+        """``Circuit.available`` of each element's strategy (elements of any shape)."""
+        if self.one is not None:
+            return self.one.available(q, c, p1)
+        code = np.broadcast_to(c["kind_code"], np.shape(q))
+        out = np.empty(np.shape(q))
+        for i, (k, _) in enumerate(self.groups):
+            m = code == i
+            if m.any():
+                out[m] = np.broadcast_to(k.available(q[m], _Subset(c, m), p1[m]),
+                                         (int(m.sum()),))
+        return out
+
+    def call(self, method, *args, shape=None, per_row=()):
+        """``getattr(circuit, method)(*args)`` of each row's strategy, put back
+        together at the batch's *shape*: each circuit gets its rows of every
+        argument (a circuit dict as a view of its rows, *shape* cut to them);
+        *per_row*: the items of a returned tuple that hold one value per row."""
+        if self.one is not None:
+            return getattr(self.one, method)(*args)
+        n = self.n
+        pieces = []
+        for k, idx in self.groups:
+            sub = [(len(idx),) + tuple(a[1:]) if a is shape
+                   else _Rows(a, idx, n) if isinstance(a, dict) else _take_rows(a, idx, n)
+                   for a in args]
+            pieces.append((idx, getattr(k, method)(*sub)))
+        return _merge_rows(pieces, shape, per_row)
+
+
+def _merge_rows(pieces, shape, per_row=()):
+    """Put the per-strategy results *pieces* ``[(rows, result)]`` back in place at
+    the batch's *shape*: arrays and numbers by rows (one value per row where
+    *per_row* is True), tuples and dicts item by item (an item a group lacks is
+    0), None where every group gives None."""
+    first = next((r for _, r in pieces if r is not None), None)
+    if first is None:
+        return None
+    if isinstance(first, tuple):
+        return tuple(_merge_rows([(i, r[j]) for i, r in pieces], shape, j in per_row)
+                     for j in range(len(first)))
+    if isinstance(first, dict):
+        keys = list(dict.fromkeys(k for _, r in pieces for k in r))
+        return {key: _merge_rows([(i, r.get(key, 0.0)) for i, r in pieces], shape)
+                for key in keys}
+    arrays = [(i, np.asarray(r)) for i, r in pieces if r is not None]
+    full = (shape[0],) if per_row is True else tuple(shape)
+    dtype = np.result_type(*(a for _, a in arrays))
+    out = np.full(full, np.nan) if dtype.kind == "f" else np.zeros(full, dtype)
+    for idx, a in arrays:
+        out[idx] = np.broadcast_to(a, (len(idx),) + full[1:])
+    return out
+
+
+def flow_control_drop(q, c, setting):
+    """Drop of a compensated flow control at flow *q* [Pa]: its *setting* at the
+    set flow, ~Q^2 below it."""
+    return setting * (q / c["q_target_safe"]) ** 2
+
+
+def residual(kinds, q, c, rec=None):
+    """Available minus required pump pressure at inlet flow *q* [Pa], decreasing
+    in *q* (the flow solve finds its root):
+
+        r(Q1) = p_available(Q1, p1) - (drops + p1 + inlet throttle)
+
+    with p1 from the force balance, the outlet throttle on the return path
+    (meter-out), the supply's pressure from the strategy
+    (``Circuit.available``).  *kinds*: a :class:`Kinds` (each row's strategy)."""
+    out_set, in_set = kinds.throttle_settings(c)
+    outlet = 0.0 if out_set is None else flow_control_drop(q, c, out_set)
+    supply, p1 = _supply_and_inlet(q, c, outlet, rec)
+    avail = kinds.available(q, c, p1)
+    if in_set is None:
+        return avail - (supply + p1)
+    return avail - (supply + p1 + flow_control_drop(q, c, in_set))
+
+
 # ---------------------------------------------------------------------------
 # the solve
 # ---------------------------------------------------------------------------
@@ -571,8 +748,9 @@ def _holding_valves(v, moving, meters_out):
         fitted = fitted | own
         setting = np.where(own, v["cb_own_setting"], setting)
         ratio = np.where(own, v["cb_own_ratio"], ratio)
-    runaway = overrun & ~fitted & (not meters_out)
-    active = overrun & (fitted | runaway) & (not meters_out)
+    holds = np.logical_not(meters_out)     # a bool, or one per row
+    runaway = overrun & ~fitted & holds
+    active = overrun & (fitted | runaway) & holds
     setting = np.where(runaway, COUNTERBALANCE_FACTOR * np.abs(v["force"]) / v["a_out"],
                        setting)
     return fitted, setting, ratio, active, runaway
@@ -620,7 +798,7 @@ MOTION_LOSSES = ("flow_control", "directional_valve", "check_valve", "lines",
                  "counterbalance", "actuator", "compression")
 
 
-def _motion_point(kind, v, q1, p_pump, stalled, t_actual):
+def _motion_point(kinds, v, q1, p_pump, stalled, t_actual):
     """A further motion's operating point at the phase's solved own flow *q1*
     and the shared pump pressure *p_pump*: its figures and its losses (keys of
     :data:`MOTION_FIGURES`, ``("loss", component)``).
@@ -636,8 +814,9 @@ def _motion_point(kind, v, q1, p_pump, stalled, t_actual):
     check, pline, dv_in, rdv, rline = _flow_drops(q, v)
     supply = check + pline + dv_in
     q2 = q * v["q_ratio"]
-    _, p1, p2, dp_cb, fc_in, fc_out = kind.operating_pressures(q, v, supply, rdv + rline,
-                                                               moving, stalled)
+    _, p1, p2, dp_cb, fc_in, fc_out = kinds.call("operating_pressures", q, v, supply,
+                                                 rdv + rline, moving, stalled,
+                                                 shape=np.shape(q1))
     stuck = moving & stalled
     fc_in = np.where(stalled, 0.0, fc_in)
     p1 = np.where(stuck, np.maximum(p_pump - v["check_cracking"], 0.0), p1)
@@ -659,7 +838,8 @@ def _motion_point(kind, v, q1, p_pump, stalled, t_actual):
     out = {"flow": q, "outlet_flow": q2, "inlet_pressure": p1, "outlet_pressure": p2,
            "speed": speed,
            "speed_target": np.where(moving, v["q_target"] * v["speed_per_flow"], 0.0),
-           "throttle_drop": fc_out if kind.meters_out else fc_in, "useful_power": useful}
+           "throttle_drop": _where(kinds.flag("meters_out"), fc_out, fc_in),
+           "useful_power": useful}
     out.update({("loss", k): losses[k] for k in MOTION_LOSSES})
     return out
 
@@ -669,8 +849,10 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     Parameters
     ----------
-    strategy : str
-        A name of :data:`heatload.hydraulics.strategies.REGISTRY`.
+    strategy : str or sequence of str
+        A name of :data:`heatload.hydraulics.strategies.REGISTRY`, or one per
+        row of the batch (strategies solved side by side, each row exactly as
+        its strategy alone; see :class:`Kinds`).
     c : dict
         Circuit arrays from :func:`heatload.hydraulics.cycle.circuit_inputs` (all SI,
         broadcast to one shape).
@@ -679,10 +861,11 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     -------
     CircuitResult
     """
-    from heatload.hydraulics.strategies import circuit
-    kind = circuit(strategy)
     c = dict(c)
     shape = c["shape"]
+    kinds = Kinds(strategy)
+    kinds.prepare(c)
+    meters_out = kinds.flag("meters_out")
     # masks and maps at the full shape (views: no copy), for they index; the float
     # entries keep their own shapes ((P,) phase constants, (N, 1) variant values),
     # so a term of phase constants is computed once per phase
@@ -699,19 +882,19 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     views = motion_views(c)
     for b, v in enumerate(views, start=1):
         for key, val in zip(("cb_fitted", "cb_setting", "cb_ratio", "cb_active", "runaway"),
-                            _holding_valves(v, v["moving"], kind.meters_out)):
+                            _holding_valves(v, v["moving"], meters_out)):
             c[f"motion{b}:{key}"] = val
         c[f"motion{b}:cb_idle"] = not np.any(c[f"motion{b}:cb_active"])
         c[f"motion{b}:q_target_safe"] = np.where(v["q_target"] > 0, v["q_target"], 1.0)
     c["cb_fitted"], c["cb_setting"], c["cb_ratio"], c["cb_active"], runaway = \
-        _holding_valves(c, moving, kind.meters_out)
+        _holding_valves(c, moving, meters_out)
     c["cb_idle"] = not np.any(c["cb_active"])
 
     n_nom = c["pump_speed"]
     c["pump_leak"] = pump_leak_conductance(c)
     c["q_theoretical"] = c["pump_displacement"] * n_nom
     c["q_theoretical_max"] = c["pump_displacement"] * n_nom * c["vs_max_fraction"]
-    q_cap = kind.flow_capacity(c)
+    q_cap = kinds.call("flow_capacity", c, shape=shape)
     c["q_reach"] = q_cap  # beyond it the pump cannot deliver: keeps the root bracket smooth
     if views:   # the phase's own motion takes 1 / R of the circuit's flow
         c["q_reach"] = q_cap / c["flow_total_ratio"]
@@ -732,11 +915,13 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # the corner of the supply characteristic: full pump flow at the relief
     # (fixed pumps) or compensator setting (variable pumps)
     leak0 = _leak_conductance(c)
-    q_kink = kind.kink(c, q_cap, leak0)
+    q_kink = kinds.call("kink", c, q_cap, leak0, shape=shape)
     if views:
         q_kink = q_kink / c["flow_total_ratio"]
-    q1, flow_limited, stalled, drops_set = _solve_flow(kind.residual, c, q_target, q_kink,
-                                                       q_row)
+    def flow_residual(q, cc, rec=None):
+        return residual(kinds, q, cc, rec)
+    q1, flow_limited, stalled, drops_set = _solve_flow(flow_residual, c, q_target, q_kink,
+                                                       q_row if kinds.one is not None else None)
     full_flow = moving & ~np.isfinite(c["q_target"])
     flow_limited = flow_limited & ~full_flow
     q_target = np.where(full_flow, q1, q_target)
@@ -760,10 +945,10 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     if views:
         q_all = _total_flow(q1, c)
         _set_governing(c, views, q1, supply, p_back, moving)
-    p_pump, p1, p2, dp_cb, dp_fc_in, dp_fc_out = kind.operating_pressures(
-        q1, c, supply, p_back, moving, stalled)
+    p_pump, p1, p2, dp_cb, dp_fc_in, dp_fc_out = kinds.call(
+        "operating_pressures", q1, c, supply, p_back, moving, stalled, shape=shape)
     # stalled actuators: the pump sits at what its supply gives at zero flow
-    p_pump = np.where(moving & stalled, kind.stall_pressure(c, z), p_pump)
+    p_pump = np.where(moving & stalled, kinds.call("stall_pressure", c, z, shape=shape), p_pump)
     dp_fc_in = np.where(stalled, 0.0, dp_fc_in)
     # ... and no flow means no drop but the check valve's spring: the inlet chamber
     # holds what the pump gives, the outlet is open to tank, the load is not met
@@ -780,14 +965,15 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # stroke or standby.  No relief flow; the pump's leakage only
     on_check = ~moving & (unload == UNLOAD_CHECK)
     holding = ~moving & (p_hold > 0.0) & ~on_check
-    vent = on_check & (not kind.variable_pump)
+    vent = on_check & np.logical_not(kinds.flag("variable_pump"))
     c["centre_unloads"] = c["centre_unloads"] | vent
     centre_ok = c["centre_unloads"]
     use_centre = ~moving & ((unload == UNLOAD_CENTRE) | vent) & centre_ok
     # centre drop at the full theoretical flow (leakage at a few bar is negligible)
     centre_dp = _centre_drop(c["q_theoretical"], c)
     relief_full = _relief_supply(z, c, c["q_theoretical"])
-    p_rest = kind.rest_pressure(c, z, use_centre, holding, p_hold, centre_dp, relief_full)
+    p_rest = kinds.call("rest_pressure", c, z, use_centre, holding, p_hold, centre_dp,
+                        relief_full, shape=shape)
     p_pump = np.where(moving, p_pump, p_rest)
     p1 = np.where(moving, p1, p_hold)
     p2 = np.where(moving, p2, 0.0)
@@ -795,12 +981,12 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     # ---- pump flow, stroke and speed --------------------------------------
     leakage = leak * np.maximum(p_pump, 0.0)
     c["pump_pressure"] = p_pump
-    frac, n_pump, q_pump = kind.pump_state(c, q_all, leakage, moving, stalled, use_centre,
-                                           shape)
+    frac, n_pump, q_pump = kinds.call("pump_state", c, q_all, leakage, moving, stalled,
+                                      use_centre, shape, shape=shape)
     surplus = np.maximum(q_pump - q_all, 0.0)
     at_relief = p_pump >= c["relief_cracking"] * (1.0 - 1e-12)
-    to_centre, to_relief = kind.surplus_routing(moving, holding, use_centre, centre_ok,
-                                                at_relief, shape)
+    to_centre, to_relief = kinds.call("surplus_routing", moving, holding, use_centre,
+                                      centre_ok, at_relief, shape, shape=shape)
     centre_q = np.where(to_centre, surplus, 0.0)
     relief_q = np.where(to_relief & ~to_centre, surplus, 0.0)
     bleed_q = surplus - centre_q - relief_q
@@ -810,8 +996,8 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
     t_actual = _actual_duration(c, speed, stalled)
     # shaft power, losses of pumps run apart from the circuit (an unloaded pump),
     # and power into an accumulator (zero for most circuits)
-    p_shaft_hyd, apart, stored, duty = kind.pump_power(c, n_pump, p_pump, frac, q_all,
-                                                       t_actual)
+    p_shaft_hyd, apart, stored, duty = kinds.call("pump_power", c, n_pump, p_pump, frac,
+                                                  q_all, t_actual, shape=shape, per_row=(3,))
     useful = c["load"] * speed * c["work_per_load_speed"]
     # what the actuator does not turn into load work: friction, motor efficiencies
     actuator_loss = p1 * q1 - p2 * q2 - useful
@@ -849,13 +1035,13 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         motions = {(0, "flow"): q1, (0, "outlet_flow"): q2, (0, "inlet_pressure"): p1,
                    (0, "outlet_pressure"): p2, (0, "speed"): speed,
                    (0, "speed_target"): np.where(moving, q_target * c["speed_per_flow"], 0.0),
-                   (0, "throttle_drop"): dp_fc_out if kind.meters_out else dp_fc_in,
+                   (0, "throttle_drop"): _where(meters_out, dp_fc_out, dp_fc_in),
                    (0, "useful_power"): useful}
         motions.update({(0, ("loss", k)): _own_loss(k, losses, q1, q2, dv_in_dp, rdv_dp)
                         for k in MOTION_LOSSES})
         motions[(0, "runaway")], motions[(0, "counterbalance_active")] = runaway, c["cb_active"]
         for b, v in enumerate(views, start=1):
-            point = _motion_point(kind, v, q1, p_pump, stalled, t_actual)
+            point = _motion_point(kinds, v, q1, p_pump, stalled, t_actual)
             motions.update({(b, k): val for k, val in point.items()})
             motions[(b, "runaway")] = v["runaway"] & (z == 0.0)
             motions[(b, "counterbalance_active")] = v["cb_active"] & (z == 0.0)
@@ -866,26 +1052,27 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
 
     # drive motor (and converter for variable speed)
     speed_fraction = n_pump / n_nom
+    on_converter = kinds.flag("speed_controlled")
     p_motor_in = motors.motor_input_power_unchecked(
         p_shaft, c["motor_rated_power"], c["motor_rated_efficiency"],
-        speed_fraction if kind.speed_controlled else 1.0)
+        _where(on_converter, speed_fraction, 1.0))
     losses["drive_motor"] = p_motor_in - p_shaft
-    if kind.speed_controlled:
-        losses["converter"] = motors.converter_losses(
+    if np.any(on_converter):
+        losses["converter"] = _where(on_converter, motors.converter_losses(
             p_motor_in, c["motor_rated_power"] / c["motor_rated_efficiency"],
-            c["drive_efficiency"])
+            c["drive_efficiency"]), 0.0)
         p_el = p_motor_in + losses["converter"]
     else:
         p_el = p_motor_in
         losses["converter"] = z.copy()
 
     return CircuitResult(
-        strategy=strategy, pump_pressure=p_pump, inlet_pressure=p1, outlet_pressure=p2,
+        strategy=kinds.name, pump_pressure=p_pump, inlet_pressure=p1, outlet_pressure=p2,
         pump_flow=q_all + relief_q + bleed_q + centre_q, actuator_flow=q1, outlet_flow=q2,
         relief_flow=relief_q, bleed_flow=bleed_q, speed=speed,
         speed_target=np.where(moving, q_target * c["speed_per_flow"], 0.0),
         pump_shaft_speed=n_pump, displacement_fraction=frac,
-        throttle_drop=dp_fc_out if kind.meters_out else dp_fc_in,
+        throttle_drop=_where(meters_out, dp_fc_out, dp_fc_in),
         duration=t_actual, shaft_power=p_shaft, electric_power=p_el, useful_power=useful,
         losses=losses, stalled=stalled, flow_limited=flow_limited, runaway=runaway,
         counterbalance_active=c["cb_active"],
@@ -893,6 +1080,14 @@ def solve_strategy(strategy: str, c: dict) -> CircuitResult:
         bookkeeping_residual=bookkeeping,
         stored_power=None if np.ndim(stored) == 0 and stored == 0 else stored + z,
         pump_duty=None if duty is None else np.asarray(duty)[..., None] + z, motions=motions)
+
+
+def _where(flag, a, b):
+    """*a* where the class flag *flag* holds, else *b* (a bool for every row, or
+    one per row)."""
+    if isinstance(flag, (bool, np.bool_)):
+        return a if flag else b
+    return np.where(flag, a, b)
 
 
 def _own_loss(k, losses, q1, q2, dv_in_dp, rdv_dp):

@@ -3,8 +3,11 @@
 Each class holds what is particular to its circuit; the shared solve
 (:func:`heatload.hydraulics.circuits.solve_strategy`) asks it for:
 
-- ``residual(q, c)``: available minus required pump pressure at inlet flow
-  Q1 (decreasing in Q1); the solve finds the set flow or the root;
+- ``available(q, c, p1)`` with ``inlet_throttle`` / ``outlet_throttle``: the
+  pump pressure its supply gives at inlet flow Q1, and the entries setting the
+  drops of its flow controls; the residual ``available - (drops + p1 +
+  inlet throttle)`` decreases in Q1 and the solve finds the set flow or its
+  root (:func:`heatload.hydraulics.circuits.residual`);
 - ``flow_capacity`` / ``kink``: the most the pump delivers, and the corner
   of its supply characteristic (full flow at the relief or the compensator);
 - ``operating_pressures``: pump pressure, actuator pressures and the
@@ -77,10 +80,16 @@ class Circuit(abc.ABC):
         """Inlet flow at the corner of the supply characteristic [m^3/s]."""
         return q_cap - leak * c["relief_cracking"]
 
+    #: entry of the circuit dict setting the drop of a compensated flow control in
+    #: the inlet line at the set flow (~Q^2 below it), or None where there is none;
+    #: ``outlet_throttle`` the same in the outlet line
+    inlet_throttle = None
+    outlet_throttle = None
+
     @abc.abstractmethod
-    def residual(self, q, c, rec=None):
-        """Available minus required pump pressure at inlet flow *q* [Pa],
-        decreasing in *q* (the flow solve finds its root)."""
+    def available(self, q, c, p1):
+        """Pump pressure the supply gives at inlet flow *q* [Pa] (*p1*: the
+        actuator's inlet pressure there, which a load-sensing pump follows)."""
 
     # -- the operating point ----------------------------------------------------
     def operating_pressures(self, q1, c, supply, p_back, moving, stalled):
@@ -140,12 +149,6 @@ class Circuit(abc.ABC):
 _COUNTERBALANCE = ("counterbalance_setting", "counterbalance_pilot_ratio")
 
 
-def _throttle(c, q, setting):
-    """Drop of a compensated flow control at flow *q*: its setting at the set
-    flow, ~Q^2 below it."""
-    return setting * (q / c["q_target_safe"]) ** 2
-
-
 class MeterIn(Circuit):
     """Fixed pump, relief, a 2-way flow control in each inlet line.
 
@@ -157,12 +160,10 @@ class MeterIn(Circuit):
     description = ("fixed pump, relief sets the pump pressure, a 2-way compensated flow "
                    "control in the inlet line; surplus flow crosses the relief")
     settings = ("flow_control_min_drop",) + _COUNTERBALANCE
-    throttle = "fc_min_drop"   #: the inlet flow control's drop at the set flow
+    inlet_throttle = "fc_min_drop"   #: the inlet flow control's drop at the set flow
 
-    def residual(self, q, c, rec=None):
-        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
-        dp_fc = _throttle(c, q, c[self.throttle])
-        return _c._relief_supply(q, c, c["q_theoretical"]) - (supply + p1 + dp_fc)
+    def available(self, q, c, p1):
+        return _c._relief_supply(q, c, c["q_theoretical"])
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
         p_pump = _c._relief_supply(q1, c, c["q_theoretical"])
@@ -181,10 +182,8 @@ class MeterOut(MeterIn):
                    "pressure is (p1 A1 - F)/A2 and may exceed supply by the area ratio")
     meters_out = True
 
-    def residual(self, q, c, rec=None):
-        dp_fc = _throttle(c, q, c["fc_min_drop"])
-        supply, p1 = _c._supply_and_inlet(q, c, dp_fc, rec)
-        return _c._relief_supply(q, c, c["q_theoretical"]) - (supply + p1)
+    inlet_throttle = None
+    outlet_throttle = "fc_min_drop"
 
     def operating_pressures(self, q1, c, supply, p_back, moving, stalled):
         # throttle drop = what the relief pressure leaves beyond the force balance
@@ -212,9 +211,8 @@ class BleedOff(Circuit):
                    "that pressure by a restrictor set for the phase's speed")
     settings = ("flow_control_min_drop",) + _COUNTERBALANCE
 
-    def residual(self, q, c, rec=None):
-        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
-        return _c._relief_supply(q, c, c["q_theoretical"]) - (supply + p1)
+    def available(self, q, c, p1):
+        return _c._relief_supply(q, c, c["q_theoretical"])
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
         # several motions: the pump at the heaviest's need; a lighter one's own
@@ -314,7 +312,7 @@ class BypassCompensated(MeterIn):
     description = ("3-way compensated flow control: surplus leaves at working pressure + "
                    "the compensator spring")
     settings = ("bypass_spring",) + _COUNTERBALANCE
-    throttle = "bypass_spring"   # the 3-way compensator's spring sets the drop
+    inlet_throttle = "bypass_spring"   # the 3-way compensator's spring sets the drop
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
         spring_drop = np.where(moving & ~stalled,
@@ -371,11 +369,10 @@ class PressureCompensated(_VariablePump):
                    "used; a meter-in flow control sets the speed")
     settings = ("compensator_setting", "flow_control_min_drop") + _COUNTERBALANCE
 
-    def residual(self, q, c, rec=None):
-        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
-        dp_fc = _throttle(c, q, c["fc_min_drop"])
-        avail = _c._compensator_supply(q, c, c["compensator"], c["q_theoretical"])
-        return avail - (supply + p1 + dp_fc)
+    inlet_throttle = "fc_min_drop"
+
+    def available(self, q, c, p1):
+        return _c._compensator_supply(q, c, c["compensator"], c["q_theoretical"])
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
         p_pump = _c._compensator_supply(q1, c, c["compensator"], c["q_theoretical"])
@@ -417,11 +414,9 @@ class LoadSensing(_VariablePump):
     settings = ("load_sensing_margin", "standby_pressure", "compensator_setting") \
         + _COUNTERBALANCE
 
-    def residual(self, q, c, rec=None):
-        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
-        avail = np.minimum(_c._compensator_supply(q, c, c["compensator"], c["q_theoretical"]),
-                           p1 + c["ls_margin"])
-        return avail - (supply + p1)
+    def available(self, q, c, p1):
+        return np.minimum(_c._compensator_supply(q, c, c["compensator"], c["q_theoretical"]),
+                          p1 + c["ls_margin"])
 
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
         _, load = _c.governing(required, p1, c)   # the highest load pressure
@@ -456,9 +451,8 @@ class VariableSpeed(Circuit):
     def flow_capacity(self, c):
         return c["q_theoretical_max"]
 
-    def residual(self, q, c, rec=None):
-        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
-        return _c._relief_supply(q, c, c["q_theoretical_max"]) - (supply + p1)
+    def available(self, q, c, p1):
+        return _c._relief_supply(q, c, c["q_theoretical_max"])
 
     pump_pressure = BleedOff.pump_pressure
 
@@ -552,7 +546,7 @@ class HiLo(MeterIn):
     settings = ("high_pressure_fraction", "unloading_pressure", "unloading_valve_drop",
                 "flow_control_min_drop") + _COUNTERBALANCE
 
-    def _available(self, q, c):
+    def available(self, q, c, p1):
         x = c["hilo_fraction"]
         return np.maximum(_c._relief_supply(q, _Share(c, x), x * c["q_theoretical"]),
                           _c._compensator_supply(q, c, c["unload_pressure"],
@@ -563,13 +557,8 @@ class HiLo(MeterIn):
         x = c["hilo_fraction"]
         return x * (c["q_theoretical"] - leak * c["relief_cracking"])
 
-    def residual(self, q, c, rec=None):
-        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
-        dp_fc = _throttle(c, q, c[self.throttle])
-        return self._available(q, c) - (supply + p1 + dp_fc)
-
     def pump_pressure(self, q1, c, required, p1, moving, stalled):
-        p_pump = self._available(q1, c)
+        p_pump = self.available(q1, c, p1)
         return p_pump, np.maximum(p_pump - required, 0.0)
 
     def _small_relief(self, c, q):
@@ -677,10 +666,9 @@ class Accumulator(MeterIn):
     def _mean(self, c):
         return _acc.mean_pressure(c["acc_p_min"], c["acc_p_max"], c["acc_exponent"])
 
-    def residual(self, q, c, rec=None):
-        supply, p1 = _c._supply_and_inlet(q, c, 0.0, rec)
-        dp_fc = _throttle(c, q, c[self.throttle])
-        return c["acc_p_min"] - (supply + p1 + dp_fc)
+    def available(self, q, c, p1):
+        # the speed must be held down to the lowest working pressure
+        return c["acc_p_min"]
 
     def kink(self, c, q_cap, leak):
         return q_cap

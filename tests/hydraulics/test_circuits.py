@@ -22,6 +22,7 @@ from heatload.hydraulics import circuits, cycle, strategies
 from heatload.components import lines, pumps, valves
 from heatload import model as m
 from heatload.model import STRATEGIES
+from heatload.io import example_paths, load_scenario
 
 BORE, ROD = 0.100, 0.070
 A1 = math.pi / 4 * BORE**2                    # cap area, pi D^2/4 (geometry)
@@ -1159,3 +1160,54 @@ def test_an_ideal_pump_is_the_limit_of_a_real_one():
         o = chain.evaluate_strategy(s2, s2.strategies[0])
         heat.append(o.thermal.heat_uncoupled)
     assert heat[1] == pytest.approx(heat[0], rel=2e-3)
+
+
+# ---------------------------------------------------------------------------
+# strategies side by side in one batch (a comparison solved at once)
+# ---------------------------------------------------------------------------
+
+def _stacked(bases, n_phases):
+    """Solver inputs of several rows, every entry given per row and phase."""
+    out = {k: np.concatenate([np.broadcast_to(np.asarray(b[k]), (1, n_phases)) for b in bases])
+           for k in bases[0] if k != "shape"}
+    out["shape"] = (len(bases), n_phases)
+    return out
+
+
+def _rows_equal(single, mixed, i, n_phases):
+    """Row *i* of *mixed* holds every figure of *single* (one row), bit for bit."""
+    def same(a, b):
+        return np.array_equal(np.broadcast_to(a, (1, n_phases)),
+                              np.broadcast_to(np.asarray(b), (mixed.pump_pressure.shape[0],
+                                                              n_phases))[i:i + 1],
+                              equal_nan=True)
+    for f in dataclasses.fields(single):
+        a = getattr(single, f.name)
+        if f.name == "strategy" or a is None:
+            continue
+        b = getattr(mixed, f.name)
+        if isinstance(a, dict):
+            assert all(same(a[k], b[k]) for k in a), f.name
+        else:
+            assert same(a, b), f.name
+
+
+@pytest.mark.parametrize("example", [p.name for p in example_paths()])
+def test_strategies_side_by_side_equal_each_alone(example):
+    # every strategy at two oil temperatures in one batch gives each row exactly
+    # what its strategy gives alone (the relations are element by element; the
+    # batch only dispatches each circuit's own calls to its rows)
+    sc = next(load_scenario(p) for p in example_paths() if p.name == example)
+    kinds = list(STRATEGIES)
+    bases, singles = [], []
+    for kind in kinds:
+        st = next((s for s in sc.strategies if s.kind == kind), m.Strategy(kind))
+        for t in (313.15, 353.15):
+            c = cycle.circuit_inputs(sc, st, t)
+            bases.append(c)
+            singles.append(circuits.solve_strategy(kind, c))
+    p = len(sc.phases)
+    mixed = circuits.solve_strategy([k for k in kinds for _ in range(2)], _stacked(bases, p))
+    assert mixed.strategy == tuple(k for k in kinds for _ in range(2))
+    for i, single in enumerate(singles):
+        _rows_equal(single, mixed, i, p)

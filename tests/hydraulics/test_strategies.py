@@ -55,10 +55,11 @@ def test_a_new_strategy_is_one_class(monkeypatch):
         kind = "double-throttle"
         description = "meter-in with twice the flow control's minimum drop"
 
-        def residual(self, q, c, rec=None):
-            supply, p1 = circuits._supply_and_inlet(q, c, 0.0, rec)
-            dp_fc = 2.0 * c["fc_min_drop"] * (q / c["q_target_safe"]) ** 2
-            return circuits._relief_supply(q, c, c["q_theoretical"]) - (supply + p1 + dp_fc)
+        def available(self, q, c, p1):
+            # the relief's pressure less a second drop of the flow control's size:
+            # with its own inlet throttle (fc_min_drop) twice the drop in all
+            return (circuits._relief_supply(q, c, c["q_theoretical"])
+                    - circuits.flow_control_drop(q, c, c["fc_min_drop"]))
 
     monkeypatch.setitem(strategies.REGISTRY, "double-throttle", DoubleThrottle())
     sc = io.load_scenario(io.default_scenario_path())
