@@ -119,7 +119,11 @@ def solve_at(scenario, strategy, oil_temperature, pa=None):
 def evaluate_strategy(scenario: Scenario, strategy: Strategy, pa=None) -> StrategyOutcome:
     """Solve, account and heat-balance one strategy: :func:`heatload.evaluation.evaluate`
     with N = 1 (see the module notes)."""
-    ev = evaluation.evaluate(scenario, strategy, hot=True, phases=pa)
+    return outcome_of(scenario, evaluation.evaluate(scenario, strategy, hot=True, phases=pa))
+
+
+def outcome_of(scenario: Scenario, ev) -> StrategyOutcome:
+    """The :class:`StrategyOutcome` of an evaluation of one strategy (N = 1)."""
     amb = scenario.ambient
     row = evaluation.result_row
     res_u, res_c = row(ev.uncoupled, 0), row(ev.coupled, 0)
@@ -217,5 +221,7 @@ def compare(scenario: Scenario, strategies=None) -> Comparison:
             raise HeatloadError(f"unknown strategy {e.args[0]!r}; this scenario has "
                                 f"{', '.join(s.name for s in scenario.strategies)}",
                                 field="--strategy") from None
-    outcomes = [evaluate_strategy(scenario, s, pa) for s in chosen]
+    # the strategies side by side in one batch: each equal to its evaluation alone
+    evs = evaluation.evaluate_strategies(scenario, chosen, hot=True, phases=pa)
+    outcomes = [outcome_of(scenario, ev) for ev in evs]
     return Comparison(scenario=scenario, outcomes=outcomes, phase_arrays=pa)

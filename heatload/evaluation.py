@@ -124,32 +124,40 @@ def check_components(c: dict) -> None:
 
 
 class Builder:
-    """Solver inputs of N variants of one strategy with the oil temperature left open.
+    """Solver inputs of N variants of one or more strategies with the oil
+    temperature left open: rows ``s N .. (s + 1) N - 1`` are strategy *s*'s
+    variants (one strategy: the N variants).
 
-    ``solve(T, rows)``: the strategy solved with the oil at *T* [K] (scalar,
-    or one per row) for the variants *rows* (indices, repeats allowed;
-    default all N)."""
+    ``solve(T, rows)``: the strategies solved with the oil at *T* [K] (scalar,
+    or one per row) for the rows *rows* (indices, repeats allowed; default
+    all), side by side in one batch (:class:`heatload.hydraulics.circuits.Kinds`)."""
 
-    def __init__(self, scenario: Scenario, strategy: Strategy, values: Overrides, phases=None):
+    def __init__(self, scenario: Scenario, strategies, values, phases=None):
+        strategies = list(strategies) if isinstance(strategies, (list, tuple)) \
+            else [strategies]
+        values = list(values) if isinstance(values, (list, tuple)) else [values]
         self.scenario = scenario
-        self.kind = strategy.kind
-        self.n = values.n
-        pa = phases if phases is not None and values.nominal else cycle.phase_arrays(
-            scenario, values)
+        self.kinds = [st.kind for st in strategies]
+        self.kind = self.kinds[0]
+        self.n = values[0].n
+        self.rows = self.n * len(strategies)
+        pa = phases if phases is not None and values[0].nominal else cycle.phase_arrays(
+            scenario, values[0])
         self.phase_arrays = pa
-        base = dict(pa)
-        base.update(cycle.power_unit_constants(scenario, values))
-        base.update(cycle.strategy_arrays(scenario, strategy, values))
-        self.base = base
+        common = dict(pa)
+        common.update(cycle.power_unit_constants(scenario, values[0]))
+        self.base = _stack_rows([dict(common, **cycle.strategy_arrays(scenario, st, v))
+                                 for st, v in zip(strategies, values)], self.n)
+        self._row_kinds = np.repeat(np.array(self.kinds, object), self.n)
         self._base_all = None
         self.n_phases = len(scenario.phases)
-        if not values.nominal:      # the scenario's own fields were checked at load
-            check_components(base)
+        if not all(v.nominal for v in values):      # the scenario's own fields were
+            check_components(self.base)              # checked at load
 
     def inputs(self, t_oil, rows=None) -> dict:
         t = np.asarray(t_oil, dtype=float)
         if rows is None:
-            shape = (self.n, self.n_phases)
+            shape = (self.rows, self.n_phases)
             # the temperature-free entries broadcast once for every solve of all rows
             if self._base_all is None:
                 self._base_all = _compact(self.base, shape)
@@ -160,9 +168,37 @@ class Builder:
         c.update(_compact(cycle.oil_entries(self.scenario, t), shape))
         return c
 
+    def strategy_of_rows(self, rows=None):
+        """The strategy name of the batch (one strategy), or of each row of *rows*."""
+        if len(set(self.kinds)) == 1:
+            return self.kind
+        return self._row_kinds.tolist() if rows is None else self._row_kinds[rows].tolist()
+
     def solve(self, t_oil, rows=None):
         c = self.inputs(t_oil, rows)
-        return circuits.solve_strategy(self.kind, c), c
+        return circuits.solve_strategy(self.strategy_of_rows(rows), c), c
+
+
+def _stack_rows(bases, n):
+    """One input dict of several strategies' (*bases*, each of *n* variants): an
+    entry the same in all stays as it is, else each is given per variant and
+    they follow one another (rows ``s n .. (s + 1) n - 1``)."""
+    if len(bases) == 1:
+        return bases[0]
+    out = {}
+    for k in bases[0]:
+        vals = [np.asarray(b[k]) for b in bases]
+        first = vals[0]
+        if all(v is first or (v.shape == first.shape and np.array_equal(v, first))
+               for v in vals[1:]) and first.ndim < 2:
+            out[k] = bases[0][k]
+            continue
+        width = max((v.shape[-1] for v in vals if v.ndim == 2), default=1)
+        if any(v.ndim == 1 for v in vals):     # a phase constant in some
+            width = max(width, max(v.shape[-1] for v in vals if v.ndim == 1))
+        out[k] = np.concatenate([np.broadcast_to(v if v.ndim != 1 else v[None, :], (n, width))
+                                 for v in vals])
+    return out
 
 
 # ---------------------------------------------------------------------------
@@ -276,6 +312,13 @@ class ConductanceTable:
         ua = np.where(below, ys[row, 0], np.where(above, ys[row, -1], ua))
         slope = np.where(below | above, 0.0, slope)
         return ua * f, slope * f
+
+    def rows(self, rows):
+        """The table seen from the rows *rows* (a slice or indices) only."""
+        out = object.__new__(ConductanceTable)
+        out.__dict__.update(self.__dict__)
+        out.row, out.factor = self.row[rows], self.factor[rows]
+        return out
 
     def _fill(self, row, j, below, above):
         """Compute the nodes a lookup reads (rows *row*, segments *j*, the ends
@@ -392,18 +435,19 @@ def select(mask, a, b):
     return type(b)(**out)
 
 
+def _nan_filled(shape, dtype):
+    return np.full(shape, np.nan if np.dtype(dtype).kind == "f" else 0, dtype)
+
+
 class _Rows:
-    """Results of rows that converge at different steps, gathered in place."""
+    """Results of rows that converge at different steps, gathered in place (a
+    figure a step's result lacks -- what only some strategies of a side-by-side
+    batch give -- is NaN in its rows)."""
 
     def __init__(self, m):
         self.m = m
-        self.data = None
-        self.inputs = None
-
-    @staticmethod
-    def _alloc(src, m):
-        return {k: np.empty((m,) + np.shape(v)[1:], np.asarray(v).dtype)
-                for k, v in src.items()}
+        self.data = {}
+        self.template = None
 
     def put(self, where, result, c, sel):
         shape = c["shape"]
@@ -411,17 +455,22 @@ class _Rows:
         # the dicts of arrays (losses, each motion's figures) by their field's name
         flat.update({(name, k): v for name, d in _fields(result) if isinstance(d, dict)
                      for k, v in d.items()})
-        flat = {k: np.broadcast_to(v, shape) for k, v in flat.items()}
-        if self.data is None:
-            self.data = self._alloc(flat, self.m)
+        first = self.template is None
+        if first:
             self.template = result
         for k, v in flat.items():
+            v = np.broadcast_to(v, shape)
+            if k not in self.data:      # rows not put yet are written later, or NaN
+                self.data[k] = (np.empty if first else _nan_filled)((self.m,) + v.shape[1:],
+                                                                    v.dtype)
             self.data[k][where] = v[sel]
+        for k in self.data.keys() - flat.keys():
+            self.data[k][where] = np.nan if self.data[k].dtype.kind == "f" else 0
 
     def result(self):
         out = {}
         for name, v in _fields(self.template):
-            if isinstance(v, np.ndarray):
+            if name in self.data:
                 v = self.data[name]
             elif isinstance(v, dict):
                 v = {k: self.data[(name, k)] for k in v}
@@ -552,6 +601,7 @@ class Evaluation:
     conditions: list = None                       #: heatload.checks.Condition per phase
     cycle_conditions: list = None                 #: ... of the whole cycle (temperatures)
     typical_conductance: ConductanceTable = None  #: UA(T) at the typical ambient
+    n_rows: int = None                            #: rows of the arrays
 
     @property
     def n(self) -> int:
@@ -592,22 +642,106 @@ def evaluate(scenario: Scenario, strategy, overrides=None, oil_temperature=None,
     -------
     Evaluation
     """
-    st = strategy_of(scenario, strategy)
-    val = overrides if isinstance(overrides, Overrides) else Overrides(scenario, st, overrides)
-    if val.n * len(scenario.phases) >= LARGE_BATCH:
+    return evaluate_strategies(scenario, [strategy], overrides, oil_temperature, thermal, hot,
+                               phases)[0]
+
+
+def evaluate_strategies(scenario: Scenario, strategies, overrides=None, oil_temperature=None,
+                        thermal=True, hot=False, phases=None) -> list:
+    """:func:`evaluate` of several strategies, side by side in one batch (a
+    comparison): the same N variants of each, one :class:`Evaluation` per
+    strategy, each equal to its strategy's :func:`evaluate` (every row is
+    solved and iterated on its own)."""
+    sts = [strategy_of(scenario, s) for s in strategies]
+    if isinstance(overrides, Overrides):
+        if len(sts) != 1:
+            raise ValueError("an Overrides object belongs to one strategy")
+        vals = [overrides]
+    else:
+        vals = [Overrides(scenario, st, overrides) for st in sts]
+    if vals[0].n * len(sts) * len(scenario.phases) >= LARGE_BATCH:
         _memory.keep_freed_memory()     # temporaries of MB each: no page faults per array
-    return _evaluate(scenario, st, val, oil_temperature, thermal, hot, phases)
+    ev = _evaluate(scenario, sts, vals, oil_temperature, thermal, hot, phases)
+    n = vals[0].n
+    out = []
+    for i, (st, val) in enumerate(zip(sts, vals)):
+        part = ev if len(sts) == 1 else _strategy_rows(ev, slice(i * n, (i + 1) * n), st, val)
+        part.conditions = _conditions(st, part.operating, part.operating_inputs, scenario, val)
+        # the oil's limit is judged on the hottest day, where the cooler is sized
+        part.cycle_conditions = checks.thermal_conditions(
+            scenario, part.steady_hot, part.operating_temperature, part.cooler_duty, val)
+        out.append(part)
+    return out
 
 
-def _evaluate(sc, st, val, oil_temperature, thermal, hot, phases) -> Evaluation:
-    """:func:`evaluate` of the strategy *st* and the variants *val*."""
+class _Tiled:
+    """Overrides of N variants seen by S strategies side by side (S N rows):
+    each varied value repeated for every strategy."""
+
+    def __init__(self, values, times):
+        self._values, self._times = values, times
+        self.n = values.n * times
+
+    def get(self, key, default):
+        v = self._values.get(key, default)
+        if self._times > 1 and np.ndim(v) == 1 and len(v) == self._values.n:
+            return np.tile(v, self._times)
+        return v
+
+
+def _strategy_rows(ev, rows, st, val):
+    """The rows *rows* (a slice) of an :class:`Evaluation` of several strategies:
+    strategy *st*'s, with its variants *val*."""
+    out = {}
+    for f in dataclasses.fields(ev):
+        v = getattr(ev, f.name)
+        if isinstance(v, circuits.CircuitResult):
+            v = _result_rows(v, rows, st.kind)
+        elif isinstance(v, np.ndarray) and v.ndim >= 1:
+            v = v[rows]
+        elif isinstance(v, ConductanceTable):
+            v = v.rows(rows)
+        elif f.name == "operating_inputs" and v is not None:
+            v = _input_rows(v, rows, ev.n_rows)
+        out[f.name] = v
+    out.update(strategy=st, values=val, n_rows=val.n)
+    return Evaluation(**out)
+
+
+def _result_rows(result, rows, kind):
+    """Rows *rows* of a result of strategies side by side, as strategy *kind*
+    alone gives it (what only an accumulator circuit stores is None for the rest)."""
+    part = result_row(result, rows)
+    keep = circuit(kind).accumulator
+    return dataclasses.replace(part, strategy=kind,
+                               stored_power=part.stored_power if keep else None,
+                               pump_duty=part.pump_duty if keep else None)
+
+
+def _input_rows(c, rows, n):
+    """Rows *rows* of an input dict of *n* rows."""
+    out = {}
+    for k, v in c.items():
+        if k == "shape":
+            v = (len(range(n)[rows]),) + tuple(v[1:])
+        elif isinstance(v, np.ndarray) and v.ndim >= 2 and v.shape[0] == n:
+            v = v[rows]
+        out[k] = v
+    return out
+
+
+def _evaluate(sc, sts, vals, oil_temperature, thermal, hot, phases) -> Evaluation:
+    """:func:`evaluate` of the strategies *sts* (their variants *vals*) side by side:
+    one :class:`Evaluation` of all their rows, without its warning conditions."""
+    times = len(sts)
+    val = _Tiled(vals[0], times)    # the scenario's fields, the same for every strategy
     n = val.n
     g = val.get
-    build = Builder(sc, st, val, phases)
+    build = Builder(sc, sts, vals, phases)
     t_ref = (cycle.reference_oil_temperature(sc) if oil_temperature is None
              else float(oil_temperature))
-    ev = Evaluation(strategy=st, values=val, phase_arrays=build.phase_arrays,
-                    reference_temperature=t_ref)
+    ev = Evaluation(strategy=sts[0], values=vals[0], phase_arrays=build.phase_arrays,
+                    reference_temperature=t_ref, n_rows=n)
     amb_t = _col(g(("ambient", "temperature"), sc.ambient.temperature), n)
     amb_hot = _col(g(("ambient", "temperature_max"), sc.ambient.temperature_max), n)
     h_res = sc.reservoir.heat_transfer_coefficient
@@ -623,14 +757,14 @@ def _evaluate(sc, st, val, oil_temperature, thermal, hot, phases) -> Evaluation:
 
     t_d_given = design_temperature(sc, val)
     both = None
-    if thermal is True and n == 1:
+    if thermal is True and vals[0].n == 1:
         # one scenario: the reference and design-point solves in one call (each
         # row is solved on its own, so the figures equal two separate calls)
-        both, _ = build.solve(np.array([t_ref, float(np.ravel(t_d_given)[0])]),
-                              np.zeros(2, int))
+        both, _ = build.solve(np.repeat([t_ref, float(np.ravel(t_d_given)[0])], times),
+                              np.tile(np.arange(times), 2))
     if thermal != "design":
         if both is not None:
-            res_u, c_u = result_row(both, slice(0, 1)), None
+            res_u, c_u = result_row(both, slice(0, times)), None
         else:
             res_u, c_u = build.solve(t_ref)
         q_u = f_heat * mean_heat(res_u)
@@ -639,15 +773,12 @@ def _evaluate(sc, st, val, oil_temperature, thermal, hot, phases) -> Evaluation:
         if not thermal:
             ev.operating, ev.operating_inputs = res_u, c_u
             ev.operating_temperature = np.full(n, t_ref)
-            ev.conditions = _conditions(st, res_u, c_u, sc, val)
-            ev.cycle_conditions = checks.thermal_conditions(sc, None, ev.operating_temperature,
-                                                            None, val)
             return ev
 
     # design point: oil at the design temperature, hottest ambient
     t_d = _col(t_d_given, n)
     if both is not None:
-        res_d, c_d = result_row(both, slice(1, 2)), None
+        res_d, c_d = result_row(both, slice(times, 2 * times)), None
     else:
         res_d, c_d = build.solve(t_d if np.ndim(t_d_given) else float(t_d_given))
     q_d = f_heat * mean_heat(res_d)
@@ -662,8 +793,6 @@ def _evaluate(sc, st, val, oil_temperature, thermal, hot, phases) -> Evaluation:
         ev.heat_uncoupled = q_d
         ev.steady_uncoupled = steady_temperature(q_d, t_d, 0.0, amb_t, ua_typ)
         ev.operating, ev.operating_inputs, ev.operating_temperature = res_d, c_d, t_d
-        ev.conditions = _conditions(st, res_d, c_d, sc, val)
-        ev.cycle_conditions = checks.thermal_conditions(sc, None, t_d, ev.cooler_duty, val)
         return ev
 
     # coupled steady temperature at the typical (and the hottest) ambient
@@ -702,11 +831,6 @@ def _evaluate(sc, st, val, oil_temperature, thermal, hot, phases) -> Evaluation:
     else:
         ev.operating = select(at_design, res_d, res_c)
         ev.operating_inputs = build.inputs(ev.operating_temperature)
-    ev.conditions = _conditions(st, ev.operating, ev.operating_inputs, sc, val)
-    # the oil's limit is judged on the hottest day, where the cooler is sized
-    ev.cycle_conditions = checks.thermal_conditions(sc, ev.steady_hot,
-                                                    ev.operating_temperature, ev.cooler_duty,
-                                                    val)
     return ev
 
 

@@ -160,3 +160,59 @@ def test_a_sweep_breaking_a_rule_between_fields_is_refused():
     with pytest.raises(HeatloadError, match="cracking"):
         variants.evaluate_variants(sc, "meter-in",
                                    {"power_unit.check_valve.pressure_drop": np.array([0.2e5])})
+
+
+# ---------------------------------------------------------------------------
+# strategies side by side (a comparison in one batch)
+# ---------------------------------------------------------------------------
+
+def _same(a, b, where):
+    """Every figure of two evaluations (or results) equal bit for bit."""
+    if isinstance(a, evaluation.circuits.CircuitResult):
+        for f in dataclasses.fields(a):
+            _same(getattr(a, f.name), getattr(b, f.name), f"{where}.{f.name}")
+    elif isinstance(a, dict):
+        assert a.keys() == b.keys(), where
+        for k in a:
+            _same(a[k], b[k], f"{where}[{k}]")
+    elif isinstance(a, np.ndarray) or isinstance(b, np.ndarray):
+        assert np.array_equal(np.broadcast_to(a, np.shape(b)), b, equal_nan=True) and \
+            np.shape(a) == np.shape(b), where
+    else:
+        assert a == b, where
+
+
+@pytest.mark.parametrize("thermal", [True, "design", False])
+@pytest.mark.parametrize("example", [p.name for p in io.example_paths()])
+def test_strategies_side_by_side_equal_each_evaluated_alone(example, thermal):
+    sc = next(io.load_scenario(p) for p in io.example_paths() if p.name == example)
+    together = evaluation.evaluate_strategies(sc, sc.strategies, thermal=thermal,
+                                              hot=thermal is True)
+    for st, ev in zip(sc.strategies, together):
+        alone = evaluation.evaluate(sc, st, thermal=thermal, hot=thermal is True)
+        assert ev.strategy == alone.strategy
+        for f in ("uncoupled", "design", "coupled", "operating", "heat_uncoupled",
+                  "steady_uncoupled", "cooler_duty", "steady_coupled", "steady_hot",
+                  "coupling_iterations", "capacity", "cycle_maximum",
+                  "operating_temperature"):
+            _same(getattr(alone, f), getattr(ev, f), f"{example} {st.name} {f}")
+        assert [c.code for c in ev.conditions] == [c.code for c in alone.conditions]
+        for x, y in zip(alone.conditions + alone.cycle_conditions,
+                        ev.conditions + ev.cycle_conditions):
+            assert np.array_equal(np.asarray(x.mask), np.asarray(y.mask)), (st.name, x.code)
+            assert np.array_equal(np.asarray(x.value), np.asarray(y.value), equal_nan=True)
+
+
+def test_strategies_side_by_side_with_variants():
+    # three variants of the pump for two strategies in one batch: each strategy's
+    # rows equal its own evaluation of the same variants
+    sc = io.load_scenario(io.default_scenario_path())
+    over = {"power_unit.pump.displacement": np.array([18e-6, 25e-6, 32e-6]),
+            "ambient.temperature": np.array([288.15, 298.15, 308.15])}
+    pair = [sc.strategies[0], sc.strategies[-1]]
+    together = evaluation.evaluate_strategies(sc, pair, over)
+    for st, ev in zip(pair, together):
+        alone = evaluation.evaluate(sc, st, over)
+        assert ev.n == 3
+        for f in ("operating", "steady_coupled", "cooler_duty", "capacity"):
+            _same(getattr(alone, f), getattr(ev, f), f"{st.name} {f}")

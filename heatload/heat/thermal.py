@@ -158,6 +158,7 @@ def steady_temperature(q0, t0, slope, ambient, conductance, rows=None, start=Non
         t = ta + np.maximum(q0, 0.0) / ua
     else:
         t = np.maximum(np.asarray(start, float), ta - 19.0)
+    done = np.zeros(np.shape(t), bool)
     for _ in range(60):
         ua, dua = conductance(t, rows)
         g = ua * (t - ta) - q0 - slope * (t - t0)
@@ -166,8 +167,11 @@ def steady_temperature(q0, t0, slope, ambient, conductance, rows=None, start=Non
         # kept finite (no machine's oil is 2000 K above its air): a row without
         # a root cannot run off to overflow and poison its neighbours
         t_new = np.clip(t - step, ta - 19.0, ta + 2000.0)
-        done = np.abs(t_new - t) <= 1e-11 * np.abs(t)
-        t = t_new
+        # a row stops at its own convergence: its result does not depend on the
+        # other rows of the batch
+        converged = np.abs(t_new - t) <= 1e-11 * np.abs(t)
+        t = np.where(done, t, t_new)
+        done = done | converged
         if np.all(done):
             break
     return t
