@@ -466,8 +466,7 @@ class Kinds:
         for i, (k, _) in enumerate(self.groups):
             m = code == i
             if m.any():
-                out[m] = np.broadcast_to(k.available(q[m], _Subset(c, m), p1[m]),
-                                         (int(m.sum()),))
+                out[m] = k.available(q[m], _Subset(c, m), p1[m])
         return out
 
     def call(self, method, *args, shape=None, per_row=()):
@@ -507,7 +506,7 @@ def _merge_rows(pieces, shape, per_row=()):
     dtype = np.result_type(*(a for _, a in arrays))
     out = np.full(full, np.nan) if dtype.kind == "f" else np.zeros(full, dtype)
     for idx, a in arrays:
-        out[idx] = np.broadcast_to(a, (len(idx),) + full[1:])
+        out[idx] = a      # broadcast by the assignment
     return out
 
 
