@@ -13,6 +13,7 @@ import numpy as np
 import pytest
 
 from heatload import chain, checks, evaluation, io, paths
+from heatload.errors import HeatloadError
 from heatload.studies import variants
 
 EXAMPLES = io.example_paths()
@@ -216,3 +217,16 @@ def test_strategies_side_by_side_with_variants():
         assert ev.n == 3
         for f in ("operating", "steady_coupled", "cooler_duty", "capacity"):
             _same(getattr(alone, f), getattr(ev, f), f"{st.name} {f}")
+
+
+def test_a_varied_compensator_above_the_relief_is_refused():
+    # a sweep reaching the relief's cracking pressure (180 bar) is refused by name,
+    # as the file would be (the pump would sit on its relief, not its compensator)
+    sc = io.load_scenario(io.default_scenario_path())
+    path = "strategies.pressure-compensated.compensator_setting"
+    with pytest.raises(HeatloadError, match="compensator_setting.*relief"):
+        evaluation.evaluate(sc, "pressure-compensated",
+                            {path: np.array([150e5, 175e5, 185e5])}, thermal="design")
+    ok = evaluation.evaluate(sc, "pressure-compensated", {path: np.array([150e5, 175e5])},
+                             thermal="design")
+    assert ok.n == 2

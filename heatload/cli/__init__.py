@@ -591,6 +591,11 @@ def main(argv=None) -> int:
             warnings.showwarning = _one_line_warning(set())
             return int(args.func(args) or 0)
     except HeatloadError as exc:
+        path = getattr(args, "file", None)
+        if exc.file is None and path and exc.field and not exc.field.startswith("-"):
+            # raised after loading, naming a field of the file: where it stands there
+            from heatload import io
+            exc = io.locate_in_file(exc, path)
         print(f"heatload: error: {exc.one_line()}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:

@@ -403,7 +403,39 @@ def strategy_arrays(scenario: Scenario, strategy: Strategy | str,
         "unloading_drop": sp("unloading_valve_drop"),
     }
     out.update(_two_stage_and_accumulator(sp, relief, strategy.kind))
+    _below_relief(strategy, out, relief)
     return {k: _row(v) for k, v in out.items()}
+
+
+#: A circuit's pressure settings that must lie below the relief valve's cracking
+#: pressure (solver entry, field of the file, what it sets)
+_BELOW_RELIEF = (("compensator", "compensator_setting", "the pump's compensator"),
+                 ("unload_pressure", "unloading_pressure", "the large pump's unloading valve"),
+                 ("acc_p_max", "accumulator_pressure_max",
+                  "the accumulator's charging (unloading) valve"))
+
+
+def _below_relief(strategy, out, relief):
+    """Refuse a setting of the circuit at or above the relief valve's cracking
+    pressure: the relief would open first, so the compensator would never
+    destroke (or the valve never unload) and the circuit would run as a fixed
+    pump over its relief, not as set.  Common practice sets them 10-20 bar
+    below the relief."""
+    from heatload.errors import HeatloadError
+    from heatload.hydraulics.strategies import circuit
+    reads = circuit(strategy.kind).settings
+    for entry, field, what in _BELOW_RELIEF:
+        if field not in reads:
+            continue
+        bad = np.asarray(out[entry]) >= np.asarray(relief)
+        if np.any(bad):
+            v = float(np.max(np.broadcast_to(out[entry], np.shape(bad))[bad])) / 1e5
+            r = float(np.min(np.broadcast_to(relief, np.shape(bad))[bad])) / 1e5
+            raise HeatloadError(
+                f"{field} {v:g} bar is at or above the relief valve's cracking pressure "
+                f"{r:g} bar: the relief would open first and {what} never act; give it "
+                f"below the relief (Pa, e.g. \"{max(r - 10.0, 0.5 * r):g} bar\"; common "
+                f"practice 10-20 bar below)", field=f"strategies.{strategy.name}.{field}")
 
 
 def _two_stage_and_accumulator(sp, relief, kind) -> dict:

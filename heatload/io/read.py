@@ -644,6 +644,7 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
                           reservoir=reservoir, power_unit=power_unit, economics=economics,
                           cooler=cooler, coolers=coolers,
                           **{k: v for k, v in head.items() if k != "name"})
+    _check_strategy_settings(scenario, source)
     if "repeats" in data:
         scenario = dataclasses.replace(scenario,
                                        repeats=_repeats(data["repeats"], phases, source))
@@ -655,6 +656,18 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
         scenario = dataclasses.replace(
             scenario, uncertainty=_uncertainty(data["uncertainty"], scenario, source))
     return scenario
+
+
+def _check_strategy_settings(scenario: m.Scenario, source: str) -> None:
+    """The rules between a circuit's settings and the power unit (a compensator
+    or unloading valve below the relief, an accumulator's working range), where
+    the solver's entries are made (:func:`heatload.hydraulics.cycle.strategy_arrays`)."""
+    from heatload.hydraulics import cycle
+    for st in scenario.strategies:
+        try:
+            cycle.strategy_arrays(scenario, st)
+        except HeatloadError as e:
+            raise (e.located(file=source) if e.file is None else e) from None
 
 
 def _celsius(t: float) -> str:

@@ -624,6 +624,27 @@ def test_hi_lo_and_accumulator_settings_refused(lines, field):
     assert field in str(info.value) and "bad.toml" in str(info.value)
 
 
+@pytest.mark.parametrize("kind, line, field", [
+    ("pressure-compensated", 'compensator_setting = "200 bar"', "compensator_setting"),
+    ("load-sensing", 'compensator_setting = "180 bar"', "compensator_setting"),
+    ("hi-lo", 'unloading_pressure = "500 bar"', "unloading_pressure"),
+    ("accumulator", 'accumulator_pressure_max = "250 bar"', "accumulator_pressure_max"),
+])
+def test_a_setting_at_or_above_the_relief_is_refused(kind, line, field):
+    # the relief (180 bar here) would open first: the compensator would never
+    # destroke, the unloading valve never unload (common practice: 10-20 bar below)
+    text = io.default_scenario_path().read_text(encoding="utf-8")
+    assert 'cracking_pressure = "180 bar"' in text
+    text += f"\n[[strategies]]\nlabel = \"trial\"\nkind = \"{kind}\"\n{line}\n"
+    with pytest.raises(HeatloadError) as info:
+        io.loads_scenario(text, source="bad.toml")
+    msg = str(info.value)
+    assert field in msg and "bad.toml" in msg and "relief" in msg and "bar" in msg
+    # 10 bar below it loads
+    ok = re.sub(r'"\d+ bar"', '"170 bar"', line)
+    io.loads_scenario(text.replace(line, ok), source="ok.toml")
+
+
 def test_regeneration_is_read_written_and_refused_where_it_cannot_be():
     text = MINIMAL.replace('motion = "extend"', 'motion = "extend"\nregeneration = true', 1)
     s = io.loads_scenario(text)
