@@ -16,7 +16,7 @@ from dash.exceptions import DependencyException
 
 from . import callbacks, layout, logfit_view
 from heatload import io
-from heatload.errors import HeatloadError
+from heatload.errors import HeatloadError, printable
 
 LOOPBACK = ("127.0.0.1", "localhost", "::1")
 
@@ -156,6 +156,26 @@ def make_server(app, host="127.0.0.1", port=8050, threads=8):
                          ident="heatload", max_request_body_size=layout.MAX_REQUEST_BYTES)
 
 
+def _check_address(host, port):
+    """Refuse, before anything starts, an address this machine cannot serve on:
+    a host that is not one of its addresses, or a port another program holds."""
+    import socket
+    try:
+        family, kind, proto, _, addr = socket.getaddrinfo(host, port,
+                                                           type=socket.SOCK_STREAM)[0]
+    except (OSError, UnicodeError, ValueError) as exc:
+        raise HeatloadError(f"cannot serve on {printable(str(host))!r}: not an address of this "
+                            f"machine ({printable(str(exc))})", field="--host") from None
+    with socket.socket(family, kind, proto) as probe:
+        probe.setsockopt(socket.SOL_SOCKET, socket.SO_REUSEADDR, 1)
+        try:
+            probe.bind(addr)
+        except OSError as exc:
+            raise HeatloadError(f"cannot serve on {host}:{port}: {exc.strerror or exc} "
+                                f"(another program may hold the port: give --port N)",
+                                field="--port") from None
+
+
 def run_cli(args) -> int:
     """``heatload dashboard [FILE] [--port N] [--host H] [--threads N] [--debug]``."""
     file = getattr(args, "file", None) or getattr(args, "scenario", None)
@@ -170,6 +190,7 @@ def run_cli(args) -> int:
     if not THREADS[0] <= threads <= THREADS[1]:
         raise HeatloadError(f"expected {THREADS[0]}..{THREADS[1]} threads, got {threads}",
                             field="--threads")
+    _check_address(host, port)
     app = make_app(file)
     if host not in LOOPBACK:
         print(f"warning: serving on {host}: the dashboard is reachable from other machines "

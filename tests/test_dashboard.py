@@ -699,3 +699,20 @@ def test_uncertainty_view_says_when_it_runs_another_count(base):
     assert "Samples: 100 (asked 10" in note.children
     out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
     assert not any(getattr(g, "id", None) == "mc-clamped" for g in out.children)
+
+
+def test_a_port_in_use_or_a_foreign_host_is_refused_before_starting(capsys):
+    # one line naming the flag, exit 2, nothing started (no banner)
+    import socket
+
+    from heatload import cli
+    with socket.socket() as held:
+        held.bind(("127.0.0.1", 0))
+        held.listen(1)
+        port = held.getsockname()[1]
+        assert cli.main(["dashboard", "--port", str(port)]) == 2
+    err = capsys.readouterr().err
+    assert "--port" in err and "in use" in err and "http://" not in err
+    assert cli.main(["dashboard", "--host", "999.1.1.1", "--port", "8769"]) == 2
+    err = capsys.readouterr().err
+    assert "--host" in err and "not an address" in err and "http://" not in err
