@@ -71,6 +71,20 @@ def test_compare_json_lists_all_strategies(capsys):
     assert sorted(data["ranking"]) == sorted(s["label"] for s in data["strategies"])
 
 
+def test_compare_table_marks_the_strategies_a_warning_rules_out(capsys):
+    # the feasible ones numbered by their rank, the rest marked "out" (not numbered
+    # among them); the default press has both
+    from heatload import chain
+    sc = io.load_scenario(io.default_scenario_path())
+    verdicts = chain.compare(sc).decision().verdicts
+    assert any(v.feasible for v in verdicts) and not all(v.feasible for v in verdicts)
+    assert main(["compare", "--wide"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    for v in verdicts:
+        row = next(ln for ln in lines if re.match(rf"\s*\S+\s+{re.escape(v.name)}\s", ln))
+        assert row.split()[0] == (str(v.rank) if v.feasible else "out"), row
+
+
 def test_compare_table_runs_in_us_units(capsys):
     assert main(["compare", "--units", "us", "--strategy", "meter-in"]) == 0
     out = capsys.readouterr().out

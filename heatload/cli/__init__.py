@@ -152,10 +152,13 @@ def cmd_compare(args):
                f"cooler\n[{_unit('power', s)}]", peak, eff, "warnings"]
     rows = []
     dec = cmp.decision()
-    for i, o in enumerate(cmp.ranked(), 1):
+    verdict = {v.name: v for v in dec.verdicts}
+    for o in cmp.ranked():
         e, th = o.energy, o.thermal
         codes = sorted({w.code for w in o.warnings})
-        rows.append([i, o.name, f"{float(e.electric_energy_per_year) / 3.6e6:,.0f}",
+        # a strategy a warning rules out is marked, not numbered among the feasible
+        v = verdict[o.name]
+        rows.append([v.rank if v.feasible else "out", o.name, f"{float(e.electric_energy_per_year) / 3.6e6:,.0f}",
                      f"{float(e.cost_per_year):,.0f}", f"{float(e.co2_per_year) / 1000:,.1f}",
                      _num(th.heat_running, "power", s), _num(th.steady_coupled,
                                                                    "temperature", s),
