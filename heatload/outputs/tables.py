@@ -55,6 +55,10 @@ def phase_records(outcome, scenario, pa) -> list:
             "stalled": bool(r.stalled[i]), "flow_limited": bool(r.flow_limited[i]),
             "runaway": bool(r.runaway[i]),
         }
+        if r.stored_power is not None:
+            # an accumulator's gas: put in (+) or given back (-); each phase closes
+            # electric = useful + losses + stored
+            rec["stored_power_W"] = _f(r.stored_power[i])
         rec["actuators"] = list(ph.actuators)
         rec["motions"] = motion_records(r, scenario, i)
         out.append(rec)

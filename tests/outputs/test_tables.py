@@ -103,3 +103,21 @@ def test_payback_by_hand():
     assert got[0] == pytest.approx(2.0)
     assert math.isinf(got[1]) and math.isinf(got[2])
     assert np.asarray(got).shape == (3,)
+
+
+def test_an_accumulators_phases_close_with_the_stored_power():
+    # per phase: electric = useful + every loss + the power into the gas (first
+    # law of the circuit with the accumulator as its store)
+    from heatload import chain, io
+    from heatload.outputs import tables
+    path = next(p for p in io.example_paths() if p.name == "accumulator_baler.toml")
+    sc = io.load_scenario(path)
+    cmp = chain.compare(sc, ["accumulator"])
+    recs = tables.phase_records(cmp.outcomes[0], sc, cmp.phase_arrays)
+    assert any(abs(r["stored_power_W"]) > 1.0 for r in recs)
+    for r in recs:
+        total = r["useful_power_W"] + sum(r["losses_W"].values()) + r["stored_power_W"]
+        assert abs(r["electric_power_W"] - total) <= 1e-6 * max(abs(r["electric_power_W"]), 1.0)
+    # a circuit that stores nothing has no such entry
+    other = chain.compare(sc, ["meter-in"]).outcomes[0]
+    assert "stored_power_W" not in tables.phase_records(other, sc, cmp.phase_arrays)[0]
