@@ -25,7 +25,7 @@ from heatload.io.schema import (_MOTION, MAX_AREA_RATIO, MAX_PHASE_DURATION, MIN
                                 _HYDRAULIC_MOTOR, _PARAMETERS, _PHASE, _POWER_UNIT, _REPEAT,
                                 _RESERVOIR, _SCENARIO, _STRATEGY, _SURFACE, _TOP,
                                 _UNCERTAINTY, _array, _err, _read, _show, _suggest, _table,
-                                _value)
+                                _value, ceiling_of)
 
 
 # ---------------------------------------------------------------------------
@@ -500,10 +500,12 @@ _PERCENT = re.compile(r"^\s*([+-]?\d+(?:\.\d*)?(?:[eE][+-]?\d+)?)\s*%\s*$")
 def _bounds_hold_the_field(u: m.UncertainInput, ref, p: str, source, scenario) -> None:
     """The values an uncertain input's bounds give must be values its field may
     take, or the Monte Carlo would sample machines that cannot exist: the
-    file's sign rule (an efficiency within (0, 1], a length above 0), then the
     machine with the field at each bound goes through this loader's own checks
-    (the field's plausible range and magnitude limit, and the rules between
-    fields such as oil within its tank), as ``sweep --vary`` does with its ranges."""
+    (the field's sign rule, plausible range and magnitude limit, and the rules
+    between fields such as oil within its tank or the design oil temperature
+    within the fluid's limit), as ``sweep --vary`` does with its ranges; then the
+    bound is held to the range every field path holds
+    (:func:`heatload.paths.allowed_range`)."""
     from heatload import paths
     from heatload.io.write import scenario_to_dict
     from heatload.units import format_quantity
@@ -512,23 +514,25 @@ def _bounds_hold_the_field(u: m.UncertainInput, ref, p: str, source, scenario) -
         bound = getattr(u, key)
         values = ([None if v is None else v * bound for v in ref.nominal] if u.relative
                   else [bound] * len(ref.targets))
+        if ref.targets != (("reservoir", "heat_transfer_factor"),):
+            # a file field: the loader's own message says best what is wrong
+            variant = paths.replaced_scenario(dataclasses.replace(scenario, uncertainty=()),
+                                              {ref.path: values})
+            try:
+                scenario_from_dict(scenario_to_dict(variant), source)
+            except HeatloadError as e:
+                shown = sorted({v for v in values if v is not None})
+                shown = (", ".join(format_quantity(v, ref.kind) for v in shown[:3])
+                         + (" ..." if len(shown) > 3 else "") if ref.kind else "")
+                raise _err(f"this bound gives {u.path} {shown or 'values'} the file itself "
+                           f"could not hold: {e.field + ': ' if e.field else ''}{e.message}",
+                           f"{p}.{key}", source) from None
+        # the range every path holds its values to (a factor on the computed UA has
+        # no file field; for the rest it repeats what the loader found)
         try:
-            paths._check_values(ref, np.asarray([v for v in values if v is not None], float))
+            paths._check_values(ref, values, scenario, per_target=True)
         except HeatloadError as e:
             raise _err(f"this bound gives {u.path} a value it cannot take: {e.message}",
-                       f"{p}.{key}", source) from None
-        if ref.targets == (("reservoir", "heat_transfer_factor"),):
-            continue            # a factor on the computed UA: no file field to hold
-        variant = paths.replaced_scenario(dataclasses.replace(scenario, uncertainty=()),
-                                          {ref.path: values})
-        try:
-            scenario_from_dict(scenario_to_dict(variant), source)
-        except HeatloadError as e:
-            shown = sorted({v for v in values if v is not None})
-            shown = (", ".join(format_quantity(v, ref.kind) for v in shown[:3])
-                     + (" ..." if len(shown) > 3 else "") if ref.kind else "")
-            raise _err(f"this bound gives {u.path} {shown or 'values'} the file itself could "
-                       f"not hold: {e.field + ': ' if e.field else ''}{e.message}",
                        f"{p}.{key}", source) from None
 
 
@@ -698,12 +702,29 @@ def _check_simultaneous_travel(scenario: m.Scenario, durations, source: str) -> 
                            f"phases[{i}].simultaneous[{j}].speed", source)
 
 
+def _above_fluid_limit(t_design: float, fluid: m.Fluid, limit: float) -> str:
+    """Why a design oil temperature above the fluid's own limit is refused (the
+    loader's message; field paths give the same reason)."""
+    given = "" if fluid.temperature_max != m.Fluid.temperature_max else ", its default"
+    return (f"{_celsius(t_design)} is above the upper temperature limit of the fluid, "
+            f"{_celsius(limit)} (fluid.temperature_max{given}): no cooler may be designed "
+            f"to hold the oil hotter than the oil stands; expected a temperature (e.g. "
+            f"\"{limit - 273.15 - m.DESIGN_TEMPERATURE_HEADROOM:g} degC\") at or below it, "
+            f"or the fluid's own limit from its maker as fluid.temperature_max")
+
+
 def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) -> None:
-    """Refuse a design point no cooler of the chosen coolant can hold: air cannot
-    cool the oil below the hottest air (ETD = T_oil - T_air must be positive), and
-    water cannot cool it below the water's inlet temperature."""
+    """Refuse a design point no oil or cooler can hold: above the fluid's own
+    upper temperature limit (``fluid.temperature_max``, the ceiling of
+    ``cooler.oil_temperature_max`` in the schema) the oil itself cannot run; air
+    cannot cool the oil below the hottest air (ETD = T_oil - T_air must be
+    positive), and water cannot cool it below the water's inlet temperature."""
     cd = scenario.cooler
     t_d = m.design_oil_temperature(scenario.fluid, cd)
+    ceiling = ceiling_of(scenario, _COOLER["oil_temperature_max"])
+    if design_given and t_d > ceiling * (1 + 1e-12):
+        raise _err(_above_fluid_limit(t_d, scenario.fluid, ceiling),
+                   "cooler.oil_temperature_max", source)
     what = ("the design oil temperature" if design_given
             else f"the design oil temperature (the fluid's limit less "
                  f"{m.DESIGN_TEMPERATURE_HEADROOM:g} K)")

@@ -29,6 +29,7 @@ from __future__ import annotations
 
 import dataclasses
 import difflib
+import math
 from functools import lru_cache
 
 from heatload import model as m
@@ -387,6 +388,9 @@ class _F:
     low: float | None = None               # plausible range beyond the kind's own
     high: float | None = None
     why: str | None = None                 # the range and its reason, for the message
+    #: another field of the same scenario (its path) that this one may not exceed
+    #: (:func:`ceiling_of`): a design oil temperature above the fluid's own limit
+    ceiling: str | None = None
 
 
 _BAR = 1e5
@@ -666,7 +670,7 @@ _STRATEGY = {
     **_PARAMETERS,
 }
 _COOLER = {
-    "oil_temperature_max": _F("temperature", "pos"),
+    "oil_temperature_max": _F("temperature", "pos", ceiling="fluid.temperature_max"),
     "margin": _F("dimensionless", "nonneg", high=5.0),
     "coolant": _F("choice", choices=tuple(COOLER_TYPES)),
     "water_inlet_temperature": _F("temperature", "pos"),
@@ -768,6 +772,62 @@ def _check(value: float, raw, spec: _F, kind: str, field: str, source: str) -> f
         raise _err(f"{shown} is beyond any plausible machine (limit {limit[1]}); "
                    "check the unit", field, source)
     return value
+
+
+def allowed_range(spec: _F, kind: str | None = None) -> tuple:
+    """The values :func:`_check` lets through, as an interval: ``(low,
+    low_open, high, high_open)`` [SI of *kind*] (``-inf`` / ``inf`` where
+    unbounded; ``*_open``: the bound itself is refused).
+
+    The same rules as :func:`_check`, read from the same specification: the
+    sign rule (``pos`` > 0, ``nonneg`` >= 0, ``eff`` within
+    [:data:`MIN_EFFICIENCY`, 1], ``frac`` [0, 1], ``frac_pos`` (0, 1]), a
+    temperature above absolute zero, the field's plausible ``low`` / ``high``
+    and its kind's magnitude limit (:data:`_LIMITS`).  A field's
+    :attr:`_F.ceiling` depends on the scenario and is not included
+    (:func:`ceiling_of`).  Field paths (:mod:`heatload.paths`) hold overrides,
+    sweeps and Monte Carlo samples to this interval.
+    """
+    kind = kind or spec.kind
+    low, low_open, high, high_open = -math.inf, False, math.inf, False
+
+    def above(x, is_open):
+        nonlocal low, low_open
+        if x > low or (x == low and is_open):
+            low, low_open = x, is_open
+
+    def below(x, is_open):
+        nonlocal high, high_open
+        if x < high or (x == high and is_open):
+            high, high_open = x, is_open
+    c = spec.check
+    if kind == "temperature" or c in ("pos", "frac_pos"):
+        above(0.0, True)
+    if c in ("nonneg", "frac"):
+        above(0.0, False)
+    if c == "eff":
+        above(MIN_EFFICIENCY, False)
+    if c in ("eff", "frac", "frac_pos"):
+        below(1.0, False)
+    if spec.low is not None:
+        above(spec.low, False)
+    if spec.high is not None:
+        below(spec.high, False)
+    limit = _LIMITS.get(kind)
+    if limit is not None:
+        above(-limit[0], False)
+        below(limit[0], False)
+    return low, low_open, high, high_open
+
+
+def ceiling_of(scenario, spec: _F):
+    """The value of *spec*'s :attr:`_F.ceiling` field in *scenario* [SI], or None."""
+    if spec.ceiling is None:
+        return None
+    obj = scenario
+    for part in spec.ceiling.split("."):
+        obj = getattr(obj, part)
+    return float(obj)
 
 
 def _value(raw, spec: _F, field: str, source: str, kind: str | None = None):

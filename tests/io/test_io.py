@@ -748,3 +748,34 @@ def test_fluid_name_follows_the_grade_when_none_is_given():
     sc = io.loads_scenario(body)
     assert sc.fluid.iso_grade == 68 and sc.fluid.name == "ISO VG 68 mineral oil"
     assert io.loads_scenario(io.dumps_scenario(sc)) == sc
+
+
+def test_allowed_range_is_the_loaders_own_check():
+    """``schema.allowed_range`` states the loader's ``_check`` as an interval: for
+    every numeric key of every table a value just inside each finite bound loads and
+    one just outside is refused (a second copy of the rules would drift)."""
+    import math
+
+    from heatload.io import schema
+    from heatload.units import KINDS
+
+    tables = [v for k, v in vars(schema).items() if k.startswith("_") and isinstance(v, dict)
+              and v and all(isinstance(f, schema._F) for f in v.values())]
+    checked = 0
+    for table in tables:
+        for key, spec in table.items():
+            if spec.kind not in KINDS:
+                continue
+            lo, lo_open, hi, hi_open = schema.allowed_range(spec)
+            assert lo < hi, key
+            for bound, is_open, step in ((lo, lo_open, 1.0), (hi, hi_open, -1.0)):
+                if not math.isfinite(bound):
+                    continue
+                d = 1e-6 * max(abs(bound), 1.0)
+                inside = bound if not is_open else bound + step * d
+                schema._check(inside, inside, spec, spec.kind, key, "t.toml")
+                with pytest.raises(HeatloadError):
+                    schema._check(bound - step * d, bound - step * d, spec, spec.kind, key,
+                                  "t.toml")
+                checked += 1
+    assert checked > 100
