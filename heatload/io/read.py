@@ -162,6 +162,14 @@ def _power_unit(data, source):
     if not pu.pump.viscosity_min < pu.pump.viscosity_max:
         raise _err("viscosity_min must be below viscosity_max",
                    "power_unit.pump.viscosity_min", source)
+    pump = pu.pump
+    if not pump.viscosity_min <= pump.rated_viscosity <= pump.viscosity_max:
+        raise _err(f"the datasheet point's viscosity, {pump.rated_viscosity * 1e6:.4g} mm²/s, "
+                   f"lies outside the pump's own allowed window "
+                   f"{pump.viscosity_min * 1e6:.4g} .. {pump.viscosity_max * 1e6:.4g} mm²/s "
+                   f"(viscosity_min .. viscosity_max): no datasheet gives efficiencies where "
+                   f"the pump may not run; expected a kinematic viscosity inside it (e.g. "
+                   f"\"32 mm^2/s\"; check the unit)", "power_unit.pump.rated_viscosity", source)
     if pu.check_valve.pressure_drop < pu.check_valve.cracking_pressure:
         raise _err("the drop at rated flow includes the cracking pressure, so it "
                    "cannot be smaller", "power_unit.check_valve.pressure_drop", source)
@@ -652,6 +660,7 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
         scenario = dataclasses.replace(scenario,
                                        repeats=_repeats(data["repeats"], phases, source))
     _check_phase_durations(scenario, source)
+    _check_ceilings(scenario, data, source)
     _check_cooler_design(scenario, "cooler" in data and "oil_temperature_max" in data["cooler"],
                          source)
     # after the machine's own checks: a bound is judged against a machine that loads
@@ -702,29 +711,41 @@ def _check_simultaneous_travel(scenario: m.Scenario, durations, source: str) -> 
                            f"phases[{i}].simultaneous[{j}].speed", source)
 
 
-def _above_fluid_limit(t_design: float, fluid: m.Fluid, limit: float) -> str:
-    """Why a design oil temperature above the fluid's own limit is refused (the
-    loader's message; field paths give the same reason)."""
-    given = "" if fluid.temperature_max != m.Fluid.temperature_max else ", its default"
-    return (f"{_celsius(t_design)} is above the upper temperature limit of the fluid, "
-            f"{_celsius(limit)} (fluid.temperature_max{given}): no cooler may be designed "
-            f"to hold the oil hotter than the oil stands; expected a temperature (e.g. "
-            f"\"{limit - 273.15 - m.DESIGN_TEMPERATURE_HEADROOM:g} degC\") at or below it, "
-            f"or the fluid's own limit from its maker as fluid.temperature_max")
+#: Why a [cooler] temperature may not pass the fluid's own upper limit (its
+#: ceiling in the schema, ``_F.ceiling``).
+_ABOVE_FLUID_LIMIT = {
+    "oil_temperature_max": "no cooler may be designed to hold the oil hotter than the oil "
+                           "stands",
+    "thermostat_on": "a cooler switched on only above it lets the oil pass its limit "
+                     "before it cools",
+}
+
+
+def _check_ceilings(scenario: m.Scenario, data: dict, source: str) -> None:
+    """Refuse a ``[cooler]`` temperature the file gives above the fluid's own
+    upper limit (``fluid.temperature_max``, the ceiling its field specification
+    names): a temperature no oil stands.  *data*: the file's tables."""
+    given = data.get("cooler", {})
+    default = "" if "temperature_max" in data.get("fluid", {}) else ", its default"
+    for key, why in _ABOVE_FLUID_LIMIT.items():
+        value = getattr(scenario.cooler, key)
+        limit = ceiling_of(scenario, _COOLER[key])
+        if key not in given or value is None or value <= limit * (1 + 1e-12):
+            continue
+        raise _err(f"{_celsius(value)} is above the upper temperature limit of the fluid, "
+                   f"{_celsius(limit)} ({_COOLER[key].ceiling}{default}): {why}; expected a "
+                   f"temperature (e.g. \"{limit - 273.15 - m.DESIGN_TEMPERATURE_HEADROOM:g} "
+                   f"degC\") at or below it, or the fluid's own limit from its maker as "
+                   f"fluid.temperature_max", f"cooler.{key}", source)
 
 
 def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) -> None:
-    """Refuse a design point no oil or cooler can hold: above the fluid's own
-    upper temperature limit (``fluid.temperature_max``, the ceiling of
-    ``cooler.oil_temperature_max`` in the schema) the oil itself cannot run; air
+    """Refuse a design point no cooler of the chosen coolant can hold (one above
+    the fluid's own limit is refused before, :func:`_check_ceilings`): air
     cannot cool the oil below the hottest air (ETD = T_oil - T_air must be
     positive), and water cannot cool it below the water's inlet temperature."""
     cd = scenario.cooler
     t_d = m.design_oil_temperature(scenario.fluid, cd)
-    ceiling = ceiling_of(scenario, _COOLER["oil_temperature_max"])
-    if design_given and t_d > ceiling * (1 + 1e-12):
-        raise _err(_above_fluid_limit(t_d, scenario.fluid, ceiling),
-                   "cooler.oil_temperature_max", source)
     what = ("the design oil temperature" if design_given
             else f"the design oil temperature (the fluid's limit less "
                  f"{m.DESIGN_TEMPERATURE_HEADROOM:g} K)")

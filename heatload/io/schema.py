@@ -679,7 +679,7 @@ _COOLER = {
     "water_temperature_rise": _F("temperature_difference", "pos"),
     "air_temperature_rise": _F("temperature_difference", "pos"),
     "oil_pressure_drop_max": _F("pressure", "pos"),
-    "thermostat_on": _F("temperature", "pos"),
+    "thermostat_on": _F("temperature", "pos", ceiling="fluid.temperature_max"),
     "thermostat_hysteresis": _F("temperature_difference", "nonneg"),
     "price_fixed": _F("dimensionless", "nonneg"),
     "price_per_kW": _F("dimensionless", "nonneg"),

@@ -779,3 +779,34 @@ def test_allowed_range_is_the_loaders_own_check():
                                   "t.toml")
                 checked += 1
     assert checked > 100
+
+
+def _press_set(key, value):
+    text = io.default_scenario_path().read_text(encoding="utf-8")
+    text, n = re.subn(rf'(?m)^{key} = "[^"]*"', f'{key} = "{value}"', text, count=1)
+    assert n == 1, key
+    return text
+
+
+def test_thermostat_above_the_fluids_limit_is_refused_and_at_it_loads():
+    # a cooler's thermostat switches it on below the oil's limit (mineral oil: the
+    # fan comes on at about 45-55 degC, the oil stays below about 80 degC; common
+    # practice, from memory): one that waits until past the limit lets the oil pass it
+    with pytest.raises(HeatloadError, match=r"cooler\.thermostat_on: 81 °C is above .*80 °C"):
+        io.loads_scenario(_press_set("thermostat_on", "81 degC"))
+    sc = io.loads_scenario(_press_set("thermostat_on", "80 degC"))   # the limit itself
+    assert sc.cooler.thermostat_on == pytest.approx(353.15)
+
+
+def test_pump_rated_viscosity_inside_its_own_window():
+    # a datasheet's efficiencies are measured at a viscosity the pump runs at
+    # (commonly 30-36 mm^2/s, inside a window of about 10 .. 1000 mm^2/s; common
+    # practice, from memory)
+    for nu, ok in (("9.9 mm^2/s", False), ("10 mm^2/s", True), ("1000 mm^2/s", True),
+                   ("1001 mm^2/s", False)):
+        text = _press_set("rated_viscosity", nu)
+        if ok:
+            io.loads_scenario(text)
+        else:
+            with pytest.raises(HeatloadError, match="power_unit.pump.rated_viscosity"):
+                io.loads_scenario(text)
