@@ -84,7 +84,7 @@ bulk_modulus = "1.6 GPa"
 specific_heat = "1.88 kJ/(kg*K)"       # leave out for the Cragoe correlation
 thermal_conductivity = "0.13 W/(m*K)"  # leave out for the Cragoe correlation
 temperature_min = "-20 degC"           # allowed oil temperature window
-temperature_max = "80 degC"
+temperature_max = "80 degC"            # the ceiling of the cooler's temperatures below
 kind = "mineral"                       # mineral | water-glycol | ester | other
 # For a fluid given by data instead (at least two points, distinct temperatures):
 # viscosity_points = [["20 degC", "120 mm^2/s"], ["40 degC", "46 mm^2/s"], ["80 degC", "12 mm^2/s"]]
@@ -125,7 +125,7 @@ shaft_speed = "1450 rpm"
 volumetric_efficiency = 0.93           # datasheet point ...
 hydromechanical_efficiency = 0.88
 rated_pressure = "200 bar"             # ... at this pressure
-rated_viscosity = "32 mm^2/s"          # ... and this viscosity
+rated_viscosity = "32 mm^2/s"          # ... and this viscosity (inside the window below)
 max_pressure = "250 bar"               # continuous rating
 viscosity_min = "10 mm^2/s"            # allowed viscosity window
 viscosity_max = "1000 mm^2/s"
@@ -325,7 +325,8 @@ price = 2000
 
 [cooler]
 oil_temperature_max = "55 degC"        # design oil temperature; default fluid max - 5 K;
-                                       # above temperature_max of [ambient] for air (ETD > 0)
+                                       # at most the fluid's temperature_max, and above
+                                       # temperature_max of [ambient] for air (ETD > 0)
 margin = 0.2                           # +20 % on the duty
 coolant = "air"                        # air | water
 water_inlet_temperature = "25 degC"    # for water: below the design oil temperature
@@ -334,7 +335,8 @@ water_glycol_fraction = 0.0            # ethylene glycol mass fraction
 water_temperature_rise = "5 K"
 air_temperature_rise = "10 K"
 oil_pressure_drop_max = "1 bar"
-thermostat_on = "45 degC"              # leave out for a cooler that always runs
+thermostat_on = "45 degC"              # leave out for a cooler that always runs; at most
+                                       # the fluid's temperature_max
 thermostat_hysteresis = "5 K"
 # price_fixed = 500                    # cooler price, fixed part, in currency; leave out for
 # price_per_kW = 100                   # ... the defaults (common practice) of heatload.decision
