@@ -165,3 +165,21 @@ def test_truncated_share_is_reported_in_the_text_and_not_when_trivial(tmp_path, 
     # 1 is 4 sigma away) cut nothing worth a word
     assert main(["cooler", "--samples", "2000", "--wide"]) == 0
     assert "drawn again" not in capsys.readouterr().out
+
+
+def test_design_temperature_samples_stay_at_or_below_the_fluids_limit():
+    # a normal 60 .. 78 degC (5th .. 95th percentiles) on the design oil temperature:
+    # mean 69 degC, sigma 9 K / 1.645 = 5.47 K, so 2.2 % of a normal lies past the
+    # press's 80 degC fluid limit (standard normal, scipy.stats); those are drawn again
+    from scipy import stats
+
+    lo, hi = 60.0 + 273.15, 78.0 + 273.15
+    sc = _only(UncertainInput("cooler.oil_temperature_max", "normal", lo, hi, relative=False))
+    n = 4000
+    r = uncertainty.monte_carlo(sc, "load-sensing", samples=n, seed=5)
+    t = r.samples["cooler.oil_temperature_max"]
+    limit = SC.fluid.temperature_max
+    assert limit == pytest.approx(353.15) and np.all(t <= limit) and np.all(t > 273.15)
+    share = stats.norm.sf(limit, 0.5 * (lo + hi), (hi - lo) / (2 * uncertainty.Z95))
+    assert r.truncated["cooler.oil_temperature_max"] / n == pytest.approx(
+        share, abs=4 * np.sqrt(share * (1 - share) / n))
