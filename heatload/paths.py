@@ -266,20 +266,29 @@ def allowed_range(scenario: Scenario, ref: FieldRef) -> tuple:
     (:func:`heatload.io.schema.allowed_range`: its sign rule, plausible range
     and magnitude limit, the limits the loader holds a file to), tightened by a
     ceiling set by another field of the scenario (the design oil temperature at
-    most the fluid's own limit, ``fluid.temperature_max``).  Overrides, sweeps
+    most the fluid's own limit, ``fluid.temperature_max``; a phase's set speed
+    at most its motor's ``max_speed``).  Overrides, sweeps
     and the Monte Carlo's samples are held to it.
     """
     lows, highs = [], []
     low_open = high_open = False
-    ceiling = _schema.ceiling_of(scenario, ref.spec)
-    for kind in (ref.kinds or (ref.kind,) * len(ref.targets)):
+    for target, kind in zip(ref.targets, ref.kinds or (ref.kind,) * len(ref.targets)):
         lo, lo_open, hi, hi_open = _schema.allowed_range(ref.spec, kind)
+        ceiling = _schema.ceiling_of(scenario, ref.spec, _actuator_of(scenario, target))
         if ceiling is not None and ceiling <= hi:
             hi, hi_open = ceiling, False
         lows.append(lo)
         highs.append(hi)
         low_open, high_open = low_open or lo_open, high_open or hi_open
     return np.array(lows), low_open, np.array(highs), high_open
+
+
+def _actuator_of(scenario, target):
+    """The actuator a target's field belongs to: a phase's own (None: an idle
+    phase, or a target of no phase)."""
+    if target[0] == "phase" and scenario.phases[target[1]].actuator:
+        return scenario.actuator(scenario.phases[target[1]].actuator)
+    return None
 
 
 def _check_values(ref: FieldRef, values, scenario: Scenario, per_target=False):
@@ -317,9 +326,8 @@ def _check_values(ref: FieldRef, values, scenario: Scenario, per_target=False):
             what = f"{'>' if lo_open else '>='} {lo_s:g}{unit}"
         else:
             what = f"{'<' if hi_open else '<='} {hi_s:g}{unit}"
-        ceiling = _schema.ceiling_of(scenario, ref.spec)
-        if ceiling is not None and x > ceiling:
-            what += f" ({ref.spec.ceiling}, the most it may be)"
+        if ref.spec.ceiling is not None and x > hi_s:
+            what += f" (at most its {ref.spec.ceiling})"
         raise HeatloadError(f"values must be {what} (SI), got {x:g}", field=ref.path)
 
 

@@ -1,10 +1,12 @@
 """One field-path grammar: what the loader accepts in ``[[uncertainty]]`` is what
 sweeps and the Monte Carlo can vary, and what they refuse the loader refuses."""
 
+import dataclasses
+
 import numpy as np
 import pytest
 
-from heatload import io, paths
+from heatload import io, model as m, paths
 from heatload.studies import uncertainty, variants
 from heatload.errors import HeatloadError
 
@@ -182,3 +184,49 @@ def test_design_temperature_above_the_fluids_limit_is_refused_by_every_path():
         with pytest.raises(HeatloadError, match="upper temperature limit") as info:
             io.loads_scenario(t)
         assert info.value.field.startswith("uncertainty[") and info.value.field.endswith(".high")
+
+
+# A hydraulic motor's set speed may not pass the maximum speed its maker gives
+# (max_speed on the datasheet; common practice).  Check value: the conveyor's
+# drum motor, 400 rpm.
+WINCH = io.default_scenario_path().with_name("conveyor_winch.toml")
+
+
+def test_a_set_speed_above_the_motors_max_speed_is_refused_by_every_path():
+    text = WINCH.read_text()
+    sc = io.loads_scenario(text)
+    drum = sc.actuator("drum")
+    assert drum.max_speed * 60 == pytest.approx(400.0)
+    # the file: the phase's own motion, and a motion moving with another phase
+    with pytest.raises(HeatloadError, match=r"phases\[3\]\.speed: 450 rpm is above .* 400 rpm"):
+        io.loads_scenario(text.replace('speed = "300 rpm"', 'speed = "450 rpm"', 1))
+    io.loads_scenario(text.replace('speed = "300 rpm"', 'speed = "400 rpm"', 1))   # at it
+    auger = text.replace("# For a motor, load is a torque", '[[actuators]]\nname = "auger"\n'
+                         'kind = "motor"\ndisplacement = "20 cm^3/rev"\nmax_speed = "100 rpm"\n\n'
+                         "# For a motor, load is a torque", 1)
+    together = auger.replace('speed = "250 rpm"\nduration = "90 s"\n',
+                             'speed = "250 rpm"\nduration = "90 s"\n\n[[phases.simultaneous]]\n'
+                             'actuator = "auger"\nmotion = "run"\nload = "20 N*m"\n'
+                             'speed = "120 rpm"\n', 1)
+    assert together.count("phases.simultaneous") == 1
+    with pytest.raises(HeatloadError, match=r"simultaneous\[0\]\.speed: 120 rpm .* 'auger'"):
+        io.loads_scenario(together)
+    io.loads_scenario(together.replace('speed = "120 rpm"', 'speed = "90 rpm"'))
+    # the overrides, a sweep's corners and an [[uncertainty]] bound
+    path = "phases[*].speed"
+    hi = paths.allowed_range(sc, paths.resolve_path(sc, path))[2]
+    assert np.all(hi == drum.max_speed)
+    with pytest.raises(HeatloadError, match="max_speed"):
+        paths.Overrides(sc, overrides={"phases[3].speed": [410 / 60]})
+    from heatload.studies import sweep
+    spec = sweep.parse_vary("phases[3].speed=200..450rpm:3", sc)
+    with pytest.raises(HeatloadError, match="max_speed"):
+        sweep.check_corners(sc, [spec])
+    with pytest.raises(HeatloadError, match=r"uncertainty\[\d\]\.high: .*max_speed"):
+        io.loads_scenario(text + f'\n[[uncertainty]]\npath = "{path}"\nlow = 0.9\nhigh = 1.5\n')
+    # the Monte Carlo's normal tail: the fastest phase (300 rpm) binds at 400 / 300
+    wide = dataclasses.replace(sc, uncertainty=(
+        m.UncertainInput(path, "normal", 0.9, 1.3),))
+    r = uncertainty.monte_carlo(wide, "load-sensing", samples=2000, seed=4)
+    assert np.all(300.0 * r.samples[path] <= 400.0 * (1 + 1e-12))
+    assert r.truncated[path] > 0

@@ -661,6 +661,7 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
                                        repeats=_repeats(data["repeats"], phases, source))
     _check_phase_durations(scenario, source)
     _check_ceilings(scenario, data, source)
+    _check_speed_ceilings(scenario, source)
     _check_cooler_design(scenario, "cooler" in data and "oil_temperature_max" in data["cooler"],
                          source)
     # after the machine's own checks: a bound is judged against a machine that loads
@@ -737,6 +738,29 @@ def _check_ceilings(scenario: m.Scenario, data: dict, source: str) -> None:
                    f"temperature (e.g. \"{limit - 273.15 - m.DESIGN_TEMPERATURE_HEADROOM:g} "
                    f"degC\") at or below it, or the fluid's own limit from its maker as "
                    f"fluid.temperature_max", f"cooler.{key}", source)
+
+
+def _check_speed_ceilings(scenario: m.Scenario, source: str) -> None:
+    """Refuse a set speed above its actuator's own limit (the ceiling of a
+    phase's ``speed`` in the schema: a hydraulic motor's ``max_speed``), of a
+    phase's own motion or a simultaneous one."""
+    spec = _PHASE["speed"]
+    for i, ph in enumerate(scenario.phases):
+        motions = [(f"phases[{i}].speed", ph.actuator, ph.speed)] + [
+            (f"phases[{i}].simultaneous[{j}].speed", x.actuator, x.speed)
+            for j, x in enumerate(ph.simultaneous)]
+        for field, name, speed in motions:
+            if name is None or speed is None:
+                continue
+            act = scenario.actuator(name)
+            limit = ceiling_of(scenario, spec, act)
+            if limit is None or speed <= limit * (1 + 1e-12):
+                continue
+            k = next(n for n, a in enumerate(scenario.actuators) if a.name == name)
+            raise _err(f"{speed * 60:.4g} rpm is above the max_speed {limit * 60:.4g} rpm of "
+                       f"{name!r} (actuators[{k}].max_speed): its maker allows it no faster; "
+                       f"expected a shaft speed (e.g. \"{limit * 60:.4g} rpm\") at or below "
+                       f"it, or a motor rated for the speed", field, source)
 
 
 def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) -> None:

@@ -190,7 +190,7 @@ displacement = "80 cm^3/rev"
 volumetric_efficiency = 0.95
 hydromechanical_efficiency = 0.92
 max_pressure = "250 bar"
-max_speed = "600 rpm"
+max_speed = "600 rpm"                  # set speeds of its phases at most this
 
 # Phases run in this order, then the cycle repeats.  motion is
 # extend | retract | hold (cylinders), run | hold (motors), idle (no actuator).
@@ -391,7 +391,8 @@ class _F:
     high: float | None = None
     why: str | None = None                 # the range and its reason, for the message
     #: another field of the same scenario (its path) that this one may not exceed
-    #: (:func:`ceiling_of`): a design oil temperature above the fluid's own limit
+    #: (:func:`ceiling_of`): a design oil temperature above the fluid's own limit;
+    #: ``actuator.<key>``: a field of the phase's (or motion's) own actuator
     ceiling: str | None = None
 
 
@@ -630,7 +631,7 @@ _PHASE = {
     "actuator": _F("str", "nonempty"),
     "motion": _F("choice", choices=m.MOTIONS, required=True),
     "load": _F("force"),
-    "speed": _F("velocity", "pos"),
+    "speed": _F("velocity", "pos", ceiling="actuator.max_speed"),
     "stroke": _F("distance", "pos"),
     "duration": _F("time", "pos"),
     "hold_pressure": _F("pressure", "pos"),
@@ -822,14 +823,18 @@ def allowed_range(spec: _F, kind: str | None = None) -> tuple:
     return low, low_open, high, high_open
 
 
-def ceiling_of(scenario, spec: _F):
-    """The value of *spec*'s :attr:`_F.ceiling` field in *scenario* [SI], or None."""
+def ceiling_of(scenario, spec: _F, actuator=None):
+    """The value of *spec*'s :attr:`_F.ceiling` field in *scenario* [SI], or None
+    where it has none (an ``actuator.`` ceiling is read on *actuator*, the
+    phase's or motion's own: a motor's ``max_speed``; a cylinder has none)."""
     if spec.ceiling is None:
         return None
-    obj = scenario
-    for part in spec.ceiling.split("."):
-        obj = getattr(obj, part)
-    return float(obj)
+    obj, parts = scenario, spec.ceiling.split(".")
+    if parts[0] == "actuator":
+        obj, parts = actuator, parts[1:]
+    for part in parts:
+        obj = getattr(obj, part, None)
+    return None if obj is None else float(obj)
 
 
 def _value(raw, spec: _F, field: str, source: str, kind: str | None = None):
