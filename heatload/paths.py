@@ -17,6 +17,8 @@ not a scenario field).
   nominal values), or a one-line :class:`~heatload.errors.HeatloadError`
   naming the nearest valid paths;
 - :func:`valid_paths` -> every path that can vary;
+- :func:`allowed_range` -> the values a path's field may take (the file's own
+  limits from :mod:`heatload.io.schema`, and a ceiling another field sets);
 - :func:`replaced_scenario` -> the scenario with fields set (``dataclasses.replace``);
 - :class:`Overrides` -> the lookup the one builder (:mod:`heatload.hydraulics.cycle`)
   reads: a field's array over N variants, or the scenario's own value.

@@ -196,8 +196,8 @@ def draw_range(scenario, u: UncertainInput, default: bool = False) -> tuple:
     return low, low_open, high, high_open
 
 
-def _outside(x, rng_):
-    low, low_open, high, high_open = rng_
+def _outside(x, allowed):
+    low, low_open, high, high_open = allowed
     return ((x <= low) if low_open else (x < low)) | ((x >= high) if high_open else (x > high))
 
 
