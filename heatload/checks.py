@@ -91,9 +91,10 @@ MOTOR_SERVICE_FACTOR = 1.0
 #: without stalling: 160 % of rated torque for 15 s (from memory) [-], [s].
 MOTOR_EXCESS_TORQUE = 1.6
 MOTOR_EXCESS_TORQUE_TIME = 15.0
-#: Flow through a directional valve's working path (P->A, B->T) above which the
-#: valve is undersized, as a multiple of its rated flow (the flow its pressure
-#: drop is given at) [-]: makers' curves commonly end at about 1.5 x the flow
+#: Flow through a directional valve's working path (P->A, B->T), or through its
+#: open / tandem centre (P->T) while nothing moves, above which the valve is
+#: undersized, as a multiple of its rated flow (the flow its pressure drop is
+#: given at) [-]: makers' curves commonly end at about 1.5 x the flow
 #: their drop is quoted at; beyond it the Q^2 drop is an extrapolation and the
 #: flow forces on the spool pass the power limit the maker states (common
 #: practice, from memory).
@@ -198,6 +199,39 @@ class Condition:
         return self.mask.sum(axis=-1) if self.per_phase else self.mask.astype(int)
 
 
+def valve_centre_flow(result: CircuitResult) -> np.ndarray:
+    """Flow through the directional valve's open or tandem centre (P->T) [m^3/s].
+
+    Q_centre = Q_pump - Q_relief - Q_bleed - Q_actuators
+
+    The solver books the pump's delivery as the actuators' flow plus what
+    crosses the relief, what is bled and what the centre returns to tank
+    (:class:`heatload.hydraulics.circuits.CircuitResult`: ``pump_flow``), so the
+    centre's share is what is left.  It is non-zero only in hold and idle
+    phases unloaded through an open or tandem centre (``unloading = "centre"``,
+    or a fixed pump vented while a pilot-operated check holds), where it is
+    the whole pump flow; a variable pump delivers nothing there to return.
+
+    Parameters
+    ----------
+    result : CircuitResult
+        Solved phases, ``(..., phases)``.
+
+    Returns
+    -------
+    ndarray
+        Centre flow [m^3/s], >= 0 (rounding of the sum clipped), shape of the
+        result's arrays.
+    """
+    into = np.abs(result.actuator_flow)
+    if result.motions is not None:
+        for (b, name), v in result.motions.items():
+            if b > 0 and name == "flow":
+                into = into + np.abs(v)
+    rest = result.pump_flow - result.relief_flow - result.bleed_flow - into
+    return np.maximum(rest, 0.0)
+
+
 def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> list:
     """The per-phase warning conditions of a solved batch, vectorized.
 
@@ -236,11 +270,15 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
     dv_rated = col(g(("directional_valve", "rated_flow"), pu.directional_valve.rated_flow))
     # the largest flow of any working path of the phase: P->A carries the inlet
     # flow, B->T the outlet's (twice it, retracting a 2:1 cylinder); each further
-    # motion has its own valve of the same size
+    # motion has its own valve of the same size.  In hold and idle phases an open
+    # or tandem centre returns the whole pump flow P->T through the same valve
     flows = [result.actuator_flow, result.outlet_flow]
     if result.motions is not None:
         flows += [v for k, v in result.motions.items() if k[1] in ("flow", "outlet_flow")]
-    dv_flow = np.max(np.abs(np.stack(np.broadcast_arrays(*flows))), axis=0)
+    path_flow = np.max(np.abs(np.stack(np.broadcast_arrays(*flows))), axis=0)
+    centre_flow = np.where(still, valve_centre_flow(result), 0.0)
+    dv_flow = np.maximum(path_flow, centre_flow)
+    through_centre = centre_flow > path_flow
     rating = full(c["max_pressure_inlet"])
     rated_power = full(c["motor_rated_power"])
     fraction = result.pump_shaft_speed / full(c["pump_speed"])
@@ -301,11 +339,14 @@ def phase_conditions(result: CircuitResult, c: dict, scenario, values=None) -> l
                        f"{_bar(dv_max[i])}"),
         cond("flow-rating", dv_flow > VALVE_FLOW_FACTOR * dv_rated * (1 + 1e-9), dv_flow,
              VALVE_FLOW_FACTOR * dv_rated,
-             lambda i: f"the directional valve carries {mark(dv_flow[i], 'flow', 0)}, "
-                       f"{dv_flow[i] / dv_rated[i]:.2g} x its rated "
-                       f"{mark(dv_rated[i], 'flow', 0)}: past {VALVE_FLOW_FACTOR:g} x its "
-                       f"drop is an extrapolation and the flow forces on the spool may "
-                       f"exceed the maker's limit; choose a larger valve"),
+             lambda i: (f"the directional valve's centre (P->T) carries the pump's "
+                        f"{mark(dv_flow[i], 'flow', 0)} while nothing moves"
+                        if through_centre[i] else
+                        f"the directional valve carries {mark(dv_flow[i], 'flow', 0)}")
+             + f", {dv_flow[i] / dv_rated[i]:.2g} x its rated "
+               f"{mark(dv_rated[i], 'flow', 0)}: past {VALVE_FLOW_FACTOR:g} x its "
+               f"drop is an extrapolation and the flow forces on the spool may "
+               f"exceed the maker's limit; choose a larger valve"),
         cond("pressure-rating", np.isfinite(rating) & (chamber_hi > rating * (1 + 1e-9)),
              chamber_hi, rating,
              lambda i: f"actuator chamber at {_bar(chamber_hi[i])} above its rating "

@@ -17,6 +17,8 @@ not a scenario field).
   nominal values), or a one-line :class:`~heatload.errors.HeatloadError`
   naming the nearest valid paths;
 - :func:`valid_paths` -> every path that can vary;
+- :func:`allowed_range` -> the values a path's field may take (the file's own
+  limits from :mod:`heatload.io.schema`, and a ceiling another field sets);
 - :func:`replaced_scenario` -> the scenario with fields set (``dataclasses.replace``);
 - :class:`Overrides` -> the lookup the one builder (:mod:`heatload.hydraulics.cycle`)
   reads: a field's array over N variants, or the scenario's own value.
@@ -38,10 +40,11 @@ from heatload.io import schema as _schema
 
 
 def _vary(spec: dict, *keys) -> dict:
-    """``{key: (kind, check)}`` of the variable *keys* of one file table, read from
-    the loader's field specifications (:mod:`heatload.io.schema`): a path varies a
-    field with the very kind and sign rule the file has for it."""
-    return {k: (spec[k].kind, spec[k].check or "any") for k in keys}
+    """``{key: (kind, check, field spec)}`` of the variable *keys* of one file
+    table, read from the loader's field specifications (:mod:`heatload.io.schema`):
+    a path varies a field with the very kind, sign rule and range the file has
+    for it."""
+    return {k: (spec[k].kind, spec[k].check or "any", spec[k]) for k in keys}
 
 
 # Which keys can vary (numeric fields the builder reads); kinds and checks come
@@ -73,7 +76,8 @@ _TABLE_KEYS = {
     "reservoir": {**_vary(_schema._RESERVOIR, "oil_volume", "steel_mass", "steel_specific_heat",
                           "heat_transfer_coefficient"),
                   # a multiplier on the computed UA, nominal 1: a path, not a file key
-                  "heat_transfer_factor": ("dimensionless", "pos")},
+                  "heat_transfer_factor": ("dimensionless", "pos",
+                                           _schema._F("dimensionless", "pos"))},
     "fluid": _vary(_schema._FLUID, "bulk_modulus"),
     "economics": _vary(_schema._ECONOMICS, "hours_per_year", "electricity_price"),
     "cooler": _vary(_schema._COOLER, "margin", "oil_temperature_max"),
@@ -94,6 +98,11 @@ class FieldRef:
     kind: str | None
     check: str
     nominal: tuple
+    #: the file's specification of the field (:class:`heatload.io.schema._F`):
+    #: its range (:func:`allowed_range`)
+    spec: object = None
+    #: the kind of each target (cylinders and motors may mix: force and torque)
+    kinds: tuple = ()
 
 
 def _actuator_keys(act):
@@ -162,9 +171,9 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
         keys = _POWER_UNIT_KEYS.get(part)
         if keys is None or key not in keys or parts[1][1] or parts[2][1]:
             raise _unknown(path, scenario)
-        kind, check = keys[key]
+        kind, check, spec = keys[key]
         obj = getattr(scenario.power_unit, part)
-        return FieldRef(path, ((part, key),), kind, check, (getattr(obj, key),))
+        return FieldRef(path, ((part, key),), kind, check, (getattr(obj, key),), spec, (kind,))
     if head == "actuators":
         if hidx is not None and len(parts) == 2:
             acts = (list(scenario.actuators) if hidx == "*"
@@ -178,11 +187,13 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
             acts = None
         if not acts or any(key not in _actuator_keys(a) for a in acts):
             raise _unknown(path, scenario)
-        kinds = {_actuator_keys(a)[key][0] for a in acts}
+        each = tuple(_actuator_keys(a)[key][0] for a in acts)
+        kinds = set(each)
         return FieldRef(path, tuple(("actuator", a.name, key) for a in acts),
                         kinds.pop() if len(kinds) == 1 else None,
                         _actuator_keys(acts[0])[key][1],
-                        tuple(getattr(a, key) for a in acts))
+                        tuple(getattr(a, key) for a in acts),
+                        _actuator_keys(acts[0])[key][2], each)
     if head == "phases" and hidx is not None and len(parts) == 2:
         key = parts[1][0]
         if key not in _PHASE_KEYS:
@@ -202,10 +213,12 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
                 raise HeatloadError(f"phase {hidx} '{scenario.phases[int(hidx)].name}': {why}",
                                     field=path)
             idx = [int(hidx)]
-        kinds = {_phase_kind(scenario, scenario.phases[i], key) for i in idx}
+        each = tuple(_phase_kind(scenario, scenario.phases[i], key) for i in idx)
+        kinds = set(each)
         return FieldRef(path, tuple(("phase", i, key) for i in idx),
                         kinds.pop() if len(kinds) == 1 else None, _PHASE_KEYS[key][1],
-                        tuple(getattr(scenario.phases[i], key) for i in idx))
+                        tuple(getattr(scenario.phases[i], key) for i in idx),
+                        _PHASE_KEYS[key][2], each)
     if head == "strategies":
         if hidx is not None and len(parts) == 2:
             chosen = (list(scenario.strategies) if hidx == "*"
@@ -223,14 +236,15 @@ def resolve_path(scenario: Scenario, path: str) -> FieldRef:
         chosen = [s for s in chosen if key in circuit(s.kind).settings]
         if not chosen:
             raise _unknown(path, scenario, f"no such strategy has a {key}")
-        kind, check = _STRATEGY_KEYS[key]
+        kind, check, spec = _STRATEGY_KEYS[key]
         return FieldRef(path, tuple(("strategy", s.name, key) for s in chosen), kind, check,
-                        tuple(getattr(s.parameters, key) for s in chosen))
+                        tuple(getattr(s.parameters, key) for s in chosen), spec,
+                        (kind,) * len(chosen))
     if head in _TABLE_KEYS and hidx is None and len(parts) == 2 and parts[1][0] in _TABLE_KEYS[head]:
         key = parts[1][0]
-        kind, check = _TABLE_KEYS[head][key]
+        kind, check, spec = _TABLE_KEYS[head][key]
         nominal = 1.0 if key == "heat_transfer_factor" else getattr(getattr(scenario, head), key)
-        return FieldRef(path, ((head, key),), kind, check, (nominal,))
+        return FieldRef(path, ((head, key),), kind, check, (nominal,), spec, (kind,))
     raise _unknown(path, scenario)
 
 
@@ -246,17 +260,77 @@ def _inert(phase, key):
     return None
 
 
-def _check_values(ref: FieldRef, values):
-    v = values
+def allowed_range(scenario: Scenario, ref: FieldRef) -> tuple:
+    """The values each target of *ref* may take in *scenario*: ``(low, low_open,
+    high, high_open)``, *low* and *high* arrays of one bound per target [SI].
+
+    Read from the field's one specification, the file's
+    (:func:`heatload.io.schema.allowed_range`: its sign rule, plausible range
+    and magnitude limit, the limits the loader holds a file to), tightened by a
+    ceiling set by another field of the scenario (the design oil temperature at
+    most the fluid's own limit, ``fluid.temperature_max``; a phase's set speed
+    at most its motor's ``max_speed``).  Overrides, sweeps
+    and the Monte Carlo's samples are held to it.
+    """
+    lows, highs = [], []
+    low_open = high_open = False
+    for target, kind in zip(ref.targets, ref.kinds or (ref.kind,) * len(ref.targets)):
+        lo, lo_open, hi, hi_open = _schema.allowed_range(ref.spec, kind)
+        ceiling = _schema.ceiling_of(scenario, ref.spec, _actuator_of(scenario, target))
+        if ceiling is not None and ceiling <= hi:
+            hi, hi_open = ceiling, False
+        lows.append(lo)
+        highs.append(hi)
+        low_open, high_open = low_open or lo_open, high_open or hi_open
+    return np.array(lows), low_open, np.array(highs), high_open
+
+
+def _actuator_of(scenario, target):
+    """The actuator a target's field belongs to: a phase's own (None: an idle
+    phase, or a target of no phase)."""
+    if target[0] == "phase" and scenario.phases[target[1]].actuator:
+        return scenario.actuator(scenario.phases[target[1]].actuator)
+    return None
+
+
+def _check_values(ref: FieldRef, values, scenario: Scenario, per_target=False):
+    """Refuse values a field cannot take: not finite, or outside
+    :func:`allowed_range`.  *values* go to every target of *ref* (the tightest
+    bounds apply), or with *per_target* one to each target (None: that target
+    keeps its own value)."""
+    lo, lo_open, hi, hi_open = allowed_range(scenario, ref)
+    if per_target:
+        keep = np.array([x is not None for x in values], bool)
+        v = np.array([x for x in values if x is not None], float)
+        lo, hi = lo[keep], hi[keep]
+    else:
+        v = np.asarray(values, float)
+        lo, hi = lo.max(), hi.min()
     if not np.all(np.isfinite(v)):
         raise HeatloadError("values must be finite numbers", field=ref.path)
-    bad = {"pos": v <= 0, "nonneg": v < 0, "eff": (v <= 0) | (v > 1),
-           "frac_pos": (v <= 0) | (v > 1), "any": np.zeros(v.shape, bool)}[ref.check]
+    # the loader's own tolerance: a limit written in another unit converts with
+    # a rounding of its last bit
+    below = (v <= lo) if lo_open else (v < lo - 1e-12 * np.abs(lo))
+    above = (v >= hi) if hi_open else (v > hi + 1e-12 * np.abs(hi))
+    bad = below | above
     if np.any(bad):
-        what = {"pos": "> 0", "nonneg": ">= 0", "eff": "within (0, 1]",
-                "frac_pos": "within (0, 1]"}[ref.check]
-        raise HeatloadError(f"values must be {what} (SI), got {float(v[np.argmax(bad)]):g}",
-                            field=ref.path)
+        at = int(np.argmax(bad))
+        x = float(v.flat[at])
+        lo_s = float(np.broadcast_to(lo, v.shape).flat[at])
+        hi_s = float(np.broadcast_to(hi, v.shape).flat[at])
+        from heatload.units import KINDS
+        kind = ref.kind or "dimensionless"
+        unit = f" {KINDS[kind].si}" if KINDS[kind].si else ""
+        if np.isfinite(lo_s) and np.isfinite(hi_s):
+            what = (f"within {'(' if lo_open else '['}{lo_s:g}, {hi_s:g}"
+                    f"{')' if hi_open else ']'}{unit}")
+        elif np.isfinite(lo_s):
+            what = f"{'>' if lo_open else '>='} {lo_s:g}{unit}"
+        else:
+            what = f"{'<' if hi_open else '<='} {hi_s:g}{unit}"
+        if ref.spec.ceiling is not None and x > hi_s:
+            what += f" (at most its {ref.spec.ceiling})"
+        raise HeatloadError(f"values must be {what} (SI), got {x:g}", field=ref.path)
 
 
 class Overrides:
@@ -281,7 +355,7 @@ class Overrides:
             a = np.atleast_1d(np.asarray(vals, dtype=float))
             if a.ndim != 1:
                 raise HeatloadError("give a 1-D array of values per path", field=path)
-            _check_values(ref, a)
+            _check_values(ref, a, scenario)
             lengths.add(a.size)
             self.refs.append(ref)
             self.by_path[ref.path] = a

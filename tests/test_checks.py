@@ -326,6 +326,66 @@ def test_flow_rating_of_a_large_pump_on_a_small_valve_in_compare_and_sweep():
     assert "flow-rating" not in decision.BLOCKING
 
 
+# The centre: in an idle or hold phase unloaded through an open or tandem centre
+# the whole pump flow crosses the valve P->T.  Check values: a fixed pump delivers
+# Q = V_g n less its leakage (common practice; 28 cm^3/rev x 1450 rpm = 40.6
+# L/min), and at the centre's drop (3 bar at rated flow, ~Q^2: about 8 bar at
+# 1.6 x) the leakage of a pump with 93 % volumetric efficiency at 200 bar is
+# about 7 % x 8 / 200 = 0.3 % of it (leakage ~ p / viscosity, common practice;
+# under 1 % whatever the oil's temperature within its window).
+IDLE = m.Phase("wait", None, "idle", duration=10.0, unloading="centre")
+Q_PUMP = 28e-6 * 1450 / 60                    # [m^3/s], 40.6 L/min
+
+
+@pytest.mark.parametrize("centre", ["tandem", "open"])
+def test_flow_rating_of_the_centre_in_an_idle_phase(centre):
+    # 40.6 L/min through the centre of a 25 L/min valve is 1.62 x (past 1.5 x);
+    # of a 30 L/min valve 1.35 x (within); the extend phase's 23.6 L/min P->A
+    # (0.05 m/s x A1, continuity) is within either
+    for rated, flagged in ((25 / 60000, True), (30 / 60000, False)):
+        dv = m.DirectionalValve(rated_flow=rated, centre=centre)
+        sc = _sc([EXT, IDLE], dv=dv)
+        assert 0.05 * A1 < checks.VALVE_FLOW_FACTOR * rated
+        ws = [w for w in _warn(sc, "meter-in") if w.code == "flow-rating"]
+        assert [w.phase for w in ws] == (["wait"] if flagged else [])
+        c = cycle.circuit_inputs(sc, "meter-in")
+        r = circuits.solve_strategy("meter-in", c)
+        q = checks.valve_centre_flow(r)
+        # the whole pump flow, less leakage at the centre's drop
+        assert q[1] == pytest.approx(Q_PUMP, rel=1e-2) and q[1] <= Q_PUMP
+        assert q[0] == 0.0                       # the extend phase: nothing P->T
+        # the solver books the centre's loss as that flow at the pump pressure
+        assert r.losses["directional_valve"][1] == pytest.approx(
+            q[1] * r.pump_pressure[1], rel=1e-12)
+        if flagged:
+            w = ws[0]
+            assert w.value == pytest.approx(q[1], rel=1e-12)
+            assert w.limit == pytest.approx(checks.VALVE_FLOW_FACTOR * rated)
+            assert "centre (P->T)" in w.message and "1.6 x" in w.message
+
+
+def test_flow_rating_of_the_centre_only_where_it_carries_the_pump_flow():
+    dv = m.DirectionalValve(rated_flow=25 / 60000)       # 1.62 x, as above
+    # unloaded over the relief instead: the centre carries nothing (relief-passing)
+    relief = m.Phase("wait", None, "idle", duration=10.0, unloading="relief")
+    codes = _codes(_warn(_sc([EXT, relief], dv=dv), "meter-in"))
+    assert "flow-rating" not in codes and "relief-passing" in codes
+    # a closed centre cannot unload: the pump goes over the relief
+    closed = m.DirectionalValve(rated_flow=25 / 60000, centre="closed")
+    assert "flow-rating" not in _codes(_warn(_sc([EXT, IDLE], dv=closed), "meter-in"))
+    # a load-sensing pump stands by at zero stroke and sends nothing through the
+    # centre; a pressure-compensated one whose line the centre vents swings out
+    # and circulates its whole flow there, as a fixed pump does
+    assert "flow-rating" not in _codes(_warn(_sc([EXT, IDLE], dv=dv), "load-sensing"))
+    ws = [w for w in _warn(_sc([EXT, IDLE], dv=dv), "pressure-compensated")
+          if w.code == "flow-rating"]
+    assert [w.phase for w in ws] == ["wait"] and ws[0].value == pytest.approx(Q_PUMP, rel=1e-2)
+    # a hold through a tandem centre (A and B blocked) returns the pump flow too
+    hold = m.Phase("dwell", "c", "hold", duration=5.0, unloading="centre")
+    ws = [w for w in _warn(_sc([EXT, hold], dv=dv), "meter-in") if w.code == "flow-rating"]
+    assert [w.phase for w in ws] == ["dwell"]
+
+
 # ---------------------------------------------------------------------------
 # hold-at-limit: a supply within a setting's tolerance of the pressure to hold
 # ---------------------------------------------------------------------------

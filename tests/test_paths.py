@@ -1,10 +1,12 @@
 """One field-path grammar: what the loader accepts in ``[[uncertainty]]`` is what
 sweeps and the Monte Carlo can vary, and what they refuse the loader refuses."""
 
+import dataclasses
+
 import numpy as np
 import pytest
 
-from heatload import io, paths
+from heatload import io, model as m, paths
 from heatload.studies import uncertainty, variants
 from heatload.errors import HeatloadError
 
@@ -118,3 +120,113 @@ def test_a_field_that_does_nothing_in_its_phase_is_refused(path, words):
     # phases[*] passes over them (the other phases' loads still vary)
     ref = paths.resolve_path(sc, "phases[*].load")
     assert ("phase", 4, "load") not in ref.targets and ("phase", 11, "load") not in ref.targets
+
+
+# The cooler's design oil temperature may not pass the fluid's own upper limit
+# (fluid.temperature_max): the oil maker's limit for the oil, which no cooler
+# design changes.  Check values: mineral hydraulic oils are commonly kept below
+# about 80 degC in the tank (the default limit; common practice, from memory), and
+# 250 degC is near the flash point of an ISO VG 46 oil (about 220-240 degC, from
+# memory): no oil runs there.
+_HOT = 250.0 + 273.15
+
+
+def _press_with(design, fluid_limit=None):
+    """The press's text with its design oil temperature (and fluid limit) set."""
+    import re
+    text = io.default_scenario_path().read_text()
+    text, n = re.subn(r'(?m)^oil_temperature_max = "[^"]*"', f'oil_temperature_max = "{design}"',
+                      text)
+    assert n == 1
+    if fluid_limit is not None:
+        text, n = re.subn(r'(?m)^temperature_max = "80 degC"',
+                          f'temperature_max = "{fluid_limit}"', text)
+        assert n == 1
+    return text
+
+
+def test_design_temperature_above_the_fluids_limit_is_refused_at_load():
+    assert PRESS.fluid.temperature_max == pytest.approx(353.15)      # the file's 80 degC
+    with pytest.raises(HeatloadError) as info:
+        io.loads_scenario(_press_with("250 degC"), source="p.toml")
+    msg = info.value.one_line()
+    assert info.value.field == "cooler.oil_temperature_max"
+    assert msg.startswith("p.toml:") and "\n" not in msg
+    # names the limit, the field holding it, and the unit expected
+    assert "80 °C" in msg and "fluid.temperature_max" in msg and "degC" in msg
+    # a fluid whose maker allows 90 degC: 95 is refused, 90 (the limit itself) loads
+    with pytest.raises(HeatloadError, match="90 °C"):
+        io.loads_scenario(_press_with("95 degC", "90 degC"))
+    sc = io.loads_scenario(_press_with("90 degC", "90 degC"))
+    assert sc.cooler.oil_temperature_max == pytest.approx(363.15)
+
+
+def test_design_temperature_above_the_fluids_limit_is_refused_by_every_path():
+    limit = PRESS.fluid.temperature_max
+    path = "cooler.oil_temperature_max"
+    lo, lo_open, hi, hi_open = paths.allowed_range(PRESS, paths.resolve_path(PRESS, path))
+    assert hi[0] == limit and not hi_open and lo[0] == 0.0 and lo_open
+    # the overrides every evaluation reads
+    paths.Overrides(PRESS, overrides={path: [limit - 20.0, limit]})
+    with pytest.raises(HeatloadError, match="fluid.temperature_max") as info:
+        paths.Overrides(PRESS, overrides={path: [limit - 20.0, _HOT]})
+    assert info.value.field == path
+    # a sweep's range
+    from heatload.studies import sweep
+    spec = sweep.parse_vary(f"{path}=50..250degC:3", PRESS)
+    with pytest.raises(HeatloadError, match="upper temperature limit of the fluid"):
+        sweep.check_corners(PRESS, [spec])
+    # an [[uncertainty]] bound, absolute or relative
+    for bounds in ('low = "60 degC"\nhigh = "250 degC"\nrelative = false\n',
+                   'low = 0.99\nhigh = 1.1\n'):   # 56.5 .. 93 degC
+        item = f'\n[[uncertainty]]\npath = "{path}"\n{bounds}'
+        t = _press_with("60 degC") + item
+        with pytest.raises(HeatloadError, match="upper temperature limit") as info:
+            io.loads_scenario(t)
+        assert info.value.field.startswith("uncertainty[") and info.value.field.endswith(".high")
+
+
+# A hydraulic motor's set speed may not pass the maximum speed its maker gives
+# (max_speed on the datasheet; common practice).  Check value: the conveyor's
+# drum motor, 400 rpm.
+WINCH = io.default_scenario_path().with_name("conveyor_winch.toml")
+
+
+def test_a_set_speed_above_the_motors_max_speed_is_refused_by_every_path():
+    text = WINCH.read_text()
+    sc = io.loads_scenario(text)
+    drum = sc.actuator("drum")
+    assert drum.max_speed * 60 == pytest.approx(400.0)
+    # the file: the phase's own motion, and a motion moving with another phase
+    with pytest.raises(HeatloadError, match=r"phases\[3\]\.speed: 450 rpm is above .* 400 rpm"):
+        io.loads_scenario(text.replace('speed = "300 rpm"', 'speed = "450 rpm"', 1))
+    io.loads_scenario(text.replace('speed = "300 rpm"', 'speed = "400 rpm"', 1))   # at it
+    auger = text.replace("# For a motor, load is a torque", '[[actuators]]\nname = "auger"\n'
+                         'kind = "motor"\ndisplacement = "20 cm^3/rev"\nmax_speed = "100 rpm"\n\n'
+                         "# For a motor, load is a torque", 1)
+    together = auger.replace('speed = "250 rpm"\nduration = "90 s"\n',
+                             'speed = "250 rpm"\nduration = "90 s"\n\n[[phases.simultaneous]]\n'
+                             'actuator = "auger"\nmotion = "run"\nload = "20 N*m"\n'
+                             'speed = "120 rpm"\n', 1)
+    assert together.count("phases.simultaneous") == 1
+    with pytest.raises(HeatloadError, match=r"simultaneous\[0\]\.speed: 120 rpm .* 'auger'"):
+        io.loads_scenario(together)
+    io.loads_scenario(together.replace('speed = "120 rpm"', 'speed = "90 rpm"'))
+    # the overrides, a sweep's corners and an [[uncertainty]] bound
+    path = "phases[*].speed"
+    hi = paths.allowed_range(sc, paths.resolve_path(sc, path))[2]
+    assert np.all(hi == drum.max_speed)
+    with pytest.raises(HeatloadError, match="max_speed"):
+        paths.Overrides(sc, overrides={"phases[3].speed": [410 / 60]})
+    from heatload.studies import sweep
+    spec = sweep.parse_vary("phases[3].speed=200..450rpm:3", sc)
+    with pytest.raises(HeatloadError, match="max_speed"):
+        sweep.check_corners(sc, [spec])
+    with pytest.raises(HeatloadError, match=r"uncertainty\[\d\]\.high: .*max_speed"):
+        io.loads_scenario(text + f'\n[[uncertainty]]\npath = "{path}"\nlow = 0.9\nhigh = 1.5\n')
+    # the Monte Carlo's normal tail: the fastest phase (300 rpm) binds at 400 / 300
+    wide = dataclasses.replace(sc, uncertainty=(
+        m.UncertainInput(path, "normal", 0.9, 1.3),))
+    r = uncertainty.monte_carlo(wide, "load-sensing", samples=2000, seed=4)
+    assert np.all(300.0 * r.samples[path] <= 400.0 * (1 + 1e-12))
+    assert r.truncated[path] > 0

@@ -111,6 +111,8 @@ def run(args) -> int:
                                                for k in ("P50", "P90", "P95")))
         print("  oil temperature (steady, no cooler, typical ambient)\n                   " + ", ".join(f"{k} {fq(tt[k] + K0, 'temperature', s)}"
                                                for k in ("P50", "P90", "P95")))
+        for note in unc.get("truncation_notes", ()):
+            print(f"  note: {note}")
         if unc["sensitivity"]:
             print("  inputs that move the duty most:")
             for r in unc["sensitivity"]:

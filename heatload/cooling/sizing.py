@@ -334,6 +334,17 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
     return sz
 
 
+def truncation_texts(mc) -> list:
+    """One sentence per uncertain input whose samples were cut at its field's
+    limits in more than a trivial share
+    (:meth:`heatload.studies.uncertainty.UncertaintyResult.truncation_notes`)."""
+    from heatload.outputs.wording import plain_path
+    return [f"{100 * f:.3g} % of the samples of {plain_path(p)} ({p}) fell beyond what the "
+            f"field allows and were drawn again inside it (truncated, not clipped): "
+            f"the spread given is wider than the field's range"
+            for p, _, f in mc.truncation_notes()]
+
+
 def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5,
                        progress=False) -> dict:
     """Monte Carlo spread of the cooler duty and oil temperature, and the inputs
@@ -344,6 +355,9 @@ def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5,
     dict
         ``available`` (bool), ``note``; when available: ``samples``, ``seed``,
         ``cooler_duty_W`` {P50, P90, P95}, ``oil_temperature_C`` {P50, P90, P95},
+        ``truncated`` (per input: ``path``, ``samples`` and ``fraction`` drawn again
+        inside the field's range), ``truncation_notes`` (the sentences for
+        shares past :data:`heatload.studies.uncertainty.NOTED_SHARE`),
         ``sensitivity`` (the *top* entries of the ranking, dicts with ``path`` and
         ``cooler_duty_swing_W`` ..., :func:`heatload.studies.uncertainty.sensitivity`).
         Scenarios without uncertain inputs use the uncertainty module's typical defaults.
@@ -382,6 +396,9 @@ def cooler_uncertainty(scenario, strategy, samples=10000, seed=1, top=5,
                                             np.nanpercentile(kwk, [50.0, 90.0, 95.0]))} \
         if np.isfinite(kwk).any() else None
     return {"available": True, "note": "", "samples": int(samples), "seed": int(seed),
+            "truncated": [{"path": p, "samples": int(k), "fraction": k / int(samples)}
+                          for p, k in mc.truncated.items()],
+            "truncation_notes": truncation_texts(mc),
             "specific_cooling_power_W_K": kwk_pct,
             "cooler_duty_W": clean(pct["cooler_duty_W"]),
             "oil_temperature_C": clean(pct["oil_temperature_C"]),

@@ -25,7 +25,7 @@ from heatload.io.schema import (_MOTION, MAX_AREA_RATIO, MAX_PHASE_DURATION, MIN
                                 _HYDRAULIC_MOTOR, _PARAMETERS, _PHASE, _POWER_UNIT, _REPEAT,
                                 _RESERVOIR, _SCENARIO, _STRATEGY, _SURFACE, _TOP,
                                 _UNCERTAINTY, _array, _err, _read, _show, _suggest, _table,
-                                _value)
+                                _value, ceiling_of)
 
 
 # ---------------------------------------------------------------------------
@@ -162,6 +162,14 @@ def _power_unit(data, source):
     if not pu.pump.viscosity_min < pu.pump.viscosity_max:
         raise _err("viscosity_min must be below viscosity_max",
                    "power_unit.pump.viscosity_min", source)
+    pump = pu.pump
+    if not pump.viscosity_min <= pump.rated_viscosity <= pump.viscosity_max:
+        raise _err(f"the datasheet point's viscosity, {pump.rated_viscosity * 1e6:.4g} mm²/s, "
+                   f"lies outside the pump's own allowed window "
+                   f"{pump.viscosity_min * 1e6:.4g} .. {pump.viscosity_max * 1e6:.4g} mm²/s "
+                   f"(viscosity_min .. viscosity_max): no datasheet gives efficiencies where "
+                   f"the pump may not run; expected a kinematic viscosity inside it (e.g. "
+                   f"\"32 mm^2/s\"; check the unit)", "power_unit.pump.rated_viscosity", source)
     if pu.check_valve.pressure_drop < pu.check_valve.cracking_pressure:
         raise _err("the drop at rated flow includes the cracking pressure, so it "
                    "cannot be smaller", "power_unit.check_valve.pressure_drop", source)
@@ -500,10 +508,12 @@ _PERCENT = re.compile(r"^\s*([+-]?\d+(?:\.\d*)?(?:[eE][+-]?\d+)?)\s*%\s*$")
 def _bounds_hold_the_field(u: m.UncertainInput, ref, p: str, source, scenario) -> None:
     """The values an uncertain input's bounds give must be values its field may
     take, or the Monte Carlo would sample machines that cannot exist: the
-    file's sign rule (an efficiency within (0, 1], a length above 0), then the
     machine with the field at each bound goes through this loader's own checks
-    (the field's plausible range and magnitude limit, and the rules between
-    fields such as oil within its tank), as ``sweep --vary`` does with its ranges."""
+    (the field's sign rule, plausible range and magnitude limit, and the rules
+    between fields such as oil within its tank or the design oil temperature
+    within the fluid's limit), as ``sweep --vary`` does with its ranges; then the
+    bound is held to the range every field path holds
+    (:func:`heatload.paths.allowed_range`)."""
     from heatload import paths
     from heatload.io.write import scenario_to_dict
     from heatload.units import format_quantity
@@ -512,23 +522,25 @@ def _bounds_hold_the_field(u: m.UncertainInput, ref, p: str, source, scenario) -
         bound = getattr(u, key)
         values = ([None if v is None else v * bound for v in ref.nominal] if u.relative
                   else [bound] * len(ref.targets))
+        if ref.targets != (("reservoir", "heat_transfer_factor"),):
+            # a file field: the loader's own message says best what is wrong
+            variant = paths.replaced_scenario(dataclasses.replace(scenario, uncertainty=()),
+                                              {ref.path: values})
+            try:
+                scenario_from_dict(scenario_to_dict(variant), source)
+            except HeatloadError as e:
+                shown = sorted({v for v in values if v is not None})
+                shown = (", ".join(format_quantity(v, ref.kind) for v in shown[:3])
+                         + (" ..." if len(shown) > 3 else "") if ref.kind else "")
+                raise _err(f"this bound gives {u.path} {shown or 'values'} the file itself "
+                           f"could not hold: {e.field + ': ' if e.field else ''}{e.message}",
+                           f"{p}.{key}", source) from None
+        # the range every path holds its values to (a factor on the computed UA has
+        # no file field; for the rest it repeats what the loader found)
         try:
-            paths._check_values(ref, np.asarray([v for v in values if v is not None], float))
+            paths._check_values(ref, values, scenario, per_target=True)
         except HeatloadError as e:
             raise _err(f"this bound gives {u.path} a value it cannot take: {e.message}",
-                       f"{p}.{key}", source) from None
-        if ref.targets == (("reservoir", "heat_transfer_factor"),):
-            continue            # a factor on the computed UA: no file field to hold
-        variant = paths.replaced_scenario(dataclasses.replace(scenario, uncertainty=()),
-                                          {ref.path: values})
-        try:
-            scenario_from_dict(scenario_to_dict(variant), source)
-        except HeatloadError as e:
-            shown = sorted({v for v in values if v is not None})
-            shown = (", ".join(format_quantity(v, ref.kind) for v in shown[:3])
-                     + (" ..." if len(shown) > 3 else "") if ref.kind else "")
-            raise _err(f"this bound gives {u.path} {shown or 'values'} the file itself could "
-                       f"not hold: {e.field + ': ' if e.field else ''}{e.message}",
                        f"{p}.{key}", source) from None
 
 
@@ -649,6 +661,8 @@ def scenario_from_dict(data: dict, source: str = "<dict>") -> m.Scenario:
         scenario = dataclasses.replace(scenario,
                                        repeats=_repeats(data["repeats"], phases, source))
     _check_phase_durations(scenario, source)
+    _check_ceilings(scenario, data, source)
+    _check_speed_ceilings(scenario, source)
     _check_cooler_design(scenario, "cooler" in data and "oil_temperature_max" in data["cooler"],
                          source)
     # after the machine's own checks: a bound is judged against a machine that loads
@@ -711,10 +725,62 @@ def _check_simultaneous_travel(scenario: m.Scenario, durations, source: str) -> 
                            f"phases[{i}].simultaneous[{j}].speed", source)
 
 
+#: Why a [cooler] temperature may not pass the fluid's own upper limit (its
+#: ceiling in the schema, ``_F.ceiling``).
+_ABOVE_FLUID_LIMIT = {
+    "oil_temperature_max": "no cooler may be designed to hold the oil hotter than the oil "
+                           "stands",
+    "thermostat_on": "a cooler switched on only above it lets the oil pass its limit "
+                     "before it cools",
+}
+
+
+def _check_ceilings(scenario: m.Scenario, data: dict, source: str) -> None:
+    """Refuse a ``[cooler]`` temperature the file gives above the fluid's own
+    upper limit (``fluid.temperature_max``, the ceiling its field specification
+    names): a temperature no oil stands.  *data*: the file's tables."""
+    given = data.get("cooler", {})
+    default = "" if "temperature_max" in data.get("fluid", {}) else ", its default"
+    for key, why in _ABOVE_FLUID_LIMIT.items():
+        value = getattr(scenario.cooler, key)
+        limit = ceiling_of(scenario, _COOLER[key])
+        if key not in given or value is None or value <= limit * (1 + 1e-12):
+            continue
+        raise _err(f"{_celsius(value)} is above the upper temperature limit of the fluid, "
+                   f"{_celsius(limit)} ({_COOLER[key].ceiling}{default}): {why}; expected a "
+                   f"temperature (e.g. \"{limit - 273.15 - m.DESIGN_TEMPERATURE_HEADROOM:g} "
+                   f"degC\") at or below it, or the fluid's own limit from its maker as "
+                   f"fluid.temperature_max", f"cooler.{key}", source)
+
+
+def _check_speed_ceilings(scenario: m.Scenario, source: str) -> None:
+    """Refuse a set speed above its actuator's own limit (the ceiling of a
+    phase's ``speed`` in the schema: a hydraulic motor's ``max_speed``), of a
+    phase's own motion or a simultaneous one."""
+    spec = _PHASE["speed"]
+    for i, ph in enumerate(scenario.phases):
+        motions = [(f"phases[{i}].speed", ph.actuator, ph.speed)] + [
+            (f"phases[{i}].simultaneous[{j}].speed", x.actuator, x.speed)
+            for j, x in enumerate(ph.simultaneous)]
+        for field, name, speed in motions:
+            if name is None or speed is None:
+                continue
+            act = scenario.actuator(name)
+            limit = ceiling_of(scenario, spec, act)
+            if limit is None or speed <= limit * (1 + 1e-12):
+                continue
+            k = next(n for n, a in enumerate(scenario.actuators) if a.name == name)
+            raise _err(f"{speed * 60:.4g} rpm is above the max_speed {limit * 60:.4g} rpm of "
+                       f"{name!r} (actuators[{k}].max_speed): its maker allows it no faster; "
+                       f"expected a shaft speed (e.g. \"{limit * 60:.4g} rpm\") at or below "
+                       f"it, or a motor rated for the speed", field, source)
+
+
 def _check_cooler_design(scenario: m.Scenario, design_given: bool, source: str) -> None:
-    """Refuse a design point no cooler of the chosen coolant can hold: air cannot
-    cool the oil below the hottest air (ETD = T_oil - T_air must be positive), and
-    water cannot cool it below the water's inlet temperature."""
+    """Refuse a design point no cooler of the chosen coolant can hold (one above
+    the fluid's own limit is refused before, :func:`_check_ceilings`): air
+    cannot cool the oil below the hottest air (ETD = T_oil - T_air must be
+    positive), and water cannot cool it below the water's inlet temperature."""
     cd = scenario.cooler
     t_d = m.design_oil_temperature(scenario.fluid, cd)
     what = ("the design oil temperature" if design_given

@@ -29,6 +29,7 @@ from __future__ import annotations
 
 import dataclasses
 import difflib
+import math
 from functools import lru_cache
 
 from heatload import model as m
@@ -83,7 +84,7 @@ bulk_modulus = "1.6 GPa"
 specific_heat = "1.88 kJ/(kg*K)"       # leave out for the Cragoe correlation
 thermal_conductivity = "0.13 W/(m*K)"  # leave out for the Cragoe correlation
 temperature_min = "-20 degC"           # allowed oil temperature window
-temperature_max = "80 degC"
+temperature_max = "80 degC"            # the ceiling of the cooler's temperatures below
 kind = "mineral"                       # mineral | water-glycol | ester | other
 # For a fluid given by data instead (at least two points, distinct temperatures):
 # viscosity_points = [["20 degC", "120 mm^2/s"], ["40 degC", "46 mm^2/s"], ["80 degC", "12 mm^2/s"]]
@@ -124,7 +125,7 @@ shaft_speed = "1450 rpm"
 volumetric_efficiency = 0.93           # datasheet point ...
 hydromechanical_efficiency = 0.88
 rated_pressure = "200 bar"             # ... at this pressure
-rated_viscosity = "32 mm^2/s"          # ... and this viscosity
+rated_viscosity = "32 mm^2/s"          # ... and this viscosity (inside the window below)
 max_pressure = "250 bar"               # continuous rating
 viscosity_min = "10 mm^2/s"            # allowed viscosity window
 viscosity_max = "1000 mm^2/s"
@@ -189,7 +190,7 @@ displacement = "80 cm^3/rev"
 volumetric_efficiency = 0.95
 hydromechanical_efficiency = 0.92
 max_pressure = "250 bar"
-max_speed = "600 rpm"
+max_speed = "600 rpm"                  # set speeds of its phases at most this
 
 # Phases run in this order, then the cycle repeats.  motion is
 # extend | retract | hold (cylinders), run | hold (motors), idle (no actuator).
@@ -324,7 +325,8 @@ price = 2000
 
 [cooler]
 oil_temperature_max = "55 degC"        # design oil temperature; default fluid max - 5 K;
-                                       # above temperature_max of [ambient] for air (ETD > 0)
+                                       # at most the fluid's temperature_max, and above
+                                       # temperature_max of [ambient] for air (ETD > 0)
 margin = 0.2                           # +20 % on the duty
 coolant = "air"                        # air | water
 water_inlet_temperature = "25 degC"    # for water: below the design oil temperature
@@ -333,7 +335,8 @@ water_glycol_fraction = 0.0            # ethylene glycol mass fraction
 water_temperature_rise = "5 K"
 air_temperature_rise = "10 K"
 oil_pressure_drop_max = "1 bar"
-thermostat_on = "45 degC"              # leave out for a cooler that always runs
+thermostat_on = "45 degC"              # leave out for a cooler that always runs; at most
+                                       # the fluid's temperature_max
 thermostat_hysteresis = "5 K"
 # price_fixed = 500                    # cooler price, fixed part, in currency; leave out for
 # price_per_kW = 100                   # ... the defaults (common practice) of heatload.decision
@@ -387,6 +390,10 @@ class _F:
     low: float | None = None               # plausible range beyond the kind's own
     high: float | None = None
     why: str | None = None                 # the range and its reason, for the message
+    #: another field of the same scenario (its path) that this one may not exceed
+    #: (:func:`ceiling_of`): a design oil temperature above the fluid's own limit;
+    #: ``actuator.<key>``: a field of the phase's (or motion's) own actuator
+    ceiling: str | None = None
 
 
 _BAR = 1e5
@@ -624,7 +631,7 @@ _PHASE = {
     "actuator": _F("str", "nonempty"),
     "motion": _F("choice", choices=m.MOTIONS, required=True),
     "load": _F("force"),
-    "speed": _F("velocity", "pos"),
+    "speed": _F("velocity", "pos", ceiling="actuator.max_speed"),
     "stroke": _F("distance", "pos"),
     "duration": _F("time", "pos"),
     "hold_pressure": _F("pressure", "pos"),
@@ -666,7 +673,7 @@ _STRATEGY = {
     **_PARAMETERS,
 }
 _COOLER = {
-    "oil_temperature_max": _F("temperature", "pos"),
+    "oil_temperature_max": _F("temperature", "pos", ceiling="fluid.temperature_max"),
     "margin": _F("dimensionless", "nonneg", high=5.0),
     "coolant": _F("choice", choices=tuple(COOLER_TYPES)),
     "water_inlet_temperature": _F("temperature", "pos"),
@@ -675,7 +682,7 @@ _COOLER = {
     "water_temperature_rise": _F("temperature_difference", "pos"),
     "air_temperature_rise": _F("temperature_difference", "pos"),
     "oil_pressure_drop_max": _F("pressure", "pos"),
-    "thermostat_on": _F("temperature", "pos"),
+    "thermostat_on": _F("temperature", "pos", ceiling="fluid.temperature_max"),
     "thermostat_hysteresis": _F("temperature_difference", "nonneg"),
     "price_fixed": _F("dimensionless", "nonneg"),
     "price_per_kW": _F("dimensionless", "nonneg"),
@@ -768,6 +775,66 @@ def _check(value: float, raw, spec: _F, kind: str, field: str, source: str) -> f
         raise _err(f"{shown} is beyond any plausible machine (limit {limit[1]}); "
                    "check the unit", field, source)
     return value
+
+
+def allowed_range(spec: _F, kind: str | None = None) -> tuple:
+    """The values :func:`_check` lets through, as an interval: ``(low,
+    low_open, high, high_open)`` [SI of *kind*] (``-inf`` / ``inf`` where
+    unbounded; ``*_open``: the bound itself is refused).
+
+    The same rules as :func:`_check`, read from the same specification: the
+    sign rule (``pos`` > 0, ``nonneg`` >= 0, ``eff`` within
+    [:data:`MIN_EFFICIENCY`, 1], ``frac`` [0, 1], ``frac_pos`` (0, 1]), a
+    temperature above absolute zero, the field's plausible ``low`` / ``high``
+    and its kind's magnitude limit (:data:`_LIMITS`).  A field's
+    :attr:`_F.ceiling` depends on the scenario and is not included
+    (:func:`ceiling_of`).  Field paths (:mod:`heatload.paths`) hold overrides,
+    sweeps and Monte Carlo samples to this interval.
+    """
+    kind = kind or spec.kind
+    low, low_open, high, high_open = -math.inf, False, math.inf, False
+
+    def above(x, is_open):
+        nonlocal low, low_open
+        if x > low or (x == low and is_open):
+            low, low_open = x, is_open
+
+    def below(x, is_open):
+        nonlocal high, high_open
+        if x < high or (x == high and is_open):
+            high, high_open = x, is_open
+    c = spec.check
+    if kind == "temperature" or c in ("pos", "frac_pos"):
+        above(0.0, True)
+    if c in ("nonneg", "frac"):
+        above(0.0, False)
+    if c == "eff":
+        above(MIN_EFFICIENCY, False)
+    if c in ("eff", "frac", "frac_pos"):
+        below(1.0, False)
+    if spec.low is not None:
+        above(spec.low, False)
+    if spec.high is not None:
+        below(spec.high, False)
+    limit = _LIMITS.get(kind)
+    if limit is not None:
+        above(-limit[0], False)
+        below(limit[0], False)
+    return low, low_open, high, high_open
+
+
+def ceiling_of(scenario, spec: _F, actuator=None):
+    """The value of *spec*'s :attr:`_F.ceiling` field in *scenario* [SI], or None
+    where it has none (an ``actuator.`` ceiling is read on *actuator*, the
+    phase's or motion's own: a motor's ``max_speed``; a cylinder has none)."""
+    if spec.ceiling is None:
+        return None
+    obj, parts = scenario, spec.ceiling.split(".")
+    if parts[0] == "actuator":
+        obj, parts = actuator, parts[1:]
+    for part in parts:
+        obj = getattr(obj, part, None)
+    return None if obj is None else float(obj)
 
 
 def _value(raw, spec: _F, field: str, source: str, kind: str | None = None):

@@ -624,6 +624,8 @@ def _cooler_html(rec, sz, unc):
                 for k in ("P50", "P90", "P95")) + "</tr>"]
         parts.append(f"<p class=\"note\">Monte Carlo, {unc['samples']:,} samples (seed "
                      f"{unc['seed']}), over the scenario's uncertain inputs.</p>")
+        for note in unc.get("truncation_notes", ()):
+            parts.append(f"<p class=\"note\">{_e(note)}</p>")
         parts.append(_table([("", ""), ("P50", "num"), ("P90", "num"), ("P95", "num")], urows,
                             "keep"))
         if unc.get("sensitivity"):

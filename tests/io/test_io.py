@@ -769,3 +769,65 @@ def test_fluid_name_follows_the_grade_when_none_is_given():
     sc = io.loads_scenario(body)
     assert sc.fluid.iso_grade == 68 and sc.fluid.name == "ISO VG 68 mineral oil"
     assert io.loads_scenario(io.dumps_scenario(sc)) == sc
+
+
+def test_allowed_range_is_the_loaders_own_check():
+    """``schema.allowed_range`` states the loader's ``_check`` as an interval: for
+    every numeric key of every table a value just inside each finite bound loads and
+    one just outside is refused (a second copy of the rules would drift)."""
+    import math
+
+    from heatload.io import schema
+    from heatload.units import KINDS
+
+    tables = [v for k, v in vars(schema).items() if k.startswith("_") and isinstance(v, dict)
+              and v and all(isinstance(f, schema._F) for f in v.values())]
+    checked = 0
+    for table in tables:
+        for key, spec in table.items():
+            if spec.kind not in KINDS:
+                continue
+            lo, lo_open, hi, hi_open = schema.allowed_range(spec)
+            assert lo < hi, key
+            for bound, is_open, step in ((lo, lo_open, 1.0), (hi, hi_open, -1.0)):
+                if not math.isfinite(bound):
+                    continue
+                d = 1e-6 * max(abs(bound), 1.0)
+                inside = bound if not is_open else bound + step * d
+                schema._check(inside, inside, spec, spec.kind, key, "t.toml")
+                with pytest.raises(HeatloadError):
+                    schema._check(bound - step * d, bound - step * d, spec, spec.kind, key,
+                                  "t.toml")
+                checked += 1
+    assert checked > 100
+
+
+def _press_set(key, value):
+    text = io.default_scenario_path().read_text(encoding="utf-8")
+    text, n = re.subn(rf'(?m)^{key} = "[^"]*"', f'{key} = "{value}"', text, count=1)
+    assert n == 1, key
+    return text
+
+
+def test_thermostat_above_the_fluids_limit_is_refused_and_at_it_loads():
+    # a cooler's thermostat switches it on below the oil's limit (mineral oil: the
+    # fan comes on at about 45-55 degC, the oil stays below about 80 degC; common
+    # practice, from memory): one that waits until past the limit lets the oil pass it
+    with pytest.raises(HeatloadError, match=r"cooler\.thermostat_on: 81 °C is above .*80 °C"):
+        io.loads_scenario(_press_set("thermostat_on", "81 degC"))
+    sc = io.loads_scenario(_press_set("thermostat_on", "80 degC"))   # the limit itself
+    assert sc.cooler.thermostat_on == pytest.approx(353.15)
+
+
+def test_pump_rated_viscosity_inside_its_own_window():
+    # a datasheet's efficiencies are measured at a viscosity the pump runs at
+    # (commonly 30-36 mm^2/s, inside a window of about 10 .. 1000 mm^2/s; common
+    # practice, from memory)
+    for nu, ok in (("9.9 mm^2/s", False), ("10 mm^2/s", True), ("1000 mm^2/s", True),
+                   ("1001 mm^2/s", False)):
+        text = _press_set("rated_viscosity", nu)
+        if ok:
+            io.loads_scenario(text)
+        else:
+            with pytest.raises(HeatloadError, match="power_unit.pump.rated_viscosity"):
+                io.loads_scenario(text)
