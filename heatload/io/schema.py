@@ -770,8 +770,11 @@ def _check(value: float, raw, spec: _F, kind: str, field: str, source: str) -> f
     if high is not None and value > high:
         raise _err(f"{shown} is implausibly high (above {spec.high:g}{unit}){hint}",
                    field, source)
+    # the kind's magnitude limit, where the field sets no bound of its own on that
+    # side (a site's altitude may lie far beyond any machine's length)
     limit = _LIMITS.get(kind)
-    if limit is not None and abs(value) > limit[0]:
+    if limit is not None and abs(value) > limit[0] and \
+            (spec.high if value > 0 else spec.low) is None:
         raise _err(f"{shown} is beyond any plausible machine (limit {limit[1]}); "
                    "check the unit", field, source)
     return value
@@ -786,7 +789,8 @@ def allowed_range(spec: _F, kind: str | None = None) -> tuple:
     sign rule (``pos`` > 0, ``nonneg`` >= 0, ``eff`` within
     [:data:`MIN_EFFICIENCY`, 1], ``frac`` [0, 1], ``frac_pos`` (0, 1]), a
     temperature above absolute zero, the field's plausible ``low`` / ``high``
-    and its kind's magnitude limit (:data:`_LIMITS`).  A field's
+    and, on a side where the field sets no bound, its kind's magnitude limit
+    (:data:`_LIMITS`).  A field's
     :attr:`_F.ceiling` depends on the scenario and is not included
     (:func:`ceiling_of`).  Field paths (:mod:`heatload.paths`) hold overrides,
     sweeps and Monte Carlo samples to this interval.
@@ -818,8 +822,10 @@ def allowed_range(spec: _F, kind: str | None = None) -> tuple:
         below(spec.high, False)
     limit = _LIMITS.get(kind)
     if limit is not None:
-        above(-limit[0], False)
-        below(limit[0], False)
+        if spec.low is None:
+            above(-limit[0], False)
+        if spec.high is None:
+            below(limit[0], False)
     return low, low_open, high, high_open
 
 

@@ -831,3 +831,17 @@ def test_pump_rated_viscosity_inside_its_own_window():
         else:
             with pytest.raises(HeatloadError, match="power_unit.pump.rated_viscosity"):
                 io.loads_scenario(text)
+
+
+def test_a_site_high_above_sea_level_loads():
+    # mines and cities stand at 1,600-4,500 m; the site's own bounds (-500..9000 m)
+    # rule there, not the magnitude limit of a machine's lengths (1000 m)
+    text = io.default_scenario_path().read_text(encoding="utf-8")
+    assert 'altitude = "200 m"' in text
+    assert io.loads_scenario(text.replace('altitude = "200 m"', 'altitude = "4500 m"')
+                             ).ambient.altitude == pytest.approx(4500.0)
+    with pytest.raises(HeatloadError, match="altitude"):
+        io.loads_scenario(text.replace('altitude = "200 m"', 'altitude = "9500 m"'))
+    # a length of the machine keeps its magnitude limit
+    lo, _, hi, _ = schema.allowed_range(schema._F("distance", "pos"))
+    assert hi == 1000.0
