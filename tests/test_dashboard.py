@@ -624,7 +624,7 @@ def test_an_engine_refusal_quotes_what_was_typed(base, examples):
 def test_a_downloaded_scenario_with_a_control_character_in_its_name_loads():
     import dataclasses
     sc = io.load_scenario(io.default_scenario_path())
-    sc = dataclasses.replace(sc, name="Press\rX\x1b")
+    sc = dataclasses.replace(sc, name="Press\x07X\x1b")
     again = io.loads_scenario(io.dumps_scenario(sc), source="dl.toml")
     assert again.name == sc.name
 

@@ -851,6 +851,12 @@ def _value(raw, spec: _F, field: str, source: str, kind: str | None = None):
             raise _err(f"expected a text in quotes, got {raw!r}", field, source)
         if spec.check == "nonempty" and not raw.strip():
             raise _err("must not be empty", field, source)
+        if spec.check == "nonempty" and len(f"{raw}.".splitlines()) > 1:
+            # a name is one line: a line break in it would print as a line of its
+            # own in tables and warnings (other control characters are shown escaped)
+            bad = next(ch for ch in raw if len(f"a{ch}b".splitlines()) > 1)
+            raise _err(f"a name is one line; it holds a line break "
+                       f"({bad.encode('unicode_escape').decode('ascii')})", field, source)
         return raw
     if kind == "bool":
         if not isinstance(raw, bool):

@@ -30,6 +30,8 @@ from heatload.errors import HeatloadError
 
 ROOT = Path(__file__).resolve().parents[2]
 LEADS = ("=", "+", "-", "@", "\t", "\r")          # OWASP, CSV Injection
+#: The leads a name from a file can start with (the loader refuses a line break in a name)
+NAME_LEADS = tuple(c for c in LEADS if len(f"a{c}b".splitlines()) == 1)
 
 
 def _run(argv):
@@ -49,21 +51,22 @@ def _hostile_scenario():
     d["scenario"]["name"] = '=HYPERLINK("http://example.invalid","click")'
     renamed = {}
     for i, a in enumerate(d["actuators"]):
-        renamed[a["name"]] = new = f"{LEADS[i % 6]}act {a['name']}"
+        renamed[a["name"]] = new = f"{NAME_LEADS[i % len(NAME_LEADS)]}act {a['name']}"
         a["name"] = new
     for i, ph in enumerate(d["phases"]):
-        ph["name"] = f"{LEADS[i % 6]}1+1 {ph['name']}"
+        ph["name"] = f"{NAME_LEADS[i % len(NAME_LEADS)]}1+1 {ph['name']}"
         if "actuator" in ph:
             ph["actuator"] = renamed[ph["actuator"]]
     d["phases"][1]["name"] = "=\x07bell " + d["phases"][1]["name"]  # not storable in xlsx raw
-    d["phases"][3]["name"] += "\r=2+2"      # a row break and a formula inside a name
     for i, st in enumerate(d["strategies"]):
-        st["label"] = f"{LEADS[i % 6]}SUM(1,2) {st['kind']}"
+        st["label"] = f"{NAME_LEADS[i % len(NAME_LEADS)]}SUM(1,2) {st['kind']}"
     d["economics"]["present_strategy"] = d["strategies"][0]["label"]
+    # (a line break inside or before a name the loader refuses; a cell's own row
+    # break: test_a_large_csv_holds_the_same_cells_as_a_small_one)
     sc = io.scenario_from_dict(d)
     names = ([sc.name] + [a.name for a in sc.actuators] + [p.name for p in sc.phases]
              + [s.name for s in sc.strategies])
-    assert {n[0] for n in names} >= set(LEADS)
+    assert {n[0] for n in names} >= set(NAME_LEADS)
     return sc, names
 
 

@@ -845,3 +845,16 @@ def test_a_site_high_above_sea_level_loads():
     # a length of the machine keeps its magnitude limit
     lo, _, hi, _ = schema.allowed_range(schema._F("distance", "pos"))
     assert hi == 1000.0
+
+
+@pytest.mark.parametrize("brk", ["\n", "\r", "\u2028", "\x85"])
+def test_a_line_break_in_a_name_is_refused(brk):
+    # a name printed in a table or a warning would start a line of its own there
+    # (a forged line); a description may run over several lines
+    d = io.scenario_to_dict(io.load_scenario(io.default_scenario_path()))
+    d["phases"][0]["name"] = f"split{brk}Build meter-in: no cooler is needed"
+    with pytest.raises(HeatloadError, match=r"phases\[0\]\.name.*line break"):
+        io.scenario_from_dict(d, "forged.toml")
+    d["phases"][0]["name"] = "split"
+    d["scenario"]["description"] = "line one\nline two"
+    assert io.scenario_from_dict(d).description == "line one\nline two"
