@@ -32,6 +32,7 @@ CODE_KINDS = {"motor-overload": "power", "pressure-rating": "pressure",
               "speed-drift": "dimensionless", "oil-temperature": "temperature",
               "viscosity-window": "kinematic_viscosity",
               "correlation-range": "dimensionless", "flow-rating": "flow",
+              "heat-calibration": "power",
               "hold-at-limit": "pressure"}
 
 
@@ -525,6 +526,36 @@ def thermal_conditions(scenario, steady_no_cooler, operating, cooler_duty,
                              visc_text, per_phase=False))
     out += correlation_range_conditions(scenario, t_op, values)
     return out
+
+
+def calibration_conditions(scenario, operating: CircuitResult, factor) -> list:
+    """``heat-calibration``: the heat into the oil scaled by the scenario's
+    ``heat_calibration`` (measured / model) exceeds what the modelled circuit's
+    electricity can account for, cycle-averaged:
+
+        f Q_oil > mean(P_electric - P_useful)
+
+    (first law of the machine: the oil cannot take more than the electric input
+    less the work done on the load; the model's own heat stays below it by its
+    motor losses).  The heat, the temperatures and the cooler follow the
+    measurement; the electricity and the energy cost remain the model's and then
+    read low.  None where the factor is 1 (nothing measured)."""
+    if float(np.max(np.asarray(factor, float))) <= 1.0:
+        return []
+    t = operating.duration
+
+    def mean(x):
+        return (x * t).sum(axis=-1) / t.sum(axis=-1)
+    heat = np.asarray(factor, float) * mean(operating.heat_to_oil)
+    ceiling = mean(operating.electric_power - operating.useful_power)
+
+    def text(i):
+        return (f"the heat calibration puts {mark(heat[i], 'power')} into the oil, more "
+                f"than the {mark(ceiling[i], 'power')} the modelled circuit draws beyond "
+                f"its useful work: the modelled electricity and energy cost read low "
+                f"(check the log, or the pump's and motor's efficiencies)")
+    return [Condition("heat-calibration", heat > ceiling * (1.0 + 1e-9), heat, ceiling, text,
+                      per_phase=False)]
 
 
 def correlation_range_conditions(scenario, operating, values=None) -> list:

@@ -669,7 +669,8 @@ def evaluate_strategies(scenario: Scenario, strategies, overrides=None, oil_temp
         part.conditions = _conditions(st, part.operating, part.operating_inputs, scenario, val)
         # the oil's limit is judged on the hottest day, where the cooler is sized
         part.cycle_conditions = checks.thermal_conditions(
-            scenario, part.steady_hot, part.operating_temperature, part.cooler_duty, val)
+            scenario, part.steady_hot, part.operating_temperature, part.cooler_duty, val) \
+            + checks.calibration_conditions(scenario, part.operating, part.heat_calibration)
         out.append(part)
     return out
 

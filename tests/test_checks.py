@@ -5,7 +5,7 @@ import math
 
 import pytest
 
-from heatload import chain, checks, io, model as m
+from heatload import chain, checks, evaluation, io, model as m
 from heatload.hydraulics import circuits, cycle
 
 BORE, ROD = 0.100, 0.070
@@ -422,3 +422,26 @@ def test_a_speed_controlled_pump_at_the_pressure_it_is_asked_for_is_not_at_the_l
     assert not {"hold-pressure", "hold-at-limit"} & _codes(_warn(_relief(180e5),
                                                                  "variable-speed"))
     assert "hold-at-limit" in _codes(_warn(_relief(151e5), "variable-speed"))
+
+
+@pytest.mark.parametrize("factor, flagged", [(1.0, None), (1.02, False), (2.0, True)])
+def test_a_calibration_beyond_the_modelled_electricity_is_flagged(factor, flagged):
+    # first law over the cycle: the oil cannot take more than the electric input
+    # less the work done on the load; the model's own heat stays below it by the
+    # motor's losses, so a small calibration passes and a doubling does not
+    import dataclasses
+    sc = io.load_scenario(io.default_scenario_path())
+    sc = dataclasses.replace(sc, heat_calibration=factor)
+    ev = evaluation.evaluate(sc, "meter-in", thermal="design")
+    found = [c for c in ev.cycle_conditions if c.code == "heat-calibration"]
+    if flagged is None:
+        assert not found
+        return
+    (c,) = found
+    r, t = ev.operating, ev.operating.duration
+    ceiling = ((r.electric_power - r.useful_power) * t).sum() / t.sum()
+    heat = factor * (r.heat_to_oil * t).sum() / t.sum()
+    assert c.value[0] == pytest.approx(heat, rel=1e-12)
+    assert c.limit[0] == pytest.approx(ceiling, rel=1e-12)
+    assert bool(c.mask[0]) is flagged
+    assert heat < ceiling or flagged
