@@ -707,6 +707,63 @@ def _check_phase_durations(scenario: m.Scenario, source: str) -> None:
                    f"{'speed' if ph.speed is not None else 'pump displacement'})",
                    f"phases[{i}].{'speed' if ph.speed is not None else 'stroke'}", source)
     _check_simultaneous_travel(scenario, durations, source)
+    _check_cycle_travel(scenario, source)
+
+
+def _cycle_order(scenario: m.Scenario) -> list:
+    """Phase indices in the order one cycle runs them, each repeated block
+    (``[[repeats]]``) written out *count* times."""
+    names = [p.name for p in scenario.phases]
+    blocks = {names.index(r.first): (names.index(r.last), r.count) for r in scenario.repeats}
+    order, i = [], 0
+    while i < len(names):
+        last, count = blocks.get(i, (i, 1))
+        order += list(range(i, last + 1)) * count
+        i = last + 1
+    return order
+
+
+def _check_cycle_travel(scenario: m.Scenario, source: str) -> None:
+    """Refuse a cycle whose cylinder travels, phase after phase, cover more than
+    the cylinder's stroke (the piston would pass its end: a slip in a stroke, a
+    speed or a repeat count).  Checked where every travel of a cylinder in the
+    cycle is known: a phase's stroke, or its set speed times its duration (a
+    phase at the full pump flow for a given time is not known before the solve)."""
+    moves = {a.name: [] for a in scenario.actuators if a.kind == "cylinder"}
+    unknown = set()
+
+    def add(name, motion, speed, stroke, duration, where):
+        if name not in moves or motion not in ("extend", "retract"):
+            return
+        travel = stroke if stroke is not None else (
+            speed * duration if speed is not None and duration is not None else None)
+        if travel is None:
+            unknown.add(name)
+        else:
+            moves[name].append((travel if motion == "extend" else -travel, where))
+    for i in _cycle_order(scenario):
+        ph = scenario.phases[i]
+        add(ph.actuator, ph.motion, ph.speed, ph.stroke, ph.duration, i)
+        t = ph.duration if ph.duration is not None else (
+            ph.stroke / ph.speed if ph.stroke is not None and ph.speed is not None else None)
+        for x in ph.simultaneous:
+            add(x.actuator, x.motion, x.speed, None, t, i)
+    for name, steps in moves.items():
+        if name in unknown or not steps:
+            continue
+        act = scenario.actuator(name)
+        pos = lo = hi = 0.0
+        for travel, i in steps:
+            pos += travel
+            lo, hi = min(lo, pos), max(hi, pos)
+            if hi - lo > act.stroke * (1 + 1e-9):
+                ph = scenario.phases[i]
+                raise _err(f"by the end of phase {ph.name!r} the cycle has moved "
+                           f"{name!r} over {(hi - lo) * 1e3:.4g} mm, more than its "
+                           f"{act.stroke * 1e3:.4g} mm stroke (the phases' strokes, speeds "
+                           f"x durations and repeats of one cycle, extending + and "
+                           f"retracting -, must fit in the cylinder)",
+                           f"phases[{i}].stroke", source)
 
 
 def _check_simultaneous_travel(scenario: m.Scenario, durations, source: str) -> None:

@@ -491,13 +491,22 @@ def draft_toml(cycle: TraceCycle, source: str, name: str | None = None) -> str:
           'name = "main"', 'kind = "cylinder"']
     L.append(_todo("bore", "cylinder bore", "100 mm"))
     L.append(_todo("rod", "rod diameter", "70 mm"))
+    # the draft's phases move the cylinder at their steady speed for their whole
+    # duration: the stroke holds that span as well as the trace's own travel
+    pos = lo = hi = 0.0
+    for ph in cycle.phases:
+        if ph.kind in ("extend", "retract"):
+            pos += max(ph.speed, 1e-4) * ph.duration * (1 if ph.kind == "extend" else -1)
+            lo, hi = min(lo, pos), max(hi, pos)
+    span = max(hi - lo, cycle.position_range or 0.0)
     if cycle.position_range:
-        stroke = math.ceil(cycle.position_range * 1.05 / 0.01) * 0.01
+        stroke = math.ceil(span * 1.05 / 0.01) * 0.01
         L.append(_todo("stroke", f"cylinder stroke (the trace travels "
                                  f"{_fmt(cycle.position_range, 'length')})",
                        _fmt(stroke, "length")))
     else:
-        L.append(_todo("stroke", "cylinder stroke", "500 mm"))
+        L.append(_todo("stroke", "cylinder stroke",
+                       _fmt(max(0.5, math.ceil(span * 1.05 / 0.01) * 0.01), "length")))
     for i, ph in enumerate(cycle.phases, 1):
         L += ["", "[[phases]]"]
         label = ph.kind if ph.kind not in (MOTION_UNKNOWN, PRESSURE_UNKNOWN) else "step"

@@ -858,3 +858,24 @@ def test_a_line_break_in_a_name_is_refused(brk):
     d["phases"][0]["name"] = "split"
     d["scenario"]["description"] = "line one\nline two"
     assert io.scenario_from_dict(d).description == "line one\nline two"
+
+
+def test_a_cycle_that_moves_a_cylinder_past_its_stroke_is_refused():
+    # the press's main cylinder has a 400 mm stroke and its cycle extends
+    # 250 + 20 + 60 + 10 = 340 mm: a 320 mm approach would take it to 410 mm
+    d = io.scenario_to_dict(io.load_scenario(io.default_scenario_path()))
+    assert d["phases"][0]["name"] == "fast approach"
+    d["phases"][0]["stroke"] = "320 mm"
+    with pytest.raises(HeatloadError, match=r"phases\[3\]\.stroke.*410 mm.*400 mm stroke"):
+        io.scenario_from_dict(d, "long.toml")
+    d["phases"][0]["stroke"] = "310 mm"            # 400 mm: to the end and no further
+    io.scenario_from_dict(d, "ok.toml")
+    # a repeated block that only extends: three passes of the ejector's 100 mm on
+    # its 120 mm stroke
+    d = io.scenario_to_dict(io.load_scenario(io.default_scenario_path()))
+    d["repeats"] = [{"first": "eject", "last": "eject", "count": 3}]
+    with pytest.raises(HeatloadError, match=r"'ejector' over 200 mm"):
+        io.scenario_from_dict(d, "rep.toml")
+    # the block of extend and return repeats within the stroke
+    d["repeats"] = [{"first": "eject", "last": "ejector return", "count": 3}]
+    io.scenario_from_dict(d, "ok.toml")
