@@ -23,6 +23,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from heatload.units import mark
 from heatload import checks, evaluation
 from heatload.hydraulics import circuits, cycle, energy
 from heatload.heat import thermal
@@ -158,10 +159,22 @@ def outcome_of(scenario: Scenario, ev) -> StrategyOutcome:
         heat_running=f_heat * float(e_op.average_heat_to_oil))
     warns = (checks.phase_warnings(ev.conditions, scenario, row=0)
              + checks.cycle_warnings(ev.cycle_conditions, row=0))
-    return StrategyOutcome(strategy=ev.strategy, circuit=res_op, energy=e_op,
-                           circuit_uncoupled=res_u,
-                           energy_uncoupled=energy.summarize(res_u, scenario.economics),
-                           thermal=th, warnings=warns)
+    out = StrategyOutcome(strategy=ev.strategy, circuit=res_op, energy=e_op,
+                          circuit_uncoupled=res_u,
+                          energy_uncoupled=energy.summarize(res_u, scenario.economics),
+                          thermal=th, warnings=warns)
+    # the cooler the comparison prices must be one that can be built: the same
+    # judgement `heatload cooler` and the report size it by
+    from heatload.cooling.sizing import cooler_shortfall
+    why = cooler_shortfall(scenario, out)
+    if why is not None:
+        out.warnings.append(checks.Warning_(
+            "cooler-design", None, duty, None,
+            f"no {scenario.cooler.coolant}-oil cooler can hold the design point "
+            f"({mark(duty, 'power')} at {mark(th.design_oil_temperature, 'temperature')} "
+            f"oil, {mark(th.design_ambient, 'temperature')} ambient): "
+            + why.replace("{", "{{").replace("}", "}}")))
+    return out
 
 
 def time_to_temperature(heat, capacity, conductance, ambient, start, target, points=400):

@@ -32,7 +32,7 @@ CODE_KINDS = {"motor-overload": "power", "pressure-rating": "pressure",
               "speed-drift": "dimensionless", "oil-temperature": "temperature",
               "viscosity-window": "kinematic_viscosity",
               "correlation-range": "dimensionless", "flow-rating": "flow",
-              "heat-calibration": "power",
+              "heat-calibration": "power", "cooler-design": "power",
               "hold-at-limit": "pressure"}
 
 

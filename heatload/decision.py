@@ -38,7 +38,7 @@ import numpy as np
 #: cannot do the job as specified.  ``motor-overload`` is graded apart
 #: (:func:`motor_overload_blocks`).
 BLOCKING = ("stall", "speed-not-reached", "pressure-rating", "overrunning-load",
-            "hold-pressure")
+            "hold-pressure", "cooler-design")
 
 #: Sweep tables written before the warnings became one table of conditions name the
 #: overrunning-load condition ``runaway``.
@@ -51,6 +51,7 @@ BLOCKING_WORDS = {
     "pressure-rating": "a pressure exceeds a component's rating",
     "overrunning-load": "it cannot hold the overrunning load without a counterbalance valve",
     "hold-pressure": "the pump does not supply the pressure to hold",
+    "cooler-design": "no cooler of the chosen coolant can hold the design oil temperature",
     "motor-overload": "the drive motor is overloaded beyond IEC 60034-1's 160 % for 15 s",
 }
 

@@ -93,8 +93,13 @@ def test_press_140kN_stalled_circuits_are_out(press140):
     # the CLI's table ranks in the same order and prints the decision
     rc, text = _run(["compare", str(press140)])
     assert f"Build {rec}" in text
-    rows = [ln.split()[1] for ln in text.splitlines() if re.match(r"^\d+\s+\S", ln)]
+    # (a feasible row is numbered by its rank, a ruled-out one marked "out")
+    rows = [ln.split()[1] for ln in text.splitlines()
+            if re.match(r"^\s*(\d+|out)\s+\S", ln)]
     assert rows[:len(js["ranking"])] == js["ranking"]
+    marks = {ln.split()[1]: ln.split()[0] for ln in text.splitlines()
+             if re.match(r"^\s*(\d+|out)\s+\S", ln)}
+    assert all((marks[n] == "out") == (not recs[n]["feasible"]) for n in js["ranking"])
 
 
 def test_cost_of_ownership_by_hand():

@@ -221,8 +221,63 @@ def thermostat_summary(scenario, outcome, datasheet=None) -> dict:
             "cooler_specific_power_W_K": s_cooler}
 
 
+def _design_point(scenario, outcome, coolant=None):
+    """``(cooler type, cooler design, CoolerSizing)`` of one strategy's design point
+    for *coolant* (default the file's), nothing sized yet; a coolant entering no
+    colder than the oil is refused (second law)."""
+    from heatload.properties import oil
+
+    kind = cooler_type(coolant or scenario.cooler.coolant, field="--coolant")
+    cd = scenario.cooler
+    th = outcome.thermal
+    t_d = float(th.design_oil_temperature)
+    t_a = float(th.design_ambient)
+    # no cooler of a coolant entering no colder than the oil cools it (second
+    # law); the loader refuses such a file for its own coolant, this covers a
+    # coolant chosen afterwards (``heatload cooler --coolant``)
+    refused = kind.refusal(t_d, t_a, cd, "the design oil temperature",
+                           "cooler.oil_temperature_max")
+    if refused:
+        raise HeatloadError(refused[0], field=refused[1])
+    fluid = scenario.fluid
+    duty0 = float(th.cooler_duty_without_margin)
+    sz = CoolerSizing(
+        strategy=outcome.name, coolant=kind.name, design_oil_temperature=t_d,
+        design_ambient=t_a, design_heat=float(th.design_heat),
+        design_conductance=float(th.design_conductance),
+        surfaces_heat=float(th.design_conductance) * (t_d - t_a),
+        cooler_needed=bool(th.cooler_needed), duty_without_margin=duty0, margin=float(cd.margin),
+        duty=float(th.cooler_duty),
+        oil_flow=cycle_average_flow(outcome.circuit.pump_flow, outcome.circuit.duration),
+        oil_density=float(oil.fluid_density(fluid, t_d)),
+        oil_specific_heat=float(oil.fluid_specific_heat(fluid, t_d)),
+        oil_viscosity=float(oil.kinematic_viscosity(fluid, t_d)),
+        water_inlet_temperature=float(cd.water_inlet_temperature),
+        air_pressure=float(barometric_pressure(scenario.ambient.altitude)))
+    return kind, cd, sz
+
+
+def cooler_shortfall(scenario, outcome):
+    """Why no cooler of the file's coolant can hold one strategy's design point
+    (the reason :func:`size_cooler` would refuse it with), or None where one can
+    or none is needed.  The comparison flags it (``cooler-design``), so it does
+    not recommend a circuit whose cooler cannot be built as specified."""
+    if not outcome.thermal.cooler_needed:
+        return None
+    try:
+        kind, cd, sz = _design_point(scenario, outcome)
+    except HeatloadError as exc:
+        return exc.message
+    if sz.oil_flow <= 0.0:
+        return None     # an off-line cooler with its own pump (size_cooler's note)
+    kind.size(sz, cd)
+    if kind.possible(sz):
+        return None
+    return "; ".join(n for n in sz.notes if n.startswith(kind.label)) or "no unit fits"
+
+
 def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None,
-                thermostat=True) -> CoolerSizing:
+                thermostat=True, strict=True) -> CoolerSizing:
     """Size the cooler of one strategy at the design point.
 
     P_0 = max(0, Q_d - UA_d (T_d - T_a,max)); P = P_0 (1 + margin);
@@ -240,6 +295,9 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
         Rating mode: a cooler's catalogue duty [W] at its ETD [K].
     thermostat : bool, optional
         Also run a shift with the thermostat-switched cooler.
+    strict : bool, optional
+        Refuse (HeatloadError) where no cooler of *coolant* can hold the design
+        point; False: the sizing without a spec sheet, saying why in its notes.
 
     Returns
     -------
@@ -256,35 +314,12 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
     Steady energy balance of the oil (first law); Incropera et al., 6th ed.,
     Sec. 11.4-11.5 (effectiveness-NTU); ETD rating: common practice.
     """
-    from heatload.properties import oil
-
-    coolant = coolant or scenario.cooler.coolant
-    kind = cooler_type(coolant, field="--coolant")
-    cd = scenario.cooler
-    th = outcome.thermal
-    t_d = float(th.design_oil_temperature)
-    t_a = float(th.design_ambient)
-    # no cooler of a coolant entering no colder than the oil cools it (second
-    # law); the loader refuses such a file for its own coolant, this covers a
-    # coolant chosen afterwards (``heatload cooler --coolant``)
-    refused = kind.refusal(t_d, t_a, cd, "the design oil temperature",
-                           "cooler.oil_temperature_max")
-    if refused:
-        raise HeatloadError(refused[0], field=refused[1])
-    fluid = scenario.fluid
-    q_oil = cycle_average_flow(outcome.circuit.pump_flow, outcome.circuit.duration)
-    rho = float(oil.fluid_density(fluid, t_d))
-    cp = float(oil.fluid_specific_heat(fluid, t_d))
-    nu = float(oil.kinematic_viscosity(fluid, t_d))
-    duty0 = float(th.cooler_duty_without_margin)
-    sz = CoolerSizing(
-        strategy=outcome.name, coolant=coolant, design_oil_temperature=t_d, design_ambient=t_a,
-        design_heat=float(th.design_heat), design_conductance=float(th.design_conductance),
-        surfaces_heat=float(th.design_conductance) * (t_d - t_a),
-        cooler_needed=bool(th.cooler_needed), duty_without_margin=duty0, margin=float(cd.margin),
-        duty=float(th.cooler_duty), oil_flow=q_oil, oil_density=rho, oil_specific_heat=cp,
-        oil_viscosity=nu, water_inlet_temperature=float(cd.water_inlet_temperature),
-        air_pressure=float(barometric_pressure(scenario.ambient.altitude)))
+    kind, cd, sz = _design_point(scenario, outcome, coolant)
+    coolant = kind.name
+    q_oil = sz.oil_flow
+    t_d, t_a = sz.design_oil_temperature, sz.design_ambient
+    rho, cp, nu, duty0 = sz.oil_density, sz.oil_specific_heat, sz.oil_viscosity, \
+        sz.duty_without_margin
     sz.notes.append(ASSUMPTION_OIL_FLOW)
     if not sz.cooler_needed:
         sz.notes.append("no cooler needed: the surfaces shed "
@@ -310,10 +345,14 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
                 sz.notes.append("spec sheet for a counterflow unit: one-shell shell-and-tube "
                                 "cannot reach the effectiveness")
         else:
-            # the chosen coolant cannot take the duty: a refusal, not a sheet left blank
+            # the chosen coolant cannot take the duty: a refusal, not a sheet left
+            # blank (a report, not strict, says so in the sizing's notes instead)
             why = "; ".join(n for n in sz.notes if n.startswith(kind.label)) or "no unit fits"
-            raise HeatloadError(f"no {kind.label} cooler can hold the design point "
-                                f"({why})", field="cooler.coolant")
+            if strict:
+                raise HeatloadError(f"no {kind.label} cooler can hold the design point "
+                                    f"({why})", field="cooler.coolant")
+            sz.notes.insert(0, f"no {kind.label} cooler can hold the design point ({why}): "
+                               f"no spec sheet")
     if rated_duty is not None or rated_etd is not None:
         if rated_duty is None or rated_etd is None:
             raise HeatloadError("rating mode needs both --rated-duty and --rated-etd",

@@ -728,7 +728,7 @@ def report_data(scenario, comparison, present=None, prices=None, source=None,
     savings = tables.savings_against(comparison, present)
     pay = payback_rows(data, present, prices)
     o_rec = comparison.outcome(rec_name)
-    sz = sizing.size_cooler(scenario, o_rec)
+    sz = sizing.size_cooler(scenario, o_rec, strict=False)
     unc = sizing.cooler_uncertainty(scenario, o_rec.strategy,
                                     samples=samples or sizing.REPORT_SAMPLES, seed=seed)
     rec = sizing.sizing_record(sz, unc)
@@ -1041,7 +1041,8 @@ def export_tables(scenario, comparison, prepared=None, present=None, prices=None
         out[f"phases {o.name}"] = pd.DataFrame(rows)
     crow = []
     for o in comparison.outcomes:
-        rec = sizing.sizing_record(sizing.size_cooler(scenario, o, thermostat=False))
+        rec = sizing.sizing_record(sizing.size_cooler(scenario, o, thermostat=False,
+                                                      strict=False))
         flat = {}
         for k, v in rec.items():
             if k in ("notes", "caution", "rating", "thermostat", "uncertainty"):

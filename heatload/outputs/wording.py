@@ -52,6 +52,8 @@ SENTENCES = {
                        "the supply pressure.",
     "cavitation": "A cylinder chamber falls close to vacuum: a risk of cavitation.",
     "speed-drift": "The actuator speed changes noticeably when the load changes.",
+    "cooler-design": "No cooler of the chosen kind can keep the oil at its design "
+                     "temperature on the hottest day.",
     "heat-calibration": "The measured heat is more than the modelled electricity can "
                         "supply: the energy cost shown reads low.",
     "correlation-range": "A tank surface sheds heat by a correlation used beyond its "

@@ -337,3 +337,45 @@ def test_air_flow_is_at_the_sites_air_density():
     assert at_site.air.air_mass_flow == pytest.approx(at_sea.air.air_mass_flow, rel=1e-3)
     assert at_site.spec.coolant_flow / at_sea.spec.coolant_flow == pytest.approx(
         101.325 / 98.945, rel=2e-3)
+
+
+def _hot_hall():
+    """The press in a 60 °C hall (69 °C on the hottest day), the oil designed to
+    75 °C: an ETD of 6 K, below the air cooler's 10 K air temperature rise."""
+    import dataclasses
+    from heatload import io
+    sc = io.load_scenario(io.default_scenario_path())
+    return dataclasses.replace(
+        sc, uncertainty=(),
+        ambient=dataclasses.replace(sc.ambient, temperature=333.15, temperature_max=342.15),
+        cooler=dataclasses.replace(sc.cooler, oil_temperature_max=348.15))
+
+
+def test_a_cooler_no_unit_can_give_rules_the_strategy_out_everywhere():
+    # compare, cooler and report agree: the comparison flags it (cooler-design,
+    # ruling the strategy out), `cooler` refuses it, the report sizes without a
+    # sheet and says why
+    from heatload import chain
+    from heatload.cooling import sizing
+    from heatload.errors import HeatloadError
+    sc = _hot_hall()
+    cmp = chain.compare(sc)
+    needs = [o for o in cmp.outcomes if o.thermal.cooler_needed]
+    assert needs
+    for o in cmp.outcomes:
+        flagged = any(w.code == "cooler-design" for w in o.warnings)
+        assert flagged == o.thermal.cooler_needed, o.name
+    verdicts = {v.name: v for v in cmp.decision().verdicts}
+    assert all(not verdicts[o.name].feasible for o in needs)
+    with pytest.raises(HeatloadError, match="no air-oil cooler can hold"):
+        sizing.size_cooler(sc, needs[0])
+    sz = sizing.size_cooler(sc, needs[0], strict=False, thermostat=False)
+    assert sz.spec is None and "no air-oil cooler can hold" in sz.notes[0]
+    # the ETD (6 K) is below the air's temperature rise (10 K): no air cooler
+    assert sz.design_oil_temperature - sz.design_ambient < sc.cooler.air_temperature_rise
+
+
+def test_the_default_press_has_no_cooler_design_warning():
+    from heatload import chain, io
+    cmp = chain.compare(io.load_scenario(io.default_scenario_path()))
+    assert not [w for o in cmp.outcomes for w in o.warnings if w.code == "cooler-design"]

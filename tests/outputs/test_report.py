@@ -560,3 +560,21 @@ def test_cover_date_must_be_a_real_date():
     assert report.cover_data(sc, cover={"date": "2026-12-03"})["date"] == "2026-12-03"
     with pytest.raises(_E, match="--date"):
         report.cover_data(sc, cover={"date": "2026-13-45"})
+
+
+def test_a_report_where_no_cooler_can_hold_the_design_point_is_written(tmp_path):
+    # every strategy is ruled out (cooler-design); the report still tells why
+    import contextlib
+    import io as stdio
+
+    from heatload import cli
+    from heatload import io as hio
+    from tests.cooling.test_sizing import _hot_hall
+    src = tmp_path / "hot.toml"
+    src.write_text(hio.dumps_scenario(_hot_hall()), encoding="utf-8")
+    out = tmp_path / "hot.html"
+    with contextlib.redirect_stdout(stdio.StringIO()):
+        assert cli.main(["report", str(src), "-o", str(out)]) == 0
+    text = out.read_text(encoding="utf-8")
+    assert "no air-oil cooler can hold the design point" in text
+    assert "No cooler of the chosen kind can keep the oil" in text
