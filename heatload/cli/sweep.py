@@ -8,8 +8,8 @@ import numpy as np
 
 from heatload.errors import HeatloadError
 from heatload.studies.sweep import (check_corners, check_size, check_table_path,
-                                    grid_values, pareto_front, parse_vary, run_sweep,
-                                    sample_values, varied_column, write_table)
+                                    grid_values, pareto_front, parse_vary, rank_order,
+                                    run_sweep, sample_values, varied_column, write_table)
 
 
 def _show(df, specs, system, rows, out, width=None):
@@ -115,20 +115,11 @@ def run(args) -> int:
         print(note, file=out)
     top = args.top if args.top is not None else 10
     width = getattr(args, "width", None)
-    # The decision rule (heatload.decision): feasible first, then yearly cost of
-    # ownership per cycle (per part made: a slower variant makes fewer parts in
-    # the same hours, so a yearly figure alone would flatter it).
-    from heatload import decision
-    flawed = ~decision.feasible_counts(
-        {c[len("warnings_"):]: df[c].to_numpy() for c in df.columns if c.startswith("warnings_")})
+    # The decision rule, as the table holds it (rank_variants): feasible first,
+    # then yearly cost of ownership per cycle.
+    flawed = ~df["feasible"].to_numpy()
     energy = df["electric_energy_per_cycle_J"].to_numpy()
-    price = df["strategy"].map({s.name: s.parameters.price for s in strategies}).to_numpy(float)
-    hours = (df["economics.hours_per_year"].to_numpy() if "economics.hours_per_year" in df
-             else scenario.economics.hours_per_year)   # a plain number: no suffix
-    cycles = hours * 3600.0 / df["cycle_time_s"].to_numpy()
-    cost = decision.variant_yearly_cost(df["cost_per_year"].to_numpy(),
-                                        df["cooler_duty_W"].to_numpy(), price, scenario)
-    ranked = decision.rank_order(~flawed, cost / np.where(cycles > 0, cycles, np.nan))
+    ranked = rank_order(df)
     if top:
         order = ranked[:top]
         print(f"\nbest {len(order)} by yearly cost of ownership per cycle (feasible first: "
