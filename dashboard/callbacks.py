@@ -409,21 +409,63 @@ def _call(fn, *args, **kwargs):
     return fn(*args, **kwargs)
 
 
+#: Samples the dashboard's Monte Carlo runs: from enough for a P90 to a click's
+#: wait (the command line runs up to 1,000,000).
+MC_SAMPLES = (100, 20_000)
+#: Characters of a bad entry quoted back in its message.
+_QUOTED = 24
+
+
+def monte_carlo_samples(value) -> int:
+    """The count typed into the Monte Carlo's samples field, as a whole number
+    from ``MC_SAMPLES[0]`` to ``MC_SAMPLES[1]`` (``2000``, ``2,000`` and ``2e3``
+    read alike).
+
+    Raises
+    ------
+    HeatloadError
+        Anything else (text, zero, a negative or fractional count, one beyond
+        the range), as one line naming the field and the range.
+    """
+    lo, hi = MC_SAMPLES
+    typed = "" if value is None else str(value).strip()
+    shown = typed if len(typed) <= _QUOTED else typed[:_QUOTED - 1] + "…"
+    expected = f"expected a whole number from {lo:,} to {hi:,}"
+    try:
+        v = float(typed.replace(",", "")) if len(typed) <= 40 else float("nan")
+    except ValueError:
+        v = float("nan")
+    if not typed or not np.isfinite(v) or v != round(v) or not lo <= v <= hi:
+        raise HeatloadError(f"{expected}, got {shown!r}" if typed else f"{expected}; it is empty",
+                            field="Monte Carlo samples")
+    return int(v)
+
+
+def run_monte_carlo(store, strategy, samples, system):
+    """The Monte Carlo button: ``(result, key, message beside the samples field)``.
+
+    A bad count (:func:`monte_carlo_samples`) shows its one-line message beside
+    the field and runs nothing: the result shown and the entry as typed stay."""
+    try:
+        n = monte_carlo_samples(samples)
+    except HeatloadError as e:
+        return no_update, no_update, e.one_line()
+    if not store or not strategy:
+        raise PreventUpdate
+    return (uncertainty_view(store["data"], strategy, n, system),
+            {"key": compute.scenario_key(store["data"]), "strategy": strategy}, "")
+
+
 def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
     """Monte Carlo histogram of the cooler duty and the sensitivity ranking
-    (:mod:`heatload.studies.uncertainty`); a note when it is missing."""
+    (:mod:`heatload.studies.uncertainty`); a note when it is missing.  *samples*:
+    as :func:`monte_carlo_samples` takes it."""
     scenario = compute.scenario_of(data)
     if not scenario.uncertainty:
         return html.Div("The scenario lists no uncertain inputs ([[uncertainty]] in the "
                         "file).", className="note", id="mc-note")
     st = scenario.strategy(strategy)
-    asked = samples
-    n = int(min(max(int(samples or 2000), 100), 20000))
-    # a count outside 100 .. 20,000 is run at the nearest end, and said so
-    clamp = (None if asked in (None, "") or float(asked) == n else
-             html.P(f"Samples: {n:,} (asked {float(asked):,.0f}; the dashboard runs 100 to "
-                    f"20,000; the command line runs up to 1,000,000).", id="mc-clamped",
-                    className="note"))
+    n = monte_carlo_samples(samples)
     try:
         mc = _call(unc.monte_carlo, scenario, st, samples=n, seed=1, progress=False)
         sens = list(_call(unc.sensitivity, scenario, st)) if hasattr(unc, "sensitivity") else []
@@ -458,7 +500,7 @@ def uncertainty_view(data: dict, strategy: str, samples: int, system: str):
     inputs = html.P(["Uncertain inputs: "] + [x for i, sp in enumerate(names)
                                               for x in ([", "] if i else []) + [sp]],
                     id="mc-inputs", className="note")
-    return html.Div(([clamp] if clamp else []) + ([line] if line else []) + [inputs]
+    return html.Div(([line] if line else []) + [inputs]
                     + [dcc.Graph(figure=f, id=f"mc-graph-{i}") for i, f in enumerate(figs)],
                     id="mc-result")
 
@@ -622,15 +664,15 @@ def register(app, examples: dict) -> None:
         return cooler_view(store["data"], strategy, system)
 
     @app.callback(Output("mc-out", "children"), Output("mc-key", "data"),
+                  Output("mc-samples-error", "children"),
                   Input("mc-run", "n_clicks"),
                   State("scenario-store", "data"), State("strategy-select", "value"),
                   State("mc-samples", "value"), State("units", "value"),
                   prevent_initial_call=True)
     def _mc(n, store, strategy, samples, system):
-        if not n or not store or not strategy:
+        if not n:
             raise PreventUpdate
-        return (uncertainty_view(store["data"], strategy, samples, system),
-                {"key": compute.scenario_key(store["data"]), "strategy": strategy})
+        return run_monte_carlo(store, strategy, samples, system)
 
     @app.callback(Output("mc-out", "children", allow_duplicate=True),
                   Output("mc-key", "data", allow_duplicate=True),

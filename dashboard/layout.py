@@ -71,8 +71,10 @@ h3 { font-size:15px; margin:6px 0 8px; }
 .keys input { width:100%; padding:4px 6px; border:1px solid #bcccdc; border-radius:3px;
               font-size:13px; text-align:right; }
 .keys .unit { color:var(--muted); font-size:12px; }
-.keys .kerr { grid-column: 1 / span 3; color:var(--bad); font-size:12px; }
-.keys .kerr:empty { display:none; }
+.kerr { color:var(--bad); font-size:12px; }
+.kerr:empty { display:none; }
+.keys .kerr { grid-column: 1 / span 3; }
+.row .kerr { align-self:center; }
 table.comparison, table.spec { border-collapse:collapse; width:100%; font-size:13px; }
 table.comparison th, table.comparison td, table.spec th, table.spec td {
   border-bottom:1px solid var(--line); padding:5px 8px; vertical-align:top; text-align:left; }
@@ -206,12 +208,17 @@ def make_layout(initial: dict):
             html.Div(id="cooler-note"),
             html.Div([html.Div([html.H3("spec sheet"), html.Div(id="cooler-spec")]),
                       html.Div([html.H3("uncertainty of the duty"),
-                                html.Div([dcc.Input(id="mc-samples", type="number", min=100,
-                                                    max=20000, step=100, value=2000,
+                                # text, not a number input: the browser would hand a
+                                # bad entry over as the last good count (or none)
+                                html.Div([dcc.Input(id="mc-samples", type="text",
+                                                    inputMode="numeric", value="2000",
+                                                    name="Monte Carlo samples",
                                                     style={"width": "90px"}),
                                           html.Span(" samples ", className="caution"),
                                           html.Button("run Monte Carlo", id="mc-run",
-                                                      className="btn", n_clicks=0)],
+                                                      className="btn", n_clicks=0),
+                                          html.Div("", id="mc-samples-error",
+                                                   className="kerr")],
                                          className="row"),
                                 dcc.Loading(html.Div(id="mc-out"))])],
                      className="grid2 even")], className="panel")),

@@ -117,7 +117,8 @@ EXTRA_SUFFIXES = ("kWh", "per_kWh", "kg_per_kWh", "h", "years")
 PLAIN_NAMES = ("efficiency", "fraction", "factor", "margin", "ratio", "effectiveness",
                "ntu", "count", "iterations", "rank", "seed", "samples", "variant", "passes",
                "phases", "decimals", "cost", "price", "cost_total", "cost_per_year",
-               "saving_per_year", "hours_per_year", "P50", "P90", "P95")
+               "saving_per_year", "hours_per_year", "cost_of_ownership_per_year",
+               "cost_of_ownership_per_cycle", "P50", "P90", "P95")
 #: Beginnings of names of counts: ``warnings_<code>`` counts the phases with that warning.
 PLAIN_PREFIXES = ("warnings_",)
 

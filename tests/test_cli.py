@@ -254,6 +254,40 @@ def test_output_fits_80_columns(path, command, capsys, monkeypatch):
     assert lines and too_long == []
 
 
+@pytest.mark.parametrize("units", ["si", "us"])
+@pytest.mark.parametrize("vary", [
+    ["actuators.main.bore=90..110mm:2", "actuators.ejector.bore=40..60mm:2",
+     "power_unit.pump.displacement=20..30cm^3:2"],
+    ["phases[0].load=-4..-2kN:2", "phases[1].load=-4..-2kN:2", "phases[2].load=90..110kN:2"],
+    ["power_unit.pump.volumetric_efficiency=0.9..0.95:2",
+     "power_unit.pump.hydromechanical_efficiency=0.85..0.9:2",
+     "power_unit.directional_valve.centre_pressure_drop=2..5bar:2"],
+    ["strategies.meter-in.counterbalance_setting=10..20bar:2",
+     "strategies.pressure-compensated.counterbalance_setting=10..20bar:2",
+     "strategies.load-sensing.counterbalance_setting=10..20bar:2"],
+], ids=["two-bores", "three-loads", "efficiencies", "three-strategies"])
+def test_sweep_of_three_fields_fits_80_columns(vary, units, capsys, monkeypatch):
+    # 80 columns: the classic terminal width (common practice); each table keeps
+    # the three varied values of every row (beside strategy, energy and cooler)
+    argv = ["sweep", "--top", "4", "--units", units, "--strategy", "pressure-compensated",
+            "--strategy", "variable-speed"]
+    for v in vary:
+        argv += ["--vary", v]
+    lines = _lines_of(argv, capsys, monkeypatch)
+    assert [x for x in lines if len(x) > 80] == []
+    # no table broken over lines: under each rule, rows of a whole strategy name,
+    # three varied values and at least two figures
+    rules = [i for i, x in enumerate(lines) if x.startswith("-") and not x.strip("- ")]
+    assert len(rules) >= 2
+    for i in rules:
+        row = lines[i + 1].split()
+        assert row[0] in ("pressure-compensated", "variable-speed") and len(row) >= 1 + 3 + 2
+        assert lines[i].count("-") >= 5 * 4     # the rule spans the columns on one line
+    text = "\n".join(lines)
+    for v in vary:                       # each field named, over its column or above
+        assert v.split("=")[0].rsplit(".", 1)[-1].split("_")[-1] in text
+
+
 LOGS = Path(__file__).resolve().parents[1] / "duty_cycles" / "logs"
 
 

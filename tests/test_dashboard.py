@@ -692,15 +692,6 @@ def test_an_edit_parses_only_the_cell_it_changed(monkeypatch):
         assert errors and errors[0][0].startswith("phases[3]")
 
 
-def test_uncertainty_view_says_when_it_runs_another_count(base):
-    # 10 asked: run at the least, 100, and said, never silently (1e12 runs 20,000)
-    out = callbacks.uncertainty_view(base["data"], "load-sensing", 10, "si")
-    note = next(g for g in out.children if getattr(g, "id", None) == "mc-clamped")
-    assert "Samples: 100 (asked 10" in note.children
-    out = callbacks.uncertainty_view(base["data"], "load-sensing", 200, "si")
-    assert not any(getattr(g, "id", None) == "mc-clamped" for g in out.children)
-
-
 def test_a_port_in_use_or_a_foreign_host_is_refused_before_starting(capsys):
     # one line naming the flag, exit 2, nothing started (no banner)
     import socket
@@ -716,3 +707,68 @@ def test_a_port_in_use_or_a_foreign_host_is_refused_before_starting(capsys):
     assert cli.main(["dashboard", "--host", "999.1.1.1", "--port", "8769"]) == 2
     err = capsys.readouterr().err
     assert "--host" in err and "not an address" in err and "http://" not in err
+
+
+@pytest.mark.parametrize("typed", ["abc", "0", "-500", "99", "20001", "1e12", "150.5", "nan",
+                                   "", None, "9" * 500])
+def test_a_bad_monte_carlo_count_is_named_beside_its_field_and_nothing_runs(
+        base, typed, monkeypatch):
+    """A bad sample count once reran silently with the last valid count: now one
+    line beside the field names it and the range, nothing runs and the result
+    shown stays (no update)."""
+    with pytest.raises(HeatloadError, match="Monte Carlo samples"):
+        callbacks.uncertainty_view(base["data"], "load-sensing", typed, "si")
+    ran = []
+    monkeypatch.setattr(callbacks, "uncertainty_view", lambda *a: ran.append(a))
+    out, key, message = callbacks.run_monte_carlo(base["store"], "load-sensing", typed, "si")
+    assert out is no_update and key is no_update and ran == []
+    assert message.startswith("Monte Carlo samples: expected a whole number from 100 to "
+                              "20,000") and "\n" not in message and len(message) < 120
+    if typed and len(typed) < 20:
+        assert f"got {typed!r}" in message
+
+
+def test_a_good_monte_carlo_count_runs_and_clears_the_message(base):
+    assert [callbacks.monte_carlo_samples(t) for t in ("100", " 2,000 ", "2e3", 20000)] == \
+        [100, 2000, 2000, 20000]
+    out, key, message = callbacks.run_monte_carlo(base["store"], "load-sensing", "200", "si")
+    assert out.id == "mc-result" and key["strategy"] == "load-sensing" and message == ""
+
+
+def test_the_samples_field_keeps_what_was_typed_and_reports_beside_it():
+    """The field is text (a number input hands the server the last good count
+    for a bad entry), no callback writes it, and its message sits in the
+    field's row, styled as the key fields' messages are."""
+    app = dash_app.make_app()
+    layout = app.layout()
+
+    def find(node, id_):
+        if getattr(node, "id", None) == id_:
+            return node
+        kids = getattr(node, "children", None)
+        for k in kids if isinstance(kids, (list, tuple)) else [kids]:
+            if k is not None and not isinstance(k, str):
+                hit = find(k, id_)
+                if hit is not None:
+                    return hit
+        return None
+
+    field = find(layout, "mc-samples")
+    assert field.type == "text"
+    row = next(r for r in _rows_holding(layout, "mc-samples"))
+    error = find(row, "mc-samples-error")
+    assert error is not None and error.className == find(layout, {"type": "key-error",
+                                                                  "index": 0}).className
+    outputs = " ".join(app.callback_map)
+    assert "mc-samples.value" not in outputs and "mc-samples-error.children" in outputs
+
+
+def _rows_holding(node, id_):
+    """The components whose direct children include the one with *id_*."""
+    kids = getattr(node, "children", None)
+    kids = kids if isinstance(kids, (list, tuple)) else [kids]
+    if any(getattr(k, "id", None) == id_ for k in kids):
+        yield node
+    for k in kids:
+        if k is not None and not isinstance(k, str):
+            yield from _rows_holding(k, id_)

@@ -160,7 +160,7 @@ def test_monte_carlo_cleared_when_the_strategy_changes(dash_duo):
     dash_duo.wait_for_element("#decision-sentence", timeout=60)
     _tab(dash_duo, "Cooler sizing")
     n = dash_duo.find_element("#mc-samples")
-    n.clear()
+    dash_duo.clear_input(n)     # a text field: clear() alone leaves React's value
     n.send_keys("200")
     dash_duo.find_element("#mc-run").click()
     dash_duo.wait_for_element("#mc-result", timeout=60)
@@ -342,4 +342,38 @@ def test_warnings_follow_the_us_units(dash_duo):
     # the figures are grouped, never in exponent form
     assert not re.search(r"\d\.\de[+-]\d", us)
     _shot(dash_duo, "browser_us_warnings")
+    assert dash_duo.get_logs() == [], dash_duo.get_logs()
+
+
+def test_a_bad_monte_carlo_count_is_named_and_kept_as_typed(dash_duo):
+    """Text, zero, a negative or a huge count in the samples field: a line beside
+    it names the field and the range, nothing reruns, the entry stays as typed."""
+    _start(dash_duo)
+    dash_duo.wait_for_element("#decision-sentence", timeout=60)
+    _tab(dash_duo, "Cooler sizing")
+    n = dash_duo.find_element("#mc-samples")
+    dash_duo.clear_input(n)
+    n.send_keys("200")
+    dash_duo.find_element("#mc-run").click()
+    dash_duo.wait_for_element("#mc-result", timeout=60)
+    shown = _text(dash_duo, "#mc-result")
+    for typed in ("abc", "0", "-500", "1e12"):
+        n = dash_duo.find_element("#mc-samples")
+        dash_duo.clear_input(n)
+        n.send_keys(typed)
+        dash_duo.find_element("#mc-run").click()
+        dash_duo.wait_for_contains_text("#mc-samples-error", f"got '{typed}'", timeout=20)
+        message = _text(dash_duo, "#mc-samples-error")
+        assert message.startswith("Monte Carlo samples: expected a whole number from 100 "
+                                  "to 20,000")
+        assert dash_duo.find_element("#mc-samples").get_attribute("value") == typed
+        assert _text(dash_duo, "#mc-result") == shown       # the last result, not rerun
+    _shot(dash_duo, "browser_mc_bad_count")
+    # a good count clears the line and runs
+    n = dash_duo.find_element("#mc-samples")
+    dash_duo.clear_input(n)
+    n.send_keys("300")
+    dash_duo.find_element("#mc-run").click()
+    dash_duo.wait_for_contains_text("#mc-result", "300 samples", timeout=60)
+    assert _text(dash_duo, "#mc-samples-error") == ""
     assert dash_duo.get_logs() == [], dash_duo.get_logs()

@@ -8,8 +8,8 @@ import numpy as np
 
 from heatload.errors import HeatloadError
 from heatload.studies.sweep import (check_corners, check_size, check_table_path,
-                                    grid_values, pareto_front, parse_vary, run_sweep,
-                                    sample_values, varied_column, write_table)
+                                    grid_values, pareto_front, parse_vary, rank_order,
+                                    run_sweep, sample_values, varied_column, write_table)
 
 
 def _show(df, specs, system, rows, out, width=None):
@@ -26,29 +26,81 @@ def _show(df, specs, system, rows, out, width=None):
     def value(v, kind, unit, digits=3):
         return plain_number(from_si(v, kind, unit) if unit else v, digits)
 
-    # a varied field by its last name, the full path where two share it
-    last = [s.path.rsplit(".", 1)[-1] for s in specs]
-    varied = [column(s.kind, s.path if last.count(n) > 1 else n) for s, n in zip(specs, last)]
-    cooler = column("power", "cooler")
-    oil = column("temperature", "oil T,\nsteady")
-    head = (["strategy"] + [h for h, _ in varied]
-            + ["energy/\ncycle [kJ]", "cycle\n[s]", "energy/\nyr [kWh]", cooler[0], oil[0],
-               "warn-\nings"])
+    def table(labels):
+        varied = [column(s.kind, label) for s, label in zip(specs, labels)]
+        cooler = column("power", "cooler")
+        oil = column("temperature", "oil T,\nsteady")
+        head = (["strategy"] + [h for h, _ in varied]
+                + ["energy/\ncycle [kJ]", "cycle\n[s]", "energy/\nyr [kWh]", cooler[0],
+                   oil[0], "warn-\nings"])
+        lines = []
+        for _, r in df.iloc[rows].iterrows():
+            t_oil = from_file(r["oil_temperature_steady_C"]
+                              if np.isfinite(r["oil_temperature_steady_C"])
+                              else r["oil_temperature_uncoupled_C"], "temperature")
+            lines.append([r["strategy"]]
+                         + [value(from_file(r[varied_column(s)], s.kind), s.kind, u)
+                            for s, (_, u) in zip(specs, varied)]
+                         + [plain_number(r["electric_energy_per_cycle_J"] / 1e3, 4),
+                            plain_number(r["cycle_time_s"], 3),
+                            plain_number(r["electric_energy_per_year_kWh"], 4),
+                            value(r["cooler_duty_W"], "power", cooler[1]),
+                            value(t_oil, "temperature", oil[1]),
+                            str(int(sum(r[c] for c in wcols)))])
+        # the varied values and what the rank rests on stay: energy, cooler, strategy
+        return format_table(head, lines, width,
+                            optional=(head[-1], head[-5], head[-4], head[-2]))
+
     wcols = [c for c in df.columns if c.startswith("warnings_")]
-    lines = []
-    for _, r in df.iloc[rows].iterrows():
-        t_oil = from_file(r["oil_temperature_steady_C"] if np.isfinite(r["oil_temperature_steady_C"])
-                          else r["oil_temperature_uncoupled_C"], "temperature")
-        lines.append([r["strategy"]]
-                     + [value(from_file(r[varied_column(s)], s.kind), s.kind, u)
-                        for s, (_, u) in zip(specs, varied)]
-                     + [plain_number(r["electric_energy_per_cycle_J"] / 1e3, 4),
-                        plain_number(r["cycle_time_s"], 3),
-                        plain_number(r["electric_energy_per_year_kWh"], 4),
-                        value(r["cooler_duty_W"], "power", cooler[1]),
-                        value(t_oil, "temperature", oil[1]),
-                        str(int(sum(r[c] for c in wcols)))])
-    print(format_table(head, lines, width, optional=(head[-1], head[-5], head[-4])), file=out)
+    names = varied_names(specs)
+    text = table([wrapped_name(n) for n in names])
+    if width is not None and (max(len(x) for x in text.splitlines()) > width or "…" in text):
+        # names too long to stand over their columns (or cutting the strategy's
+        # name short): numbered, and named above the table
+        for i, n in enumerate(names, 1):
+            print(("varied:" if i == 1 else "").ljust(8) + f"({i}) {n}", file=out)
+        text = table([f"({i})" for i in range(1, len(names) + 1)])
+    print(text, file=out)
+
+
+#: Characters of a header line of a varied field's name (a longer word stays whole).
+LABEL_WIDTH = 10
+
+
+def varied_names(specs) -> list:
+    """Each varied path by its shortest ending that no other varied path shares
+    (``bore``, or ``main.bore`` beside ``ejector.bore``).
+
+    >>> varied_names([type("S", (), {"path": p}) for p in
+    ...               ("actuators.main.bore", "actuators.ejector.bore",
+    ...                "power_unit.pump.shaft_speed")])
+    ['main.bore', 'ejector.bore', 'shaft_speed']
+    """
+    parts = [s.path.split(".") for s in specs]
+    out = []
+    for p in parts:
+        k = 1
+        while k < len(p) and sum(q[-k:] == p[-k:] for q in parts) > 1:
+            k += 1
+        out.append(".".join(p[-k:]))
+    return out
+
+
+def wrapped_name(name: str, width: int = LABEL_WIDTH) -> str:
+    r"""*name* broken after a ``.``, ``_``, ``-`` or space into header lines of at
+    most *width* characters (a longer word stays whole).
+
+    >>> wrapped_name("ejector.bore"), wrapped_name("displacement")
+    ('ejector.\nbore', 'displacement')
+    """
+    import re
+
+    lines = [""]
+    for w in re.findall(r"[^._\- ]+[._\- ]?|[._\- ]", name):
+        if lines[-1] and len(lines[-1]) + len(w) > width:
+            lines.append("")
+        lines[-1] += w
+    return "\n".join(x.rstrip() for x in lines)
 
 
 def _shown(top, n):
@@ -115,20 +167,11 @@ def run(args) -> int:
         print(note, file=out)
     top = args.top if args.top is not None else 10
     width = getattr(args, "width", None)
-    # The decision rule (heatload.decision): feasible first, then yearly cost of
-    # ownership per cycle (per part made: a slower variant makes fewer parts in
-    # the same hours, so a yearly figure alone would flatter it).
-    from heatload import decision
-    flawed = ~decision.feasible_counts(
-        {c[len("warnings_"):]: df[c].to_numpy() for c in df.columns if c.startswith("warnings_")})
+    # The decision rule, as the table holds it (rank_variants): feasible first,
+    # then yearly cost of ownership per cycle.
+    flawed = ~df["feasible"].to_numpy()
     energy = df["electric_energy_per_cycle_J"].to_numpy()
-    price = df["strategy"].map({s.name: s.parameters.price for s in strategies}).to_numpy(float)
-    hours = (df["economics.hours_per_year"].to_numpy() if "economics.hours_per_year" in df
-             else scenario.economics.hours_per_year)   # a plain number: no suffix
-    cycles = hours * 3600.0 / df["cycle_time_s"].to_numpy()
-    cost = decision.variant_yearly_cost(df["cost_per_year"].to_numpy(),
-                                        df["cooler_duty_W"].to_numpy(), price, scenario)
-    ranked = decision.rank_order(~flawed, cost / np.where(cycles > 0, cycles, np.nan))
+    ranked = rank_order(df)
     if top:
         order = ranked[:top]
         print(f"\nbest {len(order)} by yearly cost of ownership per cycle (feasible first: "

@@ -240,7 +240,80 @@ def run_sweep(scenario, values: dict, strategies, progress=False, chunk=CHUNK, t
         if bar is not None:
             bar.close()
     df = frames[0] if len(frames) == 1 else pd.concat(frames, ignore_index=True)
-    return file_frame(df, scenario, values)
+    return rank_variants(file_frame(df, scenario, values), scenario, strategies)
+
+
+#: The decision's columns of the sweep's table (:func:`rank_variants`): money in
+#: the scenario's currency, as ``cost_per_year``.
+DECISION_COLUMNS = ("feasible", "rank", "cost_of_ownership_per_year",
+                    "cost_of_ownership_per_cycle")
+
+
+def rank_variants(df, scenario, strategies):
+    """Add the decision (:mod:`heatload.decision`) to the sweep's table *df*, in place:
+
+    - ``feasible``: no phase stalls, misses its speed, runs away, exceeds a
+      rating or overloads the motor (:func:`heatload.decision.feasible_counts`
+      of the ``warnings_<code>`` columns);
+    - ``cost_of_ownership_per_year`` (C) [currency/year]:
+      :func:`heatload.decision.variant_yearly_cost`;
+    - ``cost_of_ownership_per_cycle`` = C / (h 3600 / t_cycle) [currency]: per
+      part made, so a slower variant (fewer parts in the same hours) is not
+      flattered; NaN where the cycle takes no time;
+    - ``rank``: 1 = best, feasible first, then by the cost per cycle
+      (:func:`heatload.decision.rank_order`; infeasible rows after every
+      feasible one, ties in the table's order).
+
+    The command's text lists the rows in this rank order; sorting the file by
+    ``rank`` gives the same order.
+
+    Parameters
+    ----------
+    df : pandas.DataFrame
+        The table of :func:`run_sweep` (its columns as the file holds them).
+    scenario : heatload.model.Scenario
+    strategies : sequence
+        The swept strategies (their ``parameters.price``).
+
+    Returns
+    -------
+    pandas.DataFrame
+        *df*, with the columns of :data:`DECISION_COLUMNS`.
+    """
+    from heatload import decision
+
+    feasible = decision.feasible_counts(
+        {c[len("warnings_"):]: df[c].to_numpy() for c in df.columns if c.startswith("warnings_")})
+    feasible = np.ones(len(df), bool) & feasible     # no warnings columns: all feasible
+    # each row's circuit price by its strategy: the names factorized once (a
+    # dict lookup per row cost a 10^6-row table half a second)
+    import pandas as pd
+    codes, names = pd.factorize(df["strategy"])
+    prices = {s.name: s.parameters.price for s in strategies}
+    price = np.array([np.nan if prices.get(k) is None else prices[k] for k in names],
+                     float)[codes]
+    hours = (df["economics.hours_per_year"].to_numpy() if "economics.hours_per_year" in df
+             else scenario.economics.hours_per_year)   # a plain number: no suffix
+    cycles = hours * 3600.0 / df["cycle_time_s"].to_numpy()
+    yearly = decision.variant_yearly_cost(df["cost_per_year"].to_numpy(),
+                                          df["cooler_duty_W"].to_numpy(), price, scenario)
+    per_cycle = yearly / np.where(cycles > 0, cycles, np.nan)
+    order = decision.rank_order(feasible, per_cycle)
+    rank = np.empty(len(df), np.int64)
+    rank[order] = np.arange(1, len(df) + 1)
+    df["feasible"] = feasible
+    df["rank"] = rank
+    df["cost_of_ownership_per_year"] = yearly
+    df["cost_of_ownership_per_cycle"] = per_cycle
+    return df
+
+
+def rank_order(df) -> np.ndarray:
+    """Row indices of the sweep's table *df* in its ``rank`` order (best first)."""
+    rank = df["rank"].to_numpy()
+    order = np.empty(rank.size, np.int64)
+    order[rank - 1] = np.arange(rank.size)
+    return order
 
 
 def file_frame(df, scenario, values):

@@ -420,8 +420,11 @@ def test_every_number_of_every_output_names_its_unit(tmp_path, capsys):
         capsys.readouterr()
         frames[suffix] = (pd.read_csv(out) if suffix == ".csv" else pd.read_parquet(out))
     for df in frames.values():
-        numeric = [c for c in df.columns if pd.api.types.is_numeric_dtype(df[c])]
+        # a yes/no column (feasible) is no number with a unit
+        numeric = [c for c in df.columns if pd.api.types.is_numeric_dtype(df[c])
+                   and not pd.api.types.is_bool_dtype(df[c])]
         assert [c for c in numeric if not _unit_named(c)] == []
+        assert df["feasible"].dtype == bool and df["rank"].min() == 1
         # the varied temperature in degC, as given on the command line
         assert sorted(set(df["ambient.temperature_max_C"])) == pytest.approx([30.0, 40.0])
         # 20 cm^3 = 2e-5 m^3 (per revolution)

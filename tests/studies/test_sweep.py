@@ -122,3 +122,74 @@ def test_a_single_phase_cycle_sweeps(coupled):
         paths.replaced_scenario(sc, {k: v[1] for k, v in values.items()}), "meter-in",
         thermal=thermal)
     np.testing.assert_allclose(df["cooler_duty_W"][1], one.cooler_duty[0], rtol=1e-12)
+
+
+def test_the_file_ranks_as_the_text_and_marks_infeasible_variants(tmp_path, capsys):
+    """The table's feasible / rank / cost-of-ownership columns are the ones the
+    text lists by: sorted by rank, the file gives the text's order; a pump too
+    small for a phase's speed is marked infeasible and ranked after every
+    feasible variant."""
+    import re
+
+    import pandas as pd
+
+    names = [s.name for s in SC.strategies]
+    n = 5 * len(names)
+    frames = {}
+    for suffix in (".csv", ".parquet"):
+        out = tmp_path / f"rank{suffix}"
+        assert sweep_cli.run(_args(tmp_path, vary=["power_unit.pump.displacement=6..40cm^3:5"],
+                                   strategy=None, top=n, output=str(out))) == 0
+        text = capsys.readouterr().out
+        frames[suffix] = pd.read_csv(out) if suffix == ".csv" else pd.read_parquet(out)
+    pd.testing.assert_frame_equal(frames[".csv"], frames[".parquet"], check_dtype=False)
+    df = frames[".csv"]
+    best = text.split(f"best {n} by yearly cost of ownership per cycle")[1].split("\n\n")[0]
+    shown = [re.split(r"\s{2,}", line.strip()) for line in best.splitlines()
+             if line.split(" ")[0] in names]
+    assert len(shown) == n
+    by_rank = df.sort_values("rank")
+    assert list(by_rank["rank"]) == list(range(1, n + 1))
+    assert [r[0] for r in shown] == list(by_rank["strategy"])
+    np.testing.assert_allclose([float(r[1]) for r in shown],
+                               by_rank["power_unit.pump.displacement_m3_rev"] * 1e6, rtol=5e-3)
+
+    # feasible first, then by the cost of ownership per cycle
+    ok = by_rank["feasible"].to_numpy(bool)
+    assert ok.any() and not ok.all() and not np.any(ok[1:] & ~ok[:-1])
+    assert np.all(np.diff(by_rank["cost_of_ownership_per_cycle"][ok]) >= 0)
+    cycles = SC.economics.hours_per_year * 3600.0 / df["cycle_time_s"]
+    np.testing.assert_allclose(df["cost_of_ownership_per_cycle"] * cycles,
+                               df["cost_of_ownership_per_year"], rtol=1e-12)
+
+    # continuity (common practice): a pump delivers at most V n (x the speed-up a
+    # variable-speed drive allows); the slow-down phase needs A v = pi/4 D^2 v, so
+    # a 6 cm^3 pump at 1,450 rpm (1.45e-4 m^3/s) cannot move the 100 mm bore at
+    # 40 mm/s (3.14e-4 m^3/s)
+    phase = next(p for p in SC.phases if p.name == "slow-down")
+    bore = next(a for a in SC.actuators if a.name == phase.actuator).bore
+    need = np.pi / 4 * bore ** 2 * phase.speed
+    speed_up = max(1.0, max(s.parameters.max_speed_fraction for s in SC.strategies))
+    most = df["power_unit.pump.displacement_m3_rev"] * SC.power_unit.pump.shaft_speed * speed_up
+    short = (most < need).to_numpy()
+    assert short.sum() == len(names)                     # the 6 cm^3 row of every strategy
+    assert not df["feasible"][short].any()
+    assert df["rank"][short].min() > df["rank"][df["feasible"]].max()
+
+
+def test_the_cost_of_ownership_counts_each_strategys_circuit_price():
+    """A variant needing no cooler costs its electricity plus the annuity of its
+    circuit's price: the baler's variable-speed drive (1,500 EUR) over 10 years
+    at 5 % adds 1,500 x 0.1295 = 194.25 EUR a year (capital recovery factor
+    0.1295 for 5 % and 10 years, annuity tables), meter-in (price 0) nothing."""
+    sc = io.load_scenario(io.example_paths()[0].with_name("accumulator_baler.toml"))
+    assert (sc.economics.interest_rate, sc.economics.service_life) == (0.05, 10.0)
+    spec = [sweep.parse_vary("ambient.temperature_max=20..40degC:3", sc)]
+    df = sweep.run_sweep(sc, sweep.grid_values(spec), sc.strategies)
+    extra = df["cost_of_ownership_per_year"] - df["cost_per_year"]
+    none = (df["cooler_duty_W"] <= 0).to_numpy()
+    vs = (df["strategy"] == "variable-speed").to_numpy()
+    assert (none & vs).sum() == 3
+    np.testing.assert_allclose(extra[none & vs], 1500 * 0.1295, rtol=5e-4)
+    # with a cooler, its price and fan come on top (and no circuit price for meter-in)
+    assert np.all(extra[~none] > 0)
