@@ -143,14 +143,12 @@ def check_output_folder(path, field: str | None = None) -> Path:
 
 
 def _check_folder(folder: Path, path, field):
-    """*folder*, or its parent when *folder* itself is missing (a ``--csv`` folder
-    is made when writing, one level only), must be a writable folder: a path
-    with several missing folders is a typing slip, never created."""
+    """*folder* must be a writable folder that exists: a missing one is a typing
+    slip, never created (only a ``--csv`` folder itself is made, in an existing
+    one: :func:`check_output_folder`)."""
     d = folder if str(folder) else Path(".")
     if not os.path.exists(d):
-        d = d.parent if str(d.parent) else Path(".")
-        if not os.path.exists(d):
-            raise _refusal(path, f"cannot be written: the folder {d} does not exist", field)
+        raise _refusal(path, f"cannot be written: the folder {d} does not exist", field)
     if not os.path.isdir(d):
         raise _refusal(path, f"cannot be written: {d} is not a folder", field)
     if not os.access(d, os.W_OK | os.X_OK):
@@ -274,7 +272,7 @@ def write_atomic(target, write, field: str | None = None, *, force: bool = False
     *write* is given the path of a fresh empty temporary file beside *target*
     (same folder, so the final :func:`os.replace` is atomic; same extension,
     so writers that choose a format by it choose right) and writes the whole
-    content to it.  Missing parent folders are made.
+    content to it.  The folder must exist (a missing one is refused).
 
     Parameters
     ----------
@@ -307,7 +305,6 @@ def write_atomic(target, write, field: str | None = None, *, force: bool = False
     folder = target.parent if str(target.parent) else Path(".")
     tmp = None
     try:
-        folder.mkdir(exist_ok=True)
         remove_stale_temporaries(target)
         tmp = _new_temporary(target)
         write(str(tmp))

@@ -1113,8 +1113,9 @@ def check_outputs(output=None, xlsx=None, csv=None, table_names=(), force=False)
                                 "(pip install openpyxl)", field="--xlsx") from None
     if csv:
         outputs.check_output_folder(csv, "--csv")
-        for p in _csv_targets(csv, table_names).values():
-            outputs.check_output(p, "--csv", force=force)
+        if Path(csv).is_dir():      # (a folder still to be made holds no file)
+            for p in _csv_targets(csv, table_names).values():
+                outputs.check_output(p, "--csv", force=force)
 
 
 def write_html(text, path, force=False):
@@ -1147,6 +1148,7 @@ def write_csv(frames, directory, force=False) -> list:
     UTF-8, text that would run as a formula with a leading quote); refuses to overwrite any
     existing file without *force* (checked before writing any)."""
     outputs.check_output_folder(directory, "--csv")
+    Path(directory).mkdir(exist_ok=True)    # the --csv folder itself, in an existing one
     targets = _csv_targets(directory, frames)
     for p in targets.values():
         outputs.check_output(p, "--csv", force=force)

@@ -340,17 +340,21 @@ def test_one_atomic_writer():
         assert "os.replace(" not in p.read_text(), p.name
 
 
-def test_several_missing_folders_are_a_slip_not_created(tmp_path):
-    """`-o /nonexistent/dir/s.csv` once made both folders (at the root too): only
-    the last folder of a path may be missing (a --csv folder), never its parent."""
+def test_missing_folders_are_a_slip_not_created(tmp_path):
+    """`-o /nonexistent/s.csv` once made the folder (at the root too, as root): an
+    output file's folder must exist, one level missing or several; only a --csv
+    folder itself is made, in a folder that exists."""
     from heatload.io import files as outputs
     from heatload.errors import HeatloadError
-    with pytest.raises(HeatloadError, match="does not exist"):
-        outputs.check_output(tmp_path / "a" / "b" / "s.csv", "-o", suffixes=(".csv",))
+    for target in (tmp_path / "a" / "b" / "s.csv", tmp_path / "a" / "s.csv"):
+        with pytest.raises(HeatloadError, match="does not exist"):
+            outputs.check_output(target, "-o", suffixes=(".csv",))
+        with pytest.raises(HeatloadError, match="does not exist"):
+            outputs.write_atomic(target, lambda p: open(p, "w").write("x"), "-o")
     assert not (tmp_path / "a").exists()
-    # one missing level is a folder the command makes
-    outputs.write_atomic(tmp_path / "a" / "s.csv", lambda p: open(p, "w").write("x"), "-o")
-    assert (tmp_path / "a" / "s.csv").read_text() == "x"
+    outputs.check_output_folder(tmp_path / "csv", "--csv")         # made when writing
+    with pytest.raises(HeatloadError, match="does not exist"):
+        outputs.check_output_folder(tmp_path / "a" / "csv", "--csv")
 
 
 # ---------------------------------------------------------------------------
