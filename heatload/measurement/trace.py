@@ -186,6 +186,24 @@ def _cut(channels, tolerances, run):
 
 
 def segment_trace(time, pressure, flow=None, position=None, min_duration=None) -> TraceCycle:
+    """:func:`_segment` with the shortest phase doubled until the cycle holds no
+    more phases than a duty-cycle file may (:data:`heatload.io.MAX_PHASES`), so
+    the draft it gives loads once completed; a note says so where it merged."""
+    from heatload.io.read import MAX_PHASES
+    cycle = _segment(time, pressure, flow, position, min_duration)
+    first, d = len(cycle.phases), min_duration
+    while len(cycle.phases) > MAX_PHASES:
+        dt = float(np.median(np.diff(np.asarray(time, float))))
+        d = 2.0 * (d if d is not None else max(5.0 * dt, 0.2))
+        cycle = _segment(time, pressure, flow, position, d)
+    if d != min_duration:
+        cycle.notes.append(f"the trace gave {first} phases, more than a duty cycle holds "
+                           f"({MAX_PHASES}): steps shorter than {d:.3g} s are merged into "
+                           f"their neighbours (--min-phase sets it)")
+    return cycle
+
+
+def _segment(time, pressure, flow=None, position=None, min_duration=None) -> TraceCycle:
     """Cut a pressure trace into phases and recognise its repeated cycle.
 
     Parameters

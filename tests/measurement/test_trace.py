@@ -157,3 +157,20 @@ def test_implausible_trace_values_are_refused_with_file_and_line(tmp_path):
     with pytest.raises(HeatloadError, match=r"-50 bar is outside the plausible") as e:
         trace.check_trace(log)
     assert e.value.line == 5                     # header on line 1, the row of t = 3 s
+
+
+def test_a_trace_of_many_steps_gives_no_more_phases_than_a_file_holds():
+    # 400 pressure levels of 0.5 s each that never repeat cut into about 380
+    # phases; the draft merges the short ones until its cycle fits the loader's
+    # 200 phases, says so, and loads once completed
+    from heatload.io import MAX_PHASES
+    rng = np.random.default_rng(3)
+    n = 20000
+    t = np.arange(n) * 0.01
+    p = np.repeat(rng.uniform(1e6, 2e7, n // 50), 50) + rng.normal(0, 1e4, n)
+    q = np.repeat(rng.uniform(0, 5e-4, n // 50), 50)
+    assert len(trace._segment(t, p, q).phases) > MAX_PHASES
+    cy = trace.segment_trace(t, p, q)
+    assert len(cy.phases) <= MAX_PHASES
+    assert any("merged" in note and f"({MAX_PHASES})" in note for note in cy.notes)
+    io.loads_scenario(trace.fill_examples(trace.draft_toml(cy, "steps.csv")), "d.toml")
