@@ -894,6 +894,11 @@ def _line_of(field: str | None, lines: dict) -> int | None:
     while path:
         if path in lines:
             return lines[path]
+        # a table written only through its sub-tables ([scenario.a.b.c] for
+        # scenario.a): the first line inside it
+        inside = [n for k, n in lines.items() if k.startswith((path + ".", path + "["))]
+        if inside:
+            return min(inside)
         cut = max(path.rfind("."), path.rfind("["))
         path = path[:cut] if cut > 0 else ""
     return None

@@ -879,3 +879,13 @@ def test_a_cycle_that_moves_a_cylinder_past_its_stroke_is_refused():
     # the block of extend and return repeats within the stroke
     d["repeats"] = [{"first": "eject", "last": "ejector return", "count": 3}]
     io.scenario_from_dict(d, "ok.toml")
+
+
+def test_an_unknown_nested_table_is_located_at_its_header():
+    # [scenario.a.b.c] makes the unknown key scenario.a: the error names its line,
+    # not the line of [scenario]
+    text = io.default_scenario_path().read_text(encoding="utf-8")
+    n = text.count("\n") + 2
+    with pytest.raises(HeatloadError) as info:
+        io.loads_scenario(text + "\n[scenario.a.b.c]\nx = 1\n", source="deep.toml")
+    assert "scenario.a" in str(info.value) and info.value.line == n
