@@ -308,6 +308,21 @@ def _coolant_point(grid_index: int, glycol_fraction: float) -> tuple:
                             f"({fluid}): {exc}", field="temperature") from None
 
 
+@lru_cache(maxsize=64)
+def glycol_freezing_point(glycol_fraction: float) -> float:
+    """Freezing point [K] of ethylene glycol-water of mass fraction *glycol_fraction*
+    (0 < x <= 0.6), from CoolProp's incompressible 'INCOMP::MEG[x]' (Melinder's
+    data; e.g. 10 %: -3.4 °C, 30 %: -14.6 °C, 50 %: -36.0 °C).
+
+    References
+    ----------
+    Melinder, Properties of Secondary Working Fluids, IIR 2010 (MEG data in CoolProp).
+    """
+    from CoolProp.CoolProp import PropsSI
+    return float(PropsSI("T_freeze", "T", 300.0, "P", 101325.0,
+                         f"INCOMP::MEG[{float(glycol_fraction)}]"))
+
+
 def coolant_properties(temperature, glycol_fraction=0.0) -> CoolantProperties:
     """Properties of cooling water or ethylene glycol-water at atmospheric pressure.
 

@@ -158,9 +158,14 @@ class WaterOil(CoolerType):
     def refusal(self, oil_temperature, design_ambient, cooler_design, what, oil_field):
         t_w = cooler_design.water_inlet_temperature
         field = "cooler.water_inlet_temperature"
-        if cooler_design.water_glycol_fraction == 0.0 and t_w <= 273.15:
+        x = cooler_design.water_glycol_fraction
+        if x == 0.0 and t_w <= 273.15:
             return (f"pure water at {_c(t_w)} freezes; give water above 0 °C or a "
                     "water_glycol_fraction", field)
+        if x > 0.0 and t_w <= _k.glycol_freezing_point(x):
+            return (f"ethylene glycol-water of {100 * x:.0f} % glycol freezes at "
+                    f"{_c(_k.glycol_freezing_point(x))}; water entering at {_c(t_w)} would "
+                    f"be ice: give it warmer, or more glycol (water_glycol_fraction)", field)
         if t_w >= oil_temperature:
             return (f"water entering at {_c(t_w)} is not colder than {what}, "
                     f"{_c(oil_temperature)}: a water cooler cannot cool the oil; give colder "

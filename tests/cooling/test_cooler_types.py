@@ -57,3 +57,21 @@ def test_a_new_cooler_type_is_one_class(monkeypatch):
     assert sz.spec.specific_cooling_power == pytest.approx(sz.spec.duty / sz.spec.etd,
                                                            rel=1e-12)
     assert dict(sizing.spec_rows(sz))["coolant"] == "air-oil (roof)"
+
+
+@pytest.mark.parametrize("fraction, inlet_c, refused", [
+    (0.1, -30.0, True), (0.1, -2.0, False), (0.5, -30.0, False), (0.5, -40.0, True)])
+def test_glycol_water_below_its_freezing_point_is_refused(fraction, inlet_c, refused):
+    # ethylene glycol-water freezes at -3.4 °C with 10 % glycol and at -36 °C with
+    # 50 % (Melinder, IIR 2010, through CoolProp; ASHRAE tables give about -3.5
+    # and -37 °C, from memory): colder inlet water is ice, refused by the field
+    import dataclasses
+    from heatload import io
+    from heatload.cooling.cooler_types import cooler_type
+    sc = io.load_scenario(io.default_scenario_path())
+    cd = dataclasses.replace(sc.cooler, coolant="water", water_glycol_fraction=fraction,
+                             water_inlet_temperature=273.15 + inlet_c)
+    why = cooler_type("water").refusal(333.15, 311.15, cd, "the design oil temperature",
+                                       "cooler.oil_temperature_max")
+    assert (why is not None and "freezes" in why[0]
+            and why[1] == "cooler.water_inlet_temperature") is refused
