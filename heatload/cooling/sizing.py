@@ -321,6 +321,17 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
     rho, cp, nu, duty0 = sz.oil_density, sz.oil_specific_heat, sz.oil_viscosity, \
         sz.duty_without_margin
     sz.notes.append(ASSUMPTION_OIL_FLOW)
+    # a cooler holding the oil at the design temperature runs the pump there:
+    # its viscosity window is judged at that temperature too
+    pump = scenario.power_unit.pump
+    if sz.cooler_needed and not pump.viscosity_min <= nu <= pump.viscosity_max:
+        edge, side = ((pump.viscosity_min, "below the pump's least")
+                      if nu < pump.viscosity_min else (pump.viscosity_max,
+                                                      "above the pump's most"))
+        sz.notes.insert(0, f"caution: at the design oil temperature {t_d - K0:.1f} °C the oil's "
+                           f"viscosity {nu * 1e6:.2f} mm²/s is {side} {edge * 1e6:.0f} mm²/s: "
+                           f"hold the oil cooler (cooler.oil_temperature_max) or choose a "
+                           f"thicker grade")
     if not sz.cooler_needed:
         sz.notes.append("no cooler needed: the surfaces shed "
                         f"{sz.surfaces_heat:.0f} W at the design point, the heat is "

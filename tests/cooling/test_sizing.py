@@ -379,3 +379,24 @@ def test_the_default_press_has_no_cooler_design_warning():
     from heatload import chain, io
     cmp = chain.compare(io.load_scenario(io.default_scenario_path()))
     assert not [w for o in cmp.outcomes for w in o.warnings if w.code == "cooler-design"]
+
+
+def test_a_design_temperature_outside_the_pumps_viscosity_window_is_cautioned():
+    # the cooler holds the oil at the design temperature, so the pump runs there:
+    # at 55 °C the press's ISO VG 46 oil is about 25 mm²/s (ISO 3448 grade, Walther
+    # line of ASTM D341), below a pump asking at least 30
+    import dataclasses
+    from heatload import chain, io
+    from heatload.cooling import sizing
+    sc = io.load_scenario(io.default_scenario_path())
+    pu = sc.power_unit
+    strict = dataclasses.replace(sc, power_unit=dataclasses.replace(
+        pu, pump=dataclasses.replace(pu.pump, viscosity_min=30e-6, rated_viscosity=30e-6)))
+    o = chain.evaluate_strategy(strict, strict.strategy("meter-in"))
+    sz = sizing.size_cooler(strict, o, thermostat=False)
+    assert sz.oil_viscosity < 30e-6
+    assert sz.notes[0].startswith("caution: at the design oil temperature 55.0 °C")
+    assert "below the pump's least 30 mm²/s" in sz.notes[0]
+    plain = sizing.size_cooler(sc, chain.evaluate_strategy(sc, sc.strategy("meter-in")),
+                               thermostat=False)
+    assert not any(n.startswith("caution: at the design") for n in plain.notes)
