@@ -23,7 +23,7 @@ from heatload.cooling.cooler_types import cooler_type
 from heatload.io.schema import (_MOTION, MAX_AREA_RATIO, MAX_PHASE_DURATION, MIN_OIL_VOLUME,
                                 _AMBIENT, _COOLER, _CYLINDER, _ECONOMICS, _F, _FLUID,
                                 _HYDRAULIC_MOTOR, _PARAMETERS, _PHASE, _POWER_UNIT, _REPEAT,
-                                _RESERVOIR, _SCENARIO, _STRATEGY, _SURFACE, _TOP,
+                                _LIMITS, _RESERVOIR, _SCENARIO, _STRATEGY, _SURFACE, _TOP,
                                 _UNCERTAINTY, _array, _err, _read, _show, _suggest, _table,
                                 _value, ceiling_of)
 
@@ -170,6 +170,15 @@ def _power_unit(data, source):
                    f"(viscosity_min .. viscosity_max): no datasheet gives efficiencies where "
                    f"the pump may not run; expected a kinematic viscosity inside it (e.g. "
                    f"\"32 mm^2/s\"; check the unit)", "power_unit.pump.rated_viscosity", source)
+    # the pump's own flow, displacement x speed, holds the flow's magnitude limit
+    # that every given flow holds (a slipped unit in either)
+    q_max, q_text = _LIMITS["flow"]
+    q = pump.displacement * pump.shaft_speed
+    if q > q_max * (1 + 1e-12):
+        raise _err(f"{pump.displacement * 1e6:.4g} cm³/rev at {pump.shaft_speed * 60:.4g} rpm "
+                   f"delivers {q * 6e4:,.0f} L/min, beyond any plausible machine (limit "
+                   f"{q_text}); check the units of the displacement and the speed",
+                   "power_unit.pump.displacement", source)
     if pu.check_valve.pressure_drop < pu.check_valve.cracking_pressure:
         raise _err("the drop at rated flow includes the cracking pressure, so it "
                    "cannot be smaller", "power_unit.check_valve.pressure_drop", source)

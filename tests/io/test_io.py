@@ -889,3 +889,13 @@ def test_an_unknown_nested_table_is_located_at_its_header():
     with pytest.raises(HeatloadError) as info:
         io.loads_scenario(text + "\n[scenario.a.b.c]\nx = 1\n", source="deep.toml")
     assert "scenario.a" in str(info.value) and info.value.line == n
+
+
+def test_a_pump_delivering_beyond_any_machine_is_refused():
+    # 10 L/rev at 1750 rpm is 17,500 L/min: beyond the 6000 L/min every given flow
+    # is held to (a slipped unit); the default's 30 cm3/rev at 1450 rpm loads
+    d = io.scenario_to_dict(io.load_scenario(io.default_scenario_path()))
+    d["power_unit"]["pump"]["displacement"] = "10000 cm^3/rev"
+    d["power_unit"]["pump"]["shaft_speed"] = "1750 rpm"
+    with pytest.raises(HeatloadError, match=r"displacement.*17,500 L/min.*6000 L/min"):
+        io.scenario_from_dict(d, "big.toml")
