@@ -312,7 +312,7 @@ def payback_view(results, base, candidate, extra_price, system):
     if sav is None or rec is None:
         raise PreventUpdate
     currency = rec.get("currency") or ""
-    if extra_price is None:
+    if extra_price is None or (isinstance(extra_price, str) and not extra_price.strip()):
         extra = default_extra_price(results, base, candidate) or 0.0
     else:
         from heatload.decision import price_value
@@ -693,7 +693,8 @@ def register(app, examples: dict) -> None:
     def _pay_price(base, candidate, results):
         if not results:
             raise PreventUpdate
-        return default_extra_price(results, base, candidate)
+        v = default_extra_price(results, base, candidate)
+        return None if v is None else f"{v:.0f}"
 
     @app.callback(Output("pay-summary", "children"), Output("pay-graph", "figure"),
                   Input("results-store", "data"), Input("pay-base", "value"),

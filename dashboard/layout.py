@@ -231,8 +231,11 @@ def make_layout(initial: dict):
                           dcc.Dropdown(id="pay-candidate", clearable=False,
                                        style={"minWidth": "210px"})], className="ctl"),
                 html.Div([html.Label("extra price of the candidate", htmlFor="pay-price"),
-                          dcc.Input(id="pay-price", type="number", debounce=True,
-                                    style={"width": "120px"})], className="ctl"),
+                          # text, not a number input: a browser hands a number input's
+                          # bad entry over as nothing, which read as the default price
+                          dcc.Input(id="pay-price", type="text", debounce=True,
+                                    inputMode="decimal", style={"width": "120px"})],
+                         className="ctl"),
             ], className="row"),
             html.Div(id="pay-summary", className="msg"),
             dcc.Graph(id="pay-graph", config={"displaylogo": False}),

@@ -772,3 +772,29 @@ def _rows_holding(node, id_):
     for k in kids:
         if k is not None and not isinstance(k, str):
             yield from _rows_holding(k, id_)
+
+
+def test_a_bad_extra_price_is_named_not_replaced_by_the_default(base):
+    # the field is text: what was typed reaches the server, and a bad entry gets
+    # one line naming the field (it was a number input: the browser handed a bad
+    # entry over as nothing, and the default price was used without a word)
+    res = base["results"]
+
+    def find(node):
+        if getattr(node, "id", None) == "pay-price":
+            return node
+        kids = getattr(node, "children", None)
+        for k in kids if isinstance(kids, (list, tuple)) else [kids]:
+            if k is not None and not isinstance(k, str):
+                hit = find(k)
+                if hit is not None:
+                    return hit
+        return None
+    assert find(dash_app.make_app().layout()).type == "text"
+    for bad in ("abc", "-5", "1e99", "nan", "4,200"):
+        text, fig = callbacks.payback_view(res, "meter-in", "load-sensing", bad, "si")
+        assert "extra price" in str(text.children) and fig is callbacks.no_update
+    good, _ = callbacks.payback_view(res, "meter-in", "load-sensing", "3000", "si")
+    assert "3,000" in good.children
+    empty, _ = callbacks.payback_view(res, "meter-in", "load-sensing", "  ", "si")
+    assert "extra price of" in empty.children
