@@ -47,9 +47,13 @@ def test_every_path_the_loader_accepts_can_be_varied(example):
         # the loader accepts it ...
         text = open(example, encoding="utf-8").read()
         if relative:
-            # a sliver below the nominal: the bounds must give a machine the file could
-            # hold (a stroke 5 % short may no longer hold a simultaneous motion's travel)
-            text += f'\n[[uncertainty]]\npath = "{p}"\nlow = 0.9999999999\nhigh = 1.0\n'
+            # a sliver below the nominal (above it where the nominal sits on the field's
+            # lower bound): the bounds must give a machine the file could hold (a stroke
+            # 5 % short may no longer hold a simultaneous motion's travel)
+            low = paths.allowed_range(sc, ref)[0]
+            at_low = np.any(np.isclose(np.asarray(ref.nominal, float), low, rtol=1e-12))
+            lo, hi = ("1.0", "1.0000000001") if at_low else ("0.9999999999", "1.0")
+            text += f'\n[[uncertainty]]\npath = "{p}"\nlow = {lo}\nhigh = {hi}\n'
             loaded = io.loads_scenario(text)
         else:
             loaded = None

@@ -664,7 +664,10 @@ _PARAMETERS = {
     "accumulator_pressure_max": _F("pressure", "pos"),
     "accumulator_precharge": _F("pressure", "pos"),
     "accumulator_gas_volume": _F("volume", "pos"),
-    "polytropic_exponent": _F("dimensionless", "pos", high=2.0),
+    "polytropic_exponent": _F("dimensionless", "pos", low=1.0, high=2.0,
+                              why="1, isothermal: an accumulator's nitrogen lies between "
+                                  "isothermal (1) and adiabatic (1.4; real gas up to about "
+                                  "1.7), common practice"),
     "price": _F("dimensionless", "nonneg"),
 }
 _STRATEGY = {

@@ -899,3 +899,12 @@ def test_a_pump_delivering_beyond_any_machine_is_refused():
     d["power_unit"]["pump"]["shaft_speed"] = "1750 rpm"
     with pytest.raises(HeatloadError, match=r"displacement.*17,500 L/min.*6000 L/min"):
         io.scenario_from_dict(d, "big.toml")
+
+
+def test_a_polytropic_exponent_below_isothermal_is_refused():
+    # nitrogen in an accumulator runs between isothermal (n = 1) and adiabatic
+    # (n = 1.4; common practice): n = 1/64 gave a mean pressure of NaN (fuzz)
+    text = MINIMAL + '\n[[strategies]]\nkind = "accumulator"\npolytropic_exponent = 0.015625\n'
+    with pytest.raises(HeatloadError, match="polytropic_exponent.*isothermal"):
+        io.loads_scenario(text, source="gas.toml")
+    io.loads_scenario(text.replace("0.015625", "1.0"), source="gas.toml")
