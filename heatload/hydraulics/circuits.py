@@ -45,7 +45,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from heatload.components import lines, motors, pumps, valves
+from heatload.components import lines, motors, valves
 
 TWO_PI = 2.0 * np.pi
 
