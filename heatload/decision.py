@@ -480,7 +480,7 @@ def variant_yearly_cost(energy_cost, cooler_duty, circuit_price, scenario, fan_o
 QUOTE_PERCENTILE = "P90"
 
 
-def quoted_duty(duty_with_margin, margin, percentiles=None):
+def quoted_duty(duty_with_margin, margin, percentiles=None, system="si"):
     """The cooler duty to quote, and in words what it is.
 
     Q_quote = max(Q_design (1 + m), P90 of Q_design (1 + m) over the uncertain inputs)
@@ -494,6 +494,8 @@ def quoted_duty(duty_with_margin, margin, percentiles=None):
     percentiles : dict, optional
         ``{"P50", "P90", "P95"}`` of the duty with margin over the Monte Carlo
         [W] (:func:`heatload.cooling.sizing.cooler_uncertainty`).
+    system : str, optional
+        Units of the figures in the basis ("si" or "us").
 
     Returns
     -------
@@ -501,21 +503,25 @@ def quoted_duty(duty_with_margin, margin, percentiles=None):
         The duty [W], its basis in one line, and whether the margin alone
         covers the spread up to :data:`QUOTE_PERCENTILE`.
     """
+    from heatload.units import format_quantity
+
+    def kw(v):
+        return format_quantity(v, "power", system)
     d = float(duty_with_margin)
     base = d / (1.0 + margin) if margin > -1 else d
     pc = f"{100 * margin:.0f} %"
     if not percentiles or percentiles.get(QUOTE_PERCENTILE) is None:
-        return d, (f"the duty at the design point ({base / 1e3:.3g} kW) plus the {pc} margin; "
+        return d, (f"the duty at the design point ({kw(base)}) plus the {pc} margin; "
                    "no spread was computed"), True
     p = float(percentiles[QUOTE_PERCENTILE])
     p95 = percentiles.get("P95")
-    tail = f", P95 {float(p95) / 1e3:.3g} kW" if p95 is not None else ""
+    tail = f", P95 {kw(float(p95))}" if p95 is not None else ""
     if p <= d:
-        return d, (f"the duty at the design point ({base / 1e3:.3g} kW) plus the {pc} margin, "
+        return d, (f"the duty at the design point ({kw(base)}) plus the {pc} margin, "
                    f"which covers the {QUOTE_PERCENTILE} of the uncertain inputs "
-                   f"({p / 1e3:.3g} kW{tail})"), True
+                   f"({kw(p)}{tail})"), True
     return p, (f"the {QUOTE_PERCENTILE} of the duty with the {pc} margin over the uncertain "
-               f"inputs; the margin alone ({d / 1e3:.3g} kW) does not cover the spread"
+               f"inputs; the margin alone ({kw(d)}) does not cover the spread"
                f"{tail}"), False
 
 

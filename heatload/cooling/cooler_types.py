@@ -78,8 +78,9 @@ class CoolerType(ABC):
         return []
 
     @abstractmethod
-    def summary(self, spec) -> str:
-        """The cooler in a few words for the report's front page (spec record, SI)."""
+    def summary(self, spec, system="si") -> str:
+        """The cooler in a few words for the report's front page (spec record, SI),
+        its figures in *system*'s units."""
 
 
 class AirOil(CoolerType):
@@ -134,9 +135,11 @@ class AirOil(CoolerType):
         return [("specific cooling power at the ETD",
                  fq(spec.specific_cooling_power, "thermal_conductance", system))]
 
-    def summary(self, spec):
-        return (f"an air-oil cooler of {spec['specific_cooling_power_W_K'] / 1e3:.3f} kW/K "
-                f"at an ETD of {spec['etd_K']:.1f} K")
+    def summary(self, spec, system="si"):
+        from heatload.units import format_quantity as fq
+        return (f"an air-oil cooler of "
+                f"{fq(spec['specific_cooling_power_W_K'], 'thermal_conductance', system)} "
+                f"at an ETD of {fq(spec['etd_K'], 'temperature_difference', system)}")
 
 
 #: Water-oil arrangements sized side by side (the spec sheet takes the first
@@ -224,9 +227,10 @@ class WaterOil(CoolerType):
         return [("glycol mass fraction", f"{100 * spec.glycol_fraction:.0f} %"),
                 ("required UA", fq(spec.required_conductance, "thermal_conductance", system))]
 
-    def summary(self, spec):
+    def summary(self, spec, system="si"):
+        from heatload.units import format_quantity as fq
         return (f"a water-oil cooler ({spec['arrangement']}) of UA "
-                f"{spec['required_conductance_W_K'] / 1e3:.3f} kW/K")
+                f"{fq(spec['required_conductance_W_K'], 'thermal_conductance', system)}")
 
 
 #: Every cooler type by the file's ``coolant`` value.

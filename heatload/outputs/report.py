@@ -560,17 +560,33 @@ def _warnings_html(data, system="si"):
     return "".join(parts) or "<p>No warnings.</p>"
 
 
-def _cooler_html(rec, sz, unc):
+def _cooler_html(rec, sz, unc, system="si"):
+    """The cooler section, its figures in *system*'s units (the water options'
+    table in SI)."""
     from heatload.cooling import sizing as sizing_mod
-    from heatload.units import format_quantity as fq
+    from heatload.units import format_quantity
+
+    def fq(v, kind, digits=3):
+        return format_quantity(v, kind, system, digits)
+
+    def deg(c):     # a temperature the record holds in °C
+        return format_quantity(c + 273.15, "temperature", system, decimals=1)
+
+    from heatload.units import display_unit, from_si, pretty_unit
+
+    def unit(kind):
+        return pretty_unit(display_unit(kind, system))
+
+    def num(v, kind, digits=3):     # an SI value as a number in *system*'s unit
+        return _num(from_si(v, kind, display_unit(kind, system)), digits)
 
     parts = [f"<p>Design point for <b>{_e(rec['strategy'])}</b>: highest ambient "
-             f"{rec['design_ambient_C']:.1f} °C, oil held at {rec['design_oil_temperature_C']:.1f} °C. "
+             f"{deg(rec['design_ambient_C'])}, oil held at {deg(rec['design_oil_temperature_C'])}. "
              f"Heat into the oil {fq(rec['design_heat_W'], 'power')}, the reservoir's surfaces shed "
              f"{fq(rec['surfaces_heat_W'], 'power')}.</p>"]
     if not rec["cooler_needed"]:
         parts.append("<p><b>No cooler is needed</b> at the design point.</p>")
-    rows = sizing_mod.spec_rows(sz, "si")
+    rows = sizing_mod.spec_rows(sz, system)
     if rows:
         parts.append('<table class="keep"><thead><tr><th>spec sheet item</th><th class="num">'
                      'value</th></tr></thead><tbody>' + "".join(
@@ -579,48 +595,54 @@ def _cooler_html(rec, sz, unc):
     if rec["air"] and rec["coolant"] != "air":
         a = rec["air"]
         parts.append(f"<p>Air-oil alternative: {fq(a['specific_cooling_power_W_K'], 'thermal_conductance')}"
-                     f" at ETD {a['etd_K']:.1f} K, air {a['air_mass_flow_kg_s']:.2f} kg/s.</p>")
+                     f" at ETD {fq(a['etd_K'], 'temperature_difference')}, air "
+                     f"{fq(a['air_mass_flow_kg_s'], 'mass_flow')}.</p>")
     if rec["water"]:
         wrows = []
         for arr, w in rec["water"].items():
             wrows.append(f"<tr><td>{_e(arr)}</td>"
-                         + _cell(w["required_conductance_W_K"], _num(w["required_conductance_W_K"]))
+                         + _cell(w["required_conductance_W_K"],
+                                 num(w["required_conductance_W_K"], "thermal_conductance"))
                          + _cell(w["ntu"], f"{w['ntu']:.3f}")
                          + _cell(w["effectiveness"], f"{w['effectiveness']:.3f}")
                          + _cell(w["water_volume_flow_m3_s"],
-                                 f"{w['water_volume_flow_m3_s'] * 6e4:.1f}")
+                                 num(w["water_volume_flow_m3_s"], "flow"))
                          + _cell(w["water_outlet_temperature_C"],
-                                 f"{w['water_outlet_temperature_C']:.1f}") + "</tr>")
+                                 num(w["water_outlet_temperature_C"] + 273.15, "temperature"))
+                         + "</tr>")
         parts.append("<h3>Water-oil options</h3>" + _table(
-            [("arrangement", ""), ("UA [W/K]", "num"), ("NTU [-]", "num"),
-             ("effectiveness [-]", "num"), ("water [L/min]", "num"),
-             ("water out [°C]", "num")], wrows, "keep"))
+            [("arrangement", ""), (f"UA [{unit('thermal_conductance')}]", "num"),
+             ("NTU [-]", "num"), ("effectiveness [-]", "num"),
+             (f"water [{unit('flow')}]", "num"), (f"water out [{unit('temperature')}]", "num")],
+            wrows, "keep"))
     if rec["rating"]:
         r = rec["rating"]
         parts.append(f"<p>Rating check: {fq(r['rated_duty_W'], 'power')} at ETD "
-                     f"{r['rated_etd_K']:.1f} K gives {fq(r['duty_at_design_W'], 'power')} at the "
-                     f"design ETD {r['design_etd_K']:.1f} K — "
+                     f"{fq(r['rated_etd_K'], 'temperature_difference')} gives "
+                     f"{fq(r['duty_at_design_W'], 'power')} at the design ETD "
+                     f"{fq(r['design_etd_K'], 'temperature_difference')} — "
                      f"{'enough' if r['suffices'] else 'not enough'}.</p>")
     t = rec.get("thermostat")
     if t and rec["cooler_needed"]:
         which = (f"the cooler ({_e(t['cooler'])}, by its datasheet curve)" if t.get("cooler")
                  else "the cooler")
-        parts.append(f"<p>With a thermostat (on at {t['on_temperature_C']:.1f} °C, hysteresis "
-                     f"{t['hysteresis_K']:.0f} K) {which} switches on "
+        parts.append(f"<p>With a thermostat (on at {deg(t['on_temperature_C'])}, hysteresis "
+                     f"{fq(t['hysteresis_K'], 'temperature_difference', 2)}) {which} switches on "
                      f"{tables.times(t['switch_count'])} "
                      f"in {sizing_mod.shift_words(t['shift_duration_s'])} and runs "
                      f"{100 * t['on_fraction']:.0f} % of the time; the oil peaks at "
-                     f"{t['max_temperature_C']:.1f} °C.</p>")
+                     f"{deg(t['max_temperature_C'])}.</p>")
     parts.append("<h3>Uncertainty</h3>")
     if unc and unc.get("available"):
         d, tt = unc["cooler_duty_W"], unc["oil_temperature_C"]
         urows = [
-            "<tr><td>cooler duty [kW]</td>" + "".join(
-                _cell(d[k], _num(d[k] / 1e3), None, f"uncertainty_duty_{k}")
+            f"<tr><td>cooler duty [{unit('power')}]</td>" + "".join(
+                _cell(d[k], num(d[k], "power"), None, f"uncertainty_duty_{k}")
                 for k in ("P50", "P90", "P95")) + "</tr>",
-            "<tr><td>oil temperature, steady without cooler at typical ambient [°C]</td>"
-            + "".join(
-                _cell(tt[k], f"{tt[k]:.1f}", None, f"uncertainty_oil_{k}")
+            "<tr><td>oil temperature, steady without cooler at typical ambient "
+            f"[{unit('temperature')}]</td>" + "".join(
+                _cell(tt[k], num(tt[k] + 273.15, "temperature", 4), None,
+                      f"uncertainty_oil_{k}")
                 for k in ("P50", "P90", "P95")) + "</tr>"]
         parts.append(f"<p class=\"note\">Monte Carlo, {unc['samples']:,} samples (seed "
                      f"{unc['seed']}), over the scenario's uncertain inputs.</p>")
@@ -636,10 +658,12 @@ def _cooler_html(rec, sz, unc):
                 srows.append(f'<tr><td title="{_e(path)}">{_e(plain_path(path))} '
                              f'<span class="note">({_e(path)})</span></td>'
                              + _cell(sw if isinstance(sw, (int, float)) else None,
-                                     _num(sw / 1e3) if isinstance(sw, (int, float)) else str(sw))
+                                     num(sw, "power") if isinstance(sw, (int, float))
+                                     else str(sw))
                              + "</tr>")
             parts.append(_table([("input that moves the duty most", ""),
-                                 ("swing of the cooler duty [kW]", "num")], srows, "keep"))
+                                 (f"swing of the cooler duty [{unit('power')}]", "num")],
+                                srows, "keep"))
     else:
         parts.append(f"<p class=\"note\">{_e((unc or {}).get('note', 'uncertainty not available'))}"
                      "</p>")
@@ -736,7 +760,7 @@ def report_data(scenario, comparison, present=None, prices=None, source=None,
     if rec["cooler_needed"]:
         q, basis, covered = decision_mod.quoted_duty(
             rec["duty_W"], rec["margin"], unc.get("cooler_duty_W") if unc.get("available")
-            else None)
+            else None, system)
         quote = {"duty_W": q, "basis": basis, "margin_covers": covered}
     excluded = {v.name: sorted({c for c, _ in v.blocking}) for v in dec.verdicts
                 if not v.feasible}
@@ -793,6 +817,8 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
 
     rd = prepared or report_data(scenario, comparison, present, prices, source, samples, seed,
                                  cover, system)
+    from heatload.units import format_quantity as fq
+    system = rd.get("system", "si")
     data, present, rec_name = rd["data"], rd["present"], rd["recommended"]
     dec = rd["decision"]
     recs = {r["label"]: r for r in data["strategies"]}
@@ -808,8 +834,8 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
                  f"<b>{_grouped(sav['energy_saving_kWh'])} kWh</b> of electricity a year "
                  f"({_grouped(sav['cost_saving'])} {_e(cur)}, "
                  f"{sav['co2_saving_kg'] / 1e3:.2f} t CO₂) and puts "
-                 f"{_num((base['heat_to_oil_W'] - best['heat_to_oil_W']) / 1e3)} kW less heat "
-                 f"into the oil.</p>")
+                 f"{fq(base['heat_to_oil_W'] - best['heat_to_oil_W'], 'power', system)} less "
+                 f"heat into the oil.</p>")
     if rd["excluded"]:
         lead += ("<p>Ruled out: " + "; ".join(
             f"<b>{_e(v.name)}</b> — {_e(v.reason[5:] if v.reason.startswith('out: ') else v.reason)}"
@@ -819,9 +845,9 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
         size = ""
         if spec:
             from heatload.cooling.cooler_types import cooler_type
-            size = ", " + _e(cooler_type(spec["coolant"]).summary(spec))
+            size = ", " + _e(cooler_type(spec["coolant"]).summary(spec, system))
         lead += (f"<p>A cooler <b>is needed</b> with {_e(rec_name)}: "
-                 f"<b>{_num(cooler['duty_W'] / 1e3)} kW</b> including the "
+                 f"<b>{fq(cooler['duty_W'], 'power', system)}</b> including the "
                  f"{100 * cooler['margin']:.0f} % margin{size}.</p>")
         lead += _quote_html(rd)
     else:
@@ -853,7 +879,7 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
         f'<div class="keyfigure"><div class="label">cooler duty</div>'
         f'<div class="value" data-key="cooler_duty_W" data-strategy="{_e(rec_name)}" '
         f'data-value="{best["cooler_duty_W"]!r}">'
-        + (f'{_num(best["cooler_duty_W"] / 1e3)} kW' if best["cooler_needed"] else "none")
+        + (fq(best["cooler_duty_W"], "power", system) if best["cooler_needed"] else "none")
         + "</div></div></div>")
 
     # --- figures -----------------------------------------------------------------
@@ -886,8 +912,11 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
         curves.append((f"{present}, no cooler", wp.times, wp.temperatures, c_pre, True))
     shift = _figure(shift_chart(curves, scenario.fluid.temperature_max - K0,
                                 o_rec.thermal.design_oil_temperature - K0),
-                    f"From a cold start at {scenario.ambient.cold_start_temperature - K0:.0f} °C, "
-                    f"typical ambient {scenario.ambient.temperature - K0:.0f} °C; the cooler is "
+                    f"From a cold start at "
+                    f"{fq(scenario.ambient.cold_start_temperature, 'temperature', system, decimals=0)}, "
+                    f"typical ambient "
+                    f"{fq(scenario.ambient.temperature, 'temperature', system, decimals=0)}; "
+                    f"the cooler is "
                     "switched by its thermostat.")
 
     # --- payback and cost of ownership ---------------------------------------------
@@ -929,7 +958,8 @@ def build_report(scenario, comparison, present=None, prices=None, source=None,
 
     sc = data["scenario"]
     meta = (f"{sc['phases']} phases, {sc['hours_per_year']:,.0f} h/year, ambient "
-            f"{sc['ambient_C']:.0f} °C (design {sc['ambient_max_C']:.0f} °C), electricity "
+            f"{fq(sc['ambient_C'] + 273.15, 'temperature', system, decimals=0)} (design "
+            f"{fq(sc['ambient_max_C'] + 273.15, 'temperature', system, decimals=0)}), electricity "
             f"{sc['electricity_price_per_kWh']:.3f} {_e(cur)}/kWh")
     payload = json.dumps({"comparison": _jsonable(data), "cooler": _jsonable(cooler),
                           "present": present, "recommended": rec_name,
@@ -954,7 +984,7 @@ ownership. The recommended row is highlighted; ruled-out rows are grey.</p>
 <section id="energy"><h2>3 Where the energy goes</h2>{flow}</section>
 <section id="cycle"><h2>4 Heat and pressure over the cycle</h2>{cyc}{motions}</section>
 <section id="shift"><h2>5 Oil temperature over a shift</h2>{shift}</section>
-<section id="cooler"><h2>6 Cooler</h2>{_cooler_html(cooler, rd['sizing'], rd['uncertainty'])}</section>
+<section id="cooler"><h2>6 Cooler</h2>{_cooler_html(cooler, rd['sizing'], rd['uncertainty'], system)}</section>
 <section id="payback"><h2>7 Cost of ownership and payback</h2>
 <p>Yearly cost of ownership = electricity of the circuit and of the cooler's fan + (circuit price
 + cooler price) x the capital recovery factor over the service life. Simple payback = extra price
@@ -977,17 +1007,20 @@ and the methods listed above.</footer>
 
 
 def _quote_html(rd):
+    from heatload.units import format_quantity
+    system = rd.get("system", "si")
     q = rd["quote"]
     unc = rd["uncertainty"] or {}
     spec = rd["cooler"].get("spec") or {}
-    line = (f'<p class="quote" id="quote-duty"><b>Quote this duty: {_num(q["duty_W"] / 1e3)} '
-            f'kW</b> — {_e(q["basis"])}.')
+    line = (f'<p class="quote" id="quote-duty"><b>Quote this duty: '
+            f'{format_quantity(q["duty_W"], "power", system)}</b> — {_e(q["basis"])}.')
     kwk = unc.get("specific_cooling_power_W_K") if unc.get("available") else None
     if spec.get("coolant") == "air" and kwk:
-        line += (f" Specific cooling power at the ETD: {spec['specific_cooling_power_W_K'] / 1e3:.3f}"
-                 f" kW/K nominal; over the uncertain inputs (the hottest day among them) "
-                 f"P50 {kwk['P50'] / 1e3:.3f}, P90 {kwk['P90'] / 1e3:.3f}, "
-                 f"P95 {kwk['P95'] / 1e3:.3f} kW/K.")
+        def g(v):
+            return format_quantity(v, "thermal_conductance", system)
+        line += (f" Specific cooling power at the ETD: {g(spec['specific_cooling_power_W_K'])}"
+                 f" nominal; over the uncertain inputs (the hottest day among them) "
+                 f"P50 {g(kwk['P50'])}, P90 {g(kwk['P90'])}, P95 {g(kwk['P95'])}.")
     return line + "</p>"
 
 

@@ -578,3 +578,20 @@ def test_a_report_where_no_cooler_can_hold_the_design_point_is_written(tmp_path)
     text = out.read_text(encoding="utf-8")
     assert "no air-oil cooler can hold the design point" in text
     assert "No cooler of the chosen kind can keep the oil" in text
+
+
+def test_a_us_report_gives_its_summary_cooler_and_quote_in_us_units():
+    # the customer who asked for US units reads the decision, the cooler section,
+    # its spec sheet and the duty to quote in hp, °F and Btu/(h·°F) too (their
+    # machine-readable data-value attributes stay SI)
+    sc = io.load_scenario(io.default_scenario_path())
+    cmp = chain.compare(sc)
+    rd = report.report_data(sc, cmp, samples=SAMPLES, system="us")
+    us = report.build_report(sc, cmp, prepared=rd)
+    head = _visible(us[:us.index('id="comparison"')])
+    cooler = _visible(us[us.index('id="cooler"'):us.index('id="warnings"')])
+    for part in (head, cooler):
+        assert " hp" in part and "°F" in part
+        assert not re.search(r" kW(?!h)", part)        # kWh of electricity stays
+        for unit in ("°C", " bar", "L/min", "m³/h"):
+            assert unit not in part, unit
