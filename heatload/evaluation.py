@@ -720,15 +720,10 @@ def _result_rows(result, rows, kind):
 
 
 def _input_rows(c, rows, n):
-    """Rows *rows* of an input dict of *n* rows."""
-    out = {}
-    for k, v in c.items():
-        if k == "shape":
-            v = (len(range(n)[rows]),) + tuple(v[1:])
-        elif isinstance(v, np.ndarray) and v.ndim >= 2 and v.shape[0] == n:
-            v = v[rows]
-        out[k] = v
-    return out
+    """Rows *rows* (a slice) of an input dict of *n* rows, as a plain dict
+    (:class:`heatload.hydraulics.circuits._Rows` read whole)."""
+    view = circuits._Rows(c, np.arange(n)[rows], n)
+    return {k: view[k] for k in c}
 
 
 def _evaluate(sc, sts, vals, oil_temperature, thermal, hot, phases) -> Evaluation:

@@ -257,6 +257,11 @@ def _design_point(scenario, outcome, coolant=None):
     return kind, cd, sz
 
 
+def _why_not(kind, sz) -> str:
+    """Why *kind*'s cooler could not be sized into *sz* (its notes)."""
+    return "; ".join(n for n in sz.notes if n.startswith(kind.label)) or "no unit fits"
+
+
 def cooler_shortfall(scenario, outcome):
     """Why no cooler of the file's coolant can hold one strategy's design point
     (the reason :func:`size_cooler` would refuse it with), or None where one can
@@ -273,7 +278,7 @@ def cooler_shortfall(scenario, outcome):
     kind.size(sz, cd)
     if kind.possible(sz):
         return None
-    return "; ".join(n for n in sz.notes if n.startswith(kind.label)) or "no unit fits"
+    return _why_not(kind, sz)
 
 
 def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None,
@@ -358,7 +363,7 @@ def size_cooler(scenario, outcome, coolant=None, rated_duty=None, rated_etd=None
         else:
             # the chosen coolant cannot take the duty: a refusal, not a sheet left
             # blank (a report, not strict, says so in the sizing's notes instead)
-            why = "; ".join(n for n in sz.notes if n.startswith(kind.label)) or "no unit fits"
+            why = _why_not(kind, sz)
             if strict:
                 raise HeatloadError(f"no {kind.label} cooler can hold the design point "
                                     f"({why})", field="cooler.coolant")

@@ -369,10 +369,8 @@ class _Rows(_LazyView):
 
     def __missing__(self, key):
         v = self._c[key]
-        if key == "shape":
-            v = (len(self._idx),) + tuple(v[1:])
-        elif isinstance(v, np.ndarray) and v.ndim >= 2 and v.shape[0] == self._n:
-            v = v[self._idx]
+        v = (len(self._idx),) + tuple(v[1:]) if key == "shape" else \
+            _take_rows(v, self._idx, self._n)
         self[key] = v
         return v
 

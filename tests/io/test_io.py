@@ -834,7 +834,7 @@ def test_pump_rated_viscosity_inside_its_own_window():
 
 
 def test_a_site_high_above_sea_level_loads():
-    # mines and cities stand at 1,600-4,500 m; the site's own bounds (-500..9000 m)
+    # mines and cities stand at 1,600-4,500 m (from memory); the site's own bounds (-500..9000 m)
     # rule there, not the magnitude limit of a machine's lengths (1000 m)
     text = io.default_scenario_path().read_text(encoding="utf-8")
     assert 'altitude = "200 m"' in text
